@@ -1,0 +1,45 @@
+package ingest
+
+import (
+	"errors"
+	"fmt"
+)
+
+// ParseError reports input that could not be read, with its position, in the
+// manner of encoding/csv's ParseError. Readers return it from Next for one
+// rejected sounding or line and carry on with the rest of the input on the
+// following call.
+type ParseError struct {
+	File   string // input path as given
+	Member string // member of a zip archive, or ""
+	Line   int    // 1-based line, 0 when the input is not line-oriented
+	Offset int64  // byte offset for binary inputs, −1 when Line is used
+	Err    error  // what was wrong
+}
+
+func (e *ParseError) Error() string {
+	name := e.File
+	if e.Member != "" {
+		name += "!" + e.Member
+	}
+	switch {
+	case e.Line > 0:
+		return fmt.Sprintf("%s:%d: %v", name, e.Line, e.Err)
+	case e.Offset >= 0:
+		return fmt.Sprintf("%s@%d: %v", name, e.Offset, e.Err)
+	}
+	return fmt.Sprintf("%s: %v", name, e.Err)
+}
+
+func (e *ParseError) Unwrap() error { return e.Err }
+
+// Reasons a reader gives for skipping input. They are wrapped in a
+// ParseError; callers use errors.Is to count skips by reason.
+var (
+	ErrLevelCount   = errors.New("level count in header does not match the levels present")
+	ErrBadHeader    = errors.New("malformed header")
+	ErrBadLevel     = errors.New("malformed level record")
+	ErrOrphanLevel  = errors.New("level record before any header")
+	ErrTooLarge     = errors.New("decompressed input exceeds the size limit")
+	ErrUnknownInput = errors.New("input format not recognised")
+)
