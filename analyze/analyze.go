@@ -1,0 +1,156 @@
+package analyze
+
+import (
+	"math"
+
+	"github.com/sondeclim/sondeclim/analyze/thermo"
+	"github.com/sondeclim/sondeclim/ingest/sounding"
+)
+
+// Analysis statuses. Anything other than StatusOK means the sounding was
+// attempted but could not be analysed; it must be counted, not dropped.
+const (
+	StatusOK             = "ok"
+	StatusInvalidConfig  = "invalid_config"   // the Config fails validation (e.g. a zero Config)
+	StatusNoLevels       = "no_levels"        // nil sounding or no levels at all
+	StatusNoThermoLevels = "no_thermo_levels" // no level has pressure, temperature and a height
+	StatusNoSurfaceLevel = "no_surface_level" // the lowest such level is more than MaxSurfaceGapM above the station
+	StatusTooFewLevels   = "too_few_levels"   // fewer than MinLevels usable levels below CoverageTopPa
+)
+
+// Result holds the diagnostics of one sounding. Per-level slices are
+// aligned 1:1 with the sounding's Levels (same index) and hold NaN where a
+// value cannot be computed; they are filled as far as possible even when
+// Status is not StatusOK.
+type Result struct {
+	Status      string // StatusOK or one of the reasons above
+	ConstantSet string // thermo.Constants.ID() of the set used
+	SatVap      string // saturation vapour pressure formula used
+
+	HeightM         []float64 // gpm above mean sea level, reported or filled
+	HeightDerived   []bool    // true where HeightM was filled hypsometrically
+	HeightAGLM      []float64 // gpm above ground
+	ThetaK          []float64 // K, potential temperature
+	ThetaVK         []float64 // K, virtual potential temperature (NaN without humidity)
+	MixingRatioKgKg []float64 // kg/kg, from dewpoint and pressure
+	// HeightAnchors lists the re-anchor points of the height integration
+	// with their hydrostatic mismatch (see FillHeights).
+	HeightAnchors []HeightAnchor
+	// StandardAnchor: no level had a height; see Heights.StandardAnchor.
+	StandardAnchor bool
+
+	// SurfaceIndex is the index in Levels of the surface level of the
+	// thermodynamic profile (its lowest level), −1 when there is none.
+	SurfaceIndex int
+	// CeilingAGLM is the search ceiling actually used, m AGL.
+	CeilingAGLM float64
+
+	SBI        Inversion  // surface-based inversion
+	MixedLayer MixedLayer // lowest well-mixed layer
+	Parcel     Parcel     // parcel mixing height from the surface temperature
+}
+
+// Analyze computes the diagnostics of one sounding with the given
+// configuration. It never panics and never modifies s. See the package
+// documentation for how levels are selected.
+//
+// Heights above ground are relative to s.ElevationM when it is known and
+// heights are anchored to a reported height, else to the surface level.
+// The surface-based inversion is the lowest inversion layer (METHODS §3.2)
+// when its base is the surface level. The mixed layer is searched from the
+// surface, or from the top of the surface-based inversion. The parcel is
+// lifted from the surface level's temperature plus Parcel.ExcessK at the
+// surface pressure.
+func Analyze(s *sounding.Sounding, cfg Config) Result {
+	r := Result{Status: StatusOK, ConstantSet: cfg.Constants.ID(), SatVap: cfg.SatVap.String(),
+		SurfaceIndex: -1, CeilingAGLM: math.NaN(),
+		SBI: noInversion(), MixedLayer: noMixedLayer(),
+		Parcel: Parcel{Status: ParcelUndefined, HeightAGLM: math.NaN(), Theta0K: math.NaN()}}
+	switch {
+	case !cfg.valid():
+		r.Status = StatusInvalidConfig
+		return r
+	case s == nil || len(s.Levels) == 0:
+		r.Status = StatusNoLevels
+		return r
+	}
+	p, t := r.levelValues(s, cfg)
+	pr := r.buildProfile(p, t)
+	if len(pr.idx) == 0 {
+		r.Status = StatusNoThermoLevels
+		return r
+	}
+	r.SurfaceIndex = pr.idx[0]
+	if !math.IsNaN(s.ElevationM) && !r.StandardAnchor && pr.z[0] > cfg.MaxSurfaceGapM {
+		r.Status = StatusNoSurfaceLevel
+		return r
+	}
+	covered := 0
+	for _, pk := range pr.p {
+		if pk >= cfg.CoverageTopPa {
+			covered++
+		}
+	}
+	if covered < cfg.MinLevels {
+		r.Status = StatusTooFewLevels
+		return r
+	}
+	zc, n := pr.ceiling(cfg)
+	r.CeilingAGLM = zc
+
+	mlBase := 0
+	if inv := findInversions(pr.z, pr.t, n, cfg.Inversion); len(inv) > 0 && inv[0].base == 0 {
+		r.SBI = pr.inversionFrom(inv[0])
+		mlBase = inv[0].top
+	}
+	r.MixedLayer = pr.mixedLayer(mlBase, n, cfg.MixedLayer)
+
+	c := cfg.Constants
+	r.Parcel.Theta0K = thermo.PotentialTemperature(pr.t[0]+cfg.Parcel.ExcessK, pr.p[0], c.Kappa, c.P0Pa)
+	r.Parcel.HeightAGLM, r.Parcel.Status = ParcelMixingHeight(pr.z, pr.theta, r.Parcel.Theta0K, zc)
+	return r
+}
+
+// levelValues fills the per-level slices and returns the levels' pressures
+// and temperatures (Inf treated as missing).
+func (r *Result) levelValues(s *sounding.Sounding, cfg Config) (p, t []float64) {
+	n := len(s.Levels)
+	c := cfg.Constants
+	h := FillHeights(s.Levels, s.ElevationM, c, cfg.SatVap)
+	r.HeightM, r.HeightDerived, r.HeightAnchors, r.StandardAnchor = h.HeightM, h.Derived, h.Anchors, h.StandardAnchor
+	buf := make([]float64, 6*n)
+	r.HeightAGLM, r.ThetaK, r.ThetaVK, r.MixingRatioKgKg = buf[:n], buf[n:2*n], buf[2*n:3*n], buf[3*n:4*n]
+	p, t = buf[4*n:5*n], buf[5*n:]
+	for i, l := range s.Levels {
+		p[i], t[i] = finite(l.PressurePa), finite(l.TemperatureK)
+		th := thermo.PotentialTemperature(t[i], p[i], c.Kappa, c.P0Pa)
+		w := thermo.MixingRatio(thermo.VapourPressureFromDewpoint(finite(l.DewpointK), cfg.SatVap), p[i], c.Epsilon)
+		r.ThetaK[i], r.MixingRatioKgKg[i] = th, w
+		r.ThetaVK[i] = thermo.VirtualPotentialTemperature(th, w, c.Epsilon)
+	}
+	ground := s.ElevationM
+	if math.IsNaN(ground) || h.StandardAnchor {
+		ground = math.NaN()
+		// The surface of the profile: the highest-pressure level with T and a height.
+		best := -1
+		for i := range p {
+			if p[i] > 0 && t[i] > 0 && !math.IsNaN(r.HeightM[i]) && (best < 0 || p[i] > p[best]) {
+				best = i
+			}
+		}
+		if best >= 0 {
+			ground = r.HeightM[best]
+		}
+	}
+	for i := range r.HeightAGLM {
+		r.HeightAGLM[i] = r.HeightM[i] - ground
+	}
+	return p, t
+}
+
+func finite(v float64) float64 {
+	if math.IsInf(v, 0) {
+		return math.NaN()
+	}
+	return v
+}

@@ -1,0 +1,43 @@
+package analyze
+
+import (
+	"testing"
+
+	"github.com/sondeclim/sondeclim/ingest/sounding"
+)
+
+// benchSounding returns a 100-level sounding (invented scaffolding): a
+// surface inversion over a mixed layer and a stable free troposphere, with
+// heights reported only every tenth level.
+func benchSounding() *sounding.Sounding {
+	s := &sounding.Sounding{StationID: "XQ0099", ElevationM: 100}
+	for i := 0; i < 100; i++ {
+		p := 1000 - 8.5*float64(i)
+		tc := 10 - 0.0065*8.5*float64(i)*9
+		if i < 5 {
+			tc = 5 + float64(i)
+		}
+		z := nan
+		if i%10 == 0 {
+			z = 100 + 75*float64(i)
+		}
+		k := sounding.KindSignificant
+		if i == 0 {
+			k = sounding.KindSurface
+		}
+		s.Levels = append(s.Levels, lvl(k, p, z, tc, tc-5))
+	}
+	return s
+}
+
+func BenchmarkAnalyze100Levels(b *testing.B) {
+	s := benchSounding()
+	cfg := DefaultConfig()
+	b.ReportAllocs()
+	for b.Loop() {
+		r := Analyze(s, cfg)
+		if r.Status != StatusOK {
+			b.Fatal(r.Status)
+		}
+	}
+}

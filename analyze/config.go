@@ -1,0 +1,101 @@
+package analyze
+
+import "github.com/sondeclim/sondeclim/analyze/thermo"
+
+// Config holds every tunable parameter of Analyze. Start from DefaultConfig
+// and change fields; a zero Config is refused with Status "invalid_config".
+type Config struct {
+	// Constants is the thermodynamic constant set; its ID is recorded in
+	// the Result. Default thermo.Default() (metpy-like).
+	Constants thermo.Constants
+	// SatVap is the saturation vapour pressure formula used to turn
+	// dewpoints into vapour pressures. Default thermo.Bolton (METHODS §1.3;
+	// radiosonde humidity is relative to water).
+	SatVap thermo.SatVapFormula
+
+	// CeilingPressurePa and CeilingAGLM bound every search: levels above
+	// whichever is reached first are not searched. Defaults 500 hPa and
+	// 5 km AGL (METHODS §3.2 for inversions, from memory there; METHODS
+	// §4.1 for the parcel method).
+	CeilingPressurePa float64
+	CeilingAGLM       float64
+
+	// MinLevels is the minimum number of usable thermodynamic levels
+	// (pressure, temperature and height, surface included) at pressures
+	// ≥ CoverageTopPa for the sounding to be analysed. Defaults 3 and
+	// 700 hPa (METHODS §6 "Depth / coverage", a proposal there).
+	MinLevels     int
+	CoverageTopPa float64
+	// MaxSurfaceGapM is the largest height of the lowest thermodynamic
+	// level above the station elevation that still counts as the surface
+	// (needed when the surface line is wind-only, without pressure).
+	// Default 100 m (common practice, no source). Not checked when the
+	// station elevation is unknown.
+	MaxSurfaceGapM float64
+
+	Inversion  InversionConfig
+	MixedLayer MixedLayerConfig
+	Parcel     ParcelConfig
+}
+
+// InversionConfig parameterises inversion detection (METHODS §3.2).
+type InversionConfig struct {
+	// MinPairDeltaK: a pair of adjacent levels is inverted when
+	// T(k+1) − T(k) > MinPairDeltaK. Default 0 K (METHODS §3.2 step 2).
+	MinPairDeltaK float64
+	// IsothermalAsInversion also counts pairs with T(k+1) = T(k).
+	// Default false (METHODS §3.2 step 2).
+	IsothermalAsInversion bool
+	// MergeGapM: consecutive inverted runs separated by a non-inverted gap
+	// thinner than this are merged. Default 100 m (METHODS §3.2 step 4,
+	// the Kahl 1990 refinement; value from memory there). 0 disables.
+	MergeGapM float64
+	// MinStrengthK and MinDepthM: layers weaker or thinner are discarded
+	// after merging. Defaults 0 K and 0 m (METHODS §3.2 step 5, proposal).
+	MinStrengthK float64
+	MinDepthM    float64
+}
+
+// MixedLayerConfig parameterises the well-mixed layer test (METHODS §2,
+// "suggested default"; heuristics, not a published standard).
+type MixedLayerConfig struct {
+	MaxThetaVRangeK         float64 // max − min θv in the layer, K; default 1.0
+	MaxMixingRatioRangeKgKg float64 // max − min w in the layer, kg/kg; default 0.001 (1 g/kg)
+	MinLevels               int     // levels in the layer, base included; default 3
+	MinDepthM               float64 // top − base, m; default 200
+}
+
+// ParcelConfig parameterises the parcel mixing height (METHODS §4.1).
+type ParcelConfig struct {
+	// ExcessK is added to the surface temperature before lifting the
+	// parcel. Default 0 K; METHODS §4.1 mentions +0.5 K as an option
+	// (from memory) and the Holzworth morning construction uses +5 K.
+	ExcessK float64
+}
+
+// DefaultConfig returns the documented defaults listed on each field.
+func DefaultConfig() Config {
+	return Config{
+		Constants:         thermo.Default(),
+		SatVap:            thermo.Bolton,
+		CeilingPressurePa: 50000,
+		CeilingAGLM:       5000,
+		MinLevels:         3,
+		CoverageTopPa:     70000,
+		MaxSurfaceGapM:    100,
+		Inversion:         InversionConfig{MergeGapM: 100},
+		MixedLayer: MixedLayerConfig{
+			MaxThetaVRangeK:         1.0,
+			MaxMixingRatioRangeKgKg: 0.001,
+			MinLevels:               3,
+			MinDepthM:               200,
+		},
+	}
+}
+
+// valid reports whether the configuration can be used.
+func (c Config) valid() bool {
+	return c.Constants.Valid() && c.CeilingPressurePa > 0 && c.CeilingAGLM > 0 &&
+		c.MinLevels >= 1 && !(c.CoverageTopPa < 0) && c.MixedLayer.MinLevels >= 2 &&
+		!(c.MaxSurfaceGapM < 0) && !(c.Inversion.MergeGapM < 0)
+}

@@ -1,0 +1,173 @@
+package analyze
+
+import (
+	"math"
+	"sort"
+
+	"github.com/sondeclim/sondeclim/analyze/thermo"
+	"github.com/sondeclim/sondeclim/ingest/sounding"
+)
+
+// HeightAnchor records a level whose reported height was used to re-anchor
+// the hypsometric integration, with the height the integration had reached
+// there. The mismatch is a hydrostatic-consistency diagnostic for quality
+// control (METHODS §1.6, §6).
+type HeightAnchor struct {
+	Index       int     // index of the level in the sounding's Levels
+	PressurePa  float64 // Pa
+	ReportedM   float64 // gpm above mean sea level, as reported
+	IntegratedM float64 // gpm, from the level below (or above) by the hypsometric equation
+	MismatchM   float64 // ReportedM − IntegratedM, m
+}
+
+// Heights is the result of FillHeights. Slices are aligned 1:1 with the
+// levels given.
+type Heights struct {
+	HeightM []float64 // gpm above mean sea level; reported, derived, or NaN
+	Derived []bool    // true where HeightM was computed here
+	Anchors []HeightAnchor
+	// StartIndex is the level the integration started from, −1 when no
+	// level could be used.
+	StartIndex int
+	// StandardAnchor is true when no level with pressure, temperature and
+	// height existed and the start level was placed at its U.S. Standard
+	// Atmosphere 1976 pressure altitude: heights above that level are then
+	// correct relative to it, but not above sea level.
+	StandardAnchor bool
+}
+
+// FillHeights fills missing geopotential heights of a sounding's pressure
+// levels by integrating the hypsometric equation,
+//
+//	Z2 − Z1 = (Rd/g0) (Tv1 + Tv2)/2 ln(p1/p2)   (trapezoid Tv in ln p),
+//
+// through the levels sorted by decreasing pressure (the input order does
+// not matter). Tv is computed from T and the dewpoint when both are given,
+// from T alone (Tv = T) when the dewpoint is missing; for a level with
+// pressure but no temperature Tv is interpolated linearly in ln p between
+// the nearest levels that have one (never extrapolated).
+//
+// Integration starts at the lowest level that has both a usable Tv and a
+// height: normally the surface level, whose height is the station elevation
+// elevationM when the level itself carries none. When the surface line is
+// wind-only (no pressure, as in some archive files) the start is the lowest
+// pressure level with a height, and levels below it are integrated
+// downward from it. Going up (and down), every level with a reported height
+// re-anchors the integration; the difference between reported and
+// integrated heights is returned in Anchors. Levels without pressure keep
+// their reported height and are not used. When no level has a height at
+// all, the lowest level with Tv is placed at its USSA76 pressure altitude
+// (METHODS §1.7) and StandardAnchor is set.
+//
+// Levels whose height cannot be derived (no Tv available) stay NaN unless
+// reported. Exact duplicate pressures get the same height. It never
+// panics; an empty input gives empty slices and StartIndex −1.
+func FillHeights(levels []sounding.Level, elevationM float64, c thermo.Constants, f thermo.SatVapFormula) Heights {
+	n := len(levels)
+	h := Heights{HeightM: make([]float64, n), Derived: make([]bool, n), StartIndex: -1}
+	ord := make([]int, 0, n)
+	for i, l := range levels {
+		h.HeightM[i] = l.HeightM
+		if math.IsInf(l.HeightM, 0) {
+			h.HeightM[i] = math.NaN()
+		}
+		if l.PressurePa > 0 && !math.IsInf(l.PressurePa, 0) {
+			ord = append(ord, i)
+		}
+	}
+	if len(ord) == 0 {
+		return h
+	}
+	sort.SliceStable(ord, func(a, b int) bool { return levels[ord[a]].PressurePa > levels[ord[b]].PressurePa })
+	tv := virtualTemperatures(levels, ord, c, f)
+
+	if j0 := ord[0]; levels[j0].Kind == sounding.KindSurface && math.IsNaN(h.HeightM[j0]) && !math.IsNaN(elevationM) {
+		h.HeightM[j0], h.Derived[j0] = elevationM, true
+	}
+	start := -1
+	for pos, j := range ord {
+		if !math.IsNaN(tv[pos]) && !math.IsNaN(h.HeightM[j]) {
+			start = pos
+			break
+		}
+	}
+	if start < 0 {
+		for pos, j := range ord {
+			if !math.IsNaN(tv[pos]) {
+				start = pos
+				h.HeightM[j] = thermo.StandardHeight(levels[j].PressurePa)
+				h.Derived[j], h.StandardAnchor = true, true
+				break
+			}
+		}
+	}
+	if start < 0 || math.IsNaN(h.HeightM[ord[start]]) {
+		return h
+	}
+	h.StartIndex = ord[start]
+	h.integrate(levels, ord, tv, start, +1, c)
+	h.integrate(levels, ord, tv, start, -1, c)
+	return h
+}
+
+// integrate walks ord from position start in direction dir (+1 up, −1
+// down), filling or re-anchoring heights.
+func (h *Heights) integrate(levels []sounding.Level, ord []int, tv []float64, start, dir int, c thermo.Constants) {
+	prev := start
+	for pos := start + dir; pos >= 0 && pos < len(ord); pos += dir {
+		if math.IsNaN(tv[pos]) {
+			continue
+		}
+		jp, j := ord[prev], ord[pos]
+		z := h.HeightM[jp] + thermo.Thickness(levels[jp].PressurePa, levels[j].PressurePa, tv[prev], tv[pos], c.Rd, c.G0)
+		if rep := h.HeightM[j]; !math.IsNaN(rep) {
+			h.Anchors = append(h.Anchors, HeightAnchor{Index: j, PressurePa: levels[j].PressurePa,
+				ReportedM: rep, IntegratedM: z, MismatchM: rep - z})
+		} else {
+			h.HeightM[j], h.Derived[j] = z, true
+		}
+		prev = pos
+	}
+}
+
+// virtualTemperatures returns Tv in K for each position of ord, from T and
+// the dewpoint (Tv = T when the dewpoint is missing), interpolated in ln p
+// for levels without temperature, NaN where not bracketed.
+func virtualTemperatures(levels []sounding.Level, ord []int, c thermo.Constants, f thermo.SatVapFormula) []float64 {
+	tv := make([]float64, len(ord))
+	for pos, j := range ord {
+		tv[pos] = virtualTemperature(levels[j], c, f)
+	}
+	last := -1
+	for pos := range ord {
+		if math.IsNaN(tv[pos]) {
+			continue
+		}
+		if last >= 0 && pos > last+1 {
+			p0, p1 := levels[ord[last]].PressurePa, levels[ord[pos]].PressurePa
+			for k := last + 1; k < pos; k++ {
+				pk := levels[ord[k]].PressurePa
+				if p0 == p1 {
+					tv[k] = tv[last]
+					continue
+				}
+				fr := math.Log(p0/pk) / math.Log(p0/p1)
+				tv[k] = tv[last] + fr*(tv[pos]-tv[last])
+			}
+		}
+		last = pos
+	}
+	return tv
+}
+
+// virtualTemperature returns Tv of one level in K, or NaN without T.
+func virtualTemperature(l sounding.Level, c thermo.Constants, f thermo.SatVapFormula) float64 {
+	if !(l.TemperatureK > 0) || math.IsInf(l.TemperatureK, 0) {
+		return math.NaN()
+	}
+	w := thermo.MixingRatio(thermo.VapourPressureFromDewpoint(l.DewpointK, f), l.PressurePa, c.Epsilon)
+	if math.IsNaN(w) {
+		return l.TemperatureK
+	}
+	return thermo.VirtualTemperature(l.TemperatureK, w, c.Epsilon)
+}

@@ -1,0 +1,67 @@
+package analyze
+
+import (
+	"math"
+	"sort"
+
+	"github.com/sondeclim/sondeclim/analyze/thermo"
+)
+
+// profile is the thermodynamic profile of one sounding: levels with
+// pressure, temperature and height, sorted by decreasing pressure, exact
+// duplicate pressures dropped. Index 0 is the surface.
+type profile struct {
+	idx    []int     // index into the sounding's Levels
+	p      []float64 // Pa
+	t      []float64 // K
+	z      []float64 // m AGL
+	theta  []float64 // K
+	thetav []float64 // K; θv, or θ where humidity is missing
+	w      []float64 // kg/kg, NaN where humidity is missing
+}
+
+func (r *Result) buildProfile(p, t []float64) profile {
+	var idx []int
+	for i := range p {
+		if p[i] > 0 && t[i] > 0 && !math.IsInf(p[i], 0) && !math.IsInf(t[i], 0) && !math.IsNaN(r.HeightAGLM[i]) {
+			idx = append(idx, i)
+		}
+	}
+	sort.SliceStable(idx, func(a, b int) bool { return p[idx[a]] > p[idx[b]] })
+	k := 0
+	for _, i := range idx {
+		if k > 0 && p[i] == p[idx[k-1]] {
+			continue
+		}
+		idx[k] = i
+		k++
+	}
+	idx = idx[:k]
+	pr := profile{idx: idx}
+	buf := make([]float64, 6*k)
+	pr.p, pr.t, pr.z, pr.theta, pr.thetav, pr.w = buf[:k], buf[k:2*k], buf[2*k:3*k], buf[3*k:4*k], buf[4*k:5*k], buf[5*k:]
+	for n, i := range idx {
+		pr.p[n], pr.t[n], pr.z[n] = p[i], t[i], r.HeightAGLM[i]
+		pr.theta[n], pr.w[n] = r.ThetaK[i], r.MixingRatioKgKg[i]
+		pr.thetav[n] = r.ThetaVK[i]
+		if math.IsNaN(pr.thetav[n]) {
+			pr.thetav[n] = pr.theta[n]
+		}
+	}
+	return pr
+}
+
+// ceiling returns the search ceiling in m AGL (the lower of the height
+// ceiling and the height of the pressure ceiling, interpolated in ln p when
+// the profile reaches it) and the number of leading profile levels at or
+// below it.
+func (pr profile) ceiling(cfg Config) (zc float64, n int) {
+	zc = cfg.CeilingAGLM
+	if zp := thermo.InterpolateLogP(pr.p, pr.z, cfg.CeilingPressurePa); zp < zc {
+		zc = zp
+	}
+	for n < len(pr.p) && pr.z[n] <= zc && pr.p[n] >= cfg.CeilingPressurePa {
+		n++
+	}
+	return zc, n
+}
