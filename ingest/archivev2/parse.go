@@ -1,0 +1,313 @@
+package archivev2
+
+import (
+	"fmt"
+	"math"
+	"strings"
+	"time"
+
+	"github.com/sondeclim/sondeclim/ingest"
+	"github.com/sondeclim/sondeclim/ingest/sounding"
+)
+
+// Special values of the data records (igra2-data-format.txt).
+const (
+	codeRemoved = -8888 // removed by the archive's quality assurance
+	codeMissing = -9999 // missing before quality assurance
+)
+
+// field returns columns from..to (1-based, inclusive) of line, clipped to
+// the line's length.
+func field(line []byte, from, to int) []byte {
+	if from > len(line) {
+		return nil
+	}
+	return line[from-1 : min(to, len(line))]
+}
+
+// blankAt reports whether 1-based column c is a space or beyond the line.
+func blankAt(line []byte, c int) bool { return c > len(line) || line[c-1] == ' ' }
+
+// atoi parses a right- or left-aligned decimal integer with an optional
+// sign, surrounded by spaces, without allocating. ok is false for a blank
+// or malformed field.
+func atoi(b []byte) (v int, ok bool) {
+	for len(b) > 0 && b[0] == ' ' {
+		b = b[1:]
+	}
+	for len(b) > 0 && b[len(b)-1] == ' ' {
+		b = b[:len(b)-1]
+	}
+	neg := false
+	if len(b) > 0 && (b[0] == '-' || b[0] == '+') {
+		neg = b[0] == '-'
+		b = b[1:]
+	}
+	if len(b) == 0 || len(b) > 9 {
+		return 0, false
+	}
+	for _, c := range b {
+		if c < '0' || c > '9' {
+			return 0, false
+		}
+		v = v*10 + int(c-'0')
+	}
+	if neg {
+		v = -v
+	}
+	return v, true
+}
+
+// parseHeader reads a header record into a sounding without levels.
+//
+// Columns (1-based): ID 2–12, YEAR 14–17, MONTH 19–20, DAY 22–23, HOUR
+// 25–26, RELTIME 28–31, NUMLEV 33–36, P_SRC 38–45, NP_SRC 47–54, LAT 56–62,
+// LON 64–71. LAT and LON are degrees × 10⁴; a blank field, a negative
+// all-nines code (−99999, −999999, −9999999) or a value outside ±90°/±180°
+// gives NaN. Columns between fields must be blank. Times are set by
+// nominalAndLaunch.
+func parseHeader(line []byte) (*sounding.Sounding, error) {
+	bad := func(format string, a ...any) error {
+		return fmt.Errorf("%w: %s", ingest.ErrBadHeader, fmt.Sprintf(format, a...))
+	}
+	if len(line) < 36 {
+		return nil, bad("%d characters, want at least 36", len(line))
+	}
+	for _, c := range [...]int{13, 18, 21, 24, 27, 32, 37, 46, 55, 63} {
+		if !blankAt(line, c) {
+			return nil, bad("column %d is not blank", c)
+		}
+	}
+	id := strings.TrimSpace(string(field(line, 2, 12)))
+	if id == "" || strings.ContainsAny(id, " \t") {
+		return nil, bad("station id %q", field(line, 2, 12))
+	}
+	year, ok1 := atoi(field(line, 14, 17))
+	month, ok2 := atoi(field(line, 19, 20))
+	day, ok3 := atoi(field(line, 22, 23))
+	if !ok1 || !ok2 || !ok3 || year < 1 || month < 1 || month > 12 || day < 1 ||
+		day > time.Date(year, time.Month(month)+1, 0, 0, 0, 0, 0, time.UTC).Day() {
+		return nil, bad("date %q", field(line, 14, 23))
+	}
+	hour, ok := atoi(field(line, 25, 26))
+	if !ok || (hour > 23 && hour != 99) || hour < 0 {
+		return nil, bad("hour %q", field(line, 25, 26))
+	}
+	rel, ok := atoi(field(line, 28, 31))
+	relMin := -1 // minutes after 00 UTC, −1 when missing
+	switch {
+	case !ok || rel < 0:
+		return nil, bad("release time %q", field(line, 28, 31))
+	case rel == 9999:
+	case rel/100 <= 23 && (rel%100 <= 59 || rel%100 == 99):
+		relMin = rel / 100 * 60
+		if rel%100 != 99 {
+			relMin += rel % 100
+		}
+	default:
+		return nil, bad("release time %q", field(line, 28, 31))
+	}
+	numlev, ok := atoi(field(line, 33, 36))
+	if !ok || numlev < 0 {
+		return nil, bad("level count %q", field(line, 33, 36))
+	}
+	lat, err := coord(field(line, 56, 62), 90)
+	if err != nil {
+		return nil, bad("latitude %q", field(line, 56, 62))
+	}
+	lon, err := coord(field(line, 64, 71), 180)
+	if err != nil {
+		return nil, bad("longitude %q", field(line, 64, 71))
+	}
+	s := &sounding.Sounding{
+		StationID:      id,
+		LatitudeDeg:    lat,
+		LongitudeDeg:   lon,
+		ElevationM:     math.NaN(),
+		DeclaredLevels: numlev,
+		PressureSource: strings.TrimSpace(string(field(line, 38, 45))),
+		HeightSource:   strings.TrimSpace(string(field(line, 47, 54))),
+		Levels:         make([]sounding.Level, 0, min(numlev, 256)),
+	}
+	s.NominalTime, s.LaunchTime, s.NominalHourInferred, s.LaunchTimeReported =
+		nominalAndLaunch(year, time.Month(month), day, hour, relMin)
+	return s, nil
+}
+
+// coord converts a header coordinate in degrees × 10⁴ to degrees; blank,
+// negative all-nines codes and values beyond ±limit give NaN.
+func coord(b []byte, limit float64) (float64, error) {
+	if isBlank(b) {
+		return math.NaN(), nil
+	}
+	v, ok := atoi(b)
+	if !ok {
+		return 0, ingest.ErrBadHeader
+	}
+	switch v {
+	case -99999, -999999, -9999999:
+		return math.NaN(), nil
+	}
+	d := float64(v) / 1e4
+	if math.Abs(d) > limit {
+		return math.NaN(), nil
+	}
+	return d, nil
+}
+
+// nominalAndLaunch returns the nominal and launch times of a sounding whose
+// header gives date y-m-d, nominal hour (99 = missing) and release time as
+// minutes after 00 UTC (relMin; −1 when RELTIME is 9999; an hour-only
+// release time HH99 is passed as HH:00).
+//
+// The nominal time is the header date at the nominal hour. When the hour is
+// 99 it is inferred (inferred = true) from the release time rounded to the
+// nearest multiple of 3 h, halves rounding up, taken modulo 24 on the header
+// date: a release at 23:30 gives 00 UTC of the header date. When both hour
+// and release time are missing the nominal hour is taken as 00 UTC.
+//
+// The release is placed on the header date, the day before or the day after,
+// whichever puts it closest to the nominal time (so always within ±12 h; a
+// tie goes to the earlier day): "HOUR 00 RELTIME 2315" is a release at 23:15
+// on the previous day. When RELTIME is 9999 the launch time is the nominal
+// time and reported is false.
+func nominalAndLaunch(y int, m time.Month, d, hour, relMin int) (nominal, launch time.Time, inferred, reported bool) {
+	day := time.Date(y, m, d, 0, 0, 0, 0, time.UTC)
+	switch {
+	case hour != 99:
+		nominal = day.Add(time.Duration(hour) * time.Hour)
+	case relMin < 0:
+		nominal, inferred = day, true
+	default:
+		h := (relMin + 90) / 180 * 3 % 24
+		nominal, inferred = day.Add(time.Duration(h)*time.Hour), true
+	}
+	if relMin < 0 {
+		return nominal, nominal, inferred, false
+	}
+	best := time.Time{}
+	bestGap := time.Duration(math.MaxInt64)
+	for k := -1; k <= 1; k++ {
+		c := day.AddDate(0, 0, k).Add(time.Duration(relMin) * time.Minute)
+		gap := c.Sub(nominal)
+		if gap < 0 {
+			gap = -gap
+		}
+		if gap < bestGap {
+			best, bestGap = c, gap
+		}
+	}
+	return nominal, best, inferred, true
+}
+
+// parseLevel reads one data record.
+//
+// Columns (1-based): LVLTYP1 1, LVLTYP2 2, ETIME 4–8 (MMMSS), PRESS 10–15
+// (Pa), PFLAG 16, GPH 17–21 (gpm), ZFLAG 22, TEMP 23–27 (°C × 10), TFLAG 28,
+// RH 29–33 (% × 10), DPDP 35–39 (°C × 10), WDIR 41–45 (degrees), WSPD 47–51
+// (m/s × 10). Columns 3, 9, 34, 40 and 46 must be blank and flags blank, 'A'
+// or 'B'.
+//
+// Kind: LVLTYP2 = 1 gives KindSurface whatever LVLTYP1 says (the files also
+// hold "11", a surface on a standard level, and "01", a surface record with
+// no pressure); otherwise LVLTYP1 1 is standard, 2 significant, 3 wind-only.
+// LVLTYP1 = 0 is accepted only with LVLTYP2 = 1. LVLTYP2 = 2 marks the
+// tropopause.
+//
+// −9999 gives NaN with status Missing, −8888 NaN with RemovedUpstream. The
+// dewpoint is T − DPD when both are reported (status of the depression
+// stays Reported; the dewpoint itself is derived here).
+func parseLevel(line []byte) (sounding.Level, error) {
+	lv := sounding.NewLevel()
+	bad := func(format string, a ...any) error {
+		return fmt.Errorf("%w: %s", ingest.ErrBadLevel, fmt.Sprintf(format, a...))
+	}
+	if len(line) < 51 {
+		return lv, bad("%d characters, want at least 51", len(line))
+	}
+	for _, c := range [...]int{3, 9, 34, 40, 46} {
+		if line[c-1] != ' ' {
+			return lv, bad("column %d is not blank", c)
+		}
+	}
+	t1, t2 := line[0], line[1]
+	switch {
+	case t1 < '0' || t1 > '3' || t2 < '0' || t2 > '2' || (t1 == '0' && t2 != '1'):
+		return lv, bad("level type %q", line[:2])
+	case t2 == '1':
+		lv.Kind = sounding.KindSurface
+	case t1 == '1':
+		lv.Kind = sounding.KindStandard
+	case t1 == '2':
+		lv.Kind = sounding.KindSignificant
+	default:
+		lv.Kind = sounding.KindWindOnly
+	}
+	lv.Tropopause = t2 == '2'
+
+	type spec struct {
+		v          sounding.Var
+		from, to   int
+		flag       int // column of the flag, 0 if none
+		scale, off float64
+		dst        *float64
+	}
+	specs := [...]spec{
+		{sounding.VarPressure, 10, 15, 16, 1, 0, &lv.PressurePa},
+		{sounding.VarHeight, 17, 21, 22, 1, 0, &lv.HeightM},
+		{sounding.VarTemperature, 23, 27, 28, 10, 273.15, &lv.TemperatureK},
+		{sounding.VarRelHumidity, 29, 33, 0, 10, 0, &lv.RelHumidityPct},
+		{sounding.VarDewpointDepression, 35, 39, 0, 10, 0, &lv.DewpointDepressionK},
+		{sounding.VarWindDirection, 41, 45, 0, 1, 0, &lv.WindDirectionDeg},
+		{sounding.VarWindSpeed, 47, 51, 0, 10, 0, &lv.WindSpeedMS},
+	}
+	for _, sp := range specs {
+		raw, ok := atoi(line[sp.from-1 : sp.to])
+		if !ok {
+			return lv, bad("%s %q in columns %d-%d", sp.v, line[sp.from-1:sp.to], sp.from, sp.to)
+		}
+		if sp.flag > 0 {
+			switch f := line[sp.flag-1]; f {
+			case ' ':
+			case 'A', 'B':
+				lv.UpstreamTier[sp.v] = f
+			default:
+				return lv, bad("%s flag %q in column %d", sp.v, f, sp.flag)
+			}
+		}
+		lv.Status[sp.v] = setValue(sp.dst, raw, sp.scale, sp.off)
+	}
+	raw, ok := atoi(line[3:8])
+	if !ok {
+		return lv, bad("elapsed time %q in columns 4-8", line[3:8])
+	}
+	switch raw {
+	case codeMissing:
+		lv.Status[sounding.VarElapsedTime] = sounding.Missing
+	case codeRemoved:
+		lv.Status[sounding.VarElapsedTime] = sounding.RemovedUpstream
+	default:
+		lv.ElapsedS = float64(raw/100*60 + raw%100)
+		lv.Status[sounding.VarElapsedTime] = sounding.Reported
+	}
+	if lv.Status[sounding.VarTemperature] == sounding.Reported &&
+		lv.Status[sounding.VarDewpointDepression] == sounding.Reported {
+		lv.DewpointK = lv.TemperatureK - lv.DewpointDepressionK
+	}
+	return lv, nil
+}
+
+// setValue stores raw/scale + off in *dst, or NaN for the special codes,
+// and returns the value's status.
+func setValue(dst *float64, raw int, scale, off float64) sounding.Status {
+	switch raw {
+	case codeMissing:
+		*dst = math.NaN()
+		return sounding.Missing
+	case codeRemoved:
+		*dst = math.NaN()
+		return sounding.RemovedUpstream
+	}
+	*dst = float64(raw)/scale + off
+	return sounding.Reported
+}

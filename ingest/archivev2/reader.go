@@ -1,0 +1,270 @@
+package archivev2
+
+import (
+	"bufio"
+	"fmt"
+	"io"
+	"math"
+	"slices"
+
+	"github.com/sondeclim/sondeclim/ingest"
+	"github.com/sondeclim/sondeclim/ingest/sounding"
+)
+
+// Format is the name this reader gives in sounding.Source.Format.
+const Format = "archive-v2"
+
+// maxLine bounds the bytes of one line the reader keeps; a longer line is
+// read to its end and rejected. Real records are 52 (data) and 71 (header)
+// characters long.
+const maxLine = 4096
+
+// Reader reads soundings from one station data file.
+//
+// Records are read line by line with a fixed-size buffer, so memory use does
+// not grow with the file. Blank lines are skipped wherever they occur.
+// Rejections, each returned once as an *ingest.ParseError before the reader
+// moves on:
+//
+//   - ingest.ErrOrphanLevel: data records before the first header; a run of
+//     them is reported once, at the line of its first record.
+//   - ingest.ErrBadHeader: a header that cannot be read; the records after
+//     it up to the next header are skipped with it. Line = the header's.
+//   - ingest.ErrLevelCount: the header's NUMLEV differs from the number of
+//     data records before the next header or the end of input (for example
+//     a file cut short). The sounding is not emitted. Line = the header's.
+//   - ingest.ErrBadLevel: a data record that cannot be read inside an
+//     otherwise consistent sounding. The whole sounding is rejected, since a
+//     profile with a hole where a record was is not what the source holds.
+//     Line = the first bad record's.
+//
+// A read error from the underlying reader is returned wrapped with the file
+// name (not as a ParseError) and repeated on every later call; a sounding
+// whose records were all read before it is still returned first. io.EOF is
+// returned at the end.
+//
+// Times. NominalTime is the header date at HOUR. The release time RELTIME
+// is placed on the header date, the day before or the day after, whichever
+// is closest to NominalTime (so "HOUR 00 RELTIME 2315" is a release at 23:15
+// the day before). RELTIME HH99 (minute missing) is read as HH:00. RELTIME
+// 9999 gives LaunchTime = NominalTime with LaunchTimeReported false. HOUR 99
+// (nominal hour missing) is inferred from the release time rounded to the
+// nearest multiple of 3 h (halves up, 24 h taken as 00 UTC of the header
+// date) with NominalHourInferred true; when RELTIME is 9999 as well, the
+// nominal time is 00 UTC of the header date and LaunchTime equals it.
+//
+// Levels and values follow parseLevel: LVLTYP2 = 1 makes a surface level
+// whatever LVLTYP1 says (the files hold "21", "11" and "01" surfaces), else
+// LVLTYP1 1/2/3 gives standard, significant and wind-only levels; LVLTYP2 = 2
+// marks the tropopause. −9999 is NaN with status Missing, −8888 NaN with
+// RemovedUpstream; the A/B flags go to UpstreamTier. ElevationM is the first
+// surface level's height when reported, else NaN.
+type Reader struct {
+	br           *bufio.Reader
+	file, member string
+	line         int   // lines consumed so far
+	err          error // terminal: io.EOF or a read error
+
+	// A header line already read while looking for the end of the
+	// previous sounding.
+	pending     []byte
+	pendingLine int
+	pendingLong bool
+	havePending bool
+
+	long []byte // holds the kept prefix of an over-long line
+}
+
+// NewReader returns a reader of the station data file r. The file and
+// member names are used only in error messages and sounding.Source.
+func NewReader(r io.Reader, file, member string) *Reader {
+	return &Reader{
+		br:      bufio.NewReaderSize(r, maxLine),
+		file:    file,
+		member:  member,
+		pending: make([]byte, 0, 128),
+	}
+}
+
+// readLine returns the next line without its line terminator. The slice is
+// valid until the next call. tooLong reports that the line exceeded maxLine
+// bytes; only its first bytes are returned. It returns io.EOF at the end of
+// input.
+func (r *Reader) readLine() (line []byte, tooLong bool, err error) {
+	if r.err != nil {
+		return nil, false, r.err
+	}
+	line, err = r.br.ReadSlice('\n')
+	if err == bufio.ErrBufferFull {
+		tooLong = true
+		r.long = append(r.long[:0], line[:min(len(line), 128)]...)
+		for err == bufio.ErrBufferFull {
+			_, err = r.br.ReadSlice('\n')
+		}
+		line = r.long
+	}
+	switch {
+	case err == io.EOF && (len(line) > 0 || tooLong):
+		// last line without a terminator
+	case err != nil:
+		return nil, false, err
+	}
+	r.line++
+	for len(line) > 0 && (line[len(line)-1] == '\n' || line[len(line)-1] == '\r') {
+		line = line[:len(line)-1]
+	}
+	return line, tooLong, nil
+}
+
+// stop records a terminal condition from readLine.
+func (r *Reader) stop(err error) {
+	if err == io.EOF {
+		r.err = io.EOF
+		return
+	}
+	name := r.file
+	if r.member != "" {
+		name += "!" + r.member
+	}
+	r.err = fmt.Errorf("read %s after line %d: %w", name, r.line, err)
+}
+
+func (r *Reader) keepHeader(line []byte, long bool) {
+	r.pending = append(r.pending[:0], line...)
+	r.pendingLine = r.line
+	r.pendingLong = long
+	r.havePending = true
+}
+
+func (r *Reader) parseError(line int, err error) *ingest.ParseError {
+	return &ingest.ParseError{File: r.file, Member: r.member, Line: line, Offset: -1, Err: err}
+}
+
+func isBlank(b []byte) bool {
+	for _, c := range b {
+		if c != ' ' && c != '\t' {
+			return false
+		}
+	}
+	return true
+}
+
+// Next returns the next sounding, an *ingest.ParseError for a rejected
+// sounding or run of lines (the following call continues after it), io.EOF
+// at the end, or a wrapped read error.
+func (r *Reader) Next() (*sounding.Sounding, error) {
+	if !r.havePending {
+		if err := r.findHeader(); err != nil {
+			return nil, err
+		}
+	}
+	r.havePending = false
+	hdrLine, long := r.pendingLine, r.pendingLong
+
+	var s *sounding.Sounding
+	var hdrErr error
+	if long {
+		hdrErr = fmt.Errorf("%w: line longer than %d bytes", ingest.ErrBadHeader, maxLine)
+	} else {
+		s, hdrErr = parseHeader(r.pending)
+	}
+	if s != nil {
+		s.Source = sounding.Source{File: r.file, Member: r.member, Line: hdrLine, Format: Format}
+	}
+
+	count, badLine := 0, 0
+	var badErr error
+	for {
+		line, long, err := r.readLine()
+		if err != nil {
+			if r.err == nil {
+				r.stop(err)
+			}
+			break
+		}
+		if !long && isBlank(line) {
+			continue
+		}
+		if line[0] == '#' {
+			r.keepHeader(line, long)
+			break
+		}
+		count++
+		if s == nil || badErr != nil || count > s.DeclaredLevels {
+			continue
+		}
+		var lv sounding.Level
+		if long {
+			err = fmt.Errorf("%w: line longer than %d bytes", ingest.ErrBadLevel, maxLine)
+		} else {
+			lv, err = parseLevel(line)
+		}
+		if err != nil {
+			badLine, badErr = r.line, err
+			continue
+		}
+		lv.Line = r.line
+		if len(s.Levels) == cap(s.Levels) {
+			// Grow once to the declared size, now that records are
+			// really present (a header alone reserves little).
+			s.Levels = slices.Grow(s.Levels, s.DeclaredLevels-len(s.Levels))
+		}
+		s.Levels = append(s.Levels, lv)
+	}
+
+	switch {
+	case hdrErr != nil:
+		return nil, r.parseError(hdrLine, hdrErr)
+	case count != s.DeclaredLevels:
+		return nil, r.parseError(hdrLine, fmt.Errorf("%w: header declares %d, %d present",
+			ingest.ErrLevelCount, s.DeclaredLevels, count))
+	case badErr != nil:
+		return nil, r.parseError(badLine, badErr)
+	}
+	s.ElevationM = math.NaN()
+	for i := range s.Levels {
+		if s.Levels[i].Kind == sounding.KindSurface {
+			s.ElevationM = s.Levels[i].HeightM
+			break
+		}
+	}
+	return s, nil
+}
+
+// findHeader reads up to the next header and keeps it as pending. It
+// returns the terminal error at the end of input, or a ParseError for a run
+// of data records that precede any header.
+func (r *Reader) findHeader() error {
+	if r.err != nil {
+		return r.err
+	}
+	first, last := 0, 0
+	for {
+		line, long, err := r.readLine()
+		if err != nil {
+			if r.err == nil {
+				r.stop(err)
+			}
+			break
+		}
+		if !long && isBlank(line) {
+			continue
+		}
+		if line[0] == '#' {
+			r.keepHeader(line, long)
+			break
+		}
+		if first == 0 {
+			first = r.line
+		}
+		last = r.line
+	}
+	if first != 0 {
+		return r.parseError(first, fmt.Errorf("%w: records on lines %d-%d have no header",
+			ingest.ErrOrphanLevel, first, last))
+	}
+	if !r.havePending {
+		return r.err
+	}
+	return nil
+}

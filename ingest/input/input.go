@@ -1,0 +1,240 @@
+// Package input turns command-line arguments into the byte streams the
+// readers decode: Expand resolves files, directories and glob patterns into
+// a sorted list of paths, and Each streams a plain, gzip or zip file member
+// by member without extracting anything to disk, under a limit on the
+// decompressed size of each member.
+package input
+
+import (
+	"archive/zip"
+	"bufio"
+	"compress/gzip"
+	"errors"
+	"fmt"
+	"io"
+	"io/fs"
+	"os"
+	"path/filepath"
+	"slices"
+	"strings"
+
+	"github.com/sondeclim/sondeclim/ingest"
+)
+
+// DefaultLimit is the decompressed-size limit per member used when Each is
+// given 0: 8 GiB.
+const DefaultLimit int64 = 8 << 30
+
+// Expand resolves args into the list of files to read. Each argument is a
+// file, a directory (walked recursively, skipping files and directories
+// whose names begin with '.'; the directory named by the argument itself is
+// always walked) or a glob pattern in the syntax of path/filepath.Match
+// whose matches are treated the same way (hidden names are left out of the
+// matches unless the pattern's last element itself begins with '.'). The result holds cleaned paths,
+// each once, sorted, so it does not depend on the order of args.
+//
+// A path that does not exist, a pattern that matches nothing or is
+// malformed, and a directory that cannot be walked are errors naming the
+// argument. No arguments give an empty list.
+func Expand(args []string) ([]string, error) {
+	seen := make(map[string]bool)
+	for _, arg := range args {
+		paths := []string{arg}
+		if _, err := os.Stat(arg); err != nil {
+			if !errors.Is(err, fs.ErrNotExist) || !hasMeta(arg) {
+				return nil, fmt.Errorf("input %q: %w", arg, err)
+			}
+			m, gerr := filepath.Glob(arg)
+			if gerr != nil {
+				return nil, fmt.Errorf("input pattern %q: %w", arg, gerr)
+			}
+			m = slices.DeleteFunc(m, func(p string) bool {
+				return isHidden(p) && !isHidden(arg)
+			})
+			if len(m) == 0 {
+				return nil, fmt.Errorf("input pattern %q matches no file", arg)
+			}
+			paths = m
+		}
+		for _, p := range paths {
+			if err := addPath(p, seen); err != nil {
+				return nil, fmt.Errorf("input %q: %w", arg, err)
+			}
+		}
+	}
+	out := make([]string, 0, len(seen))
+	for p := range seen {
+		out = append(out, p)
+	}
+	slices.Sort(out)
+	return out, nil
+}
+
+// isHidden reports whether the last element of p begins with '.'.
+func isHidden(p string) bool {
+	b := filepath.Base(p)
+	return strings.HasPrefix(b, ".") && b != "." && b != ".."
+}
+
+func hasMeta(s string) bool { return strings.ContainsAny(s, `*?[\`) }
+
+// addPath adds a file, or the non-hidden files below a directory.
+func addPath(p string, seen map[string]bool) error {
+	info, err := os.Stat(p)
+	if err != nil {
+		return err
+	}
+	if !info.IsDir() {
+		seen[filepath.Clean(p)] = true
+		return nil
+	}
+	root := filepath.Clean(p)
+	return filepath.WalkDir(root, func(path string, d fs.DirEntry, err error) error {
+		if err != nil {
+			return err
+		}
+		if path != root && strings.HasPrefix(d.Name(), ".") {
+			if d.IsDir() {
+				return filepath.SkipDir
+			}
+			return nil
+		}
+		if d.IsDir() {
+			return nil
+		}
+		if d.Type()&fs.ModeSymlink != 0 {
+			// Follow a link to a file; links to directories are not walked.
+			if fi, err := os.Stat(path); err != nil || !fi.Mode().IsRegular() {
+				return nil
+			}
+		} else if !d.Type().IsRegular() {
+			return nil
+		}
+		seen[path] = true
+		return nil
+	})
+}
+
+// Each calls fn with the content of the file at path: once for a plain
+// file or a gzip file (member ""), or once per regular member of a zip
+// archive, in archive order, skipping directories. The kind is told by the
+// first bytes (gzip 1F 8B, zip "PK\x03\x04" or "PK\x05\x06"), not by the
+// name. Members are decompressed as they are read, never to disk.
+//
+// limit bounds the decompressed bytes of each member (0 means
+// DefaultLimit); a member that exceeds it makes Each return an error
+// wrapping ingest.ErrTooLarge that names file and member, whether or not fn
+// passed the read error on. An error returned by fn stops Each and is
+// returned as it is. Other errors are wrapped with the path.
+func Each(path string, limit int64, fn func(member string, r io.Reader) error) error {
+	if limit <= 0 {
+		limit = DefaultLimit
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return err
+	}
+	defer f.Close()
+	br := bufio.NewReaderSize(f, 64<<10)
+	magic, err := br.Peek(4)
+	if err != nil && err != io.EOF {
+		return fmt.Errorf("read %s: %w", path, err)
+	}
+	switch {
+	case len(magic) >= 2 && magic[0] == 0x1f && magic[1] == 0x8b:
+		zr, err := gzip.NewReader(br)
+		if err != nil {
+			return fmt.Errorf("read %s: %w", path, err)
+		}
+		defer zr.Close()
+		return call(path, "", zr, limit, fn)
+	case len(magic) == 4 && (string(magic) == "PK\x03\x04" || string(magic) == "PK\x05\x06"):
+		return eachZip(f, path, limit, fn)
+	}
+	return call(path, "", br, limit, fn)
+}
+
+func eachZip(f *os.File, path string, limit int64, fn func(string, io.Reader) error) error {
+	info, err := f.Stat()
+	if err != nil {
+		return fmt.Errorf("read %s: %w", path, err)
+	}
+	zr, err := zip.NewReader(f, info.Size())
+	if err != nil {
+		return fmt.Errorf("read %s: %w", path, err)
+	}
+	for _, zf := range zr.File {
+		if !zf.Mode().IsRegular() || strings.HasSuffix(zf.Name, "/") {
+			continue
+		}
+		if zf.UncompressedSize64 > uint64(limit) {
+			return tooLarge(path, zf.Name, limit)
+		}
+		rc, err := zf.Open()
+		if err != nil {
+			return fmt.Errorf("read %s!%s: %w", path, zf.Name, err)
+		}
+		err = call(path, zf.Name, rc, limit, fn)
+		rc.Close()
+		if err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+func tooLarge(path, member string, limit int64) error {
+	name := path
+	if member != "" {
+		name += "!" + member
+	}
+	return fmt.Errorf("%s: %w (limit %d bytes)", name, ingest.ErrTooLarge, limit)
+}
+
+// call runs fn on r capped at limit bytes, and reports a tripped cap even
+// when fn swallowed it.
+func call(path, member string, r io.Reader, limit int64, fn func(string, io.Reader) error) error {
+	c := &capReader{r: r, left: limit, tooLarge: tooLarge(path, member, limit)}
+	err := fn(member, c)
+	if c.tripped {
+		return c.tooLarge
+	}
+	return err
+}
+
+// capReader passes at most left bytes through and fails, rather than
+// truncating silently, when the source holds more.
+type capReader struct {
+	r        io.Reader
+	left     int64
+	tooLarge error
+	tripped  bool
+}
+
+func (c *capReader) Read(p []byte) (int, error) {
+	if c.tripped {
+		return 0, c.tooLarge
+	}
+	if len(p) == 0 {
+		return 0, nil
+	}
+	if c.left <= 0 {
+		var one [1]byte
+		for {
+			n, err := c.r.Read(one[:])
+			if n > 0 {
+				c.tripped = true
+				return 0, c.tooLarge
+			}
+			if err != nil {
+				return 0, err
+			}
+		}
+	}
+	if int64(len(p)) > c.left {
+		p = p[:c.left]
+	}
+	n, err := c.r.Read(p)
+	c.left -= int64(n)
+	return n, err
+}
