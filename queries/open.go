@@ -1,0 +1,153 @@
+package queries
+
+import (
+	"context"
+	"database/sql"
+	"database/sql/driver"
+	"errors"
+	"fmt"
+	"io/fs"
+	"os"
+	"path/filepath"
+	"regexp"
+	"sort"
+	"strings"
+
+	"github.com/duckdb/duckdb-go/v2"
+
+	"github.com/sondeclim/sondeclim/schema"
+)
+
+var viewName = regexp.MustCompile(`^[a-z][a-z0-9_]*$`)
+
+// Open opens an in-memory DuckDB database with one view per table of the
+// store at storeDir. A table is a subdirectory whose name is a lower-case
+// SQL identifier and which holds at least one *.parquet file at any depth;
+// the view has the directory's name and reads
+//
+//	read_parquet('storeDir/TABLE/**/*.parquet', hive_partitioning = true, union_by_name = true, …)
+//
+// For tables partitioned by package schema (station=…/year=…), the Hive
+// types are pinned (station VARCHAR, year INTEGER) so that a numeric-looking
+// station directory is not read as a number, and the redundant `station`
+// path column is dropped because station_id is stored in the files. Every
+// connection uses the UTC time zone, so timestamp functions such as hour()
+// return UTC.
+//
+// A missing store, a store path containing glob characters (* ? [ ]), or a
+// store with no tables is an error naming the directory. The caller closes
+// the returned database.
+func Open(ctx context.Context, storeDir string) (*sql.DB, error) {
+	abs, err := filepath.Abs(storeDir)
+	if err != nil {
+		return nil, fmt.Errorf("queries: store %s: %w", storeDir, err)
+	}
+	if strings.ContainsAny(abs, "*?[]{}") {
+		return nil, fmt.Errorf("queries: store %s: path contains glob characters", abs)
+	}
+	tables, err := findTables(abs)
+	if err != nil {
+		return nil, err
+	}
+	conn, err := duckdb.NewConnector("", func(ex driver.ExecerContext) error {
+		_, err := ex.ExecContext(context.Background(), "SET TimeZone = 'UTC'", nil)
+		return err
+	})
+	if err != nil {
+		return nil, fmt.Errorf("queries: open DuckDB: %w", err)
+	}
+	db := sql.OpenDB(conn)
+	for _, t := range tables {
+		if _, err := db.ExecContext(ctx, viewDDL(abs, t)); err != nil {
+			db.Close()
+			return nil, fmt.Errorf("queries: create view %s over %s: %w", t.name, filepath.Join(abs, t.name), err)
+		}
+	}
+	return db, nil
+}
+
+// table is one table directory of the store.
+type table struct {
+	name        string
+	partitioned bool // has station=…/year=… subdirectories
+}
+
+// findTables lists the table directories of the store, sorted by name.
+func findTables(store string) ([]table, error) {
+	entries, err := os.ReadDir(store)
+	if err != nil {
+		return nil, fmt.Errorf("queries: store: %w", err)
+	}
+	var tables []table
+	for _, e := range entries {
+		if !e.IsDir() || !viewName.MatchString(e.Name()) {
+			continue
+		}
+		dir := filepath.Join(store, e.Name())
+		first, err := firstParquet(dir)
+		if err != nil {
+			return nil, fmt.Errorf("queries: store: %w", err)
+		}
+		if first == "" {
+			continue
+		}
+		rel, _ := filepath.Rel(dir, first)
+		parts := strings.Split(filepath.ToSlash(rel), "/")
+		partitioned := len(parts) == 3 &&
+			strings.HasPrefix(parts[0], schema.StationKey+"=") &&
+			strings.HasPrefix(parts[1], schema.YearKey+"=")
+		tables = append(tables, table{name: e.Name(), partitioned: partitioned})
+	}
+	if len(tables) == 0 {
+		return nil, fmt.Errorf("queries: store %s has no tables (subdirectories holding *.parquet files)", store)
+	}
+	sort.Slice(tables, func(i, j int) bool { return tables[i].name < tables[j].name })
+	return tables, nil
+}
+
+var errFound = errors.New("found")
+
+// firstParquet returns the first *.parquet file under dir in lexical order,
+// or "" when there is none. Hidden entries (temporary files) are skipped.
+func firstParquet(dir string) (string, error) {
+	var found string
+	err := filepath.WalkDir(dir, func(p string, d fs.DirEntry, err error) error {
+		if err != nil {
+			return err
+		}
+		if p != dir && strings.HasPrefix(d.Name(), ".") {
+			if d.IsDir() {
+				return fs.SkipDir
+			}
+			return nil
+		}
+		if !d.IsDir() && strings.HasSuffix(d.Name(), ".parquet") {
+			found = p
+			return errFound
+		}
+		return nil
+	})
+	if err != nil && !errors.Is(err, errFound) {
+		return "", err
+	}
+	return found, nil
+}
+
+// viewDDL returns the CREATE VIEW statement for table t of the store.
+//
+// DDL cannot take bound parameters (a view stores its query text, and
+// DuckDB does not allow prepared parameters in CREATE VIEW), so the glob is
+// written as a SQL string literal with every single quote doubled, which is
+// the complete escaping rule for standard SQL string literals. The view name
+// is an identifier checked against viewName and is double-quoted as well.
+func viewDDL(store string, t table) string {
+	glob := filepath.ToSlash(filepath.Join(store, t.name)) + "/**/*.parquet"
+	lit := "'" + strings.ReplaceAll(glob, "'", "''") + "'"
+	sel, opts := "*", ""
+	if t.partitioned {
+		sel = fmt.Sprintf("* EXCLUDE (%s)", schema.StationKey)
+		opts = fmt.Sprintf(", hive_types = {'%s': VARCHAR, '%s': INTEGER}", schema.StationKey, schema.YearKey)
+	}
+	return fmt.Sprintf(`CREATE VIEW "%s" AS SELECT %s FROM read_parquet(%s, hive_partitioning = true, union_by_name = true%s)`,
+		t.name, sel, lit, opts)
+}

@@ -1,0 +1,223 @@
+package queries
+
+import (
+	"bufio"
+	"context"
+	"database/sql"
+	"encoding/csv"
+	"encoding/json"
+	"fmt"
+	"io"
+	"math"
+	"strconv"
+	"strings"
+	"text/tabwriter"
+	"time"
+	"unicode"
+)
+
+// Table is the result of a query: column names and rows of values. A value
+// is nil for SQL NULL, or one of string, bool, int64, float64, time.Time,
+// []byte, or another type the driver returns for less common SQL types
+// (DECIMAL and smaller integers are converted to float64 and int64).
+type Table struct {
+	Columns []string
+	Rows    [][]any
+}
+
+// Query runs query on db with bound args and reads the whole result into a
+// Table.
+func Query(ctx context.Context, db *sql.DB, query string, args ...any) (*Table, error) {
+	rows, err := db.QueryContext(ctx, query, args...)
+	if err != nil {
+		return nil, fmt.Errorf("queries: %w", err)
+	}
+	defer rows.Close()
+	cols, err := rows.Columns()
+	if err != nil {
+		return nil, fmt.Errorf("queries: %w", err)
+	}
+	t := &Table{Columns: cols}
+	for rows.Next() {
+		vals := make([]any, len(cols))
+		ptrs := make([]any, len(cols))
+		for i := range vals {
+			ptrs[i] = &vals[i]
+		}
+		if err := rows.Scan(ptrs...); err != nil {
+			return nil, fmt.Errorf("queries: row %d: %w", len(t.Rows)+1, err)
+		}
+		for i, v := range vals {
+			vals[i] = normalize(v)
+		}
+		t.Rows = append(t.Rows, vals)
+	}
+	if err := rows.Err(); err != nil {
+		return nil, fmt.Errorf("queries: %w", err)
+	}
+	return t, nil
+}
+
+// float64er is satisfied by the driver's DECIMAL type.
+type float64er interface{ Float64() float64 }
+
+// normalize maps the driver's value types onto the few Table documents.
+func normalize(v any) any {
+	switch x := v.(type) {
+	case int8:
+		return int64(x)
+	case int16:
+		return int64(x)
+	case int32:
+		return int64(x)
+	case uint8:
+		return int64(x)
+	case uint16:
+		return int64(x)
+	case uint32:
+		return int64(x)
+	case float32:
+		return float64(x)
+	case float64er:
+		return x.Float64()
+	case time.Time:
+		return x.UTC()
+	}
+	return v
+}
+
+// formatText renders v for people: NULL as "-", control characters in text
+// as spaces, floats with at most three
+// decimals (trailing zeros dropped), tiny non-zero floats in three
+// significant digits, times in RFC 3339 UTC.
+func formatText(v any) string {
+	switch x := v.(type) {
+	case nil:
+		return "-"
+	case float64:
+		if a := math.Abs(x); a != 0 && a < 1e-3 && !math.IsInf(x, 0) {
+			return strconv.FormatFloat(x, 'g', 3, 64)
+		}
+		s := strconv.FormatFloat(x, 'f', 3, 64)
+		if strings.Contains(s, ".") {
+			s = strings.TrimRight(strings.TrimRight(s, "0"), ".")
+		}
+		if s == "-0" {
+			s = "0"
+		}
+		return s
+	case time.Time:
+		return x.UTC().Format(time.RFC3339Nano)
+	case []byte:
+		return fmt.Sprintf("%x", x)
+	case string:
+		return oneLine(x)
+	}
+	return oneLine(fmt.Sprint(v))
+}
+
+// oneLine replaces tabs, line breaks and other control characters by
+// spaces, so a cell cannot break the column alignment.
+func oneLine(s string) string {
+	return strings.Map(func(r rune) rune {
+		if unicode.IsControl(r) {
+			return ' '
+		}
+		return r
+	}, s)
+}
+
+// formatCSV renders v for programs: NULL as empty, floats with the shortest
+// representation that reads back exactly, times in RFC 3339 UTC.
+func formatCSV(v any) string {
+	switch x := v.(type) {
+	case nil:
+		return ""
+	case float64:
+		return strconv.FormatFloat(x, 'g', -1, 64)
+	case time.Time:
+		return x.UTC().Format(time.RFC3339Nano)
+	case []byte:
+		return fmt.Sprintf("%x", x)
+	}
+	return fmt.Sprint(v)
+}
+
+// WriteText writes t as a table for people, columns aligned with
+// text/tabwriter: a header line, then one line per row. NULL is shown as
+// "-", floats with at most three decimals (see formatText).
+func WriteText(w io.Writer, t *Table) error {
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+	fmt.Fprintln(tw, strings.Join(t.Columns, "\t"))
+	cells := make([]string, len(t.Columns))
+	for _, r := range t.Rows {
+		for i, v := range r {
+			cells[i] = formatText(v)
+		}
+		fmt.Fprintln(tw, strings.Join(cells, "\t"))
+	}
+	return tw.Flush()
+}
+
+// WriteCSV writes t as CSV (RFC 4180) with a header record. NULL is an empty
+// field; floats are written in full precision.
+func WriteCSV(w io.Writer, t *Table) error {
+	cw := csv.NewWriter(w)
+	if err := cw.Write(t.Columns); err != nil {
+		return err
+	}
+	rec := make([]string, len(t.Columns))
+	for _, r := range t.Rows {
+		for i, v := range r {
+			rec[i] = formatCSV(v)
+		}
+		if err := cw.Write(rec); err != nil {
+			return err
+		}
+	}
+	cw.Flush()
+	return cw.Error()
+}
+
+// WriteJSON writes t as a JSON array with one object per row, keys in
+// column order, one object per line. NULL, NaN and ±Inf are written as
+// null (JSON has no NaN).
+func WriteJSON(w io.Writer, t *Table) error {
+	bw := bufio.NewWriter(w)
+	keys := make([][]byte, len(t.Columns))
+	for i, c := range t.Columns {
+		k, err := json.Marshal(c)
+		if err != nil {
+			return err
+		}
+		keys[i] = k
+	}
+	bw.WriteString("[")
+	for n, r := range t.Rows {
+		if n > 0 {
+			bw.WriteString(",")
+		}
+		bw.WriteString("\n  {")
+		for i, v := range r {
+			if i > 0 {
+				bw.WriteString(",")
+			}
+			if f, ok := v.(float64); ok && (math.IsNaN(f) || math.IsInf(f, 0)) {
+				v = nil
+			}
+			b, err := json.Marshal(v)
+			if err != nil {
+				return fmt.Errorf("queries: column %s: %w", t.Columns[i], err)
+			}
+			bw.Write(keys[i])
+			bw.WriteString(":")
+			bw.Write(b)
+		}
+		bw.WriteString("}")
+	}
+	if len(t.Rows) > 0 {
+		bw.WriteString("\n")
+	}
+	bw.WriteString("]\n")
+	return bw.Flush()
+}

@@ -1,0 +1,249 @@
+package schema
+
+import (
+	"bufio"
+	"fmt"
+	"os"
+	"path/filepath"
+	"reflect"
+	"regexp"
+	"sort"
+	"strconv"
+
+	"github.com/apache/arrow-go/v18/arrow"
+	"github.com/apache/arrow-go/v18/arrow/array"
+	"github.com/apache/arrow-go/v18/arrow/memory"
+	"github.com/apache/arrow-go/v18/parquet"
+	"github.com/apache/arrow-go/v18/parquet/compress"
+	"github.com/apache/arrow-go/v18/parquet/file"
+	"github.com/apache/arrow-go/v18/parquet/pqarrow"
+)
+
+// Table names and partitioning of the store.
+const (
+	TableSoundings = "soundings" // rows of SoundingRow
+	TableLevels    = "levels"    // rows of LevelRow
+
+	StationColumn  = "station_id" // column that selects the station partition
+	YearColumn     = "year"       // column that selects the year partition
+	StationKey     = "station"    // Hive key of the station directory level
+	YearKey        = "year"       // Hive key of the year directory level
+	PartFile       = "part-0.parquet"
+	batchRows      = 64 * 1024  // rows per Arrow record batch
+	rowGroupRows   = 128 * 1024 // rows per Parquet row group
+	tempFilePrefix = ".part-0.parquet.tmp-"
+)
+
+var (
+	tableName = regexp.MustCompile(`^[a-z][a-z0-9_]*$`)
+	// stationID is what a station identifier may contain to be used as a
+	// directory name unchanged: no separators, no "=" or "%" (which Hive
+	// readers treat specially), no leading dot.
+	stationID = regexp.MustCompile(`^[A-Za-z0-9_-][A-Za-z0-9_.-]*$`)
+)
+
+// partition is one station-year directory and the indices of its rows.
+type partition struct {
+	station string
+	year    int64
+	rows    []int
+}
+
+// WriteTable writes rows as the table named table under storeDir, one
+// Parquet file per station and year:
+//
+//	storeDir/table/station=ID/year=YYYY/part-0.parquet
+//
+// The partition of a row is given by its station_id (string) and year
+// (int32 or int64) columns, which T must have (see Columns). Rows of one
+// partition keep their given order; sorting is the caller's job. Each file
+// is zstd-compressed, built from record batches of up to 65 536 rows in row
+// groups of up to 131 072 rows, written under a temporary name in its
+// directory, synced, and renamed into place, so a reader never sees a
+// partial file. An existing file of the same partition is replaced;
+// partitions absent from rows are left alone. The partition columns are also
+// stored inside each file (see the package documentation).
+//
+// It returns the paths written, sorted. No rows write no file. The table
+// name must be a lower-case SQL identifier, a station identifier must be
+// usable as a directory name (letters, digits, '-', '_', '.', not starting
+// with '.'), and years must lie in 1..9999; anything else is an error.
+func WriteTable[T any](storeDir, table string, rows []T) (files []string, err error) {
+	cols, err := Columns[T]()
+	if err != nil {
+		return nil, err
+	}
+	if !tableName.MatchString(table) {
+		return nil, fmt.Errorf("schema: table name %q is not a lower-case identifier", table)
+	}
+	parts, err := partitions(cols, rows)
+	if err != nil {
+		return nil, fmt.Errorf("schema: table %s: %w", table, err)
+	}
+	sc := arrowSchema(table, cols)
+	for _, p := range parts {
+		dir := filepath.Join(storeDir, table,
+			StationKey+"="+p.station, YearKey+"="+strconv.FormatInt(p.year, 10))
+		path, err := writePartition(dir, sc, cols, rows, p.rows)
+		if err != nil {
+			return files, fmt.Errorf("schema: table %s: %w", table, err)
+		}
+		files = append(files, path)
+	}
+	sort.Strings(files)
+	return files, nil
+}
+
+// partitions groups the indices of rows by station and year, in order of
+// first appearance, and validates the partition values.
+func partitions[T any](cols []Column, rows []T) ([]*partition, error) {
+	var st, yr *Column
+	for i := range cols {
+		switch c := &cols[i]; {
+		case c.Name == StationColumn && c.kind == kindString:
+			st = c
+		case c.Name == YearColumn && (c.kind == kindInt32 || c.kind == kindInt64):
+			yr = c
+		}
+	}
+	if st == nil || yr == nil {
+		return nil, fmt.Errorf("row type %v needs a string %s column and an int32 or int64 %s column to be partitioned",
+			reflect.TypeFor[T](), StationColumn, YearColumn)
+	}
+	type key struct {
+		station string
+		year    int64
+	}
+	index := make(map[key]*partition)
+	var parts []*partition
+	for i := range rows {
+		v := reflect.ValueOf(&rows[i]).Elem()
+		k := key{v.Field(st.field).String(), v.Field(yr.field).Int()}
+		p, ok := index[k]
+		if !ok {
+			if !stationID.MatchString(k.station) {
+				return nil, fmt.Errorf("row %d: %s %q cannot be used as a directory name", i, StationColumn, k.station)
+			}
+			if k.year < 1 || k.year > 9999 {
+				return nil, fmt.Errorf("row %d: %s %d outside 1..9999", i, YearColumn, k.year)
+			}
+			p = &partition{station: k.station, year: k.year}
+			index[k] = p
+			parts = append(parts, p)
+		}
+		p.rows = append(p.rows, i)
+	}
+	return parts, nil
+}
+
+// writePartition writes rows[idx...] to dir/part-0.parquet through a
+// temporary file and returns the final path.
+func writePartition[T any](dir string, sc *arrow.Schema, cols []Column, rows []T, idx []int) (path string, err error) {
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return "", err
+	}
+	tmp, err := os.CreateTemp(dir, tempFilePrefix+"*")
+	if err != nil {
+		return "", err
+	}
+	defer func() {
+		if err != nil {
+			tmp.Close()
+			os.Remove(tmp.Name())
+		}
+	}()
+	bw := bufio.NewWriterSize(tmp, 1<<20)
+	if err := encode(bw, sc, cols, rows, idx); err != nil {
+		return "", fmt.Errorf("write %s: %w", tmp.Name(), err)
+	}
+	if err := bw.Flush(); err != nil {
+		return "", fmt.Errorf("write %s: %w", tmp.Name(), err)
+	}
+	if err := tmp.Sync(); err != nil {
+		return "", fmt.Errorf("sync %s: %w", tmp.Name(), err)
+	}
+	if err := tmp.Close(); err != nil {
+		return "", fmt.Errorf("close %s: %w", tmp.Name(), err)
+	}
+	path = filepath.Join(dir, PartFile)
+	if err := os.Rename(tmp.Name(), path); err != nil {
+		return "", err
+	}
+	return path, syncDir(dir)
+}
+
+// syncDir makes a rename in dir durable.
+func syncDir(dir string) error {
+	d, err := os.Open(dir)
+	if err != nil {
+		return err
+	}
+	err = d.Sync()
+	if cerr := d.Close(); err == nil {
+		err = cerr
+	}
+	if err != nil {
+		return fmt.Errorf("sync directory %s: %w", dir, err)
+	}
+	return nil
+}
+
+// encode writes rows[idx...] as one Parquet file to w.
+func encode[T any](w *bufio.Writer, sc *arrow.Schema, cols []Column, rows []T, idx []int) (err error) {
+	props := parquet.NewWriterProperties(
+		parquet.WithCompression(compress.Codecs.Zstd),
+		parquet.WithMaxRowGroupLength(rowGroupRows),
+	)
+	// w is a *bufio.Writer, which has no Close, so fw.Close leaves the file
+	// open for the caller to flush and sync. WithStoreSchema embeds the Arrow schema (with each field's doc) in
+	// the file, since Parquet's own schema has no place for descriptions.
+	fw, err := pqarrow.NewFileWriter(sc, w, props,
+		pqarrow.NewArrowWriterProperties(pqarrow.WithStoreSchema()))
+	if err != nil {
+		return err
+	}
+	defer func() {
+		if cerr := fw.Close(); err == nil {
+			err = cerr
+		}
+	}()
+	rb := array.NewRecordBuilder(memory.DefaultAllocator, sc)
+	defer rb.Release()
+	for start := 0; start < len(idx); start += batchRows {
+		end := min(start+batchRows, len(idx))
+		for _, i := range idx[start:end] {
+			v := reflect.ValueOf(&rows[i]).Elem()
+			for c := range cols {
+				cols[c].appendValue(rb.Field(c), v)
+			}
+		}
+		rec := rb.NewRecordBatch()
+		err := fw.WriteBuffered(rec)
+		rec.Release()
+		if err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// ReadVersion returns the schema version recorded in the key-value metadata
+// of the Parquet file at path. A file without the key, or with a value that
+// is not an integer, is an error, so that a caller can refuse stores not
+// written by this package.
+func ReadVersion(path string) (int, error) {
+	r, err := file.OpenParquetFile(path, false)
+	if err != nil {
+		return 0, fmt.Errorf("schema: read version: %w", err)
+	}
+	defer r.Close()
+	s := r.MetaData().KeyValueMetadata().FindValue(VersionKey)
+	if s == nil {
+		return 0, fmt.Errorf("schema: %s: no %s in the file metadata (not written by this package)", path, VersionKey)
+	}
+	v, err := strconv.Atoi(*s)
+	if err != nil {
+		return 0, fmt.Errorf("schema: %s: %s %q is not an integer", path, VersionKey, *s)
+	}
+	return v, nil
+}
