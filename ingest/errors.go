@@ -42,4 +42,6 @@ var (
 	ErrOrphanLevel  = errors.New("level record before any header")
 	ErrTooLarge     = errors.New("decompressed input exceeds the size limit")
 	ErrUnknownInput = errors.New("input format not recognised")
+	ErrNoData       = errors.New("report carries no level data")
+	ErrUnsupported  = errors.New("recognised but not supported by this reader")
 )

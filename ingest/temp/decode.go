@@ -100,7 +100,10 @@ func decodeReport(raw rawReport, o *Options) (*report, error) {
 		q, known, dec := partOf(t.s)
 		if known {
 			if !dec {
-				return nil, errSkip
+				if isNil(toks[i:]) {
+					return nil, errSkip
+				}
+				return nil, &lineError{t.line, fmt.Errorf("%w: part %s", ingest.ErrUnsupported, t.s)}
 			}
 			k, p = i, q
 			break
@@ -109,10 +112,8 @@ func decodeReport(raw rawReport, o *Options) (*report, error) {
 	if k < 0 {
 		return nil, errSkip
 	}
-	for _, t := range toks[k:] {
-		if t.s == "NIL" {
-			return nil, errSkip
-		}
+	if isNil(toks[k:]) {
+		return nil, errSkip
 	}
 	rep := &report{part: p, line: toks[k].line, rank: raw.rank, order: raw.order}
 	if len(toks) < k+3 {
@@ -135,7 +136,7 @@ func decodeReport(raw rawReport, o *Options) (*report, error) {
 		return nil, err
 	}
 	if len(rep.levels) == 0 {
-		return nil, errSkip
+		return nil, &lineError{toks[k].line, fmt.Errorf("%w: %s %s has no surface or level groups (only regional or coded remarks)", ingest.ErrNoData, toks[k].s, rep.station)}
 	}
 	return rep, nil
 }
@@ -392,4 +393,15 @@ func (r *report) otherSection(body []token, i int) (int, error) {
 		return min(i+2, len(body)), nil
 	}
 	return len(body), nil // regional sections: skip the rest
+}
+
+// isNil reports whether a report is an explicit NIL (nothing to decode, by
+// the sender's own statement).
+func isNil(toks []token) bool {
+	for _, t := range toks {
+		if t.s == "NIL" {
+			return true
+		}
+	}
+	return false
 }

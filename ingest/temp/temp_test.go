@@ -273,9 +273,34 @@ func TestBulletins(t *testing.T) {
 		t.Fatal(err)
 	}
 	ss, errs := readAll(t, NewReader(strings.NewReader(string(data)), name, Options{}))
-	if len(errs) > 0 {
-		t.Errorf("%d rejected reports, first: %v", len(errs), errs[0])
+	// Nothing is dropped silently: every report that is neither NIL nor
+	// decoded is reported. The stream holds pilot parts A/C/D (not
+	// decoded) and, for five stations, parts carrying only a regional
+	// 51515 101xx group (no data).
+	byReason := map[error]int{}
+	noData := map[string]bool{}
+	for _, e := range errs {
+		switch {
+		case errors.Is(e, ingest.ErrUnsupported):
+			byReason[ingest.ErrUnsupported]++
+		case errors.Is(e, ingest.ErrNoData):
+			byReason[ingest.ErrNoData]++
+			if m := regexp.MustCompile(`TT.. ([0-9]{5})`).FindStringSubmatch(e.Error()); m != nil {
+				noData[m[1]] = true
+			}
+		default:
+			t.Errorf("unexpected rejection: %v", e)
+		}
 	}
+	for _, id := range []string{"70026", "72214", "72403", "72501", "72518"} {
+		if !noData[id] {
+			t.Errorf("station %s sends only data-free parts but none was reported", id)
+		}
+	}
+	if byReason[ingest.ErrUnsupported] == 0 {
+		t.Errorf("pilot parts A/C/D present in the stream were not reported")
+	}
+	t.Logf("rejected: %d unsupported parts, %d data-free reports", byReason[ingest.ErrUnsupported], byReason[ingest.ErrNoData])
 	byID := map[string]*sounding.Sounding{}
 	for _, s := range ss {
 		if byID[s.StationID] != nil {
