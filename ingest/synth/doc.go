@@ -1,0 +1,76 @@
+// Package synth writes deterministic, invented radiosonde archives for
+// demonstrations, tests and benchmarks.
+//
+// # Scenario
+//
+// The default station, "Marrow Vale" (id ZZXSYN00001), is an invented inland
+// valley station on a high plain: 42.37° N, 101.85° W, 560 m above sea
+// level. Winters are cold (late-afternoon temperatures near 0 °C, dawn near
+// −11 °C in December–February) and summers hot (near 28 °C and 13 °C in
+// June–August). Local solar time is
+// UTC − 6.8 h, so the 00 UTC sounding is released near 17 LST (late afternoon
+// of the previous local day, when the daytime mixed layer is deepest) and
+// the 12 UTC sounding near 05 LST (just before dawn, at the end of the
+// night's radiative cooling). Like the real archive, the 00 UTC release
+// happens on the previous UTC day (release time 23MM in the header).
+//
+// Every morning sounding starts with a surface-based radiation inversion
+// with a probability that falls from 85 % in mid-winter to 40 % in
+// mid-summer; winter inversions are deeper (typically 200–600 m) and
+// stronger (typically 3–9 K) than summer ones (100–250 m, 2–4 K). Above it lies the previous
+// day's residual layer (near-neutral) capped by a weak elevated inversion.
+// Every afternoon sounding has a well-mixed layer (θ and mixing ratio
+// constant) whose depth grows from about 400–850 m in winter to 1600–3000 m
+// in summer, capped by an inversion with much drier air above. About half
+// of the soundings carry a further subsidence inversion 1–3 km higher, again
+// with the dewpoint depression increasing upward across it. The free
+// troposphere cools at about 6.5 K/km (varying from layer to layer) up to a
+// tropopause near 10 km in winter and 12 km in summer; above it the
+// temperature is nearly constant up to the top of the sounding just above
+// 100 hPa. Winds strengthen with height and veer towards the west, up to a
+// jet near the tropopause that is stronger in winter.
+//
+// Day-to-day weather is an autoregressive temperature and pressure anomaly,
+// so consecutive soundings are correlated. The archive is clean by default:
+// no missing soundings, no values removed by quality control, no
+// inconsistent levels.
+//
+// Other stations ([StationAt] with index ≥ 1, chosen through
+// [Config.StationIndex]) are invented in the same way on the same plain:
+// latitude 36–48° N, longitude 112–92° W (so 00 UTC is always late
+// afternoon and 12 UTC always before dawn), elevation 300–900 m, with a
+// climate shifted by latitude and elevation. Their ids are ZZXSYN followed by
+// five digits; the "ZZX" prefix followed by "SYN" belongs to no real station
+// in the version-2 station list.
+//
+// # Output
+//
+// [Write] produces a station file in the archive's version-2 text format:
+// one 71-character header per sounding, then one 52-character record per
+// level. Each sounding lists the surface, the standard pressure levels that
+// lie above ground (925 … 100 hPa), significant levels at every change of
+// lapse rate or humidity, and a top level between 92 and 99 hPa, all with
+// temperature, dewpoint depression and wind; then wind-only height levels
+// every 300 m up to 3000 m above ground: about 60–90 records in all
+// (55 at the fewest). Relative humidity is not reported
+// (−9999), as in messages relayed over the global telecommunication system.
+// Heights are reported at the surface and the standard levels only
+// (−9999 at significant levels); they are computed from the reported
+// (rounded) pressures, temperatures and dewpoints with the hypsometric
+// equation, using virtual temperature, so the file is hydrostatically
+// consistent to the 1 m reporting resolution. Temperatures carry the
+// archive's "B" climatology-check flag, the surface pressure a "B" pressure
+// flag and standard-level heights a "B" height flag, like real records.
+// The data-source code in the header is "synth-v1" for both pressure and
+// non-pressure levels, so synthetic data can never pass for observed data.
+//
+// # Determinism
+//
+// All randomness comes from a PCG generator seeded with [Config.Seed] and
+// the station index, drawn in a fixed order, and every value is rounded to
+// its reporting resolution as soon as it is produced. The same Config gives
+// the same bytes on every run. Across platforms the output is the same
+// unless a last-bit difference in the math library or a fused multiply–add
+// happens to move a value across a rounding boundary, which is vanishingly
+// rare.
+package synth
