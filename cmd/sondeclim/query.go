@@ -1,0 +1,72 @@
+package main
+
+import (
+	"context"
+	"fmt"
+	"io"
+	"strings"
+
+	"github.com/sondeclim/sondeclim/queries"
+)
+
+// queryCmd runs SQL over a store.
+type queryCmd struct {
+	env
+}
+
+func (c *queryCmd) Run(ctx context.Context, args []string) error {
+	fs := newFlags("query", "--store DIR [--format text|csv|json] \"SQL\"", `
+Run one SQL statement (DuckDB dialect) over a store. Each table of the store
+is visible as a view of the same name: soundings (one row per sounding) and
+levels (one row per level). Use "-" as the SQL to read it from stdin.`,
+		`  sondeclim query --store ./store "select count(*) from soundings"
+  sondeclim query --store ./store --format csv \
+    "select station_id, launch_time, sbi_strength_k from soundings where sbi_present order by 3 desc limit 10"`,
+		c.stderr)
+	store := fs.String("store", "", "store `directory` written by sondeclim ingest")
+	format := fs.String("format", "text", "output `format`: text, csv or json")
+	if err := parseFlags(fs, args); err != nil {
+		return err
+	}
+	if *store == "" {
+		return fmt.Errorf("query: --store is required: %w", errUsage)
+	}
+	if fs.NArg() != 1 {
+		return fmt.Errorf("query: give exactly one SQL statement (quote it): %w", errUsage)
+	}
+	sql := fs.Arg(0)
+	if sql == "-" {
+		b, err := io.ReadAll(c.stdin)
+		if err != nil {
+			return fmt.Errorf("query: read stdin: %w", err)
+		}
+		sql = string(b)
+	}
+	write, err := tableWriter(*format)
+	if err != nil {
+		return fmt.Errorf("query: %w", err)
+	}
+	db, err := queries.Open(ctx, *store)
+	if err != nil {
+		return fmt.Errorf("query: %w", err)
+	}
+	defer db.Close()
+	t, err := queries.Query(ctx, db, strings.TrimSpace(sql))
+	if err != nil {
+		return fmt.Errorf("query: %w", err)
+	}
+	return write(c.stdout, t)
+}
+
+// tableWriter returns the writer for an output format name.
+func tableWriter(format string) (func(io.Writer, *queries.Table) error, error) {
+	switch format {
+	case "text":
+		return queries.WriteText, nil
+	case "csv":
+		return queries.WriteCSV, nil
+	case "json":
+		return queries.WriteJSON, nil
+	}
+	return nil, fmt.Errorf("unknown --format %q (text, csv or json): %w", format, errUsage)
+}
