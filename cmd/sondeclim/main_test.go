@@ -205,3 +205,39 @@ func TestWorkersAndOrderDoNotMatter(t *testing.T) {
 		t.Errorf("dump too short to be meaningful: %d lines", strings.Count(one, "\n"))
 	}
 }
+
+// TestIngestAllFormats: the three kinds of real input go into one store
+// (issue "readers": TEMP bulletins, netCDF sonde files, archive-v2 files;
+// counts from PROVENANCE.md and the decoders' own tests).
+func TestIngestAllFormats(t *testing.T) {
+	v := sharedDir(t)
+	store := t.TempDir()
+	code, _, errs := runCmd(t, "ingest", "--store", store, "--workers", "2",
+		filepath.Join(v, "temp"), filepath.Join(v, "netcdf"), filepath.Join(v, "archive-v2"))
+	if code != exitSkipped {
+		t.Fatalf("ingest: exit %d, want %d (some input is known to be unreadable)\n%s", code, exitSkipped, errs)
+	}
+	// Skipped items are named with file and line.
+	for _, want := range []*regexp.Regexp{
+		regexp.MustCompile(`bulletins-2022-07-13-00Z\.wmo:\d+: report carries no level data`),
+		regexp.MustCompile(`bulletins-2022-07-13-00Z\.wmo:\d+: recognised but not supported by this reader: part PP(AA|CC|DD)`),
+		regexp.MustCompile(`USM00070026-data-truncated\.txt:318: level count`),
+		regexp.MustCompile(`igra2-data-format\.txt.*input format not recognised`),
+	} {
+		if !want.MatchString(errs) {
+			t.Errorf("stderr lacks %s", want)
+		}
+	}
+	code, out, errs := runCmd(t, "query", "--store", store, "--format", "csv",
+		"select source_format, count(*) as n from soundings group by 1 order by 1")
+	if code != exitOK {
+		t.Fatalf("query: exit %d\n%s", code, errs)
+	}
+	// archive-v2: 321+5+2+662+14 (PROVENANCE.md); netCDF: 26 flights
+	// (PROVENANCE.md); TEMP: 107 stations with level data in the bulletin
+	// stream (five more send only regional remark groups) + Rio 83746.
+	want := "source_format,n\narchive-v2,1004\nnetcdf-sonde,26\nwmo-temp,108\n"
+	if out != want {
+		t.Errorf("soundings per format:\n%s\nwant\n%s", out, want)
+	}
+}
