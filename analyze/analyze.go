@@ -3,6 +3,7 @@ package analyze
 import (
 	"math"
 
+	"github.com/sondeclim/sondeclim/analyze/sun"
 	"github.com/sondeclim/sondeclim/analyze/thermo"
 	"github.com/sondeclim/sondeclim/ingest/sounding"
 )
@@ -48,6 +49,45 @@ type Result struct {
 	SBI        Inversion  // surface-based inversion
 	MixedLayer MixedLayer // lowest well-mixed layer
 	Parcel     Parcel     // parcel mixing height from the surface temperature
+
+	// Sun at launch (package sun): geometric solar elevation in degrees,
+	// local apparent solar time in hours, and the class sun.Day,
+	// sun.Night, sun.Twilight or sun.Unknown (NaN position or no launch
+	// time). Set for every sounding, analysable or not.
+	SunElevationDeg float64
+	LocalSolarTimeH float64
+	SunClass        string
+
+	// SurfaceWindMS is the wind speed at the lowest wind level when it is
+	// within MaxSurfaceGapM of the ground, m/s; NaN otherwise.
+	SurfaceWindMS float64
+
+	// Inversions lists every inversion layer below the ceiling, lowest
+	// first, classified (the SBI, when present, is the first).
+	Inversions []Inversion
+	// LowestElevated is the lowest elevated inversion (Present false when
+	// none).
+	LowestElevated Inversion
+	// MixedLayers lists every well-mixed layer below the ceiling, lowest
+	// first, searched upward from MixedLayer.BaseAGLM; MixedLayer is the
+	// first of them when it starts there.
+	MixedLayers []MixedLayer
+
+	// MixingHeights holds one entry per method, in the order of
+	// MixingHeightMethods, whatever the Status (all undefined when the
+	// sounding could not be analysed).
+	MixingHeights []MixingHeight
+	// MixingHeightConsensus summarises the methods listed in
+	// MixingHeightConfig.Consensus.
+	MixingHeightConsensus Consensus
+	// LiuLiangRegime is RegimeConvective, RegimeNeutral, RegimeStable or "".
+	LiuLiangRegime string
+
+	Ventilation Ventilation
+
+	// Profile is the thermodynamic profile kept for the afternoon
+	// (Holzworth) mixing height; see AfternoonMixingHeight.
+	Profile ParcelProfile
 }
 
 // Analyze computes the diagnostics of one sounding with the given
@@ -62,10 +102,30 @@ type Result struct {
 // lifted from the surface level's temperature plus Parcel.ExcessK at the
 // surface pressure.
 func Analyze(s *sounding.Sounding, cfg Config) Result {
+	nan := math.NaN()
 	r := Result{Status: StatusOK, ConstantSet: cfg.Constants.ID(), SatVap: cfg.SatVap.String(),
-		SurfaceIndex: -1, CeilingAGLM: math.NaN(),
+		SurfaceIndex: -1, CeilingAGLM: nan,
 		SBI: noInversion(), MixedLayer: noMixedLayer(),
-		Parcel: Parcel{Status: ParcelUndefined, HeightAGLM: math.NaN(), Theta0K: math.NaN()}}
+		Parcel:          Parcel{Status: ParcelUndefined, HeightAGLM: nan, Theta0K: nan},
+		SunElevationDeg: nan, LocalSolarTimeH: nan, SunClass: sun.Unknown, SurfaceWindMS: nan,
+		LowestElevated:        noInversion(),
+		MixingHeightConsensus: ConsensusOf(nil, nil),
+		Ventilation: Ventilation{HeightMethod: cfg.Ventilation.HeightMethod, MixingHeightAGLM: nan,
+			TransportWind: cfg.Ventilation.TransportWind, TransportWindMS: nan, IndexM2S: nan, IndexKtFt: nan,
+			Table: cfg.Ventilation.Table.Name},
+		Profile: ParcelProfile{SurfacePressurePa: nan, SurfaceTemperatureK: nan, CeilingAGLM: nan},
+	}
+	r.MixingHeights = make([]MixingHeight, len(MixingHeightMethods))
+	for i, m := range MixingHeightMethods {
+		r.MixingHeights[i] = undefinedMH(m, "not_analysed")
+	}
+	if s != nil {
+		r.SunElevationDeg = sun.ElevationDeg(s.LaunchTime, s.LatitudeDeg, s.LongitudeDeg)
+		if !math.IsNaN(r.SunElevationDeg) {
+			r.LocalSolarTimeH = sun.LocalApparentSolarTime(s.LaunchTime, s.LongitudeDeg)
+		}
+		r.SunClass = cfg.Sun.Classify(r.SunElevationDeg)
+	}
 	switch {
 	case !cfg.valid():
 		r.Status = StatusInvalidConfig
@@ -75,7 +135,11 @@ func Analyze(s *sounding.Sounding, cfg Config) Result {
 		return r
 	}
 	p, t := r.levelValues(s, cfg)
-	pr := r.buildProfile(p, t)
+	wp := r.buildWindProfile(s)
+	if len(wp.z) > 0 && wp.z[0] <= cfg.MaxSurfaceGapM {
+		r.SurfaceWindMS = math.Hypot(wp.u[0], wp.v[0])
+	}
+	pr := r.buildProfile(s, p, t, wp)
 	if len(pr.idx) == 0 {
 		r.Status = StatusNoThermoLevels
 		return r
@@ -97,18 +161,53 @@ func Analyze(s *sounding.Sounding, cfg Config) Result {
 	}
 	zc, n := pr.ceiling(cfg)
 	r.CeilingAGLM = zc
+	r.Profile = ParcelProfile{SurfacePressurePa: pr.p[0], SurfaceTemperatureK: pr.t[0], CeilingAGLM: zc,
+		Kappa: cfg.Constants.Kappa, P0Pa: cfg.Constants.P0Pa, HeightAGLM: pr.z, ThetaK: pr.theta}
 
+	spans := findInversions(pr.z, pr.t, n, cfg.Inversion)
 	mlBase := 0
-	if inv := findInversions(pr.z, pr.t, n, cfg.Inversion); len(inv) > 0 && inv[0].base == 0 {
-		r.SBI = pr.inversionFrom(inv[0])
-		mlBase = inv[0].top
+	if len(spans) > 0 && spans[0].base == 0 {
+		mlBase = spans[0].top
 	}
-	r.MixedLayer = pr.mixedLayer(mlBase, n, cfg.MixedLayer)
+	allowSA := !cfg.MixedLayer.SuperadiabaticDayOnly || r.SunClass == sun.Day
+	r.MixedLayers = pr.mixedLayers(mlBase, n, cfg.MixedLayer, allowSA)
+	r.MixedLayer = pr.mixedLayer(mlBase, n, cfg.MixedLayer, allowSA)
+	r.classifyInversions(pr, spans, n, cfg)
 
 	c := cfg.Constants
 	r.Parcel.Theta0K = thermo.PotentialTemperature(pr.t[0]+cfg.Parcel.ExcessK, pr.p[0], c.Kappa, c.P0Pa)
 	r.Parcel.HeightAGLM, r.Parcel.Status = ParcelMixingHeight(pr.z, pr.theta, r.Parcel.Theta0K, zc)
+	r.mixingHeights(pr, n, cfg)
+	r.ventilation(wp, cfg)
 	return r
+}
+
+// classifyInversions fills Inversions, SBI and LowestElevated.
+func (r *Result) classifyInversions(pr profile, spans []layerSpan, n int, cfg Config) {
+	if len(spans) == 0 {
+		return
+	}
+	var tops [8]float64
+	ctx := classContext{sunClass: r.SunClass, solarTimeH: r.LocalSolarTimeH, surfaceWindMS: r.SurfaceWindMS,
+		mixedLayerTops: tops[:0]}
+	for _, m := range r.MixedLayers {
+		ctx.mixedLayerTops = append(ctx.mixedLayerTops, m.TopAGLM)
+	}
+	r.Inversions = make([]Inversion, len(spans))
+	for i, sp := range spans {
+		v := pr.inversionFrom(sp, n, cfg.SatVap)
+		v.Class = classify(v, ctx, cfg.Inversion.Classes)
+		r.Inversions[i] = v
+	}
+	if r.Inversions[0].SurfaceBased {
+		r.SBI = r.Inversions[0]
+	}
+	for _, v := range r.Inversions {
+		if !v.SurfaceBased {
+			r.LowestElevated = v
+			break
+		}
+	}
 }
 
 // levelValues fills the per-level slices and returns the levels' pressures

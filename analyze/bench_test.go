@@ -2,15 +2,18 @@ package analyze
 
 import (
 	"testing"
+	"time"
 
 	"github.com/sondeclim/sondeclim/ingest/sounding"
 )
 
 // benchSounding returns a 100-level sounding (invented scaffolding): a
 // surface inversion over a mixed layer and a stable free troposphere, with
-// heights reported only every tenth level.
+// heights reported only every tenth level, winds at every level and a
+// position and launch time, so that every method runs.
 func benchSounding() *sounding.Sounding {
-	s := &sounding.Sounding{StationID: "XQ0099", ElevationM: 100}
+	s := &sounding.Sounding{StationID: "XQ0099", ElevationM: 100, LatitudeDeg: 40, LongitudeDeg: -80,
+		LaunchTime: time.Date(2016, 7, 1, 11, 0, 0, 0, time.UTC)}
 	for i := 0; i < 100; i++ {
 		p := 1000 - 8.5*float64(i)
 		tc := 10 - 0.0065*8.5*float64(i)*9
@@ -25,7 +28,9 @@ func benchSounding() *sounding.Sounding {
 		if i == 0 {
 			k = sounding.KindSurface
 		}
-		s.Levels = append(s.Levels, lvl(k, p, z, tc, tc-5))
+		l := lvl(k, p, z, tc, tc-5)
+		l.WindSpeedMS, l.WindDirectionDeg = 2+0.2*float64(i), 180+float64(i)
+		s.Levels = append(s.Levels, l)
 	}
 	return s
 }

@@ -1,6 +1,9 @@
 package analyze
 
-import "github.com/sondeclim/sondeclim/analyze/thermo"
+import (
+	"github.com/sondeclim/sondeclim/analyze/sun"
+	"github.com/sondeclim/sondeclim/analyze/thermo"
+)
 
 // Config holds every tunable parameter of Analyze. Start from DefaultConfig
 // and change fields; a zero Config is refused with Status "invalid_config".
@@ -33,9 +36,19 @@ type Config struct {
 	// station elevation is unknown.
 	MaxSurfaceGapM float64
 
-	Inversion  InversionConfig
-	MixedLayer MixedLayerConfig
-	Parcel     ParcelConfig
+	// Sun holds the solar-elevation thresholds of the day/night/twilight
+	// class. Default day above 10°, night below 0° (METHODS §8, from
+	// memory there).
+	Sun sun.Thresholds
+
+	Inversion    InversionConfig
+	MixedLayer   MixedLayerConfig
+	Parcel       ParcelConfig
+	Heffter      HeffterConfig
+	Richardson   RichardsonConfig
+	LiuLiang     LiuLiangConfig
+	MixingHeight MixingHeightConfig
+	Ventilation  VentilationConfig
 }
 
 // InversionConfig parameterises inversion detection (METHODS §3.2).
@@ -54,6 +67,36 @@ type InversionConfig struct {
 	// after merging. Defaults 0 K and 0 m (METHODS §3.2 step 5, proposal).
 	MinStrengthK float64
 	MinDepthM    float64
+	// Classes holds the thresholds of the inversion class rules.
+	Classes InversionClassConfig
+}
+
+// InversionClassConfig holds the thresholds of the inversion class rules
+// (METHODS §3.3, "suggested decision rule": a synthesis of published
+// synoptic guidance; the thresholds are proposals there). The rules are
+// evaluated in this order and the first that holds gives the class:
+//
+//  1. radiation: surface-based; the launch is at night, or in twilight
+//     before RadiationMorningBeforeH local apparent solar time (early
+//     morning); surface wind speed ≤ RadiationMaxWindMS.
+//  2. subsidence: elevated; drying upward, ΔDPD ≥ SubsidenceMinDPDIncreaseK
+//     or ΔRH ≤ SubsidenceMaxRHChangePct; and Δw ≤ SubsidenceMaxMixingRatioChangeKgKg.
+//  3. frontal: elevated; moistening upward, ΔDPD ≤ FrontalMaxDPDChangeK,
+//     and veering (clockwise turning with height) ≥ FrontalMinVeeringDeg.
+//  4. capping: elevated; the base lies within CappingToleranceM of the top
+//     of a well-mixed layer.
+//  5. unclassified: anything else, including any rule whose inputs are
+//     missing (NaN never satisfies a rule).
+type InversionClassConfig struct {
+	RadiationMaxWindMS                 float64 // m/s; default 5
+	RadiationMorningBeforeH            float64 // h local apparent solar time; default 12
+	SubsidenceMinDPDIncreaseK          float64 // K; default 3
+	SubsidenceMaxRHChangePct           float64 // % points; default −20
+	SubsidenceMaxMixingRatioChangeKgKg float64 // kg/kg; default 0
+	FrontalMaxDPDChangeK               float64 // K; default 0
+	FrontalMinVeeringDeg               float64 // degrees; default 30
+	// CappingToleranceM: default 100 m (proposal, no source).
+	CappingToleranceM float64
 }
 
 // MixedLayerConfig parameterises the well-mixed layer test (METHODS §2,
@@ -63,6 +106,15 @@ type MixedLayerConfig struct {
 	MaxMixingRatioRangeKgKg float64 // max − min w in the layer, kg/kg; default 0.001 (1 g/kg)
 	MinLevels               int     // levels in the layer, base included; default 3
 	MinDepthM               float64 // top − base, m; default 200
+	// SuperadiabaticMaxDepthM allows a near-surface superadiabatic layer
+	// (θv decreasing with height) of up to this depth at the bottom of a
+	// surface-based well-mixed layer: those levels belong to the layer but
+	// are left out of the θv and w spread tests. Default 200 m (METHODS §2:
+	// "first 50–200 m", from memory there). 0 disables.
+	SuperadiabaticMaxDepthM float64
+	// SuperadiabaticDayOnly restricts that allowance to soundings whose
+	// sun class is day. Default true.
+	SuperadiabaticDayOnly bool
 }
 
 // ParcelConfig parameterises the parcel mixing height (METHODS §4.1).
@@ -83,13 +135,25 @@ func DefaultConfig() Config {
 		MinLevels:         3,
 		CoverageTopPa:     70000,
 		MaxSurfaceGapM:    100,
-		Inversion:         InversionConfig{MergeGapM: 100},
+		Sun:               sun.DefaultThresholds(),
+		Inversion: InversionConfig{MergeGapM: 100, Classes: InversionClassConfig{
+			RadiationMaxWindMS: 5, RadiationMorningBeforeH: 12,
+			SubsidenceMinDPDIncreaseK: 3, SubsidenceMaxRHChangePct: -20,
+			FrontalMaxDPDChangeK: 0, FrontalMinVeeringDeg: 30, CappingToleranceM: 100,
+		}},
 		MixedLayer: MixedLayerConfig{
 			MaxThetaVRangeK:         1.0,
 			MaxMixingRatioRangeKgKg: 0.001,
 			MinLevels:               3,
 			MinDepthM:               200,
+			SuperadiabaticMaxDepthM: 200,
+			SuperadiabaticDayOnly:   true,
 		},
+		Heffter:      DefaultHeffterConfig(),
+		Richardson:   DefaultRichardsonConfig(),
+		LiuLiang:     LiuLiangLand(),
+		MixingHeight: DefaultMixingHeightConfig(),
+		Ventilation:  DefaultVentilationConfig(),
 	}
 }
 
@@ -97,5 +161,6 @@ func DefaultConfig() Config {
 func (c Config) valid() bool {
 	return c.Constants.Valid() && c.CeilingPressurePa > 0 && c.CeilingAGLM > 0 &&
 		c.MinLevels >= 1 && !(c.CoverageTopPa < 0) && c.MixedLayer.MinLevels >= 2 &&
-		!(c.MaxSurfaceGapM < 0) && !(c.Inversion.MergeGapM < 0)
+		!(c.MaxSurfaceGapM < 0) && !(c.Inversion.MergeGapM < 0) &&
+		c.Heffter.GridStepPa > 0 && c.LiuLiang.GridStepPa > 0 && c.Heffter.MaxLayers >= 1
 }

@@ -56,3 +56,16 @@ func ExampleParcelMixingHeight() {
 	fmt.Printf("%s %.0f m\n", status, h)
 	// Output: ok 1750 m
 }
+
+// The ventilation index of METHODS §9 (mixing height 1500 m, transport
+// wind 5 m/s) in both units and in two category tables.
+func ExampleVentilationIndex() {
+	vi := analyze.VentilationIndex(1500, 5)
+	fmt.Printf("%.0f m2/s = %.0f kt*ft\n", vi, vi*analyze.KtFtPerM2S)
+	fmt.Println("nc_vis category:", analyze.NCVISTable().Category(vi))
+	fmt.Println("generic category:", analyze.GenericVentilationTable().Category(vi))
+	// Output:
+	// 7500 m2/s = 47831 kt*ft
+	// nc_vis category: 3
+	// generic category: good
+}

@@ -1,6 +1,20 @@
 package analyze
 
-import "math"
+import (
+	"math"
+
+	"github.com/sondeclim/sondeclim/analyze/sun"
+	"github.com/sondeclim/sondeclim/analyze/thermo"
+)
+
+// Inversion classes (see InversionClassConfig for the rules and their order).
+const (
+	ClassRadiation    = "radiation"
+	ClassSubsidence   = "subsidence"
+	ClassFrontal      = "frontal"
+	ClassCapping      = "capping"
+	ClassUnclassified = "unclassified"
+)
 
 // Inversion is a temperature inversion layer: a layer in which temperature
 // increases with height (METHODS §3.1). Heights are m AGL.
@@ -17,6 +31,28 @@ type Inversion struct {
 	StrengthK float64
 	// Levels is the number of profile levels from base to top inclusive.
 	Levels int
+
+	// SurfaceBased is true when the base is the surface level (METHODS
+	// §3.2 step 6); otherwise the inversion is elevated.
+	SurfaceBased bool
+	// TopAtCeiling is true when the top is the highest level searched
+	// (the last level below the ceiling, or the last of the sounding): the
+	// inversion may continue above it.
+	TopAtCeiling bool
+	// Changes from base to top (top minus base); NaN where an input is
+	// missing. RH is with respect to water, in % points.
+	ThetaDeltaK              float64 // K, Δθ
+	DewpointDepressionDeltaK float64 // K, ΔDPD (positive: drying upward)
+	RelHumidityDeltaPct      float64 // % points, ΔRH
+	MixingRatioDeltaKgKg     float64 // kg/kg, Δw
+	// WindTurningDeg is the shortest signed angle from the wind direction
+	// at the base to that at the top, degrees, veering (clockwise with
+	// height) positive (TurningDeg); NaN when either wind is calm or
+	// missing.
+	WindTurningDeg float64
+	// Class is one of the Class* constants (InversionClassConfig rules),
+	// "" when absent.
+	Class string
 }
 
 // DepthM returns TopAGLM − BaseAGLM in m (NaN when absent).
@@ -35,7 +71,8 @@ func (v Inversion) GradientKPerKm() float64 {
 func noInversion() Inversion {
 	nan := math.NaN()
 	return Inversion{BaseIndex: -1, TopIndex: -1, BaseAGLM: nan, TopAGLM: nan,
-		BasePressurePa: nan, TopPressurePa: nan, StrengthK: nan}
+		BasePressurePa: nan, TopPressurePa: nan, StrengthK: nan, ThetaDeltaK: nan,
+		DewpointDepressionDeltaK: nan, RelHumidityDeltaPct: nan, MixingRatioDeltaKgKg: nan, WindTurningDeg: nan}
 }
 
 // layerSpan is an inversion layer as profile positions base < top.
@@ -78,12 +115,66 @@ func findInversions(z, t []float64, n int, cfg InversionConfig) []layerSpan {
 	return kept
 }
 
-// inversionFrom fills an Inversion from a profile span.
-func (pr profile) inversionFrom(s layerSpan) Inversion {
+// inversionFrom fills an Inversion from a profile span (searched levels
+// 0..n−1); f converts dewpoints to RH.
+func (pr profile) inversionFrom(s layerSpan, n int, f thermo.SatVapFormula) Inversion {
+	b, t := s.base, s.top
+	rh := func(k int) float64 { return 100 * thermo.RelativeHumidity(pr.t[k], pr.td[k], f) }
 	return Inversion{
-		Present: true, BaseIndex: pr.idx[s.base], TopIndex: pr.idx[s.top],
-		BaseAGLM: pr.z[s.base], TopAGLM: pr.z[s.top],
-		BasePressurePa: pr.p[s.base], TopPressurePa: pr.p[s.top],
-		StrengthK: pr.t[s.top] - pr.t[s.base], Levels: s.top - s.base + 1,
+		Present: true, BaseIndex: pr.idx[b], TopIndex: pr.idx[t],
+		BaseAGLM: pr.z[b], TopAGLM: pr.z[t],
+		BasePressurePa: pr.p[b], TopPressurePa: pr.p[t],
+		StrengthK: pr.t[t] - pr.t[b], Levels: t - b + 1,
+		SurfaceBased: b == 0, TopAtCeiling: t == n-1,
+		ThetaDeltaK:              pr.theta[t] - pr.theta[b],
+		DewpointDepressionDeltaK: (pr.t[t] - pr.td[t]) - (pr.t[b] - pr.td[b]),
+		RelHumidityDeltaPct:      rh(t) - rh(b),
+		MixingRatioDeltaKgKg:     pr.w[t] - pr.w[b],
+		WindTurningDeg:           TurningDeg(windDirection(pr.u[b], pr.v[b]), windDirection(pr.u[t], pr.v[t])),
 	}
+}
+
+// classContext is what the class rules need beyond the layer itself.
+type classContext struct {
+	sunClass       string
+	solarTimeH     float64   // local apparent solar time, h
+	surfaceWindMS  float64   // m/s
+	mixedLayerTops []float64 // m AGL
+}
+
+// ClassifyInversion returns the class of inversion v by the rules of
+// InversionClassConfig, evaluated in the documented order, given the sun
+// class of the launch (sun.Day, sun.Night, sun.Twilight or sun.Unknown),
+// the local apparent solar time in hours, the surface wind speed in m/s
+// and the tops of the sounding's well-mixed layers in m AGL. Missing
+// inputs (NaN, unknown sun class) never satisfy a rule. An absent
+// inversion gives "".
+func ClassifyInversion(v Inversion, sunClass string, solarTimeH, surfaceWindMS float64, mixedLayerTopsAGLM []float64, cfg InversionClassConfig) string {
+	return classify(v, classContext{sunClass, solarTimeH, surfaceWindMS, mixedLayerTopsAGLM}, cfg)
+}
+
+func classify(v Inversion, c classContext, cfg InversionClassConfig) string {
+	if !v.Present {
+		return ""
+	}
+	if v.SurfaceBased {
+		night := c.sunClass == sun.Night || (c.sunClass == sun.Twilight && c.solarTimeH < cfg.RadiationMorningBeforeH)
+		if night && c.surfaceWindMS <= cfg.RadiationMaxWindMS {
+			return ClassRadiation
+		}
+		return ClassUnclassified
+	}
+	drying := v.DewpointDepressionDeltaK >= cfg.SubsidenceMinDPDIncreaseK || v.RelHumidityDeltaPct <= cfg.SubsidenceMaxRHChangePct
+	if drying && v.MixingRatioDeltaKgKg <= cfg.SubsidenceMaxMixingRatioChangeKgKg {
+		return ClassSubsidence
+	}
+	if v.DewpointDepressionDeltaK <= cfg.FrontalMaxDPDChangeK && v.WindTurningDeg >= cfg.FrontalMinVeeringDeg {
+		return ClassFrontal
+	}
+	for _, top := range c.mixedLayerTops {
+		if math.Abs(v.BaseAGLM-top) <= cfg.CappingToleranceM {
+			return ClassCapping
+		}
+	}
+	return ClassUnclassified
 }

@@ -1,10 +1,6 @@
 package analyze
 
-import (
-	"math"
-
-	"github.com/sondeclim/sondeclim/analyze/thermo"
-)
+import "math"
 
 // MixedLayer is the lowest well-mixed layer (METHODS §2). Heights are m
 // AGL.
@@ -18,7 +14,7 @@ type MixedLayer struct {
 	BasePressurePa float64 // Pa
 	TopPressurePa  float64 // Pa; NaN when not found
 	// ThetaK and MixingRatioKgKg are mass-weighted means over the layer,
-	// ∫X dp/Δp (thermo.MassWeightedMean); the mixing-ratio mean is NaN when
+	// ∫X dp/Δp (as thermo.MassWeightedMean); the mixing-ratio mean is NaN when
 	// humidity is missing at the base or top.
 	ThetaK          float64
 	MixingRatioKgKg float64
@@ -28,12 +24,17 @@ type MixedLayer struct {
 	ThetaVRangeK         float64
 	MixingRatioRangeKgKg float64
 	Levels               int // profile levels in the layer, base and top included; 0 when not found
+	// SuperadiabaticTopAGLM is the top of the near-surface superadiabatic
+	// layer that was allowed at the bottom of this layer (see
+	// MixedLayerConfig.SuperadiabaticMaxDepthM), m AGL; NaN when none.
+	SuperadiabaticTopAGLM float64
 }
 
 func noMixedLayer() MixedLayer {
 	nan := math.NaN()
 	return MixedLayer{BaseAGLM: nan, TopAGLM: nan, BasePressurePa: nan, TopPressurePa: nan,
-		ThetaK: nan, MixingRatioKgKg: nan, ThetaRangeK: nan, ThetaVRangeK: nan, MixingRatioRangeKgKg: nan}
+		ThetaK: nan, MixingRatioKgKg: nan, ThetaRangeK: nan, ThetaVRangeK: nan, MixingRatioRangeKgKg: nan,
+		SuperadiabaticTopAGLM: nan}
 }
 
 // span tracks the minimum and maximum of a variable, ignoring NaN.
@@ -60,29 +61,86 @@ func (s span) width() float64 {
 // mixing-ratio spread within MaxMixingRatioRangeKgKg (θ stands in for θv
 // where humidity is missing). The layer is well mixed when it holds at
 // least MinLevels levels and is at least MinDepthM deep.
-func (pr profile) mixedLayer(base, n int, cfg MixedLayerConfig) MixedLayer {
+//
+// When allowSA is true and base is the surface (position 0), a
+// superadiabatic run at the bottom (θv strictly decreasing level by level,
+// its top no higher than SuperadiabaticMaxDepthM) belongs to the layer but
+// the spread tests start at its top.
+func (pr profile) mixedLayer(base, n int, cfg MixedLayerConfig, allowSA bool) MixedLayer {
 	ml := noMixedLayer()
 	if base < 0 || base >= n {
 		return ml
 	}
 	ml.BaseAGLM, ml.BasePressurePa = pr.z[base], pr.p[base]
-	tv, th, w := newSpan().with(pr.thetav[base]), newSpan().with(pr.theta[base]), newSpan().with(pr.w[base])
-	top := base
-	for k := base + 1; k < n; k++ {
+	from := base
+	if allowSA && base == 0 && cfg.SuperadiabaticMaxDepthM > 0 {
+		for from+1 < n && pr.thetav[from+1] < pr.thetav[from] && pr.z[from+1]-pr.z[0] <= cfg.SuperadiabaticMaxDepthM {
+			from++
+		}
+	}
+	tv, th, w := newSpan().with(pr.thetav[from]), newSpan(), newSpan().with(pr.w[from])
+	for k := base; k <= from; k++ {
+		th = th.with(pr.theta[k])
+	}
+	top := from
+	for k := from + 1; k < n; k++ {
 		tv2, w2 := tv.with(pr.thetav[k]), w.with(pr.w[k])
 		if tv2.width() > cfg.MaxThetaVRangeK || w2.width() > cfg.MaxMixingRatioRangeKgKg {
 			break
 		}
 		tv, w, th, top = tv2, w2, th.with(pr.theta[k]), k
 	}
-	if top-base+1 < cfg.MinLevels || pr.z[top]-pr.z[base] < cfg.MinDepthM {
+	if top-base+1 < cfg.MinLevels || pr.z[top]-pr.z[base] < cfg.MinDepthM || top == from && from > base {
 		return ml
 	}
 	ml.Found, ml.Levels = true, top-base+1
+	if from > base {
+		ml.SuperadiabaticTopAGLM = pr.z[from]
+	}
 	ml.TopAGLM, ml.TopPressurePa = pr.z[top], pr.p[top]
 	ml.ThetaRangeK, ml.ThetaVRangeK, ml.MixingRatioRangeKgKg = th.width(), tv.width(), w.width()
 	ps := pr.p[base : top+1]
-	ml.ThetaK = thermo.MassWeightedMean(ps, pr.theta[base:top+1], ps[0], ps[len(ps)-1])
-	ml.MixingRatioKgKg = thermo.MassWeightedMean(ps, pr.w[base:top+1], ps[0], ps[len(ps)-1])
+	ml.ThetaK = levelMassMean(ps, pr.theta[base:top+1])
+	ml.MixingRatioKgKg = levelMassMean(ps, pr.w[base:top+1])
 	return ml
+}
+
+// levelMassMean is thermo.MassWeightedMean for a layer whose ends are the
+// first and last of the given levels (p strictly decreasing, Pa), without
+// allocating: ∫X dp/Δp by the trapezoid rule in p, interior NaN values
+// bridged, NaN when either end value is NaN.
+func levelMassMean(p, x []float64) float64 {
+	n := len(p)
+	if n < 2 || math.IsNaN(x[0]) || math.IsNaN(x[n-1]) {
+		return math.NaN()
+	}
+	var s float64
+	prev := 0
+	for i := 1; i < n; i++ {
+		if math.IsNaN(x[i]) {
+			continue
+		}
+		s += 0.5 * (x[prev] + x[i]) * (p[prev] - p[i])
+		prev = i
+	}
+	return s / (p[0] - p[n-1])
+}
+
+// mixedLayers returns every well-mixed layer that starts at or above
+// profile position start within the first n levels, lowest first: a layer
+// is grown from each candidate base (mixedLayer); when one is found the
+// next search starts at the level above its top, otherwise at the next
+// level. Layers therefore never overlap.
+func (pr profile) mixedLayers(start, n int, cfg MixedLayerConfig, allowSA bool) []MixedLayer {
+	var out []MixedLayer
+	for b := start; b < n-1; {
+		ml := pr.mixedLayer(b, n, cfg, allowSA)
+		if !ml.Found {
+			b++
+			continue
+		}
+		out = append(out, ml)
+		b += ml.Levels
+	}
+	return out
 }

@@ -5,6 +5,7 @@ import (
 	"sort"
 
 	"github.com/sondeclim/sondeclim/analyze/thermo"
+	"github.com/sondeclim/sondeclim/ingest/sounding"
 )
 
 // profile is the thermodynamic profile of one sounding: levels with
@@ -18,9 +19,11 @@ type profile struct {
 	theta  []float64 // K
 	thetav []float64 // K; θv, or θ where humidity is missing
 	w      []float64 // kg/kg, NaN where humidity is missing
+	td     []float64 // K, dewpoint, NaN where missing
+	u, v   []float64 // m/s, wind components (from the level, else interpolated in z), NaN where missing
 }
 
-func (r *Result) buildProfile(p, t []float64) profile {
+func (r *Result) buildProfile(s *sounding.Sounding, p, t []float64, wp windProfile) profile {
 	var idx []int
 	for i := range p {
 		if p[i] > 0 && t[i] > 0 && !math.IsInf(p[i], 0) && !math.IsInf(t[i], 0) && !math.IsNaN(r.HeightAGLM[i]) {
@@ -38,10 +41,17 @@ func (r *Result) buildProfile(p, t []float64) profile {
 	}
 	idx = idx[:k]
 	pr := profile{idx: idx}
-	buf := make([]float64, 6*k)
-	pr.p, pr.t, pr.z, pr.theta, pr.thetav, pr.w = buf[:k], buf[k:2*k], buf[2*k:3*k], buf[3*k:4*k], buf[4*k:5*k], buf[5*k:]
+	buf := make([]float64, 9*k)
+	pr.p, pr.t, pr.z, pr.theta, pr.thetav, pr.w = buf[:k], buf[k:2*k], buf[2*k:3*k], buf[3*k:4*k], buf[4*k:5*k], buf[5*k:6*k]
+	pr.td, pr.u, pr.v = buf[6*k:7*k], buf[7*k:8*k], buf[8*k:]
 	for n, i := range idx {
 		pr.p[n], pr.t[n], pr.z[n] = p[i], t[i], r.HeightAGLM[i]
+		pr.td[n] = finite(s.Levels[i].DewpointK)
+		if u, v, ok := levelWind(s.Levels[i]); ok {
+			pr.u[n], pr.v[n] = u, v
+		} else {
+			pr.u[n], pr.v[n] = wp.at(pr.z[n])
+		}
 		pr.theta[n], pr.w[n] = r.ThetaK[i], r.MixingRatioKgKg[i]
 		pr.thetav[n] = r.ThetaVK[i]
 		if math.IsNaN(pr.thetav[n]) {

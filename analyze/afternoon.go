@@ -1,0 +1,211 @@
+package analyze
+
+import (
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"strconv"
+	"strings"
+	"time"
+
+	"github.com/sondeclim/sondeclim/analyze/sun"
+	"github.com/sondeclim/sondeclim/analyze/thermo"
+)
+
+// ParcelProfile is the part of an analysed sounding that the afternoon
+// (Holzworth) mixing height needs: the potential-temperature profile and
+// the surface values. Its slices share memory with the Result; treat them
+// as read-only.
+type ParcelProfile struct {
+	SurfacePressurePa   float64   // Pa
+	SurfaceTemperatureK float64   // K
+	CeilingAGLM         float64   // m AGL, the search ceiling of the analysis
+	Kappa, P0Pa         float64   // Poisson constant and reference pressure (Pa) of the constant set
+	HeightAGLM          []float64 // m AGL, upward, surface first
+	ThetaK              []float64 // K
+}
+
+// AfternoonMixingHeight returns the Holzworth afternoon mixing height of a
+// morning sounding's profile p for the day's maximum surface temperature
+// tmaxK (K): the parcel θ0 = Tmax (p0/p_sfc)^κ lifted dry-adiabatically
+// until it meets the morning θ profile (ParcelMixingHeight; METHODS §4.1,
+// after Holzworth 1967, 1972 and the U.S. EPA monitoring guidance §6.5.1).
+// The result's Method is "parcel_afternoon" and its Note "theta0=…K".
+// Undefined ("no_profile" or "no_tmax") when the profile is empty or tmaxK
+// is NaN.
+func AfternoonMixingHeight(p ParcelProfile, tmaxK float64) MixingHeight {
+	const method = "parcel_afternoon"
+	switch {
+	case len(p.HeightAGLM) < 2 || !(p.SurfacePressurePa > 0):
+		return undefinedMH(method, "no_profile")
+	case !(tmaxK > 0):
+		return undefinedMH(method, "no_tmax")
+	}
+	th0 := thermo.PotentialTemperature(tmaxK, p.SurfacePressurePa, p.Kappa, p.P0Pa)
+	h, st := ParcelMixingHeight(p.HeightAGLM, p.ThetaK, th0, p.CeilingAGLM)
+	note := fmt.Sprintf("theta0=%.2fK", th0)
+	if st == MixingHeightUndefined {
+		note = "no_crossing"
+	}
+	return mhFrom(method, h, st, note)
+}
+
+// DayKey identifies a station's local solar day.
+type DayKey struct {
+	StationID string
+	Date      time.Time // midnight UTC of the local solar date
+}
+
+// DailyMaxima maps a station's local day to its maximum surface
+// temperature in K.
+type DailyMaxima map[DayKey]float64
+
+// ReadDailyMaxima reads daily maximum temperatures from CSV with the
+// header line
+//
+//	station_id,date,tmax_c
+//
+// and one record per station and day: the station identifier as used by
+// the soundings, the local date as YYYY-MM-DD, and the maximum surface
+// temperature in °C (converted to K). Blank lines are skipped; an empty
+// tmax_c means missing and the record is skipped. A malformed record stops
+// reading with an error "line N: reason"; a repeated station and date is
+// an error too.
+func ReadDailyMaxima(r io.Reader) (DailyMaxima, error) {
+	cr := csv.NewReader(r)
+	cr.FieldsPerRecord = 3
+	cr.TrimLeadingSpace = true
+	m := DailyMaxima{}
+	header := true
+	for {
+		rec, err := cr.Read()
+		if errors.Is(err, io.EOF) {
+			if header {
+				return nil, errors.New("daily maxima: empty input, want header station_id,date,tmax_c")
+			}
+			return m, nil
+		}
+		if err != nil {
+			return nil, fmt.Errorf("daily maxima: %w", err)
+		}
+		line, _ := cr.FieldPos(0)
+		if header {
+			if strings.TrimPrefix(rec[0], "\ufeff") != "station_id" || rec[1] != "date" || rec[2] != "tmax_c" {
+				return nil, fmt.Errorf("daily maxima: line %d: header %q, want station_id,date,tmax_c", line, strings.Join(rec, ","))
+			}
+			header = false
+			continue
+		}
+		if rec[0] == "" {
+			return nil, fmt.Errorf("daily maxima: line %d: empty station_id", line)
+		}
+		d, err := time.Parse("2006-01-02", rec[1])
+		if err != nil {
+			return nil, fmt.Errorf("daily maxima: line %d: date %q is not YYYY-MM-DD", line, rec[1])
+		}
+		if strings.TrimSpace(rec[2]) == "" {
+			continue
+		}
+		tc, err := strconv.ParseFloat(strings.TrimSpace(rec[2]), 64)
+		if err != nil || !(tc > -100 && tc < 70) {
+			return nil, fmt.Errorf("daily maxima: line %d: tmax_c %q is not a temperature in °C", line, rec[2])
+		}
+		k := DayKey{rec[0], d}
+		if _, dup := m[k]; dup {
+			return nil, fmt.Errorf("daily maxima: line %d: repeated station %s and date %s", line, rec[0], rec[1])
+		}
+		m[k] = tc + thermo.ZeroCelsiusK
+	}
+}
+
+// DaySounding is one analysed sounding as the afternoon pairing needs it.
+type DaySounding struct {
+	StationID    string
+	LaunchTime   time.Time // UTC
+	LongitudeDeg float64   // degrees east; NaN excludes the sounding
+	Profile      ParcelProfile
+}
+
+// PairingConfig sets the local mean solar time windows (hours, start
+// inclusive, end exclusive) that make a sounding a morning or an afternoon
+// one. Defaults: morning 03–10 h, afternoon 12–20 h (proposal, no source:
+// the windows hold the US 12 UTC launches, about 05–07 h local mean time,
+// and the 00 UTC launches, about 17–19 h; a surface temperature that late
+// is below the day's maximum, so user-supplied maxima are preferred).
+type PairingConfig struct {
+	MorningFromH, MorningToH     float64
+	AfternoonFromH, AfternoonToH float64
+}
+
+// DefaultPairingConfig returns the defaults documented on PairingConfig.
+func DefaultPairingConfig() PairingConfig {
+	return PairingConfig{MorningFromH: 3, MorningToH: 10, AfternoonFromH: 12, AfternoonToH: 20}
+}
+
+// Sources of the maximum temperature of an afternoon estimate.
+const (
+	TmaxFromDailyMaxima       = "daily_maxima"
+	TmaxFromAfternoonSounding = "afternoon_sounding"
+)
+
+// AfternoonEstimate is the afternoon mixing height of one morning sounding.
+type AfternoonEstimate struct {
+	Morning   int       // index of the morning sounding in the input
+	Afternoon int       // index of the afternoon sounding used for Tmax, −1 when none
+	StationID string    //
+	LocalDate time.Time // local solar date (midnight UTC)
+	TmaxK     float64   // K; NaN when no maximum was found
+	// TmaxSource is TmaxFromDailyMaxima, TmaxFromAfternoonSounding or ""
+	// (then MixingHeight is undefined with note "no_tmax").
+	TmaxSource   string
+	MixingHeight MixingHeight
+}
+
+// PairAfternoon returns one AfternoonEstimate per morning sounding in
+// soundings, in input order. Soundings are grouped by station and local
+// solar date (sun.LocalSolarDate, from the longitude); a sounding is a
+// morning one when its local mean solar time lies in the morning window.
+// The maximum temperature is the user's value for that station and date
+// in maxima (may be nil) when present, else the highest surface
+// temperature among the same day's afternoon soundings; it feeds
+// AfternoonMixingHeight with the morning profile. Soundings without a
+// longitude or launch time are skipped.
+func PairAfternoon(soundings []DaySounding, maxima DailyMaxima, cfg PairingConfig) []AfternoonEstimate {
+	type pm struct {
+		i   int
+		key DayKey
+	}
+	var mornings []pm
+	best := map[DayKey]int{}
+	in := func(h, from, to float64) bool { return h >= from && h < to }
+	for i, s := range soundings {
+		d, ok := sun.LocalSolarDate(s.LaunchTime, s.LongitudeDeg)
+		if !ok {
+			continue
+		}
+		key, lst := DayKey{s.StationID, d}, sun.LocalMeanSolarTime(s.LaunchTime, s.LongitudeDeg)
+		switch {
+		case in(lst, cfg.MorningFromH, cfg.MorningToH):
+			mornings = append(mornings, pm{i, key})
+		case in(lst, cfg.AfternoonFromH, cfg.AfternoonToH):
+			t := s.Profile.SurfaceTemperatureK
+			if j, seen := best[key]; !math.IsNaN(t) && (!seen || t > soundings[j].Profile.SurfaceTemperatureK) {
+				best[key] = i
+			}
+		}
+	}
+	out := make([]AfternoonEstimate, 0, len(mornings))
+	for _, m := range mornings {
+		e := AfternoonEstimate{Morning: m.i, Afternoon: -1, StationID: m.key.StationID, LocalDate: m.key.Date, TmaxK: math.NaN()}
+		if t, ok := maxima[m.key]; ok {
+			e.TmaxK, e.TmaxSource = t, TmaxFromDailyMaxima
+		} else if j, ok := best[m.key]; ok {
+			e.Afternoon, e.TmaxK, e.TmaxSource = j, soundings[j].Profile.SurfaceTemperatureK, TmaxFromAfternoonSounding
+		}
+		e.MixingHeight = AfternoonMixingHeight(soundings[m.i].Profile, e.TmaxK)
+		out = append(out, e)
+	}
+	return out
+}

@@ -1,0 +1,171 @@
+package analyze
+
+import (
+	"math"
+	"sort"
+
+	"github.com/sondeclim/sondeclim/ingest/sounding"
+)
+
+// Transport-wind averaging conventions (METHODS §5).
+const (
+	// TransportScalar is the height-weighted mean of the scalar speed,
+	// (1/MH)∫₀^MH |V| dz, trapezoid in z. The default.
+	TransportScalar = "scalar_mean"
+	// TransportVector is the speed of the height-weighted mean vector,
+	// |(1/MH)∫₀^MH V dz|, trapezoid in z on u and v.
+	TransportVector = "vector_mean"
+)
+
+// levelWind returns the wind components of a level in m/s, u = −s sin d,
+// v = −s cos d for speed s (m/s) and direction d (degrees, from), and
+// whether both speed and direction are usable (0 ≤ s ≤ 150 m/s,
+// 0 ≤ d ≤ 360°). A calm (s = 0) gives u = v = 0.
+func levelWind(l sounding.Level) (u, v float64, ok bool) {
+	s, d := l.WindSpeedMS, l.WindDirectionDeg
+	if !(s >= 0 && s <= 150) || !(d >= 0 && d <= 360) {
+		return math.NaN(), math.NaN(), false
+	}
+	sd, cd := math.Sincos(d * math.Pi / 180)
+	return -s * sd, -s * cd, true
+}
+
+// windDirection returns the direction the wind blows from, in degrees
+// [0, 360), for components u, v in m/s; NaN for a calm or NaN wind.
+func windDirection(u, v float64) float64 {
+	if !(u*u+v*v > 0) {
+		return math.NaN()
+	}
+	d := math.Atan2(-u, -v) * 180 / math.Pi
+	if d < 0 {
+		d += 360
+	}
+	return d
+}
+
+// TurningDeg returns the shortest signed angle from direction fromDeg to
+// direction toDeg in degrees, in (−180, 180]: positive when the wind veers
+// (turns clockwise, e.g. 180° → 270°), negative when it backs. NaN when
+// either is NaN.
+func TurningDeg(fromDeg, toDeg float64) float64 {
+	d := math.Mod(toDeg-fromDeg, 360)
+	switch {
+	case d > 180:
+		d -= 360
+	case d <= -180:
+		d += 360
+	}
+	return d
+}
+
+// windProfile holds every level with a height AGL and a usable wind,
+// sorted by height, duplicate heights dropped (first kept).
+type windProfile struct{ z, u, v []float64 }
+
+func (r *Result) buildWindProfile(s *sounding.Sounding) windProfile {
+	n := 0
+	for i, l := range s.Levels {
+		if l.WindSpeedMS >= 0 && l.WindSpeedMS <= 150 && l.WindDirectionDeg >= 0 && l.WindDirectionDeg <= 360 && !math.IsNaN(r.HeightAGLM[i]) {
+			n++
+		}
+	}
+	buf := make([]float64, 3*n)
+	w := windProfile{z: buf[:0:n], u: buf[n : n : 2*n], v: buf[2*n : 2*n : 3*n]}
+	sorted := true
+	for i, l := range s.Levels {
+		u, v, ok := levelWind(l)
+		if !ok || math.IsNaN(r.HeightAGLM[i]) {
+			continue
+		}
+		if k := len(w.z); k > 0 && r.HeightAGLM[i] <= w.z[k-1] {
+			sorted = false
+		}
+		w.z, w.u, w.v = append(w.z, r.HeightAGLM[i]), append(w.u, u), append(w.v, v)
+	}
+	if !sorted {
+		sort.Stable(w)
+	}
+	k := 0
+	for i := range w.z {
+		if k > 0 && w.z[i] == w.z[k-1] {
+			continue
+		}
+		w.z[k], w.u[k], w.v[k] = w.z[i], w.u[i], w.v[i]
+		k++
+	}
+	w.z, w.u, w.v = w.z[:k], w.u[:k], w.v[:k]
+	return w
+}
+
+func (w windProfile) Len() int           { return len(w.z) }
+func (w windProfile) Less(i, j int) bool { return w.z[i] < w.z[j] }
+func (w windProfile) Swap(i, j int) {
+	w.z[i], w.z[j] = w.z[j], w.z[i]
+	w.u[i], w.u[j] = w.u[j], w.u[i]
+	w.v[i], w.v[j] = w.v[j], w.v[i]
+}
+
+// at returns u, v interpolated linearly in z at height z (m AGL); NaN
+// outside the profile (no extrapolation).
+func (w windProfile) at(z float64) (u, v float64) {
+	n := len(w.z)
+	if n == 0 || !(z >= w.z[0] && z <= w.z[n-1]) {
+		return math.NaN(), math.NaN()
+	}
+	i := sort.SearchFloat64s(w.z, z)
+	if w.z[i] == z {
+		return w.u[i], w.v[i]
+	}
+	f := (z - w.z[i-1]) / (w.z[i] - w.z[i-1])
+	return w.u[i-1] + f*(w.u[i]-w.u[i-1]), w.v[i-1] + f*(w.v[i]-w.v[i-1])
+}
+
+// TransportWind returns the mean wind speed in m/s through the layer from
+// the ground to topAGLM (m AGL), for winds uMS, vMS (m/s) at heights
+// zAGLM (m AGL, strictly increasing), by the given convention
+// (TransportScalar or TransportVector; METHODS §5), trapezoid in z:
+//
+//	scalar: (1/H) ∫₀^H |V| dz     vector: |(1/H) ∫₀^H V dz|
+//
+// The first level stands for the ground (its wind is held from 0 m up to
+// it: callers pass only profiles whose lowest wind is near the ground),
+// and at topAGLM the speed (scalar) or the components (vector) are
+// interpolated linearly in z. For topAGLM = 0 it returns the first
+// level's speed. NaN when the profile does not reach topAGLM, when a wind
+// inside the layer is NaN, when topAGLM is NaN or negative, for an unknown
+// convention, or for unsorted or mismatched input.
+func TransportWind(zAGLM, uMS, vMS []float64, topAGLM float64, convention string) float64 {
+	n := len(zAGLM)
+	if n == 0 || len(uMS) != n || len(vMS) != n || !(topAGLM >= 0) || !(topAGLM <= zAGLM[n-1]) ||
+		(convention != TransportScalar && convention != TransportVector) {
+		return math.NaN()
+	}
+	speed := func(i int) float64 { return math.Hypot(uMS[i], vMS[i]) }
+	if topAGLM <= zAGLM[0] {
+		return speed(0)
+	}
+	var su, sv, ss float64
+	zPrev, uPrev, vPrev, sPrev := 0.0, uMS[0], vMS[0], speed(0)
+	for i := 0; i < n; i++ {
+		if i > 0 && !(zAGLM[i] > zAGLM[i-1]) {
+			return math.NaN()
+		}
+		z, u, v, s := zAGLM[i], uMS[i], vMS[i], speed(i)
+		if z > topAGLM {
+			f := (topAGLM - zPrev) / (z - zPrev)
+			u, v, s, z = uPrev+f*(u-uPrev), vPrev+f*(v-vPrev), sPrev+f*(s-sPrev), topAGLM
+		}
+		dz := z - zPrev
+		su += 0.5 * (u + uPrev) * dz
+		sv += 0.5 * (v + vPrev) * dz
+		ss += 0.5 * (s + sPrev) * dz
+		zPrev, uPrev, vPrev, sPrev = z, u, v, s
+		if z >= topAGLM {
+			break
+		}
+	}
+	if convention == TransportVector {
+		return math.Hypot(su, sv) / topAGLM
+	}
+	return ss / topAGLM
+}
