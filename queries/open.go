@@ -16,6 +16,7 @@ import (
 	"github.com/duckdb/duckdb-go/v2"
 
 	"github.com/sondeclim/sondeclim/schema"
+	"github.com/sondeclim/sondeclim/schema/store"
 )
 
 var viewName = regexp.MustCompile(`^[a-z][a-z0-9_]*$`)
@@ -45,7 +46,16 @@ func Open(ctx context.Context, storeDir string) (*sql.DB, error) {
 	if strings.ContainsAny(abs, "*?[]{}") {
 		return nil, fmt.Errorf("queries: store %s: path contains glob characters", abs)
 	}
-	tables, err := findTables(abs)
+	listed, haveManifest, err := store.TableFiles(abs)
+	if err != nil {
+		return nil, fmt.Errorf("queries: %w", err)
+	}
+	var tables []table
+	if haveManifest {
+		tables, err = manifestTables(abs, listed)
+	} else {
+		tables, err = findTables(abs)
+	}
 	if err != nil {
 		return nil, err
 	}
@@ -69,7 +79,26 @@ func Open(ctx context.Context, storeDir string) (*sql.DB, error) {
 // table is one table directory of the store.
 type table struct {
 	name        string
-	partitioned bool // has station=…/year=… subdirectories
+	partitioned bool     // has station=…/year=… subdirectories
+	files       []string // the files the store's manifests list; nil: every file under the directory
+}
+
+// manifestTables returns the tables a store's manifests list, with their
+// files. Only files a commit references are read, so a query never sees
+// the partly written state of an ingest that is running or was killed.
+func manifestTables(store string, listed map[string][]string) ([]table, error) {
+	var tables []table
+	for name, files := range listed {
+		if !viewName.MatchString(name) || len(files) == 0 {
+			continue
+		}
+		tables = append(tables, table{name: name, partitioned: true, files: files})
+	}
+	if len(tables) == 0 {
+		return nil, fmt.Errorf("queries: store %s has no tables (its manifest lists no files)", store)
+	}
+	sort.Slice(tables, func(i, j int) bool { return tables[i].name < tables[j].name })
+	return tables, nil
 }
 
 // findTables lists the table directories of the store, sorted by name.
@@ -90,6 +119,10 @@ func findTables(store string) ([]table, error) {
 		}
 		if first == "" {
 			continue
+		}
+		if v, err := schema.ReadVersion(first); err == nil && v != schema.Version {
+			return nil, fmt.Errorf("queries: %s was written with table schema version %d; this sondeclim reads version %d: "+
+				"ingest the inputs into a new store directory with this version (sondeclim ingest --store NEWDIR PATH...)", first, v, schema.Version)
 		}
 		rel, _ := filepath.Rel(dir, first)
 		parts := strings.Split(filepath.ToSlash(rel), "/")
@@ -141,8 +174,15 @@ func firstParquet(dir string) (string, error) {
 // the complete escaping rule for standard SQL string literals. The view name
 // is an identifier checked against viewName and is double-quoted as well.
 func viewDDL(store string, t table) string {
-	glob := filepath.ToSlash(filepath.Join(store, t.name)) + "/**/*.parquet"
-	lit := "'" + strings.ReplaceAll(glob, "'", "''") + "'"
+	quote := func(s string) string { return "'" + strings.ReplaceAll(s, "'", "''") + "'" }
+	lit := quote(filepath.ToSlash(filepath.Join(store, t.name)) + "/**/*.parquet")
+	if t.files != nil {
+		q := make([]string, len(t.files))
+		for i, f := range t.files {
+			q[i] = quote(filepath.ToSlash(f))
+		}
+		lit = "[" + strings.Join(q, ", ") + "]"
+	}
 	sel, opts := "*", ""
 	if t.partitioned {
 		sel = fmt.Sprintf("* EXCLUDE (%s)", schema.StationKey)

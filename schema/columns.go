@@ -14,7 +14,7 @@ import (
 // Version is the store's schema version. It is written into every Parquet
 // file's key-value metadata under VersionKey. Increment it whenever a column
 // is removed, renamed or changes type or meaning.
-const Version = 1
+const Version = 2
 
 // Metadata keys written into every Parquet file of the store.
 const (

@@ -150,7 +150,11 @@ func TestStoreRowTypes(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	types := []reflect.Type{reflect.TypeFor[SoundingRow](), reflect.TypeFor[LevelRow]()}
+	types := []reflect.Type{reflect.TypeFor[SoundingRow](), reflect.TypeFor[LevelRow](), reflect.TypeFor[InversionRow](),
+		reflect.TypeFor[MixedLayerRow](), reflect.TypeFor[MixingHeightRow](), reflect.TypeFor[AfternoonRow]()}
+	if len(tables) != len(types) {
+		t.Fatalf("%d tables documented, want %d", len(tables), len(types))
+	}
 	for i, td := range tables {
 		if n := types[i].NumField(); len(td.Columns) != n {
 			t.Errorf("%s: %d columns, want %d (one per field)", td.Name, len(td.Columns), n)

@@ -43,7 +43,7 @@ func ExampleWriteTable() {
 	// ascents/station=XQ001/year=1999/part-0.parquet
 	// ascents/station=XQ001/year=2000/part-0.parquet
 	// ascents/station=XQ002/year=2000/part-0.parquet
-	// schema version 1 <nil>
+	// schema version 2 <nil>
 }
 
 func ExampleMarkdown() {
@@ -55,10 +55,10 @@ func ExampleMarkdown() {
 	err = schema.Markdown(&b, schema.TableDoc{Name: "ascents", Description: "One row per invented ascent.", Columns: cols})
 	fmt.Print(b.String(), err)
 	// Output:
-	// # Store schema, version 1
+	// # Store schema, version 2
 	//
 	// Each table is a directory of zstd-compressed Parquet files, one per station and year:
-	// `TABLE/station=ID/year=YYYY/part-0.parquet`. Missing values are null.
+	// `TABLE/station=ID/year=YYYY/part-HASH.parquet` (the files a store's manifest lists). Missing values are null.
 	//
 	// ## ascents
 	//

@@ -32,6 +32,10 @@ type SoundingRow struct {
 	LongitudeDeg float64   `col:"longitude_deg" doc:"degrees east"`
 	ElevationM   float64   `col:"elevation_m" doc:"m above mean sea level; station (surface) elevation"`
 
+	SoundingHash     string `col:"sounding_hash" doc:"16 hex digits identifying the observed content of the sounding (not its source position); equal hashes mean identical observations"`
+	DuplicatesMerged int32  `col:"duplicates_merged" doc:"count; other copies of the same station and launch time that were read and dropped in favour of this one"`
+	DuplicateChoice  string `col:"duplicate_choice" doc:"rule that chose this copy among duplicates (more_levels_below_500hpa, more_levels, later_source); empty when there was no duplicate"`
+
 	SourceFile     string `col:"source_file" doc:"input file the sounding was read from"`
 	SourceMember   string `col:"source_member" doc:"member inside a zip archive, empty otherwise"`
 	SourceLine     int64  `col:"source_line" doc:"1-based line of the sounding's header in the source"`
@@ -48,10 +52,21 @@ type SoundingRow struct {
 	AnalysisStatus string `col:"analysis_status" doc:"ok, or the reason the sounding could not be analysed (e.g. insufficient_levels); such soundings count as attempted but not valid"`
 	ConstantSet    string `col:"constant_set" doc:"name of the thermodynamic constant set used for derived values"`
 
+	SunElevationDeg float64 `col:"sun_elevation_deg" doc:"degrees; geometric solar elevation at launch (Astronomical Almanac low-precision formulas)"`
+	LocalSolarTimeH float64 `col:"local_solar_time_h" doc:"h, 0-24; local apparent solar time at launch"`
+	SunClass        string  `col:"sun_class" doc:"day (sun above 10 deg), night (below 0 deg), twilight, or unknown (no position)"`
+
 	SBIPresent       *bool   `col:"sbi_present" doc:"true when a surface-based temperature inversion is present; null when not analysable"`
 	SBITopAGLM       float64 `col:"sbi_top_agl_m" doc:"m above ground; top of the surface-based inversion"`
 	SBITopPressHPa   float64 `col:"sbi_top_pressure_hpa" doc:"hPa; pressure at the top of the surface-based inversion"`
 	SBIStrengthK     float64 `col:"sbi_strength_k" doc:"K; temperature at the inversion top minus temperature at its base"`
+	SBIGradient      float64 `col:"sbi_gradient_k_per_km" doc:"K/km; mean temperature gradient through the surface-based inversion"`
+	SBIClass         string  `col:"sbi_class" doc:"class of the surface-based inversion (radiation, subsidence, frontal, capping, unclassified)"`
+	InversionCount   int32   `col:"inversion_count" doc:"count; inversion layers below the search ceiling (see the inversions table)"`
+	EIBaseAGLM       float64 `col:"ei_base_agl_m" doc:"m above ground; base of the lowest elevated inversion"`
+	EITopAGLM        float64 `col:"ei_top_agl_m" doc:"m above ground; top of the lowest elevated inversion"`
+	EIStrengthK      float64 `col:"ei_strength_k" doc:"K; temperature rise through the lowest elevated inversion"`
+	EIClass          string  `col:"ei_class" doc:"class of the lowest elevated inversion (subsidence, frontal, capping, unclassified)"`
 	MixedBaseAGLM    float64 `col:"mixed_layer_base_agl_m" doc:"m above ground; bottom of the lowest well-mixed layer (the surface, or the top of the surface-based inversion)"`
 	MixedTopAGLM     float64 `col:"mixed_layer_top_agl_m" doc:"m above ground; top of the lowest well-mixed layer"`
 	MixedThetaK      float64 `col:"mixed_layer_theta_k" doc:"K; pressure-weighted (mass-weighted) mean potential temperature of the mixed layer"`
@@ -59,6 +74,94 @@ type SoundingRow struct {
 	MixedLevels      int32   `col:"mixed_layer_levels" doc:"count; sounding levels inside the mixed layer (0 when none was found)"`
 	ParcelMHM        float64 `col:"mixing_height_parcel_m" doc:"m above ground; mixing height by the parcel method from the sounding's own surface temperature (0 when status is surface, null when undefined)"`
 	ParcelMHStatus   string  `col:"mixing_height_parcel_status" doc:"ok, surface (parcel stable from the ground up) or undefined (no crossing below the ceiling, or not analysable)"`
+	ConsensusMHM     float64 `col:"mixing_height_consensus_m" doc:"m above ground; median of the methods whose status is ok (see the mixing_heights table for each method)"`
+	ConsensusStatus  string  `col:"mixing_height_consensus_status" doc:"ok, surface or undefined"`
+	ConsensusSpreadM float64 `col:"mixing_height_spread_m" doc:"m; highest minus lowest of the methods whose status is ok"`
+	ConsensusMethods int32   `col:"mixing_height_methods_ok" doc:"count; methods in the consensus whose status is ok"`
+	Unresolved       bool    `col:"mixing_height_unresolved" doc:"true when the sounding's level spacing around the consensus height is too coarse to resolve it"`
+	LiuLiangRegime   string  `col:"liu_liang_regime" doc:"boundary-layer regime by Liu and Liang (2010): CBL, NRL or SBL"`
+	TransportWindMS  float64 `col:"transport_wind_ms" doc:"m/s; mean wind from the ground to the mixing height used for ventilation"`
+	TransportWindDef string  `col:"transport_wind_method" doc:"averaging used for transport_wind_ms"`
+	VentilationM2S   float64 `col:"ventilation_index_m2s" doc:"m2/s; mixing height times transport wind"`
+	VentilationKtFt  float64 `col:"ventilation_index_ktft" doc:"kt*ft; ventilation index in knot-feet (1 m2/s = 6.37744 kt*ft)"`
+	VentilationCat   string  `col:"ventilation_category" doc:"category of ventilation_index_m2s in the table named by ventilation_table"`
+	VentilationTable string  `col:"ventilation_table" doc:"name of the category table used"`
+	VentilationMH    string  `col:"ventilation_height_method" doc:"mixing-height method whose height feeds the ventilation index"`
+}
+
+// InversionRow is one row of the `inversions` table: one inversion layer of
+// one sounding, lowest first.
+type InversionRow struct {
+	StationID      string    `col:"station_id" doc:"station identifier"`
+	LaunchTime     time.Time `col:"launch_time" doc:"UTC; launch time of the sounding"`
+	Year           int32     `col:"year" doc:"calendar year of the sounding's nominal time"`
+	Index          int32     `col:"inversion_index" doc:"0-based position, lowest first"`
+	SurfaceBased   bool      `col:"surface_based" doc:"true when the base is the surface level"`
+	BaseAGLM       float64   `col:"base_agl_m" doc:"m above ground"`
+	TopAGLM        float64   `col:"top_agl_m" doc:"m above ground"`
+	BasePressHPa   float64   `col:"base_pressure_hpa" doc:"hPa"`
+	TopPressHPa    float64   `col:"top_pressure_hpa" doc:"hPa"`
+	DepthM         float64   `col:"depth_m" doc:"m; top minus base"`
+	StrengthK      float64   `col:"strength_k" doc:"K; temperature at the top minus temperature at the base"`
+	GradientKPerKm float64   `col:"gradient_k_per_km" doc:"K/km; strength over depth"`
+	ThetaDeltaK    float64   `col:"theta_change_k" doc:"K; potential temperature at the top minus at the base"`
+	DPDDeltaK      float64   `col:"dewpoint_depression_change_k" doc:"K; dewpoint depression at the top minus at the base (positive: drier upward)"`
+	RHDeltaPct     float64   `col:"relative_humidity_change_pct" doc:"% points; relative humidity at the top minus at the base"`
+	WDeltaGKg      float64   `col:"mixing_ratio_change_gkg" doc:"g/kg; mixing ratio at the top minus at the base"`
+	TurningDeg     float64   `col:"wind_turning_deg" doc:"degrees; change of wind direction from base to top, veering (clockwise) positive"`
+	Levels         int32     `col:"levels" doc:"count; sounding levels from base to top inclusive"`
+	TopAtCeiling   bool      `col:"top_at_ceiling" doc:"true when the top is the highest level searched, so the layer may continue above"`
+	Class          string    `col:"class" doc:"radiation, subsidence, frontal, capping or unclassified (documented rules, analyze.InversionClassConfig)"`
+}
+
+// MixedLayerRow is one row of the `mixed_layers` table: one well-mixed layer
+// of one sounding, lowest first.
+type MixedLayerRow struct {
+	StationID   string    `col:"station_id" doc:"station identifier"`
+	LaunchTime  time.Time `col:"launch_time" doc:"UTC; launch time of the sounding"`
+	Year        int32     `col:"year" doc:"calendar year of the sounding's nominal time"`
+	Index       int32     `col:"layer_index" doc:"0-based position, lowest first"`
+	BaseAGLM    float64   `col:"base_agl_m" doc:"m above ground"`
+	TopAGLM     float64   `col:"top_agl_m" doc:"m above ground"`
+	BasePress   float64   `col:"base_pressure_hpa" doc:"hPa"`
+	TopPress    float64   `col:"top_pressure_hpa" doc:"hPa"`
+	ThetaK      float64   `col:"theta_k" doc:"K; pressure-weighted (mass-weighted) mean potential temperature"`
+	MixingRatio float64   `col:"mixing_ratio_gkg" doc:"g/kg; pressure-weighted (mass-weighted) mean mixing ratio"`
+	ThetaRange  float64   `col:"theta_range_k" doc:"K; highest minus lowest potential temperature in the layer"`
+	ThetaVRange float64   `col:"theta_v_range_k" doc:"K; highest minus lowest virtual potential temperature in the layer"`
+	WRange      float64   `col:"mixing_ratio_range_gkg" doc:"g/kg; highest minus lowest mixing ratio in the layer"`
+	Levels      int32     `col:"levels" doc:"count; sounding levels in the layer"`
+	SuperadTop  float64   `col:"superadiabatic_top_agl_m" doc:"m above ground; top of a near-surface superadiabatic layer allowed at the bottom of the layer (null when none)"`
+}
+
+// MixingHeightRow is one row of the `mixing_heights` table: one method's
+// mixing height for one sounding. Every sounding has one row per method,
+// whatever the status, so failures are counted, not hidden.
+type MixingHeightRow struct {
+	StationID     string    `col:"station_id" doc:"station identifier"`
+	LaunchTime    time.Time `col:"launch_time" doc:"UTC; launch time of the sounding"`
+	Year          int32     `col:"year" doc:"calendar year of the sounding's nominal time"`
+	Method        string    `col:"method" doc:"parcel, parcel_virtual, heffter, bulk_richardson (critical 0.25), bulk_richardson_alt (critical 0.5), liu_liang, sbi_top, elevated_inversion_base"`
+	HeightAGLM    float64   `col:"height_agl_m" doc:"m above ground; 0 for status surface, null for undefined"`
+	Status        string    `col:"status" doc:"ok, surface or undefined"`
+	Note          string    `col:"note" doc:"short reason for undefined results or detail of an ok one"`
+	LevelSpacingM float64   `col:"level_spacing_m" doc:"m; spacing of the sounding's levels around the height"`
+	Unresolved    bool      `col:"unresolved" doc:"true when the level spacing is too coarse to resolve the height"`
+}
+
+// AfternoonRow is one row of the `afternoon_mixing` table: the afternoon
+// mixing height of one local day by the Holzworth construction (the
+// morning sounding's profile and the day's maximum temperature).
+type AfternoonRow struct {
+	StationID     string    `col:"station_id" doc:"station identifier"`
+	Year          int32     `col:"year" doc:"calendar year of the morning sounding's nominal time"`
+	LocalDate     time.Time `col:"local_date" doc:"local solar date (midnight UTC of that date)"`
+	MorningLaunch time.Time `col:"morning_launch_time" doc:"UTC; launch time of the morning sounding"`
+	TmaxC         float64   `col:"tmax_c" doc:"degC; maximum surface temperature of the day"`
+	TmaxSource    string    `col:"tmax_source" doc:"daily_maxima (user file) or afternoon_sounding (surface temperature of the same day's afternoon sounding)"`
+	HeightAGLM    float64   `col:"height_agl_m" doc:"m above ground; afternoon mixing height"`
+	Status        string    `col:"status" doc:"ok, surface or undefined"`
+	Note          string    `col:"note" doc:"reason when undefined"`
 }
 
 // LevelRow is one row of the `levels` table: one level of one sounding with

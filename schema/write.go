@@ -21,8 +21,12 @@ import (
 
 // Table names and partitioning of the store.
 const (
-	TableSoundings = "soundings" // rows of SoundingRow
-	TableLevels    = "levels"    // rows of LevelRow
+	TableSoundings     = "soundings"        // rows of SoundingRow
+	TableLevels        = "levels"           // rows of LevelRow
+	TableInversions    = "inversions"       // rows of InversionRow
+	TableMixedLayers   = "mixed_layers"     // rows of MixedLayerRow
+	TableMixingHeights = "mixing_heights"   // rows of MixingHeightRow
+	TableAfternoon     = "afternoon_mixing" // rows of AfternoonRow
 
 	StationColumn  = "station_id" // column that selects the station partition
 	YearColumn     = "year"       // column that selects the year partition
@@ -31,7 +35,7 @@ const (
 	PartFile       = "part-0.parquet"
 	batchRows      = 64 * 1024  // rows per Arrow record batch
 	rowGroupRows   = 128 * 1024 // rows per Parquet row group
-	tempFilePrefix = ".part-0.parquet.tmp-"
+	tempFilePrefix = ".part.parquet.tmp-"
 )
 
 var (
@@ -84,7 +88,7 @@ func WriteTable[T any](storeDir, table string, rows []T) (files []string, err er
 	for _, p := range parts {
 		dir := filepath.Join(storeDir, table,
 			StationKey+"="+p.station, YearKey+"="+strconv.FormatInt(p.year, 10))
-		path, err := writePartition(dir, sc, cols, rows, p.rows)
+		path, err := writePartition(dir, PartFile, sc, cols, rows, p.rows)
 		if err != nil {
 			return files, fmt.Errorf("schema: table %s: %w", table, err)
 		}
@@ -136,9 +140,33 @@ func partitions[T any](cols []Column, rows []T) ([]*partition, error) {
 	return parts, nil
 }
 
-// writePartition writes rows[idx...] to dir/part-0.parquet through a
-// temporary file and returns the final path.
-func writePartition[T any](dir string, sc *arrow.Schema, cols []Column, rows []T, idx []int) (path string, err error) {
+// WriteFile writes rows as one Parquet file of table at path (for example
+// store/table/station=ID/year=YYYY/part-<hash>.parquet), with the same
+// encoding, metadata and crash safety as WriteTable: the file is written
+// under a temporary name in its directory, synced and renamed into place.
+// The caller chooses the partition and is responsible for the rows
+// belonging to it. Zero rows write a valid empty file.
+func WriteFile[T any](path, table string, rows []T) error {
+	cols, err := Columns[T]()
+	if err != nil {
+		return err
+	}
+	if !tableName.MatchString(table) {
+		return fmt.Errorf("schema: table name %q is not a lower-case identifier", table)
+	}
+	idx := make([]int, len(rows))
+	for i := range idx {
+		idx[i] = i
+	}
+	if _, err := writePartition(filepath.Dir(path), filepath.Base(path), arrowSchema(table, cols), cols, rows, idx); err != nil {
+		return fmt.Errorf("schema: table %s: %w", table, err)
+	}
+	return nil
+}
+
+// writePartition writes rows[idx...] to dir/name through a temporary file
+// and returns the final path.
+func writePartition[T any](dir, name string, sc *arrow.Schema, cols []Column, rows []T, idx []int) (path string, err error) {
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return "", err
 	}
@@ -165,7 +193,7 @@ func writePartition[T any](dir string, sc *arrow.Schema, cols []Column, rows []T
 	if err := tmp.Close(); err != nil {
 		return "", fmt.Errorf("close %s: %w", tmp.Name(), err)
 	}
-	path = filepath.Join(dir, PartFile)
+	path = filepath.Join(dir, name)
 	if err := os.Rename(tmp.Name(), path); err != nil {
 		return "", err
 	}

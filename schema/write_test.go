@@ -6,6 +6,7 @@ import (
 	"os"
 	"path/filepath"
 	"slices"
+	"strconv"
 	"strings"
 	"testing"
 	"time"
@@ -187,8 +188,8 @@ func TestWriteTableMetadata(t *testing.T) {
 	}
 	defer r.Close()
 	kv := r.MetaData().KeyValueMetadata()
-	if v := kv.FindValue(VersionKey); v == nil || *v != "1" {
-		t.Errorf("%s = %v, want 1", VersionKey, v)
+	if v := kv.FindValue(VersionKey); v == nil || *v != strconv.Itoa(Version) {
+		t.Errorf("%s = %v, want %d", VersionKey, v, Version)
 	}
 	if v := kv.FindValue(TableKey); v == nil || *v != "things" {
 		t.Errorf("%s = %v, want things", TableKey, v)

@@ -2,6 +2,7 @@ package main
 
 import (
 	"context"
+	"encoding/json"
 	"fmt"
 	"log/slog"
 	"os"
@@ -12,6 +13,7 @@ import (
 
 	"github.com/sondeclim/sondeclim/cmd/sondeclim/internal/pipeline"
 	"github.com/sondeclim/sondeclim/ingest/archivev2"
+	"github.com/sondeclim/sondeclim/schema/store"
 )
 
 // ingestCmd reads sounding files into a store.
@@ -33,20 +35,39 @@ Input that cannot be read is reported on stderr as file:line: reason, and
 the rest of the file and the other files still go through. The exit code is
 3 when anything was skipped.
 
-Partitions written replace earlier ones of the same station and year.`,
+Ingestion is incremental and safe to run from a scheduler: inputs with the
+same size and modification time as at the last run are not read again; a
+changed or grown file rebuilds only the station-years it touches; a
+sounding's identity is its station and launch time, so corrections and
+overlapping files replace soundings, never double them. Each station-year
+is written under a new file name and the store's manifest is committed
+last, so a run killed at any moment leaves the store as it was, and
+queries running meanwhile see a consistent store. A second ingest into the
+same store is refused (or waits, with --wait).
+
+Exit codes: 0 done; 1 could not run; 2 usage error; 3 done, some input
+skipped.`,
 		`  sondeclim ingest --store ./store USM00072403-data.txt.zip
   sondeclim ingest --store ./store --workers 2 archive/
-  sondeclim ingest --store ./store --stations igra2-station-list.txt 'data/*-data.txt.gz'`,
+  sondeclim ingest --store ./store --stations igra2-station-list.txt 'data/*-data.txt.gz'
+  # nightly, from cron: only new work is done
+  sondeclim ingest --quiet --summary-json /var/log/sondeclim/last.json --store /data/store /data/archive/
+  # machine 3 of 8 writing its share of one shared store
+  sondeclim ingest --shard 3/8 --store /shared/store /shared/archive/`,
 		c.stderr)
-	store := fs.String("store", "", "store `directory` to write (created if absent)")
+	storeDir := fs.String("store", "", "store `directory` to write (created if absent)")
 	workers := fs.Int("workers", runtime.NumCPU(), "soundings analysed at once (results do not depend on it)")
 	format := fs.String("format", "", "force the input `format` instead of detecting it ("+strings.Join(pipeline.FormatNames(), ", ")+")")
 	stations := fs.String("stations", "", "station list `file` (archive-v2 layout) for names, positions and elevations")
 	quiet := fs.Bool("quiet", false, "print only warnings and the summary's last line (for schedulers)")
+	full := fs.Bool("full", false, "ignore what was ingested before and rebuild every partition from the inputs given")
+	wait := fs.Bool("wait", false, "wait for another ingest into the same store to finish instead of failing")
+	shard := fs.String("shard", "", "write only the stations of shard `K/N` (stations are assigned by a hash of their id)")
+	summaryJSON := fs.String("summary-json", "", "write a machine-readable summary of the run to `file`")
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
-	if *store == "" {
+	if *storeDir == "" {
 		return fmt.Errorf("ingest: --store is required: %w", errUsage)
 	}
 	if fs.NArg() == 0 {
@@ -60,7 +81,14 @@ Partitions written replace earlier ones of the same station and year.`,
 		level = slog.LevelWarn
 	}
 	log := slog.New(slog.NewTextHandler(c.stderr, &slog.HandlerOptions{Level: level}))
-	opt := pipeline.Options{Workers: *workers, Format: *format, Log: log}
+	sh, err := store.ParseShard(*shard)
+	if err != nil {
+		return fmt.Errorf("ingest: %v: %w", err, errUsage)
+	}
+	opt := pipeline.Options{Workers: *workers, Format: *format, Log: log, Shard: sh, Full: *full, Wait: *wait}
+	if !*quiet && isTerminal(c.stderr) {
+		opt.Progress = progressBar(c.stderr)
+	}
 	if *stations != "" {
 		m, err := loadStations(*stations, log)
 		if err != nil {
@@ -68,11 +96,19 @@ Partitions written replace earlier ones of the same station and year.`,
 		}
 		opt.Stations = m
 	}
-	sum, err := pipeline.Run(ctx, *store, fs.Args(), opt)
+	sum, err := pipeline.Run(ctx, *storeDir, fs.Args(), opt)
 	if err != nil {
+		if *summaryJSON != "" {
+			writeSummaryJSON(*summaryJSON, nil, err)
+		}
 		return fmt.Errorf("ingest: %w", err)
 	}
-	printSummary(c, sum, *store, *quiet)
+	printSummary(c, sum, *storeDir, *quiet)
+	if *summaryJSON != "" {
+		if err := writeSummaryJSON(*summaryJSON, sum, nil); err != nil {
+			return fmt.Errorf("ingest: %w", err)
+		}
+	}
 	if len(sum.Skipped) > 0 {
 		return errSkipped
 	}
@@ -84,23 +120,65 @@ func printSummary(c *ingestCmd, s *pipeline.Summary, store string, quiet bool) {
 	skipped := len(s.Skipped)
 	if !quiet {
 		tw := tabwriter.NewWriter(c.stderr, 0, 4, 2, ' ', 0)
-		fmt.Fprintf(tw, "input files\t%d\n", len(s.Inputs))
-		fmt.Fprintf(tw, "files and archive members read\t%d\n", s.Members)
-		fmt.Fprintf(tw, "soundings written\t%d\n", s.Soundings)
-		fmt.Fprintf(tw, "levels written\t%d\n", s.Rows["levels"])
-		for _, k := range sortedKeys(s.NotAnalysable) {
-			fmt.Fprintf(tw, "  not analysable: %s\t%d\n", k, s.NotAnalysable[k])
+		row := func(k string, v any) { fmt.Fprintf(tw, "%s\t%v\n", k, v) }
+		row("input files", len(s.Inputs))
+		row("  unchanged since the last run", s.InputsUnchanged)
+		row("  read (files and archive members)", fmt.Sprintf("%d (%d)", s.InputsRead, s.Members))
+		if s.StationLists > 0 {
+			row("  station lists", s.StationLists)
 		}
-		fmt.Fprintf(tw, "input items skipped\t%d\n", skipped)
+		row("soundings decoded", s.SoundingsRead)
+		if s.OtherShards > 0 {
+			row("  belonging to other shards", s.OtherShards)
+		}
+		row("  duplicates merged (same station and launch time)", s.DuplicatesMerged)
+		row("soundings new / replaced / unchanged / removed",
+			fmt.Sprintf("%d / %d / %d / %d", s.SoundingsNew, s.SoundingsReplaced, s.SoundingsUnchanged, s.SoundingsRemoved))
+		for _, k := range sortedKeys(s.NotAnalysable) {
+			row("  written but not analysable: "+k, s.NotAnalysable[k])
+		}
+		row("partitions written / unchanged", fmt.Sprintf("%d / %d", s.PartitionsWritten, s.PartitionsUnchanged))
+		if s.PartitionsDropped > 0 {
+			row("partitions dropped (--full)", s.PartitionsDropped)
+		}
+		row("levels written", s.Rows["levels"])
+		row("input items skipped", skipped)
 		by := s.SkippedByReason()
 		for _, k := range sortedKeys(by) {
-			fmt.Fprintf(tw, "  skipped: %s\t%d\n", k, by[k])
+			row("  skipped: "+k, by[k])
 		}
-		fmt.Fprintf(tw, "store\t%s\n", store)
-		fmt.Fprintf(tw, "elapsed\t%.1f s\n", s.Elapsed.Seconds())
+		if len(s.Notes) > 0 {
+			row("notes on input", len(s.Notes))
+		}
+		row("soundings in the store", s.Soundings)
+		row("store", store)
+		row("elapsed", fmt.Sprintf("%.1f s", s.Elapsed.Seconds()))
 		tw.Flush()
 	}
-	fmt.Fprintf(c.stderr, "ingest: %d soundings written, %d input items skipped\n", s.Soundings, skipped)
+	fmt.Fprintf(c.stderr, "ingest: %d soundings new, %d replaced; %d in the store; %d input items skipped\n",
+		s.SoundingsNew, s.SoundingsReplaced, s.Soundings, skipped)
+}
+
+// writeSummaryJSON writes the run summary (or the error that stopped the
+// run) for schedulers and monitoring.
+func writeSummaryJSON(path string, s *pipeline.Summary, runErr error) error {
+	v := struct {
+		OK       bool              `json:"ok"`
+		ExitCode int               `json:"exit_code"`
+		Error    string            `json:"error,omitempty"`
+		Summary  *pipeline.Summary `json:"summary,omitempty"`
+	}{OK: runErr == nil, Summary: s}
+	switch {
+	case runErr != nil:
+		v.ExitCode, v.Error = exitFailure, runErr.Error()
+	case len(s.Skipped) > 0:
+		v.ExitCode = exitSkipped
+	}
+	b, err := json.MarshalIndent(v, "", "  ")
+	if err != nil {
+		return err
+	}
+	return os.WriteFile(path, append(b, '\n'), 0o644)
 }
 
 func sortedKeys(m map[string]int) []string {

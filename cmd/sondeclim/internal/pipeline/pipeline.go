@@ -1,41 +1,48 @@
-// Package pipeline runs one ingestion: it expands the input paths, streams
-// every file (and every member of a compressed archive) through the reader
-// for its format, analyses each sounding on a bounded pool of workers, and
-// writes the store's tables.
+// Package pipeline runs one ingestion into a store: it expands the input
+// paths, decides which inputs changed since the store's last commit, reads
+// those (every file and every member of a compressed archive, through the
+// reader for its format) into a staging area on disk, and then rebuilds
+// each affected station-year: duplicates are resolved, every sounding is
+// analysed, and the partition's Parquet files are written under new names.
+// The store's manifest is committed last.
 //
-// Results do not depend on the number of workers or on the order of the
-// inputs: rows are sorted by station, launch time and source position
-// before they are written.
+// Results do not depend on the number of workers, on the order of the
+// inputs, or on which earlier runs built the store: a partition's content
+// is a function of its deduplicated soundings and the analysis parameters.
 package pipeline
 
 import (
-	"bufio"
 	"context"
-	"errors"
+	"crypto/sha256"
+	"encoding/hex"
+	"encoding/json"
 	"fmt"
-	"io"
 	"log/slog"
+	"math"
+	"os"
+	"path/filepath"
 	"runtime"
 	"sort"
 	"sync"
 	"time"
 
-	"golang.org/x/sync/errgroup"
-
 	"github.com/sondeclim/sondeclim/analyze"
-	"github.com/sondeclim/sondeclim/ingest"
 	"github.com/sondeclim/sondeclim/ingest/input"
-	"github.com/sondeclim/sondeclim/ingest/sounding"
-	"github.com/sondeclim/sondeclim/schema"
+	"github.com/sondeclim/sondeclim/schema/store"
 )
 
-// Options configures a run. The zero value is usable: it means one worker
-// per CPU, the default analysis configuration and no logging.
+// DerivationVersion names the version of the derivation code. Bump it when
+// a change alters what is written for the same input, so that existing
+// stores re-derive their partitions on the next run.
+const DerivationVersion = 1
+
+// Options configures a run. The zero value is usable: one worker per CPU,
+// the default analysis configuration, no logging, incremental, unsharded.
 type Options struct {
-	// Workers bounds the number of soundings analysed at once (and of files
-	// read at once). 0 means runtime.NumCPU().
+	// Workers bounds the files read at once and the partitions built at
+	// once. 0 means runtime.NumCPU().
 	Workers int
-	// Analysis is the analysis configuration; a zero value means
+	// Analysis is the analysis configuration; nil means
 	// analyze.DefaultConfig().
 	Analysis *analyze.Config
 	// Format forces a reader ("archive-v2", …) instead of detecting the
@@ -47,9 +54,23 @@ type Options struct {
 	// Stations supplies station metadata (name, position, elevation) by
 	// station id, for formats that do not carry it. May be nil.
 	Stations map[string]StationInfo
+	// Shard restricts the run to the stations one shard owns.
+	Shard store.Shard
+	// Full ignores the manifest and rebuilds every partition the inputs
+	// touch; partitions of this shard that no input touches are dropped.
+	Full bool
+	// Wait waits for another writer's lock instead of failing.
+	Wait bool
+	// DailyMaxima supplies daily maximum temperatures for the afternoon
+	// (Holzworth) mixing height; nil uses the afternoon soundings' surface
+	// temperatures only.
+	DailyMaxima analyze.DailyMaxima
 	// Log receives progress (Info) and skipped input (Warn). Nil discards.
 	Log *slog.Logger
-	// ProgressEvery is the interval between progress messages; 0 means 5 s.
+	// Progress, when set, is called with the partitions done and the total
+	// while partitions are built (for a progress bar).
+	Progress func(done, total int)
+	// ProgressEvery is the interval between progress log messages; 0 means 5 s.
 	ProgressEvery time.Duration
 }
 
@@ -60,24 +81,45 @@ type StationInfo struct {
 	ElevationM                float64 // m above mean sea level, NaN if unknown
 }
 
-// Skip is one item of input that was not ingested, with its position.
+// Skip is one item of input that was not ingested, or a remark about input
+// that was, with its position.
 type Skip struct {
-	Where  string // file[!member][:line]
-	Reason string // short snake_case reason, used for counting
-	Detail string // the full message
+	Where  string `json:"where"`  // file[!member][:line]
+	Reason string `json:"reason"` // short snake_case reason, used for counting
+	Detail string `json:"detail"` // the full message
 }
 
-// Summary reports what a run did.
+// Summary reports what a run did. Counts are for the run's shard.
 type Summary struct {
-	Inputs        []string       // files after expansion, sorted
-	Members       int            // files and archive members read
-	Soundings     int            // soundings decoded and written
-	NotAnalysable map[string]int // soundings written but not analysable, by reason
-	Skipped       []Skip         // input that could not be read, in a deterministic order
-	Notes         []Skip         // input read but worth a remark (e.g. a flight that ends early)
-	Rows          map[string]int // rows written per table
-	Files         []string       // Parquet files written
-	Elapsed       time.Duration
+	Inputs          []string `json:"inputs"`           // files after expansion, sorted
+	InputsUnchanged int      `json:"inputs_unchanged"` // skipped: same size and time as at the last commit
+	InputsRead      int      `json:"inputs_read"`      // read this run (new or changed, or needed to rebuild a partition)
+	Members         int      `json:"members_read"`     // files and archive members read
+	StationLists    int      `json:"station_lists"`    // inputs used as station metadata
+
+	SoundingsRead    int `json:"soundings_read"`         // decoded from the inputs read
+	OtherShards      int `json:"soundings_other_shards"` // decoded but owned by another shard
+	DuplicatesMerged int `json:"duplicates_merged"`      // copies of the same station and launch time, one kept
+
+	SoundingsNew       int `json:"soundings_new"`       // not in the store before
+	SoundingsReplaced  int `json:"soundings_replaced"`  // same identity, different content
+	SoundingsUnchanged int `json:"soundings_unchanged"` // rewritten partitions: same identity and content
+	SoundingsRemoved   int `json:"soundings_removed"`   // in the store before, absent from the rebuilt partition
+
+	PartitionsWritten   int `json:"partitions_written"`
+	PartitionsUnchanged int `json:"partitions_unchanged"` // affected but identical; not rewritten
+	PartitionsDropped   int `json:"partitions_dropped"`   // --full: no input touches them any more
+
+	Soundings     int            `json:"soundings_in_store"`     // after the commit
+	NotAnalysable map[string]int `json:"not_analysable_written"` // among soundings written this run, by reason
+	Skipped       []Skip         `json:"skipped"`                // input that could not be read
+	Notes         []Skip         `json:"notes"`                  // input read but worth a remark
+	Rows          map[string]int `json:"rows_written"`           // rows written per table
+	Files         []string       `json:"files_written"`          // Parquet files written, relative to the store
+	Removed       []string       `json:"stray_files_removed"`    // left by earlier runs, removed
+	Committed     bool           `json:"committed"`              // a new manifest was committed
+	ElapsedS      float64        `json:"elapsed_s"`
+	Elapsed       time.Duration  `json:"-"`
 }
 
 // SkippedByReason counts Skipped by reason.
@@ -89,288 +131,132 @@ func (s *Summary) SkippedByReason() map[string]int {
 	return m
 }
 
-type result struct {
-	seq      int // global order key for ties: file index, then position
-	sounding schema.SoundingRow
-	levels   []schema.LevelRow
-	status   string
+// run holds the state of one ingestion.
+type run struct {
+	ctx     context.Context
+	dir     string
+	opt     Options
+	cfg     analyze.Config
+	params  string
+	log     *slog.Logger
+	workers int
+	sum     *Summary
+	staging string
+
+	mu sync.Mutex // guards sum.Skipped, sum.Notes, sum.Members
+}
+
+func (r *run) skip(s Skip) {
+	r.mu.Lock()
+	r.sum.Skipped = append(r.sum.Skipped, s)
+	r.mu.Unlock()
+	r.log.Warn("skipped input", "where", s.Where, "reason", s.Reason, "detail", s.Detail)
+}
+
+func (r *run) note(s Skip) {
+	r.mu.Lock()
+	r.sum.Notes = append(r.sum.Notes, s)
+	r.mu.Unlock()
+	r.log.Info("note on input", "where", s.Where, "reason", s.Reason, "detail", s.Detail)
 }
 
 // Run ingests paths into the store at storeDir and returns a summary. It
 // returns an error only when the run could not be carried out (bad paths,
-// an unwritable store); unreadable input is reported in Summary.Skipped.
+// a locked or incompatible store, an unwritable directory); unreadable
+// input is reported in Summary.Skipped and does not stop the run.
 func Run(ctx context.Context, storeDir string, paths []string, opt Options) (*Summary, error) {
 	start := time.Now()
 	files, err := input.Expand(paths)
 	if err != nil {
 		return nil, err
 	}
-	workers := opt.Workers
-	if workers <= 0 {
-		workers = runtime.NumCPU()
+	r := &run{ctx: ctx, dir: storeDir, opt: opt, workers: opt.Workers,
+		sum: &Summary{Inputs: files, NotAnalysable: map[string]int{}, Rows: map[string]int{}}}
+	if r.workers <= 0 {
+		r.workers = runtime.NumCPU()
 	}
-	cfg := analyze.DefaultConfig()
+	r.cfg = analyze.DefaultConfig()
 	if opt.Analysis != nil {
-		cfg = *opt.Analysis
+		r.cfg = *opt.Analysis
 	}
-	log := opt.Log
-	if log == nil {
-		log = slog.New(slog.DiscardHandler)
+	r.log = opt.Log
+	if r.log == nil {
+		r.log = slog.New(slog.DiscardHandler)
 	}
-	every := opt.ProgressEvery
-	if every <= 0 {
-		every = 5 * time.Second
+	paramsText, err := json.Marshal(struct {
+		Store, Derivation int
+		Analysis          analyze.Config
+		DailyMaxima       string
+	}{store.Version, DerivationVersion, r.cfg, maximaDigest(opt.DailyMaxima)})
+	if err != nil {
+		return nil, fmt.Errorf("encode parameters: %w", err)
 	}
+	h := sha256.Sum256(paramsText)
+	r.params = hex.EncodeToString(h[:8])
 
-	sum := &Summary{Inputs: files, NotAnalysable: map[string]int{}, Rows: map[string]int{}}
-	type job struct {
-		s   *sounding.Sounding
-		seq int
+	if err := os.MkdirAll(storeDir, 0o755); err != nil {
+		return nil, err
 	}
-	jobs := make(chan job, 4*workers)
-	results := make(chan result, 4*workers)
+	lock, err := store.Acquire(storeDir, opt.Shard, opt.Wait)
+	if err != nil {
+		return nil, err
+	}
+	defer lock.Release()
 
-	var mu sync.Mutex // guards sum.Skipped and sum.Members
-	skip := func(s Skip) {
-		mu.Lock()
-		sum.Skipped = append(sum.Skipped, s)
-		mu.Unlock()
-		log.Warn("skipped input", "where", s.Where, "reason", s.Reason, "detail", s.Detail)
+	old, err := store.ReadManifest(storeDir, opt.Shard)
+	if err != nil {
+		return nil, err
 	}
-	note := func(s Skip) {
-		mu.Lock()
-		sum.Notes = append(sum.Notes, s)
-		mu.Unlock()
-		log.Info("note on input", "where", s.Where, "reason", s.Reason, "detail", s.Detail)
+	if old == nil {
+		if err := store.CheckUnmanaged(storeDir); err != nil {
+			return nil, err
+		}
+		old = store.NewManifest(opt.Shard, r.params, string(paramsText))
+		// Commit the empty state first: from now on readers go by the
+		// manifest, so files of a first run that is killed stay invisible.
+		if err := store.Commit(storeDir, opt.Shard, old); err != nil {
+			return nil, err
+		}
+	}
+	if removed, err := store.Clean(storeDir, opt.Shard, old); err != nil {
+		return nil, err
+	} else {
+		r.sum.Removed = removed
+		if len(removed) > 0 {
+			r.log.Info("removed files no commit references", "files", len(removed))
+		}
+	}
+	full := opt.Full || old.Params != r.params
+	if !opt.Full && full && len(old.Partitions) > 0 {
+		r.log.Info("analysis parameters or derivation version changed since the last commit: rebuilding every partition the inputs touch")
 	}
 
 	// Station lists given among the inputs supply metadata, not soundings.
-	files, opt.Stations = takeStationLists(files, opt.SizeLimit, opt.Stations, skip)
-	if n := len(sum.Inputs) - len(files); n > 0 {
-		log.Info("station lists read", "files", n, "stations", len(opt.Stations))
-	}
+	files, r.opt.Stations = takeStationLists(files, opt.SizeLimit, opt.Stations, r.skip)
+	r.sum.StationLists = len(r.sum.Inputs) - len(files)
 
-	g, gctx := errgroup.WithContext(ctx)
-	// Readers: one goroutine per file at a time, at most `workers` files at
-	// once. Each sounding gets a sequence key from its file's index and its
-	// position in the file, so ties sort the same however files interleave.
-	readers, rctx := errgroup.WithContext(gctx)
-	readers.SetLimit(workers)
-	g.Go(func() error {
-		defer close(jobs)
-		for fi, path := range files {
-			readers.Go(func() error {
-				pos := 0
-				err := input.Each(path, opt.SizeLimit, func(member string, r io.Reader) error {
-					mu.Lock()
-					sum.Members++
-					mu.Unlock()
-					return readMember(rctx, path, member, r, opt, note, func(s *sounding.Sounding) error {
-						pos++
-						select {
-						case jobs <- job{s, fi<<32 | pos}:
-							return nil
-						case <-rctx.Done():
-							return rctx.Err()
-						}
-					}, skip)
-				})
-				if err != nil {
-					if rctx.Err() != nil {
-						return rctx.Err()
-					}
-					skip(Skip{Where: path, Reason: reasonOf(err), Detail: err.Error()})
-				}
-				return nil
-			})
-		}
-		return readers.Wait()
-	})
-
-	// Analysis workers.
-	var wg sync.WaitGroup
-	for range workers {
-		wg.Add(1)
-		g.Go(func() error {
-			defer wg.Done()
-			for j := range jobs {
-				res := analyzeOne(j.s, cfg, opt.Stations)
-				res.seq = j.seq
-				select {
-				case results <- res:
-				case <-gctx.Done():
-					return gctx.Err()
-				}
-			}
-			return nil
-		})
-	}
-	go func() { wg.Wait(); close(results) }()
-
-	// Collector.
-	var all []result
-	tick := time.NewTicker(every)
-	defer tick.Stop()
-collect:
-	for {
-		select {
-		case r, ok := <-results:
-			if !ok {
-				break collect
-			}
-			all = append(all, r)
-		case <-tick.C:
-			mu.Lock()
-			log.Info("progress", "soundings", len(all), "members_read", sum.Members, "skipped", len(sum.Skipped))
-			mu.Unlock()
-		}
-	}
-	if err := g.Wait(); err != nil {
+	r.staging = filepath.Join(storeDir, store.MetaDir, "staging-"+opt.Shard.Name())
+	if err := os.RemoveAll(r.staging); err != nil {
 		return nil, err
 	}
-
-	sortResults(all)
-	sortSkips(sum.Skipped)
-	sortSkips(sum.Notes)
-	srows := make([]schema.SoundingRow, len(all))
-	var lrows []schema.LevelRow
-	for i, r := range all {
-		srows[i] = r.sounding
-		lrows = append(lrows, r.levels...)
-		if r.status != analyze.StatusOK {
-			sum.NotAnalysable[r.status]++
-		}
+	if err := os.MkdirAll(r.staging, 0o755); err != nil {
+		return nil, err
 	}
-	sum.Soundings = len(all)
-	log.Info("writing store", "dir", storeDir, "soundings", len(srows), "levels", len(lrows))
-	f1, err := schema.WriteTable(storeDir, "soundings", srows)
+	defer os.RemoveAll(r.staging)
+
+	next, err := r.ingest(files, old, full, string(paramsText))
 	if err != nil {
-		return nil, fmt.Errorf("write soundings: %w", err)
+		return nil, err
 	}
-	f2, err := schema.WriteTable(storeDir, "levels", lrows)
-	if err != nil {
-		return nil, fmt.Errorf("write levels: %w", err)
+	for _, p := range next.Partitions {
+		r.sum.Soundings += p.Soundings
 	}
-	sum.Files = append(f1, f2...)
-	sum.Rows["soundings"], sum.Rows["levels"] = len(srows), len(lrows)
-	sum.Elapsed = time.Since(start)
-	return sum, nil
-}
-
-// sortResults orders rows by station, launch time, then input position, so
-// that the tables do not depend on worker count or input order.
-func sortResults(all []result) {
-	sort.SliceStable(all, func(i, j int) bool {
-		a, b := &all[i].sounding, &all[j].sounding
-		if a.StationID != b.StationID {
-			return a.StationID < b.StationID
-		}
-		if !a.LaunchTime.Equal(b.LaunchTime) {
-			return a.LaunchTime.Before(b.LaunchTime)
-		}
-		if a.SourceFile != b.SourceFile {
-			return a.SourceFile < b.SourceFile
-		}
-		if a.SourceMember != b.SourceMember {
-			return a.SourceMember < b.SourceMember
-		}
-		if a.SourceLine != b.SourceLine {
-			return a.SourceLine < b.SourceLine
-		}
-		return all[i].seq < all[j].seq
-	})
-}
-
-// reasonOf gives a short reason for an error, for counting skips.
-func reasonOf(err error) string {
-	for _, k := range []struct {
-		e    error
-		name string
-	}{
-		{ingest.ErrLevelCount, "level_count_mismatch"},
-		{ingest.ErrBadHeader, "bad_header"},
-		{ingest.ErrBadLevel, "bad_level"},
-		{ingest.ErrOrphanLevel, "orphan_level"},
-		{ingest.ErrTooLarge, "too_large"},
-		{ingest.ErrUnknownInput, "unknown_format"},
-		{ingest.ErrNoData, "no_data"},
-		{ingest.ErrUnsupported, "unsupported"},
-	} {
-		if errors.Is(err, k.e) {
-			return k.name
-		}
-	}
-	return "unreadable"
-}
-
-// soundingReader is what every format's reader offers.
-type soundingReader interface {
-	Next() (*sounding.Sounding, error)
-}
-
-// readMember decodes one file or archive member and hands each sounding to
-// emit. Errors from the reader for single soundings or lines are reported
-// through skip and reading continues; a reader that keeps failing at the
-// same place is stopped after maxConsecutive errors to guarantee progress.
-func readMember(ctx context.Context, path, member string, r io.Reader, opt Options, note func(Skip),
-	emit func(*sounding.Sounding) error, skip func(Skip)) error {
-	br := bufio.NewReaderSize(r, 1<<16)
-	prefix, _ := br.Peek(4096)
-	where := path
-	if member != "" {
-		where += "!" + member
-	}
-	rd, err := openReader(opt.Format, prefix, br, path, member, note, &opt)
-	if err != nil {
-		skip(Skip{Where: where, Reason: reasonOf(err), Detail: err.Error()})
-		return nil
-	}
-	const maxConsecutive = 10000
-	bad := 0
-	for {
-		if err := ctx.Err(); err != nil {
-			return err
-		}
-		s, err := rd.Next()
-		if err == io.EOF {
-			return nil
-		}
-		if err != nil {
-			var pe *ingest.ParseError
-			if !errors.As(err, &pe) {
-				// Not a per-item error: the input itself failed.
-				return fmt.Errorf("%s: %w", where, err)
-			}
-			skip(Skip{Where: where, Reason: reasonOf(err), Detail: err.Error()})
-			if bad++; bad > maxConsecutive {
-				return fmt.Errorf("%s: too many consecutive errors, giving up on this input", where)
-			}
-			continue
-		}
-		bad = 0
-		if info, ok := opt.Stations[s.StationID]; ok {
-			applyStation(s, info)
-		}
-		if err := emit(s); err != nil {
-			return err
-		}
-	}
-}
-
-// applyStation fills metadata the source did not carry.
-func applyStation(s *sounding.Sounding, info StationInfo) {
-	if s.StationName == "" {
-		s.StationName = info.Name
-	}
-	if s.LatitudeDeg != s.LatitudeDeg { // NaN
-		s.LatitudeDeg = info.LatitudeDeg
-	}
-	if s.LongitudeDeg != s.LongitudeDeg {
-		s.LongitudeDeg = info.LongitudeDeg
-	}
-	if s.ElevationM != s.ElevationM {
-		s.ElevationM = info.ElevationM
-	}
+	sortSkips(r.sum.Skipped)
+	sortSkips(r.sum.Notes)
+	sort.Strings(r.sum.Files)
+	r.sum.Elapsed = time.Since(start)
+	r.sum.ElapsedS = r.sum.Elapsed.Seconds()
+	return r.sum, nil
 }
 
 // sortSkips orders skips and notes by place and message, so the summary
@@ -382,4 +268,22 @@ func sortSkips(s []Skip) {
 		}
 		return s[i].Detail < s[j].Detail
 	})
+}
+
+// maximaDigest identifies a set of daily maxima, so that supplying another
+// set re-derives the afternoon mixing heights.
+func maximaDigest(m analyze.DailyMaxima) string {
+	if len(m) == 0 {
+		return ""
+	}
+	keys := make([]string, 0, len(m))
+	for k, v := range m {
+		keys = append(keys, fmt.Sprintf("%s %s %x", k.StationID, k.Date.Format("2006-01-02"), math.Float64bits(v)))
+	}
+	sort.Strings(keys)
+	h := sha256.New()
+	for _, k := range keys {
+		h.Write([]byte(k + "\n"))
+	}
+	return hex.EncodeToString(h.Sum(nil)[:8])
 }

@@ -37,8 +37,19 @@ func Season(t time.Time) (code string, year int) {
 	return "SON", y
 }
 
+// result is one analysed sounding as table rows.
+type result struct {
+	sounding schema.SoundingRow
+	levels   []schema.LevelRow
+	inv      []schema.InversionRow
+	mixed    []schema.MixedLayerRow
+	heights  []schema.MixingHeightRow
+	status   string
+	analysis analyze.Result
+}
+
 // analyzeOne runs the analysis of one sounding and turns it into rows.
-func analyzeOne(s *sounding.Sounding, cfg analyze.Config, _ map[string]StationInfo) result {
+func analyzeOne(s *sounding.Sounding, cfg analyze.Config) result {
 	res := analyze.Analyze(s, cfg)
 	padPerLevel(&res, len(s.Levels))
 	season, sy := Season(s.NominalTime)
@@ -67,14 +78,36 @@ func analyzeOne(s *sounding.Sounding, cfg analyze.Config, _ map[string]StationIn
 		ConstantSet:    res.ConstantSet,
 
 		SurfacePressureHPa: math.NaN(), SurfaceTemperatureC: math.NaN(), SurfaceDewpointC: math.NaN(),
-		SurfaceThetaK: math.NaN(), SurfaceWindSpeedMS: math.NaN(),
+		SurfaceThetaK: math.NaN(), SurfaceWindSpeedMS: res.SurfaceWindMS,
 
-		SBITopAGLM: math.NaN(), SBITopPressHPa: math.NaN(), SBIStrengthK: math.NaN(),
+		SunElevationDeg: res.SunElevationDeg,
+		LocalSolarTimeH: res.LocalSolarTimeH,
+		SunClass:        res.SunClass,
+
+		SBITopAGLM: math.NaN(), SBITopPressHPa: math.NaN(), SBIStrengthK: math.NaN(), SBIGradient: math.NaN(),
+		InversionCount: int32(len(res.Inversions)),
+		EIBaseAGLM:     math.NaN(), EITopAGLM: math.NaN(), EIStrengthK: math.NaN(),
+
 		MixedBaseAGLM: res.MixedLayer.BaseAGLM, MixedTopAGLM: res.MixedLayer.TopAGLM,
 		MixedThetaK: res.MixedLayer.ThetaK, MixedMixingRatio: res.MixedLayer.MixingRatioKgKg * gPerKg,
 		MixedLevels:    int32(res.MixedLayer.Levels),
 		ParcelMHM:      res.Parcel.HeightAGLM,
 		ParcelMHStatus: res.Parcel.Status,
+
+		ConsensusMHM:     res.MixingHeightConsensus.HeightAGLM,
+		ConsensusStatus:  res.MixingHeightConsensus.Status,
+		ConsensusSpreadM: res.MixingHeightConsensus.SpreadM,
+		ConsensusMethods: int32(res.MixingHeightConsensus.OK),
+		Unresolved:       res.MixingHeightConsensus.Unresolved,
+		LiuLiangRegime:   res.LiuLiangRegime,
+
+		TransportWindMS:  res.Ventilation.TransportWindMS,
+		TransportWindDef: res.Ventilation.TransportWind,
+		VentilationM2S:   res.Ventilation.IndexM2S,
+		VentilationKtFt:  res.Ventilation.IndexKtFt,
+		VentilationCat:   res.Ventilation.Category,
+		VentilationTable: res.Ventilation.Table,
+		VentilationMH:    res.Ventilation.HeightMethod,
 	}
 	if i := res.SurfaceIndex; i >= 0 {
 		l := s.Levels[i]
@@ -82,7 +115,6 @@ func analyzeOne(s *sounding.Sounding, cfg analyze.Config, _ map[string]StationIn
 		row.SurfaceTemperatureC = degC(l.TemperatureK)
 		row.SurfaceDewpointC = degC(l.DewpointK)
 		row.SurfaceThetaK = res.ThetaK[i]
-		row.SurfaceWindSpeedMS = l.WindSpeedMS
 	}
 	if res.Status == analyze.StatusOK {
 		present := res.SBI.Present
@@ -91,12 +123,18 @@ func analyzeOne(s *sounding.Sounding, cfg analyze.Config, _ map[string]StationIn
 			row.SBITopAGLM = res.SBI.TopAGLM
 			row.SBITopPressHPa = hPa(res.SBI.TopPressurePa)
 			row.SBIStrengthK = res.SBI.StrengthK
+			row.SBIGradient = res.SBI.GradientKPerKm()
+			row.SBIClass = res.SBI.Class
+		}
+		if ei := res.LowestElevated; ei.Present {
+			row.EIBaseAGLM, row.EITopAGLM, row.EIStrengthK, row.EIClass = ei.BaseAGLM, ei.TopAGLM, ei.StrengthK, ei.Class
 		}
 	}
 
-	levels := make([]schema.LevelRow, len(s.Levels))
+	out := result{sounding: row, status: res.Status, analysis: res}
+	out.levels = make([]schema.LevelRow, len(s.Levels))
 	for i, l := range s.Levels {
-		levels[i] = schema.LevelRow{
+		out.levels[i] = schema.LevelRow{
 			StationID:         s.StationID,
 			LaunchTime:        row.LaunchTime,
 			Year:              row.Year,
@@ -120,7 +158,59 @@ func analyzeOne(s *sounding.Sounding, cfg analyze.Config, _ map[string]StationIn
 			HumidityStatus:    l.Status[sounding.VarDewpointDepression].String(),
 		}
 	}
-	return result{sounding: row, levels: levels, status: res.Status}
+	for i, v := range res.Inversions {
+		out.inv = append(out.inv, schema.InversionRow{
+			StationID: s.StationID, LaunchTime: row.LaunchTime, Year: row.Year, Index: int32(i),
+			SurfaceBased: v.SurfaceBased, BaseAGLM: v.BaseAGLM, TopAGLM: v.TopAGLM,
+			BasePressHPa: hPa(v.BasePressurePa), TopPressHPa: hPa(v.TopPressurePa),
+			DepthM: v.DepthM(), StrengthK: v.StrengthK, GradientKPerKm: v.GradientKPerKm(),
+			ThetaDeltaK: v.ThetaDeltaK, DPDDeltaK: v.DewpointDepressionDeltaK, RHDeltaPct: v.RelHumidityDeltaPct,
+			WDeltaGKg: v.MixingRatioDeltaKgKg * gPerKg, TurningDeg: v.WindTurningDeg, Levels: int32(v.Levels),
+			TopAtCeiling: v.TopAtCeiling, Class: v.Class,
+		})
+	}
+	for i, m := range res.MixedLayers {
+		out.mixed = append(out.mixed, schema.MixedLayerRow{
+			StationID: s.StationID, LaunchTime: row.LaunchTime, Year: row.Year, Index: int32(i),
+			BaseAGLM: m.BaseAGLM, TopAGLM: m.TopAGLM, BasePress: hPa(m.BasePressurePa), TopPress: hPa(m.TopPressurePa),
+			ThetaK: m.ThetaK, MixingRatio: m.MixingRatioKgKg * gPerKg, ThetaRange: m.ThetaRangeK,
+			ThetaVRange: m.ThetaVRangeK, WRange: m.MixingRatioRangeKgKg * gPerKg, Levels: int32(m.Levels),
+			SuperadTop: m.SuperadiabaticTopAGLM,
+		})
+	}
+	for _, h := range res.MixingHeights {
+		out.heights = append(out.heights, schema.MixingHeightRow{
+			StationID: s.StationID, LaunchTime: row.LaunchTime, Year: row.Year, Method: h.Method,
+			HeightAGLM: h.HeightAGLM, Status: h.Status, Note: h.Note, LevelSpacingM: h.LevelSpacingM, Unresolved: h.Unresolved,
+		})
+	}
+	return out
+}
+
+// afternoonRows pairs the morning soundings of one station-year with the
+// day's maximum temperature (a daily-maxima file when given, else the same
+// local day's afternoon sounding) and computes the afternoon mixing height
+// (Holzworth). The input is in launch-time order.
+func afternoonRows(results []result, maxima analyze.DailyMaxima, cfg analyze.PairingConfig) []schema.AfternoonRow {
+	days := make([]analyze.DaySounding, len(results))
+	for i := range results {
+		r := &results[i]
+		days[i] = analyze.DaySounding{StationID: r.sounding.StationID, LaunchTime: r.sounding.LaunchTime,
+			LongitudeDeg: r.sounding.LongitudeDeg, Profile: r.analysis.Profile}
+		if r.status != analyze.StatusOK {
+			days[i].LongitudeDeg = math.NaN() // not analysable: neither morning nor afternoon
+		}
+	}
+	var rows []schema.AfternoonRow
+	for _, e := range analyze.PairAfternoon(days, maxima, cfg) {
+		m := results[e.Morning].sounding
+		rows = append(rows, schema.AfternoonRow{
+			StationID: m.StationID, Year: m.Year, LocalDate: e.LocalDate, MorningLaunch: m.LaunchTime,
+			TmaxC: degC(e.TmaxK), TmaxSource: e.TmaxSource, HeightAGLM: e.MixingHeight.HeightAGLM,
+			Status: e.MixingHeight.Status, Note: e.MixingHeight.Note,
+		})
+	}
+	return rows
 }
 
 func heightStatus(l sounding.Level, derived bool) string {

@@ -1,0 +1,460 @@
+package pipeline
+
+import (
+	"crypto/sha256"
+	"encoding/hex"
+	"fmt"
+	"maps"
+	"math"
+	"os"
+	"path/filepath"
+	"slices"
+	"sort"
+	"sync"
+	"sync/atomic"
+	"time"
+
+	"golang.org/x/sync/errgroup"
+
+	"github.com/sondeclim/sondeclim/analyze"
+	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/schema"
+	"github.com/sondeclim/sondeclim/schema/store"
+)
+
+// ingest decides what to read, stages it, rebuilds the affected partitions
+// and commits the new manifest. It returns the manifest now in force.
+func (r *run) ingest(files []string, old *store.Manifest, full bool, paramsText string) (*store.Manifest, error) {
+	next := store.NewManifest(r.opt.Shard, r.params, paramsText)
+	if !full {
+		maps.Copy(next.Inputs, old.Inputs)
+		maps.Copy(next.Partitions, old.Partitions)
+	}
+	changed := full && (len(old.Partitions) > 0 || len(old.Inputs) > 0)
+
+	var toRead []string
+	for _, f := range files {
+		if in := old.Inputs[f]; !full && in != nil {
+			if fi, err := os.Stat(f); err == nil && fi.Size() == in.SizeBytes && fi.ModTime().UTC().Equal(in.ModTime) {
+				r.sum.InputsUnchanged++
+				continue
+			}
+		}
+		toRead = append(toRead, f)
+	}
+	r.log.Info("inputs", "files", len(files), "unchanged", r.sum.InputsUnchanged, "to_read", len(toRead))
+
+	st := &staged{byPart: map[string][]segment{}}
+	results, err := r.stageInputs(toRead, st, nil)
+	if err != nil {
+		return nil, err
+	}
+	read := map[string]bool{}
+	affected := map[string]bool{}
+	for _, res := range results {
+		read[res.path] = true
+		info := res.info
+		prev := old.Inputs[res.path]
+		next.Inputs[res.path] = &info
+		changed = true // at least its time or size changed
+		if !full && prev != nil && prev.SHA256 == info.SHA256 {
+			continue // touched but identical content
+		}
+		for k := range res.parts {
+			affected[k] = true
+		}
+		if prev != nil && !full {
+			for _, k := range prev.Partitions {
+				affected[k] = true
+			}
+		}
+	}
+
+	// Unchanged inputs that share an affected partition are read again,
+	// for that partition only, so the partition is rebuilt whole.
+	if !full {
+		need := map[string]bool{}
+		for k := range affected {
+			if p := old.Partitions[k]; p != nil {
+				for _, in := range p.Inputs {
+					if !read[in] {
+						need[in] = true
+					}
+				}
+			}
+		}
+		if len(need) > 0 {
+			again := slices.Sorted(maps.Keys(need))
+			for _, f := range again {
+				if _, err := os.Stat(f); err != nil {
+					return nil, fmt.Errorf("partition rebuild needs input %s, which was ingested before but cannot be read now (%v); "+
+						"restore it, or rebuild the store with --full from the inputs you have", f, err)
+				}
+			}
+			r.log.Info("re-reading unchanged inputs that share a rebuilt partition", "files", len(again))
+			if _, err := r.stageInputs(again, st, affected); err != nil {
+				return nil, err
+			}
+		}
+	}
+	r.sum.InputsRead = len(st.files)
+	pauseAt("staged")
+
+	// Build every affected partition.
+	keys := slices.Sorted(maps.Keys(affected))
+	if full {
+		for k := range old.Partitions {
+			if !affected[k] {
+				r.sum.PartitionsDropped++
+			}
+		}
+	}
+	built, err := r.buildAll(keys, st, old)
+	if err != nil {
+		return nil, err
+	}
+	for i, k := range keys {
+		p := built[i]
+		switch {
+		case p == nil:
+			if _, ok := next.Partitions[k]; ok {
+				delete(next.Partitions, k)
+				changed = true
+			}
+		default:
+			if q := old.Partitions[k]; q == nil || q.ContentHash != p.ContentHash {
+				changed = true
+			}
+			next.Partitions[k] = p
+		}
+	}
+	if !changed {
+		r.log.Info("nothing changed; store left as it was")
+		return old, nil
+	}
+	pauseAt("commit")
+	if err := store.Commit(r.dir, r.opt.Shard, next); err != nil {
+		return nil, err
+	}
+	r.sum.Committed = true
+	return next, nil
+}
+
+// buildAll builds the partitions keys on the worker pool and returns them
+// in the same order (nil for a partition left without soundings).
+func (r *run) buildAll(keys []string, st *staged, old *store.Manifest) ([]*store.Partition, error) {
+	out := make([]*store.Partition, len(keys))
+	spills := make([]*os.File, len(st.files))
+	for i, f := range st.files {
+		fh, err := os.Open(f)
+		if err != nil {
+			return nil, err
+		}
+		defer fh.Close()
+		spills[i] = fh
+	}
+	var done atomic.Int64
+	var mu sync.Mutex
+	tick := time.Now()
+	g, ctx := errgroup.WithContext(r.ctx)
+	g.SetLimit(r.workers)
+	for i, k := range keys {
+		g.Go(func() error {
+			if err := ctx.Err(); err != nil {
+				return err
+			}
+			p, stats, err := r.buildPartition(k, st.byPart[k], spills, st.inputs, old.Partitions[k])
+			if err != nil {
+				return fmt.Errorf("partition %s: %w", k, err)
+			}
+			out[i] = p
+			n := int(done.Add(1))
+			mu.Lock()
+			r.sum.add(stats)
+			if r.opt.Progress != nil {
+				r.opt.Progress(n, len(keys))
+			}
+			every := r.opt.ProgressEvery
+			if every <= 0 {
+				every = 5 * time.Second
+			}
+			if time.Since(tick) >= every {
+				tick = time.Now()
+				r.log.Info("progress", "partitions_done", n, "partitions", len(keys))
+			}
+			mu.Unlock()
+			return nil
+		})
+	}
+	if err := g.Wait(); err != nil {
+		return nil, err
+	}
+	return out, nil
+}
+
+// buildStats is what building one partition counts.
+type buildStats struct {
+	written, unchanged           bool
+	duplicates                   int
+	new, replaced, same, removed int
+	notAnalysable                map[string]int
+	rows                         map[string]int
+	files                        []string
+}
+
+func (s *Summary) add(b buildStats) {
+	if b.written {
+		s.PartitionsWritten++
+	}
+	if b.unchanged {
+		s.PartitionsUnchanged++
+	}
+	s.DuplicatesMerged += b.duplicates
+	s.SoundingsNew += b.new
+	s.SoundingsReplaced += b.replaced
+	s.SoundingsUnchanged += b.same
+	s.SoundingsRemoved += b.removed
+	for k, v := range b.notAnalysable {
+		s.NotAnalysable[k] += v
+	}
+	for k, v := range b.rows {
+		s.Rows[k] += v
+	}
+	s.Files = append(s.Files, b.files...)
+}
+
+// buildPartition rebuilds one station-year from its staged soundings.
+func (r *run) buildPartition(key string, segs []segment, spills []*os.File, inputs []string, prev *store.Partition) (*store.Partition, buildStats, error) {
+	var stats buildStats
+	station, year, err := store.SplitPartitionKey(key)
+	if err != nil {
+		return nil, stats, err
+	}
+	var all []*sounding.Sounding
+	contributors := map[string]bool{}
+	var buf []byte
+	for _, sg := range segs {
+		buf = slices.Grow(buf[:0], int(sg.size))[:sg.size]
+		if _, err := spills[sg.file].ReadAt(buf, sg.off); err != nil {
+			return nil, stats, fmt.Errorf("read staging: %w", err)
+		}
+		rest := buf
+		for range sg.count {
+			s, tail, err := decodeSounding(rest)
+			if err != nil {
+				return nil, stats, err
+			}
+			all = append(all, s)
+			rest = tail
+		}
+		contributors[inputs[sg.file]] = true
+	}
+	if len(all) == 0 {
+		return nil, stats, nil
+	}
+	kept, dups := deduplicate(all)
+	stats.duplicates = dups
+
+	h := sha256.New()
+	h.Write([]byte(r.params))
+	var enc []byte
+	for _, d := range kept {
+		enc = appendSounding(enc[:0], d.s, true)
+		h.Write(enc)
+	}
+	hash := hex.EncodeToString(h.Sum(nil))
+	p := &store.Partition{ContentHash: hash, Soundings: len(kept), Files: map[string]string{},
+		Inputs: slices.Sorted(maps.Keys(contributors))}
+	fileName := "part-" + hash[:16] + ".parquet"
+	for _, t := range tables {
+		p.Files[t] = filepath.Join(store.PartitionDir(t, station, year), fileName)
+	}
+	if prev != nil && prev.ContentHash == hash && filesExist(r.dir, prev.Files) {
+		stats.unchanged = true
+		return prev, stats, nil
+	}
+
+	results := make([]result, len(kept))
+	stats.notAnalysable = map[string]int{}
+	for i, d := range kept {
+		res := analyzeOne(d.s, r.cfg)
+		res.sounding.SoundingHash = soundingHash(d.s)
+		res.sounding.DuplicatesMerged = int32(d.merged)
+		res.sounding.DuplicateChoice = d.reason
+		results[i] = res
+		if res.status != "ok" {
+			stats.notAnalysable[res.status]++
+		}
+	}
+	srows := make([]schema.SoundingRow, len(results))
+	var lrows []schema.LevelRow
+	var irows []schema.InversionRow
+	var mrows []schema.MixedLayerRow
+	var hrows []schema.MixingHeightRow
+	for i := range results {
+		srows[i] = results[i].sounding
+		lrows = append(lrows, results[i].levels...)
+		irows = append(irows, results[i].inv...)
+		mrows = append(mrows, results[i].mixed...)
+		hrows = append(hrows, results[i].heights...)
+	}
+	arows := afternoonRows(results, r.opt.DailyMaxima, analyze.DefaultPairingConfig())
+	if err := r.compareWithPrevious(prev, srows, &stats); err != nil {
+		return nil, stats, err
+	}
+	stats.rows = map[string]int{}
+	write := func(table string, n int, w func(path string) error) error {
+		if err := w(filepath.Join(r.dir, p.Files[table])); err != nil {
+			return err
+		}
+		stats.rows[table] += n
+		stats.files = append(stats.files, p.Files[table])
+		return nil
+	}
+	for _, err := range []error{
+		write(schema.TableSoundings, len(srows), func(f string) error { return schema.WriteFile(f, schema.TableSoundings, srows) }),
+		write(schema.TableLevels, len(lrows), func(f string) error { return schema.WriteFile(f, schema.TableLevels, lrows) }),
+		write(schema.TableInversions, len(irows), func(f string) error { return schema.WriteFile(f, schema.TableInversions, irows) }),
+		write(schema.TableMixedLayers, len(mrows), func(f string) error { return schema.WriteFile(f, schema.TableMixedLayers, mrows) }),
+		write(schema.TableMixingHeights, len(hrows), func(f string) error { return schema.WriteFile(f, schema.TableMixingHeights, hrows) }),
+		write(schema.TableAfternoon, len(arows), func(f string) error { return schema.WriteFile(f, schema.TableAfternoon, arows) }),
+	} {
+		if err != nil {
+			return nil, stats, err
+		}
+	}
+	stats.written = true
+	pauseAt("written")
+	return p, stats, nil
+}
+
+// tables lists the store's tables; every partition has one file in each.
+var tables = []string{schema.TableSoundings, schema.TableLevels, schema.TableInversions,
+	schema.TableMixedLayers, schema.TableMixingHeights, schema.TableAfternoon}
+
+// compareWithPrevious counts new, replaced, unchanged and removed
+// soundings against the partition's previous soundings file.
+func (r *run) compareWithPrevious(prev *store.Partition, rows []schema.SoundingRow, stats *buildStats) error {
+	before := map[int64]string{}
+	if prev != nil {
+		if f, ok := prev.Files[schema.TableSoundings]; ok {
+			k, err := schema.ReadSoundingKeys(filepath.Join(r.dir, f))
+			if err != nil {
+				return fmt.Errorf("previous partition file: %w", err)
+			}
+			before = k
+		}
+	}
+	for _, row := range rows {
+		t := row.LaunchTime.UnixMicro()
+		old, ok := before[t]
+		switch {
+		case !ok:
+			stats.new++
+		case old != row.SoundingHash:
+			stats.replaced++
+		default:
+			stats.same++
+		}
+		delete(before, t)
+	}
+	stats.removed = len(before)
+	return nil
+}
+
+func filesExist(dir string, files map[string]string) bool {
+	for _, f := range files {
+		if _, err := os.Stat(filepath.Join(dir, f)); err != nil {
+			return false
+		}
+	}
+	return true
+}
+
+// soundingHash identifies a sounding's observed content (not where it was
+// read from), as 16 hex digits of SHA-256.
+func soundingHash(s *sounding.Sounding) string {
+	h := sha256.Sum256(appendSounding(nil, s, false))
+	return hex.EncodeToString(h[:8])
+}
+
+// kept is a sounding chosen among copies of the same identity.
+type kept struct {
+	s      *sounding.Sounding
+	merged int    // other copies dropped
+	reason string // why this copy won ("" when it had no rival)
+}
+
+// deduplicate keeps one sounding per launch time (the station and year are
+// the partition's) and returns them sorted by launch time, with the number
+// of copies dropped. See better for the precedence.
+func deduplicate(all []*sounding.Sounding) ([]kept, int) {
+	sort.SliceStable(all, func(i, j int) bool {
+		if !all[i].LaunchTime.Equal(all[j].LaunchTime) {
+			return all[i].LaunchTime.Before(all[j].LaunchTime)
+		}
+		return sourceLess(all[i], all[j])
+	})
+	var out []kept
+	dups := 0
+	for i := 0; i < len(all); {
+		j := i + 1
+		best, reason := all[i], ""
+		for ; j < len(all) && all[j].LaunchTime.Equal(all[i].LaunchTime); j++ {
+			if b, why := better(all[j], best); b {
+				best, reason = all[j], why
+			} else if reason == "" {
+				reason = why
+			}
+		}
+		out = append(out, kept{s: best, merged: j - i - 1, reason: reason})
+		dups += j - i - 1
+		i = j
+	}
+	return out, dups
+}
+
+// better reports whether a should be kept instead of b, two copies of the
+// same station and launch time, and names the deciding rule. Precedence:
+//  1. more levels with pressure and temperature at or below 500 hPa (the
+//     boundary-layer analysis depends on them);
+//  2. more levels in all;
+//  3. the copy read from the later source (greater file path, then member,
+//     then line): a re-issued or corrected file is usually named later.
+//
+// The rule is common practice, no source; it is deterministic, so the
+// result does not depend on input order.
+func better(a, b *sounding.Sounding) (bool, string) {
+	ua, ub := usableLevels(a), usableLevels(b)
+	if ua != ub {
+		return ua > ub, "more_levels_below_500hpa"
+	}
+	if len(a.Levels) != len(b.Levels) {
+		return len(a.Levels) > len(b.Levels), "more_levels"
+	}
+	if sourceLess(a, b) == sourceLess(b, a) {
+		return false, "identical_source"
+	}
+	return sourceLess(b, a), "later_source"
+}
+
+func usableLevels(s *sounding.Sounding) int {
+	n := 0
+	for i := range s.Levels {
+		l := &s.Levels[i]
+		if l.PressurePa >= 50000 && !math.IsNaN(l.TemperatureK) {
+			n++
+		}
+	}
+	return n
+}
+
+func sourceLess(a, b *sounding.Sounding) bool {
+	if a.Source.File != b.Source.File {
+		return a.Source.File < b.Source.File
+	}
+	if a.Source.Member != b.Source.Member {
+		return a.Source.Member < b.Source.Member
+	}
+	return a.Source.Line < b.Source.Line
+}

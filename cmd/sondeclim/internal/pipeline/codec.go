@@ -1,0 +1,192 @@
+package pipeline
+
+import (
+	"encoding/binary"
+	"errors"
+	"math"
+	"time"
+
+	"github.com/sondeclim/sondeclim/ingest/sounding"
+)
+
+// The codec turns a decoded sounding into bytes and back, exactly (float
+// bits, statuses and source position included). Decoded soundings are
+// staged on disk with it between reading and analysis, so that memory does
+// not grow with the archive, and hashed with it to recognise unchanged
+// partitions.
+
+var errCodec = errors.New("staged sounding is corrupt")
+
+// appendSounding appends the encoding of s to b. With source false the
+// source position is left out (for a hash of the observation alone).
+func appendSounding(b []byte, s *sounding.Sounding, source bool) []byte {
+	b = appendString(b, s.StationID)
+	b = appendString(b, s.StationName)
+	b = appendFloat(b, s.LatitudeDeg)
+	b = appendFloat(b, s.LongitudeDeg)
+	b = appendFloat(b, s.ElevationM)
+	b = binary.AppendVarint(b, s.NominalTime.UnixNano())
+	b = binary.AppendVarint(b, s.LaunchTime.UnixNano())
+	b = append(b, flags(s.NominalHourInferred, s.LaunchTimeReported, false))
+	b = binary.AppendVarint(b, int64(s.DeclaredLevels))
+	b = appendString(b, s.PressureSource)
+	b = appendString(b, s.HeightSource)
+	if source {
+		b = append(b, 1)
+		b = appendString(b, s.Source.File)
+		b = appendString(b, s.Source.Member)
+		b = binary.AppendVarint(b, int64(s.Source.Line))
+		b = appendString(b, s.Source.Format)
+	} else {
+		b = append(b, 0)
+	}
+	b = binary.AppendUvarint(b, uint64(len(s.Levels)))
+	for i := range s.Levels {
+		l := &s.Levels[i]
+		b = append(b, byte(l.Kind), flags(l.Tropopause, false, false))
+		for _, v := range [...]float64{l.ElapsedS, l.PressurePa, l.HeightM, l.TemperatureK, l.DewpointK,
+			l.DewpointDepressionK, l.RelHumidityPct, l.WindDirectionDeg, l.WindSpeedMS} {
+			b = appendFloat(b, v)
+		}
+		for v := range sounding.NumVars {
+			b = append(b, byte(l.Status[v]), l.UpstreamTier[v])
+		}
+		if source {
+			b = binary.AppendVarint(b, int64(l.Line))
+		}
+	}
+	return b
+}
+
+func flags(a, b, c bool) byte {
+	var f byte
+	if a {
+		f |= 1
+	}
+	if b {
+		f |= 2
+	}
+	if c {
+		f |= 4
+	}
+	return f
+}
+
+func appendString(b []byte, s string) []byte {
+	b = binary.AppendUvarint(b, uint64(len(s)))
+	return append(b, s...)
+}
+
+func appendFloat(b []byte, v float64) []byte {
+	return binary.LittleEndian.AppendUint64(b, math.Float64bits(v))
+}
+
+// decoder reads what appendSounding wrote.
+type decoder struct {
+	b   []byte
+	err error
+}
+
+func (d *decoder) fail() { d.err = errCodec; d.b = nil }
+
+func (d *decoder) uvarint() uint64 {
+	v, n := binary.Uvarint(d.b)
+	if n <= 0 {
+		d.fail()
+		return 0
+	}
+	d.b = d.b[n:]
+	return v
+}
+
+func (d *decoder) varint() int64 {
+	v, n := binary.Varint(d.b)
+	if n <= 0 {
+		d.fail()
+		return 0
+	}
+	d.b = d.b[n:]
+	return v
+}
+
+func (d *decoder) byte() byte {
+	if len(d.b) < 1 {
+		d.fail()
+		return 0
+	}
+	c := d.b[0]
+	d.b = d.b[1:]
+	return c
+}
+
+func (d *decoder) string() string {
+	n := d.uvarint()
+	if n > uint64(len(d.b)) {
+		d.fail()
+		return ""
+	}
+	s := string(d.b[:n])
+	d.b = d.b[n:]
+	return s
+}
+
+func (d *decoder) float() float64 {
+	if len(d.b) < 8 {
+		d.fail()
+		return 0
+	}
+	v := math.Float64frombits(binary.LittleEndian.Uint64(d.b))
+	d.b = d.b[8:]
+	return v
+}
+
+// decodeSounding decodes one sounding written with source = true and
+// returns the rest of b.
+func decodeSounding(b []byte) (*sounding.Sounding, []byte, error) {
+	d := &decoder{b: b}
+	s := &sounding.Sounding{}
+	s.StationID = d.string()
+	s.StationName = d.string()
+	s.LatitudeDeg, s.LongitudeDeg, s.ElevationM = d.float(), d.float(), d.float()
+	s.NominalTime = time.Unix(0, d.varint()).UTC()
+	s.LaunchTime = time.Unix(0, d.varint()).UTC()
+	f := d.byte()
+	s.NominalHourInferred, s.LaunchTimeReported = f&1 != 0, f&2 != 0
+	s.DeclaredLevels = int(d.varint())
+	s.PressureSource = d.string()
+	s.HeightSource = d.string()
+	source := d.byte() == 1
+	if source {
+		s.Source.File = d.string()
+		s.Source.Member = d.string()
+		s.Source.Line = int(d.varint())
+		s.Source.Format = d.string()
+	}
+	n := d.uvarint()
+	// Each level takes at least 2 + 9·8 + 2·NumVars bytes: bound n by the
+	// bytes left before allocating.
+	if n > uint64(len(d.b))/uint64(2+9*8+2*int(sounding.NumVars)) {
+		return nil, nil, errCodec
+	}
+	s.Levels = make([]sounding.Level, n)
+	for i := range s.Levels {
+		l := &s.Levels[i]
+		l.Kind = sounding.LevelKind(d.byte())
+		l.Tropopause = d.byte()&1 != 0
+		for _, p := range [...]*float64{&l.ElapsedS, &l.PressurePa, &l.HeightM, &l.TemperatureK, &l.DewpointK,
+			&l.DewpointDepressionK, &l.RelHumidityPct, &l.WindDirectionDeg, &l.WindSpeedMS} {
+			*p = d.float()
+		}
+		for v := range sounding.NumVars {
+			l.Status[v] = sounding.Status(d.byte())
+			l.UpstreamTier[v] = d.byte()
+		}
+		if source {
+			l.Line = int(d.varint())
+		}
+	}
+	if d.err != nil {
+		return nil, nil, d.err
+	}
+	return s, d.b, nil
+}

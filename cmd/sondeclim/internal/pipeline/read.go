@@ -1,0 +1,283 @@
+package pipeline
+
+import (
+	"bufio"
+	"context"
+	"crypto/sha256"
+	"encoding/hex"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"sort"
+	"strconv"
+	"sync"
+
+	"golang.org/x/sync/errgroup"
+
+	"github.com/sondeclim/sondeclim/ingest"
+	"github.com/sondeclim/sondeclim/ingest/input"
+	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/schema/store"
+)
+
+// segment is a run of staged soundings of one station-year in one spill
+// file.
+type segment struct {
+	file      int // index into staged.files
+	off, size int64
+	count     int
+}
+
+// staged is what the reading phase leaves for the building phase: spill
+// files and, per station-year, where its soundings are.
+type staged struct {
+	mu     sync.Mutex
+	files  []string // spill files
+	inputs []string // the input file each spill file holds
+	byPart map[string][]segment
+}
+
+func (st *staged) add(key string, seg segment) {
+	st.mu.Lock()
+	st.byPart[key] = append(st.byPart[key], seg)
+	st.mu.Unlock()
+}
+
+// readResult is what reading one input file produced.
+type readResult struct {
+	path  string
+	info  store.Input
+	parts map[string]int // station-year → soundings
+}
+
+// stageInputs reads files on a bounded pool and stages their soundings.
+// keep, when not nil, limits staging to the station-years it holds (used
+// to re-read unchanged inputs that share a partition with a changed one).
+func (r *run) stageInputs(files []string, st *staged, keep map[string]bool) ([]readResult, error) {
+	results := make([]readResult, len(files))
+	g, ctx := errgroup.WithContext(r.ctx)
+	g.SetLimit(r.workers)
+	for i, path := range files {
+		st.mu.Lock()
+		fi := len(st.files)
+		spill := filepath.Join(r.staging, strconv.Itoa(fi)+".bin")
+		st.files = append(st.files, spill)
+		st.inputs = append(st.inputs, path)
+		st.mu.Unlock()
+		g.Go(func() error {
+			res, err := r.stageFile(ctx, path, fi, spill, st, keep)
+			if err != nil {
+				return err
+			}
+			results[i] = res
+			return nil
+		})
+	}
+	if err := g.Wait(); err != nil {
+		return nil, err
+	}
+	return results, nil
+}
+
+// stageFile reads one input file (all its members) into its spill file.
+func (r *run) stageFile(ctx context.Context, path string, fi int, spill string, st *staged, keep map[string]bool) (readResult, error) {
+	res := readResult{path: path, parts: map[string]int{}}
+	fst, err := os.Stat(path)
+	if err != nil {
+		r.skip(Skip{Where: path, Reason: "unreadable", Detail: err.Error()})
+		return res, nil
+	}
+	res.info.SizeBytes, res.info.ModTime = fst.Size(), fst.ModTime().UTC()
+	out, err := os.Create(spill)
+	if err != nil {
+		return res, err
+	}
+	defer out.Close()
+	w := &spillWriter{w: bufio.NewWriterSize(out, 1<<20), fi: fi, st: st}
+	sum := sha256.New()
+	err = input.Each(path, r.opt.SizeLimit, func(member string, rd io.Reader) error {
+		r.mu.Lock()
+		r.sum.Members++
+		r.mu.Unlock()
+		io.WriteString(sum, member+"\x00")
+		return r.readMember(ctx, path, member, io.TeeReader(rd, sum), func(s *sounding.Sounding) error {
+			if !r.opt.Shard.Owns(s.StationID) {
+				r.mu.Lock()
+				r.sum.OtherShards++
+				r.mu.Unlock()
+				return nil
+			}
+			key := store.PartitionKey(s.StationID, s.NominalTime.Year())
+			if keep != nil && !keep[key] {
+				return nil
+			}
+			res.parts[key]++
+			return w.write(key, s)
+		})
+	})
+	if err != nil {
+		if ctx.Err() != nil {
+			return res, ctx.Err()
+		}
+		var pe *ingest.ParseError
+		if errors.Is(err, ingest.ErrTooLarge) || errors.As(err, &pe) || !isWriteError(err) {
+			r.skip(Skip{Where: path, Reason: reasonOf(err), Detail: err.Error()})
+		} else {
+			return res, err
+		}
+	}
+	if err := w.close(); err != nil {
+		return res, fmt.Errorf("staging %s: %w", path, err)
+	}
+	res.info.SHA256 = hex.EncodeToString(sum.Sum(nil))
+	for k, n := range res.parts {
+		res.info.Partitions = append(res.info.Partitions, k)
+		res.info.Soundings += n
+	}
+	sort.Strings(res.info.Partitions)
+	return res, nil
+}
+
+// writeError marks failures of the staging area (the store's disk), which
+// stop the run, unlike failures of the input.
+type writeError struct{ err error }
+
+func (e *writeError) Error() string { return "staging: " + e.err.Error() }
+func (e *writeError) Unwrap() error { return e.err }
+
+func isWriteError(err error) bool {
+	var we *writeError
+	return errors.As(err, &we)
+}
+
+// spillWriter appends encoded soundings to one spill file, recording one
+// segment per run of consecutive soundings of the same station-year.
+type spillWriter struct {
+	w   *bufio.Writer
+	fi  int
+	st  *staged
+	off int64
+	cur string
+	seg segment
+	buf []byte
+}
+
+func (w *spillWriter) write(key string, s *sounding.Sounding) error {
+	if key != w.cur {
+		w.flush()
+		w.cur, w.seg = key, segment{file: w.fi, off: w.off}
+	}
+	w.buf = appendSounding(w.buf[:0], s, true)
+	n, err := w.w.Write(w.buf)
+	if err != nil {
+		return &writeError{err}
+	}
+	w.off += int64(n)
+	w.seg.size += int64(n)
+	w.seg.count++
+	return nil
+}
+
+func (w *spillWriter) flush() {
+	if w.cur != "" && w.seg.count > 0 {
+		w.st.add(w.cur, w.seg)
+	}
+}
+
+func (w *spillWriter) close() error {
+	w.flush()
+	return w.w.Flush()
+}
+
+// soundingReader is what every format's reader offers.
+type soundingReader interface {
+	Next() (*sounding.Sounding, error)
+}
+
+// readMember decodes one file or archive member and hands each sounding to
+// emit. Errors from the reader for single soundings or lines are reported
+// through skip and reading continues; a reader that keeps failing is
+// stopped after maxConsecutive errors to guarantee progress.
+func (r *run) readMember(ctx context.Context, path, member string, rd io.Reader, emit func(*sounding.Sounding) error) error {
+	br := bufio.NewReaderSize(rd, 1<<16)
+	prefix, _ := br.Peek(4096)
+	where := name(path, member)
+	fr, err := openReader(r.opt.Format, prefix, br, path, member, r.note, &r.opt)
+	if err != nil {
+		r.skip(Skip{Where: where, Reason: reasonOf(err), Detail: err.Error()})
+		return nil
+	}
+	const maxConsecutive = 10000
+	bad := 0
+	for {
+		if err := ctx.Err(); err != nil {
+			return err
+		}
+		s, err := fr.Next()
+		if err == io.EOF {
+			return nil
+		}
+		if err != nil {
+			var pe *ingest.ParseError
+			if !errors.As(err, &pe) {
+				// Not a per-item error: the input itself failed.
+				return fmt.Errorf("%s: %w", where, err)
+			}
+			r.skip(Skip{Where: where, Reason: reasonOf(err), Detail: err.Error()})
+			if bad++; bad > maxConsecutive {
+				return fmt.Errorf("%s: too many consecutive errors, giving up on this input", where)
+			}
+			continue
+		}
+		bad = 0
+		if info, ok := r.opt.Stations[s.StationID]; ok {
+			applyStation(s, info)
+		}
+		r.mu.Lock()
+		r.sum.SoundingsRead++
+		r.mu.Unlock()
+		if err := emit(s); err != nil {
+			return err
+		}
+	}
+}
+
+// reasonOf gives a short reason for an error, for counting skips.
+func reasonOf(err error) string {
+	for _, k := range []struct {
+		e    error
+		name string
+	}{
+		{ingest.ErrLevelCount, "level_count_mismatch"},
+		{ingest.ErrBadHeader, "bad_header"},
+		{ingest.ErrBadLevel, "bad_level"},
+		{ingest.ErrOrphanLevel, "orphan_level"},
+		{ingest.ErrTooLarge, "too_large"},
+		{ingest.ErrUnknownInput, "unknown_format"},
+		{ingest.ErrNoData, "no_data"},
+		{ingest.ErrUnsupported, "unsupported"},
+	} {
+		if errors.Is(err, k.e) {
+			return k.name
+		}
+	}
+	return "unreadable"
+}
+
+// applyStation fills metadata the source did not carry.
+func applyStation(s *sounding.Sounding, info StationInfo) {
+	if s.StationName == "" {
+		s.StationName = info.Name
+	}
+	if s.LatitudeDeg != s.LatitudeDeg { // NaN
+		s.LatitudeDeg = info.LatitudeDeg
+	}
+	if s.LongitudeDeg != s.LongitudeDeg {
+		s.LongitudeDeg = info.LongitudeDeg
+	}
+	if s.ElevationM != s.ElevationM {
+		s.ElevationM = info.ElevationM
+	}
+}
