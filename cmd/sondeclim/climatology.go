@@ -7,6 +7,10 @@ import (
 	"github.com/sondeclim/sondeclim/queries"
 )
 
+func init() {
+	register("climatology", "print the seasonal mixing-height and surface-inversion climatology of a store", func(e env) command { return &climatologyCmd{env: e} })
+}
+
 // climatologyCmd prints the seasonal climatology of a store.
 type climatologyCmd struct {
 	env

@@ -13,6 +13,10 @@ import (
 	"github.com/sondeclim/sondeclim/queries"
 )
 
+func init() {
+	register("demo", "generate an invented multi-year archive, ingest it and print its seasonal climatology", func(e env) command { return &demoCmd{env: e} })
+}
+
 // demoCmd generates an invented archive, ingests it and prints its
 // seasonal climatology.
 type demoCmd struct {

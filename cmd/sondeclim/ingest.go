@@ -16,6 +16,10 @@ import (
 	"github.com/sondeclim/sondeclim/schema/store"
 )
 
+func init() {
+	register("ingest", "read sounding files into a Parquet store, analysing every sounding", func(e env) command { return &ingestCmd{env: e} })
+}
+
 // ingestCmd reads sounding files into a store.
 type ingestCmd struct {
 	env

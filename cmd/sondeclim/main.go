@@ -44,15 +44,20 @@ type command interface {
 	Run(ctx context.Context, args []string) error
 }
 
-// summaryLine is the one-line description shown in `sondeclim help`.
+// commands holds the subcommands by name. Each subcommand's file
+// registers itself in an init function, so adding a command touches only
+// its own file.
 var commands = map[string]struct {
 	summary string
 	make    func(env) command
-}{
-	"demo":        {"generate an invented multi-year archive, ingest it and print its seasonal climatology", func(e env) command { return &demoCmd{env: e} }},
-	"ingest":      {"read sounding files into a Parquet store, analysing every sounding", func(e env) command { return &ingestCmd{env: e} }},
-	"climatology": {"print the seasonal mixing-height and surface-inversion climatology of a store", func(e env) command { return &climatologyCmd{env: e} }},
-	"query":       {"run SQL over a store's tables", func(e env) command { return &queryCmd{env: e} }},
+}{}
+
+// register adds a subcommand with its one-line summary for `sondeclim help`.
+func register(name, summary string, make func(env) command) {
+	commands[name] = struct {
+		summary string
+		make    func(env) command
+	}{summary, make}
 }
 
 func main() {

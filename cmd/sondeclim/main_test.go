@@ -77,7 +77,12 @@ func TestUsage(t *testing.T) {
 	if code != exitUsage {
 		t.Errorf("query without SQL: exit %d, stderr %q", code, errs)
 	}
-	for _, c := range []string{"demo", "ingest", "climatology", "query"} {
+	code, out, _ = runCmd(t, "schema")
+	if code != exitOK {
+		t.Fatalf("schema: exit %d", code)
+	}
+	golden(t, "schema.md", out)
+	for c := range commands {
 		code, _, errs := runCmd(t, c, "-h")
 		if code != exitOK || !strings.Contains(errs, "Examples:") || !strings.Contains(errs, "Usage: sondeclim "+c) {
 			t.Errorf("%s -h: exit %d, help text %q", c, code, errs)

@@ -9,6 +9,10 @@ import (
 	"github.com/sondeclim/sondeclim/queries"
 )
 
+func init() {
+	register("query", "run SQL over a store's tables", func(e env) command { return &queryCmd{env: e} })
+}
+
 // queryCmd runs SQL over a store.
 type queryCmd struct {
 	env
