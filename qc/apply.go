@@ -1,0 +1,95 @@
+package qc
+
+import (
+	"math"
+
+	"github.com/sondeclim/sondeclim/ingest/sounding"
+)
+
+// Apply returns a copy of s in which every value the analysis must not use
+// is NaN: bad values always, suspect values unless useSuspect is true.
+// Corrected values are replaced by their correction (with status Derived).
+// The copy has the same levels in the same order, so per-level results stay
+// aligned with s and with r.Flags. s is not modified.
+//
+// Dependent values follow the value they derive from:
+//
+//   - a level whose pressure is not usable keeps only its height and wind
+//     (its thermodynamic values cannot be placed);
+//   - an unusable temperature also removes a dewpoint that was derived from
+//     it (T − dewpoint depression), and a corrected temperature recomputes
+//     that dewpoint;
+//   - an unusable dewpoint depression removes the dewpoint;
+//   - a relative humidity between 100 % and the accepted maximum is clipped
+//     to 100 % (METHODS §6 "accept to 105 % and clip").
+//
+// Status entries are left as the source gave them (except Derived for
+// corrected values); r says why a value is NaN. Apply does not look at
+// r.Status: whether the sounding enters statistics at all is the caller's
+// decision (see Report.Usable). A report whose Flags do not match the
+// levels of s (a report of another sounding) changes nothing but the
+// clipping. A nil s gives nil.
+func Apply(s *sounding.Sounding, r Report, useSuspect bool) *sounding.Sounding {
+	if s == nil {
+		return nil
+	}
+	c := *s
+	c.Levels = append([]sounding.Level(nil), s.Levels...)
+	aligned := len(r.Flags) == len(c.Levels)
+	drop := func(f Flag) bool { return f == Bad || (f == Suspect && !useSuspect) }
+	for i := range c.Levels {
+		l := &c.Levels[i]
+		if aligned {
+			applyLevel(l, r.Flags[i], drop)
+		}
+		if l.RelHumidityPct > 100 {
+			l.RelHumidityPct = 100
+		}
+	}
+	if aligned {
+		for _, f := range r.Findings {
+			if f.Severity == Corrected && f.Level >= 0 && f.Level < len(c.Levels) && f.Var == sounding.VarTemperature &&
+				r.Flags[f.Level][f.Var] == Corrected {
+				l := &c.Levels[f.Level]
+				l.TemperatureK = f.NewValue
+				l.Status[sounding.VarTemperature] = sounding.Derived
+				if l.Status[sounding.VarDewpointDepression] == sounding.Reported && !math.IsNaN(l.DewpointDepressionK) {
+					l.DewpointK = f.NewValue - l.DewpointDepressionK
+				}
+			}
+		}
+	}
+	return &c
+}
+
+// applyLevel sets the values of l that drop rejects to NaN.
+func applyLevel(l *sounding.Level, fl [sounding.NumVars]Flag, drop func(Flag) bool) {
+	if drop(fl[sounding.VarPressure]) {
+		l.PressurePa, l.TemperatureK, l.DewpointK = nan, nan, nan
+		l.DewpointDepressionK, l.RelHumidityPct = nan, nan
+	}
+	if drop(fl[sounding.VarHeight]) {
+		l.HeightM = nan
+	}
+	if drop(fl[sounding.VarTemperature]) {
+		l.TemperatureK = nan
+		if l.Status[sounding.VarDewpointDepression] == sounding.Reported {
+			l.DewpointK = nan
+		}
+	}
+	if drop(fl[sounding.VarDewpointDepression]) {
+		l.DewpointDepressionK, l.DewpointK = nan, nan
+	}
+	if drop(fl[sounding.VarRelHumidity]) {
+		l.RelHumidityPct = nan
+	}
+	if drop(fl[sounding.VarWindDirection]) {
+		l.WindDirectionDeg = nan
+	}
+	if drop(fl[sounding.VarWindSpeed]) {
+		l.WindSpeedMS = nan
+	}
+	if drop(fl[sounding.VarElapsedTime]) {
+		l.ElapsedS = nan
+	}
+}

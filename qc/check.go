@@ -1,0 +1,244 @@
+package qc
+
+import (
+	"fmt"
+	"math"
+
+	"github.com/sondeclim/sondeclim/ingest/sounding"
+)
+
+// Check runs every quality-control check on s with the thresholds of cfg
+// and returns the report. It is a pure function of s and cfg: s is not
+// modified and no other sounding is consulted. It never panics on input:
+// NaN values, an empty sounding, one level or unsorted levels give
+// findings, not failures. A nil s is rejected as empty.
+//
+// The checks run in this order, each seeing the values earlier ones
+// flagged (bad or suspect) as missing and corrected values as corrected:
+// structure; the archive's removed codes; gross limits, dewpoint above
+// temperature and near-surface wind; pressure order; hydrostatic
+// consistency; height order; temperature spikes; superadiabatic layers;
+// cold humidity; surface pressure against elevation; coverage. A value gets
+// at most one finding, from the first check that flags it.
+func Check(s *sounding.Sounding, cfg Config) Report {
+	st := newState(s, cfg)
+	if st.structure() {
+		st.upstream()
+		st.gross()
+		st.pressureOrder()
+		st.hydrostatic()
+		st.heightOrder()
+		st.spikes()
+		st.superadiabatic()
+		st.coldHumidity()
+		st.surfacePressure()
+		st.coverage()
+		st.mostlyBad()
+	}
+	st.finish()
+	return st.rep
+}
+
+// state is the working state of one Check call.
+type state struct {
+	s   *sounding.Sounding
+	cfg Config
+	rep Report
+	// Working values, indexed like s.Levels: NaN where missing or already
+	// flagged, the new value where corrected. p in Pa, z in gpm (reported
+	// heights only), t and td in K, dpd in K.
+	p, z, t, td, dpd []float64
+	elev             float64 // station elevation, gpm; NaN if unknown
+	surface          int     // index of the first surface level, −1 if none
+}
+
+func newState(s *sounding.Sounding, cfg Config) *state {
+	st := &state{s: s, cfg: cfg, elev: math.NaN(), surface: -1}
+	if s == nil {
+		return st
+	}
+	n := len(s.Levels)
+	st.rep.Flags = make([][sounding.NumVars]Flag, n)
+	buf := make([]float64, 5*n)
+	st.p, st.z, st.t, st.td, st.dpd = buf[:n], buf[n:2*n], buf[2*n:3*n], buf[3*n:4*n], buf[4*n:]
+	for i := range s.Levels {
+		l := &s.Levels[i]
+		st.p[i] = finite(l.PressurePa)
+		st.z[i] = math.NaN()
+		if l.Status[sounding.VarHeight] == sounding.Reported {
+			st.z[i] = finite(l.HeightM)
+		}
+		st.t[i] = finite(l.TemperatureK)
+		st.td[i] = finite(l.DewpointK)
+		st.dpd[i] = finite(l.DewpointDepressionK)
+		for v := range sounding.NumVars {
+			if math.IsNaN(value(l, v)) {
+				st.rep.Flags[i][v] = Missing
+			}
+		}
+		if l.Kind == sounding.KindSurface && st.surface < 0 {
+			st.surface = i
+		}
+	}
+	st.elev = finite(s.ElevationM)
+	if math.IsNaN(st.elev) && st.surface >= 0 {
+		st.elev = st.z[st.surface]
+	}
+	return st
+}
+
+// finite returns x, or NaN when x is ±Inf.
+func finite(x float64) float64 {
+	if math.IsInf(x, 0) {
+		return math.NaN()
+	}
+	return x
+}
+
+// value returns the level's value of variable v in SI units.
+func value(l *sounding.Level, v sounding.Var) float64 {
+	switch v {
+	case sounding.VarPressure:
+		return l.PressurePa
+	case sounding.VarHeight:
+		return l.HeightM
+	case sounding.VarTemperature:
+		return l.TemperatureK
+	case sounding.VarRelHumidity:
+		return l.RelHumidityPct
+	case sounding.VarDewpointDepression:
+		if math.IsNaN(l.DewpointDepressionK) && !math.IsNaN(l.DewpointK) && !math.IsNaN(l.TemperatureK) {
+			return l.TemperatureK - l.DewpointK // dewpoint given directly
+		}
+		return l.DewpointDepressionK
+	case sounding.VarWindDirection:
+		return l.WindDirectionDeg
+	case sounding.VarWindSpeed:
+		return l.WindSpeedMS
+	case sounding.VarElapsedTime:
+		return l.ElapsedS
+	}
+	return math.NaN()
+}
+
+// flag records a finding on (level, v) unless that value already has one,
+// sets its flag and updates the working values: a bad or suspect value
+// becomes missing for the later checks, a corrected one takes newValue.
+// A bad pressure removes the whole level. It reports whether the finding
+// was recorded.
+func (st *state) flag(level int, v sounding.Var, sev Flag, check string, val, newValue float64, format string, a ...any) bool {
+	f := Finding{Level: level, Var: v, Check: check, Severity: sev, Value: val, NewValue: newValue,
+		Message: fmt.Sprintf(format, a...)}
+	if level < 0 || v >= AllVars {
+		st.rep.Findings = append(st.rep.Findings, f)
+		return true
+	}
+	if cur := st.rep.Flags[level][v]; cur != Good && !(cur == Missing && check == CheckUpstream) {
+		return false
+	}
+	if sev != Corrected {
+		f.NewValue = math.NaN()
+	}
+	st.rep.Findings = append(st.rep.Findings, f)
+	st.rep.Flags[level][v] = sev
+	switch v {
+	case sounding.VarPressure:
+		if sev != Corrected {
+			st.p[level], st.z[level], st.t[level], st.td[level], st.dpd[level] = nan, nan, nan, nan, nan
+		}
+	case sounding.VarHeight:
+		st.z[level] = pick(sev, newValue)
+	case sounding.VarTemperature:
+		st.t[level] = pick(sev, newValue)
+		if sev == Corrected && !math.IsNaN(st.dpd[level]) {
+			st.td[level] = newValue - st.dpd[level]
+		} else if sev != Corrected && st.s.Levels[level].Status[sounding.VarDewpointDepression] == sounding.Reported {
+			st.td[level] = nan // derived from the bad temperature
+		}
+	case sounding.VarDewpointDepression:
+		st.dpd[level], st.td[level] = nan, nan
+	}
+	return true
+}
+
+var nan = math.NaN()
+
+func pick(sev Flag, newValue float64) float64 {
+	if sev == Corrected {
+		return newValue
+	}
+	return nan
+}
+
+// sev returns Bad when bad is true, else Suspect.
+func sev(bad bool) Flag {
+	if bad {
+		return Bad
+	}
+	return Suspect
+}
+
+// routine reports whether findings of check say nothing new about the
+// sounding: values the archive itself removed, and humidity at very cold
+// temperatures, which nearly every sounding has. They are listed but do
+// not change the status or the counts.
+func routine(check string) bool { return check == CheckUpstream || check == CheckColdHumidity }
+
+// finish sets the status when no check set one: suspect when any finding
+// other than a routine one exists, else ok.
+func (st *state) finish() {
+	if st.rep.Status != "" {
+		return
+	}
+	st.rep.Status = StatusOK
+	for _, f := range st.rep.Findings {
+		if !routine(f.Check) {
+			st.rep.Status = StatusSuspect
+			return
+		}
+	}
+}
+
+// reject sets a rejected status with a sounding-wide structure finding.
+func (st *state) reject(reason, format string, a ...any) {
+	st.flag(-1, AllVars, Bad, CheckStructure, nan, nan, format, a...)
+	st.rep.Status = "rejected:" + reason
+}
+
+// structure checks the sounding as a whole and reports whether the other
+// checks can run.
+func (st *state) structure() bool {
+	s := st.s
+	switch {
+	case s == nil || len(s.Levels) == 0:
+		st.reject("empty", "sounding has no levels")
+		return false
+	case s.DeclaredLevels >= 0 && s.DeclaredLevels != len(s.Levels):
+		st.reject("level_count", "header declares %d levels, %d present", s.DeclaredLevels, len(s.Levels))
+		return false
+	case st.cfg.RequireSurface && st.surface < 0:
+		st.reject("no_surface", "no surface level")
+		return false
+	case st.surface < 0:
+		st.flag(-1, AllVars, Suspect, CheckStructure, nan, nan, "no surface level; the lowest level stands in for it")
+	}
+	for _, p := range st.p {
+		if !math.IsNaN(p) {
+			return true
+		}
+	}
+	st.reject("no_pressure", "no level has a pressure")
+	return false
+}
+
+// upstream flags the values the source's own quality control removed as
+// bad ("bad (upstream)", METHODS §6).
+func (st *state) upstream() {
+	for i := range st.s.Levels {
+		for v := range sounding.NumVars {
+			if st.s.Levels[i].Status[v] == sounding.RemovedUpstream {
+				st.flag(i, v, Bad, CheckUpstream, nan, nan, "%s removed by the source's own quality control", v)
+			}
+		}
+	}
+}

@@ -1,0 +1,240 @@
+package qc
+
+import (
+	"math"
+
+	"github.com/sondeclim/sondeclim/analyze/thermo"
+	"github.com/sondeclim/sondeclim/ingest/sounding"
+)
+
+// layer is one hydrostatic layer between two consecutive levels with
+// reported heights (anchors a below, b above).
+type layer struct {
+	a, b      int
+	thickness float64 // m, hypsometric from the temperatures
+	residual  float64 // m, reported minus hypsometric thickness
+	tol       float64 // m
+	evaluated bool    // both anchors have a temperature
+	explained bool    // a finding already accounts for its failure
+}
+
+func (l *layer) fails() bool { return l.evaluated && math.Abs(l.residual) > l.tol }
+
+// virtualT returns the virtual temperature in K for temperature tK,
+// dewpoint tdK (NaN: dry) and pressure pPa.
+func (st *state) virtualT(tK, tdK, pPa float64) float64 {
+	if math.IsNaN(tdK) {
+		return tK
+	}
+	c := st.cfg.Constants
+	w := thermo.MixingRatio(thermo.VapourPressureFromDewpoint(tdK, st.cfg.SatVap), pPa, c.Epsilon)
+	if math.IsNaN(w) {
+		return tK
+	}
+	return thermo.VirtualTemperature(tK, w, c.Epsilon)
+}
+
+// thickness returns the hypsometric thickness in m from level a up to level
+// b, integrating Tv by the trapezoid rule in ln p through every level
+// between them that has a pressure and a temperature (METHODS §1.6). t and
+// td are the working temperatures (so a trial value can be substituted).
+// NaN when a or b has no temperature.
+func (st *state) thickness(a, b int, t, td []float64) float64 {
+	if math.IsNaN(t[a]) || math.IsNaN(t[b]) {
+		return nan
+	}
+	c := st.cfg.Constants
+	var sum float64
+	prev := a
+	for i := a + 1; i <= b; i++ {
+		if math.IsNaN(st.p[i]) || math.IsNaN(t[i]) {
+			continue
+		}
+		tv1 := st.virtualT(t[prev], td[prev], st.p[prev])
+		tv2 := st.virtualT(t[i], td[i], st.p[i])
+		sum += thermo.Thickness(st.p[prev], st.p[i], tv1, tv2, c.Rd, c.G0)
+		prev = i
+	}
+	return sum
+}
+
+// evaluate fills l's thickness, residual and tolerance from t and td.
+func (st *state) evaluate(l *layer, t, td []float64) {
+	l.thickness = st.thickness(l.a, l.b, t, td)
+	l.evaluated = !math.IsNaN(l.thickness)
+	l.residual = (st.z[l.b] - st.z[l.a]) - l.thickness
+	l.tol = math.Max(st.cfg.HydrostaticTolM, st.cfg.HydrostaticTolFrac*math.Abs(l.thickness))
+}
+
+// hydrostatic compares the reported thickness of every layer between
+// consecutive levels with reported heights (and pressures) with the
+// hypsometric thickness from the temperatures (and dewpoints) between
+// them,
+//
+//	r = (Z_b − Z_a) − (Rd/g0) ∫ Tv d ln p,
+//
+// and fails a layer when |r| > max(HydrostaticTolM, HydrostaticTolFrac ×
+// thickness) (METHODS §6 "Hydrostatic"). Levels without a reported height
+// (significant levels) contribute their temperatures to the integral but do
+// not split layers. The residual pattern then assigns the blame (NCEP
+// complex quality control, Collins 2001, as summarised in METHODS §6):
+//
+//   - Two failing layers sharing a level, with residuals of opposite sign
+//     whose sum (the residual of the merged layer, which does not depend on
+//     the shared height) passes: the shared height is bad. The message gives
+//     the hydrostatic estimate.
+//   - Two failing layers sharing a level, with residuals of the same sign:
+//     the shared temperature is wrong. If reversing its sign in °C (a
+//     common coding error) makes both layers pass, it is corrected to that
+//     value; otherwise it is bad.
+//   - A failing layer that no pattern explains makes one value suspect,
+//     chosen from which neighbouring layers pass (see singleLayer).
+func (st *state) hydrostatic() {
+	var anchors []int
+	for i := range st.p {
+		if !math.IsNaN(st.p[i]) && !math.IsNaN(st.z[i]) {
+			anchors = append(anchors, i)
+		}
+	}
+	if len(anchors) < 2 {
+		return
+	}
+	layers := make([]layer, len(anchors)-1)
+	for j := range layers {
+		layers[j] = layer{a: anchors[j], b: anchors[j+1]}
+		st.evaluate(&layers[j], st.t, st.td)
+	}
+	for j := 1; j < len(layers); j++ {
+		lo, hi := &layers[j-1], &layers[j]
+		if !lo.fails() || !hi.fails() || lo.explained || hi.explained {
+			continue
+		}
+		k := lo.b
+		if (lo.residual > 0) != (hi.residual > 0) {
+			merged := layer{a: lo.a, b: hi.b}
+			st.evaluate(&merged, st.t, st.td)
+			if merged.fails() {
+				continue
+			}
+			lo.explained, hi.explained = true, true
+			st.flag(k, sounding.VarHeight, Bad, CheckHydrostatic, st.z[k], nan,
+				"height %.0f gpm: residual %+.0f m in the layer below and %+.0f m above (tolerance %.0f m); the temperatures give about %.0f gpm",
+				st.z[k], lo.residual, hi.residual, lo.tol, st.z[k]-lo.residual)
+			continue
+		}
+		lo.explained, hi.explained = true, true
+		if tk, ok := st.signFlip(k, lo, hi); ok {
+			st.flag(k, sounding.VarTemperature, Corrected, CheckHydrostatic, st.t[k], tk,
+				"temperature %.1f °C: residuals %+.0f m and %+.0f m in the two layers sharing it (tolerance %.0f m) vanish with the sign reversed; corrected to %.1f °C",
+				st.t[k]-c0, lo.residual, hi.residual, lo.tol, tk-c0)
+			continue
+		}
+		st.flag(k, sounding.VarTemperature, Bad, CheckHydrostatic, st.t[k], nan,
+			"temperature %.1f °C: residuals %+.0f m and %+.0f m of the same sign in the two layers sharing it (tolerance %.0f m)",
+			st.t[k]-c0, lo.residual, hi.residual, lo.tol)
+	}
+	for j := range layers {
+		if l := &layers[j]; l.fails() && !l.explained {
+			st.singleLayer(layers, j)
+		}
+	}
+}
+
+// passes reports whether layers[j] exists, was evaluated and passed.
+func passes(layers []layer, j int) bool {
+	return j >= 0 && j < len(layers) && layers[j].evaluated && !layers[j].fails()
+}
+
+// singleLayer flags the suspect value of a failing layer that no two-layer
+// pattern explains. A height at an anchor shared with a passing layer is
+// vouched for by that layer, so:
+//
+//   - lower neighbour missing, upper one passing: the lower height;
+//   - upper neighbour missing, lower one passing: the upper height;
+//   - both neighbours passing: a temperature inside the layer, the one
+//     that departs most from the ln p interpolation between its
+//     neighbours;
+//   - otherwise (no usable neighbour): the upper height.
+func (st *state) singleLayer(layers []layer, j int) {
+	l := &layers[j]
+	below, above := passes(layers, j-1), passes(layers, j+1)
+	lowerKnown := j > 0 && layers[j-1].evaluated
+	upperKnown := j+1 < len(layers) && layers[j+1].evaluated
+	msg := "layer %.1f–%.1f hPa: residual %+.0f m exceeds the tolerance %.0f m; %s"
+	args := []any{st.p[l.a] / 100, st.p[l.b] / 100, l.residual, l.tol}
+	switch {
+	case !lowerKnown && above:
+		st.flag(l.a, sounding.VarHeight, Suspect, CheckHydrostatic, st.z[l.a], nan, msg,
+			append(args, "the layer above passes, so this height (the lowest) is the likely fault")...)
+		return
+	case below && above:
+		if k := st.worstInterior(l.a, l.b); k >= 0 {
+			st.flag(k, sounding.VarTemperature, Suspect, CheckHydrostatic, st.t[k], nan, msg,
+				append(args, "the layers below and above pass, so a temperature inside it is the likely fault")...)
+			return
+		}
+	case !upperKnown && below:
+		st.flag(l.b, sounding.VarHeight, Suspect, CheckHydrostatic, st.z[l.b], nan, msg,
+			append(args, "the layer below passes, so this height (the highest) is the likely fault")...)
+		return
+	}
+	st.flag(l.b, sounding.VarHeight, Suspect, CheckHydrostatic, st.z[l.b], nan, msg,
+		append(args, "one layer cannot tell a bad height from a bad temperature")...)
+}
+
+// worstInterior returns the level strictly between a and b with a usable
+// temperature that departs most from the ln p interpolation between its
+// neighbouring temperature levels, or −1 when there is none.
+func (st *state) worstInterior(a, b int) int {
+	best, worst := -1, -1.0
+	prev := a
+	for i := a + 1; i < b; i++ {
+		if math.IsNaN(st.p[i]) || math.IsNaN(st.t[i]) {
+			continue
+		}
+		next := -1
+		for k := i + 1; k <= b; k++ {
+			if !math.IsNaN(st.p[k]) && !math.IsNaN(st.t[k]) {
+				next = k
+				break
+			}
+		}
+		if next < 0 {
+			break
+		}
+		f := math.Log(st.p[prev]/st.p[i]) / math.Log(st.p[prev]/st.p[next])
+		if d := math.Abs(st.t[i] - (st.t[prev] + f*(st.t[next]-st.t[prev]))); d > worst {
+			best, worst = i, d
+		}
+		prev = i
+	}
+	return best
+}
+
+// signFlip tries level k's temperature with its sign reversed in °C in
+// both layers and returns the new temperature when both then pass.
+func (st *state) signFlip(k int, lo, hi *layer) (float64, bool) {
+	tk := st.t[k]
+	if math.IsNaN(tk) || math.Abs(tk-c0) < 1 {
+		return nan, false
+	}
+	flipped := 2*c0 - tk
+	if outside(flipped, st.cfg.MinTemperatureK, st.cfg.MaxTemperatureK) {
+		return nan, false
+	}
+	t := append([]float64(nil), st.t...)
+	td := append([]float64(nil), st.td...)
+	t[k] = flipped
+	if !math.IsNaN(st.dpd[k]) {
+		td[k] = flipped - st.dpd[k]
+	} else {
+		td[k] = nan
+	}
+	a, b := layer{a: lo.a, b: lo.b}, layer{a: hi.a, b: hi.b}
+	st.evaluate(&a, t, td)
+	st.evaluate(&b, t, td)
+	if a.evaluated && b.evaluated && !a.fails() && !b.fails() {
+		return flipped, true
+	}
+	return nan, false
+}

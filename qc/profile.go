@@ -1,0 +1,243 @@
+package qc
+
+import (
+	"math"
+
+	"github.com/sondeclim/sondeclim/analyze/thermo"
+	"github.com/sondeclim/sondeclim/ingest/sounding"
+)
+
+// thermoLevels returns the indices of the levels with a usable pressure and
+// temperature, in source order (pressures strictly decreasing after
+// pressureOrder).
+func (st *state) thermoLevels() []int {
+	var idx []int
+	for i := range st.p {
+		if !math.IsNaN(st.p[i]) && !math.IsNaN(st.t[i]) {
+			idx = append(idx, i)
+		}
+	}
+	return idx
+}
+
+// spikes flags isolated temperature spikes (METHODS §6 "Vertical T
+// spike"): a temperature more than SpikeK warmer (or colder) than the
+// ln p interpolation between its neighbouring levels with temperatures,
+// and warmer (colder) than both of them, is suspect. The first and last
+// levels have one neighbour and are not tested.
+func (st *state) spikes() {
+	idx := st.thermoLevels()
+	for n := 1; n+1 < len(idx); n++ {
+		a, k, b := idx[n-1], idx[n], idx[n+1]
+		f := math.Log(st.p[a]/st.p[k]) / math.Log(st.p[a]/st.p[b])
+		d := st.t[k] - (st.t[a] + f*(st.t[b]-st.t[a]))
+		up, dn := st.t[k]-st.t[a], st.t[k]-st.t[b]
+		if math.Abs(d) > st.cfg.SpikeK && (up > 0) == (d > 0) && (dn > 0) == (d > 0) && up != 0 && dn != 0 {
+			st.flag(k, sounding.VarTemperature, Suspect, CheckSpike, st.t[k], nan,
+				"temperature %.1f °C departs %+.1f K from the interpolation between %.1f °C at %.1f hPa and %.1f °C at %.1f hPa",
+				st.t[k]-c0, d, st.t[a]-c0, st.p[a]/100, st.t[b]-c0, st.p[b]/100)
+			n++ // the next level's neighbour was the spike
+		}
+	}
+}
+
+// heightsAGL returns hypsometric heights above the lowest level of idx, in
+// m, for the levels of idx, plus the height of that lowest level above the
+// station (0 when unknown).
+func (st *state) heightsAGL(idx []int) []float64 {
+	z := make([]float64, len(idx))
+	if len(idx) == 0 {
+		return z
+	}
+	if base := st.z[idx[0]] - st.elev; base > 0 {
+		z[0] = base
+	}
+	for n := 1; n < len(idx); n++ {
+		z[n] = z[n-1] + st.thickness(idx[n-1], idx[n], st.t, st.td)
+	}
+	return z
+}
+
+// superadiabatic flags layers that cool with height faster than
+// SuspectLapseKPerM (suspect) or BadLapseKPerM (bad) above the surface
+// layer (METHODS §6 "Superadiabatic"). Layers start at each level with a
+// temperature whose height above the station exceeds SuperadiabaticMinAGLM
+// and whose pressure is SuperadiabaticMinDepthPa below the lowest pressure,
+// and reach up to the first level at least SuperadiabaticLayerPa higher;
+// thicknesses are hypsometric. The finding is on the layer's upper
+// temperature, and the next layer starts there.
+func (st *state) superadiabatic() {
+	c := st.cfg
+	idx := st.thermoLevels()
+	if len(idx) < 2 {
+		return
+	}
+	z := st.heightsAGL(idx)
+	pLow := st.p[idx[0]]
+	for n := 0; n+1 < len(idx); n++ {
+		a := idx[n]
+		if z[n] < c.SuperadiabaticMinAGLM || st.p[a] > pLow-c.SuperadiabaticMinDepthPa {
+			continue
+		}
+		m := n + 1
+		for m < len(idx) && st.p[a]-st.p[idx[m]] < c.SuperadiabaticLayerPa {
+			m++
+		}
+		if m == len(idx) {
+			return
+		}
+		b := idx[m]
+		dz := z[m] - z[n]
+		lapse := -(st.t[b] - st.t[a]) / dz
+		if dz > 0 && lapse > c.SuspectLapseKPerM {
+			st.flag(b, sounding.VarTemperature, sev(lapse > c.BadLapseKPerM), CheckSuperadiabatic, st.t[b], nan,
+				"layer %.1f–%.1f hPa (%.0f m deep, base %.0f m above ground) cools %.1f K/km",
+				st.p[a]/100, st.p[b]/100, dz, z[n], lapse*1000)
+			n = m - 1
+		}
+	}
+}
+
+// coldHumidity marks humidity reported where the temperature is below
+// ColdHumidityK as suspect (METHODS §6 "Cold-humidity"). Every such value
+// is flagged, but one finding (on the lowest such level) summarises them,
+// since the condition is routine above the mid troposphere.
+func (st *state) coldHumidity() {
+	if math.IsNaN(st.cfg.ColdHumidityK) {
+		return
+	}
+	first, count := -1, 0
+	for i := range st.s.Levels {
+		if !(st.t[i] < st.cfg.ColdHumidityK) {
+			continue
+		}
+		hit := false
+		for _, v := range [...]sounding.Var{sounding.VarDewpointDepression, sounding.VarRelHumidity} {
+			if st.rep.Flags[i][v] == Good && !math.IsNaN(value(&st.s.Levels[i], v)) {
+				hit = true
+				if first >= 0 {
+					st.rep.Flags[i][v] = Suspect
+				}
+			}
+		}
+		if hit {
+			count++
+			if first < 0 {
+				first = i
+			}
+		}
+	}
+	if first < 0 {
+		return
+	}
+	v := sounding.VarDewpointDepression
+	if st.rep.Flags[first][v] != Good {
+		v = sounding.VarRelHumidity
+	}
+	st.flag(first, v, Suspect, CheckColdHumidity, value(&st.s.Levels[first], v), nan,
+		"humidity at %d level(s) from %.1f hPa (%.1f °C) up, colder than %.0f °C, is unreliable",
+		count, st.p[first]/100, st.t[first]-c0, st.cfg.ColdHumidityK-c0)
+	if v == sounding.VarDewpointDepression && st.rep.Flags[first][sounding.VarRelHumidity] == Good &&
+		!math.IsNaN(st.s.Levels[first].RelHumidityPct) {
+		st.rep.Flags[first][sounding.VarRelHumidity] = Suspect
+	}
+}
+
+// surfacePressure compares the surface pressure with the U.S. Standard
+// Atmosphere 1976 pressure at the station elevation (METHODS §1.7, §6);
+// a difference above MaxSurfacePressureDiffPa is suspect. Skipped when the
+// surface level has no pressure or the elevation is unknown.
+func (st *state) surfacePressure() {
+	if st.surface < 0 {
+		return
+	}
+	p := st.p[st.surface]
+	std := thermo.StandardPressure(st.elev)
+	if math.IsNaN(p) || math.IsNaN(std) {
+		return
+	}
+	if d := p - std; math.Abs(d) > st.cfg.MaxSurfacePressureDiffPa {
+		st.flag(st.surface, sounding.VarPressure, Suspect, CheckSurfPressure, p, nan,
+			"surface pressure %.1f hPa differs by %+.1f hPa from the standard atmosphere at the station elevation %.0f m (%.1f hPa)",
+			p/100, d/100, st.elev, std/100)
+	}
+}
+
+// usableThermo reports whether level i's pressure and temperature may be
+// used (not missing and not bad).
+func (st *state) usableThermo(i int) bool {
+	fp, ft := st.rep.Flags[i][sounding.VarPressure], st.rep.Flags[i][sounding.VarTemperature]
+	return fp != Missing && fp != Bad && ft != Missing && ft != Bad
+}
+
+// coverage decides whether the sounding covers enough of the lower
+// troposphere for boundary-layer analysis (METHODS §6 "Depth / coverage"):
+// at least CoverageMinLevels levels with usable pressure and temperature
+// at pressures ≥ CoverageLowPa, and usable temperatures up to
+// CoverageTopPa or CoverageTopAGLM above the station (reported heights,
+// else hypsometric from the lowest level). Otherwise the status is
+// insufficient:few_low_levels or insufficient:shallow.
+func (st *state) coverage() {
+	c := st.cfg
+	var idx []int
+	low := 0
+	for i := range st.s.Levels {
+		if st.usableThermo(i) {
+			idx = append(idx, i)
+			if st.s.Levels[i].PressurePa >= c.CoverageLowPa {
+				low++
+			}
+		}
+	}
+	if low < c.CoverageMinLevels {
+		st.flag(-1, AllVars, Suspect, CheckCoverage, nan, nan,
+			"%d level(s) with pressure and temperature at or below %.0f hPa, %d needed",
+			low, c.CoverageLowPa/100, c.CoverageMinLevels)
+		st.rep.Status = "insufficient:few_low_levels"
+		return
+	}
+	top := idx[len(idx)-1]
+	pTop := st.s.Levels[top].PressurePa
+	for _, i := range idx {
+		pTop = math.Min(pTop, st.s.Levels[i].PressurePa)
+	}
+	if pTop <= c.CoverageTopPa {
+		return
+	}
+	agl := st.s.Levels[top].HeightM - st.elev
+	if math.IsNaN(agl) {
+		// Hypsometric over the usable levels with the original values.
+		agl = 0
+		for n := 1; n < len(idx); n++ {
+			a, b := idx[n-1], idx[n]
+			la, lb := &st.s.Levels[a], &st.s.Levels[b]
+			agl += thermo.Thickness(la.PressurePa, lb.PressurePa, la.TemperatureK, lb.TemperatureK, c.Constants.Rd, c.Constants.G0)
+		}
+	}
+	if agl >= c.CoverageTopAGLM {
+		return
+	}
+	st.flag(-1, AllVars, Suspect, CheckCoverage, nan, nan,
+		"usable temperatures reach only %.1f hPa (%.0f m above ground); %.0f hPa or %.0f m needed",
+		pTop/100, agl, c.CoverageTopPa/100, c.CoverageTopAGLM)
+	st.rep.Status = "insufficient:shallow"
+}
+
+// mostlyBad rejects a sounding in which more than MaxBadTemperatureFrac of
+// the reported temperatures are bad.
+func (st *state) mostlyBad() {
+	reported, bad := 0, 0
+	for i := range st.s.Levels {
+		if st.s.Levels[i].Status[sounding.VarTemperature] == sounding.Missing {
+			continue
+		}
+		reported++
+		if st.rep.Flags[i][sounding.VarTemperature] == Bad {
+			bad++
+		}
+	}
+	if reported > 0 && float64(bad) > st.cfg.MaxBadTemperatureFrac*float64(reported) {
+		st.reject("mostly_bad", "%d of %d temperatures are bad (more than %.0f %%)",
+			bad, reported, 100*st.cfg.MaxBadTemperatureFrac)
+	}
+}
