@@ -34,6 +34,11 @@ type Config struct {
 	// (common practice, no source: above the highest sea-level pressures
 	// observed).
 	MinPressurePa, MaxPressurePa float64
+	// PressureResolutionPa: a level whose pressure is out of the
+	// decreasing order by no more than this is within the sensor's
+	// resolution and is not flagged (high-resolution sondes report 0.1 hPa
+	// and often repeat a value). Default 10 Pa (common practice, no source).
+	PressureResolutionPa float64
 	// MinHeightM and MaxHeightM bound a plausible geopotential height.
 	// Defaults −500 gpm and 60 000 gpm (common practice, no source: below
 	// the lowest land surface, above balloon burst heights).
@@ -122,7 +127,7 @@ func DefaultConfig() Config {
 		SatVap:         thermo.Bolton,
 		RequireSurface: false,
 
-		MinPressurePa: 0, MaxPressurePa: 110000,
+		MinPressurePa: 0, MaxPressurePa: 110000, PressureResolutionPa: 10,
 		MinHeightM: -500, MaxHeightM: 60000,
 		MinTemperatureK: c0 - 95, MaxTemperatureK: c0 + 60,
 		MaxDewpointDepressionK: 70,

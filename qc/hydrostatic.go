@@ -63,7 +63,23 @@ func (st *state) evaluate(l *layer, t, td []float64) {
 	l.thickness = st.thickness(l.a, l.b, t, td)
 	l.evaluated = !math.IsNaN(l.thickness)
 	l.residual = (st.z[l.b] - st.z[l.a]) - l.thickness
-	l.tol = math.Max(st.cfg.HydrostaticTolM, st.cfg.HydrostaticTolFrac*math.Abs(l.thickness))
+	l.tol = math.Max(st.cfg.HydrostaticTolM, st.cfg.HydrostaticTolFrac*math.Abs(l.thickness)) + st.readingTol(l, t)
+}
+
+// readingTol is the part of a layer's thickness the pressure readings
+// cannot resolve: a reading uncertain by δp (PressureResolutionPa) at each
+// end shifts the hypsometric thickness by about (Rd T/g0)(δp/p_a + δp/p_b)
+// (differentiating the hypsometric equation, METHODS §1.6). It matters
+// only for high-resolution profiles, whose adjacent levels are a fraction
+// of a hPa apart; for archive levels it is a few metres at most.
+func (st *state) readingTol(l *layer, t []float64) float64 {
+	dp := st.cfg.PressureResolutionPa
+	if !(dp > 0) {
+		return 0
+	}
+	c := st.cfg.Constants
+	tm := (t[l.a] + t[l.b]) / 2
+	return c.Rd * tm / c.G0 * (dp/st.p[l.a] + dp/st.p[l.b])
 }
 
 // hydrostatic compares the reported thickness of every layer between
@@ -74,7 +90,8 @@ func (st *state) evaluate(l *layer, t, td []float64) {
 //	r = (Z_b − Z_a) − (Rd/g0) ∫ Tv d ln p,
 //
 // and fails a layer when |r| > max(HydrostaticTolM, HydrostaticTolFrac ×
-// thickness) (METHODS §6 "Hydrostatic"). Levels without a reported height
+// thickness) (METHODS §6 "Hydrostatic") plus the thickness the pressure
+// readings cannot resolve (readingTol). Levels without a reported height
 // (significant levels) contribute their temperatures to the integral but do
 // not split layers. The residual pattern then assigns the blame (NCEP
 // complex quality control, Collins 2001, as summarised in METHODS §6):

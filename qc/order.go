@@ -61,6 +61,9 @@ func (st *state) pressureOrder() {
 			last = i
 			continue
 		}
+		if st.withinResolution(i, last, nextKept(idx, keep, pos)) {
+			continue // out of order only within the sensor's resolution
+		}
 		why := "its height does not settle the order"
 		if last >= 0 && st.p[i] == st.p[last] && sameLevel(&st.s.Levels[i], &st.s.Levels[last]) {
 			why = "it repeats the previous level exactly"
@@ -145,4 +148,16 @@ func (st *state) heightRun(idx []int) {
 				"height %.0f gpm breaks the increasing order", st.z[i])
 		}
 	}
+}
+
+// withinResolution reports whether level i, left out of the decreasing
+// run, lies within the pressure resolution of the kept levels around it
+// (last before, next after; −1 when none): a repeated or wavering reading
+// of a high-resolution sonde rather than a misplaced level.
+func (st *state) withinResolution(i, last, next int) bool {
+	tol := st.cfg.PressureResolutionPa
+	if !(tol > 0) || last < 0 || next < 0 {
+		return false
+	}
+	return st.p[i] <= st.p[last]+tol && st.p[i] >= st.p[next]-tol
 }
