@@ -18,7 +18,7 @@ type TableDoc struct {
 
 // Tables returns the documentation of the store's tables, in the order
 // soundings, levels, inversions, mixed_layers, mixing_heights,
-// afternoon_mixing.
+// afternoon_mixing, qc_findings.
 func Tables() ([]TableDoc, error) {
 	var out []TableDoc
 	add := func(name, desc string, cols []Column, err error) error {
@@ -50,6 +50,10 @@ func Tables() ([]TableDoc, error) {
 	}
 	a, err := Columns[AfternoonRow]()
 	if err := add(TableAfternoon, "One row per station and local day with a morning ascent: the afternoon mixing height from the morning profile and the day's maximum temperature (Holzworth).", a, err); err != nil {
+		return nil, err
+	}
+	q, err := Columns[QCFindingRow]()
+	if err := add(TableQCFindings, "One row per quality-control finding: the check, the level and variable, the severity, the value and what was wrong. Soundings without findings have no rows.", q, err); err != nil {
 		return nil, err
 	}
 	return out, nil

@@ -49,6 +49,10 @@ type SoundingRow struct {
 	SurfaceThetaK       float64 `col:"surface_theta_k" doc:"K; potential temperature at the surface level"`
 	SurfaceWindSpeedMS  float64 `col:"surface_wind_speed_ms" doc:"m/s; wind speed at the surface level"`
 
+	QCStatus       string `col:"qc_status" doc:"quality-control status: ok, suspect, insufficient:<reason> or rejected:<reason> (see qc_findings)"`
+	QCBad          int32  `col:"qc_findings_bad" doc:"count; findings of severity bad (those values are not used)"`
+	QCSuspect      int32  `col:"qc_findings_suspect" doc:"count; findings of severity suspect (not used unless ingested with --use-suspect)"`
+	QCCorrected    int32  `col:"qc_findings_corrected" doc:"count; values corrected by quality control (used with their corrected value)"`
 	AnalysisStatus string `col:"analysis_status" doc:"ok, or the reason the sounding could not be analysed (e.g. insufficient_levels); such soundings count as attempted but not valid"`
 	ConstantSet    string `col:"constant_set" doc:"name of the thermodynamic constant set used for derived values"`
 
@@ -190,4 +194,10 @@ type LevelRow struct {
 	TemperatureStatus string `col:"temperature_status" doc:"reported, missing, removed_upstream or derived"`
 	HeightStatus      string `col:"height_status" doc:"reported, missing, removed_upstream or derived"`
 	HumidityStatus    string `col:"humidity_status" doc:"status of the dewpoint depression (reported, missing, removed_upstream or derived)"`
+
+	PressureQC    string `col:"pressure_qc" doc:"quality-control flag of the pressure: good, suspect, bad, missing or corrected"`
+	HeightQC      string `col:"height_qc" doc:"quality-control flag of the height"`
+	TemperatureQC string `col:"temperature_qc" doc:"quality-control flag of the temperature (derived values use the corrected value when corrected)"`
+	HumidityQC    string `col:"humidity_qc" doc:"quality-control flag of the humidity (dewpoint depression)"`
+	WindQC        string `col:"wind_qc" doc:"quality-control flag of the wind speed"`
 }

@@ -28,10 +28,14 @@ type ingestCmd struct {
 func (c *ingestCmd) Run(ctx context.Context, args []string) error {
 	fs := newFlags("ingest", "--store DIR [flags] PATH...", `
 Read radiosonde sounding files into a Parquet store. Every sounding is
-analysed (heights filled hypsometrically, potential temperature, mixing
-ratio, surface-based inversion, well-mixed layer, parcel mixing height) and
-written to the store's tables "soundings" and "levels", partitioned by
-station and year. A PATH may be a file, a directory (walked recursively) or
+quality-controlled (each value good, suspect, bad, missing or corrected,
+with findings in the table qc_findings) and analysed with the values QC
+allows: heights filled hypsometrically, potential temperature, mixing
+ratio, inversions with their class, well-mixed layers with mass-weighted
+means, mixing height by seven methods and their consensus, transport wind
+and ventilation index. Tables (see "sondeclim schema"): soundings, levels,
+inversions, mixed_layers, mixing_heights, afternoon_mixing, qc_findings;
+partitioned by station and year. A PATH may be a file, a directory (walked recursively) or
 a glob; plain, .gz and .zip inputs are read as streams. The format is
 detected from the content (--format overrides).
 
@@ -67,6 +71,7 @@ skipped.`,
 	full := fs.Bool("full", false, "ignore what was ingested before and rebuild every partition from the inputs given")
 	wait := fs.Bool("wait", false, "wait for another ingest into the same store to finish instead of failing")
 	shard := fs.String("shard", "", "write only the stations of shard `K/N` (stations are assigned by a hash of their id)")
+	useSuspect := fs.Bool("use-suspect", false, "let the analysis use values quality control flags as suspect (bad values are never used)")
 	summaryJSON := fs.String("summary-json", "", "write a machine-readable summary of the run to `file`")
 	if err := parseFlags(fs, args); err != nil {
 		return err
@@ -89,7 +94,7 @@ skipped.`,
 	if err != nil {
 		return fmt.Errorf("ingest: %v: %w", err, errUsage)
 	}
-	opt := pipeline.Options{Workers: *workers, Format: *format, Log: log, Shard: sh, Full: *full, Wait: *wait}
+	opt := pipeline.Options{Workers: *workers, Format: *format, Log: log, Shard: sh, Full: *full, Wait: *wait, UseSuspect: *useSuspect}
 	if !*quiet && isTerminal(c.stderr) {
 		opt.Progress = progressBar(c.stderr)
 	}

@@ -5,7 +5,6 @@ import (
 	"encoding/hex"
 	"fmt"
 	"maps"
-	"math"
 	"os"
 	"path/filepath"
 	"slices"
@@ -18,6 +17,7 @@ import (
 
 	"github.com/sondeclim/sondeclim/analyze"
 	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/qc"
 	"github.com/sondeclim/sondeclim/schema"
 	"github.com/sondeclim/sondeclim/schema/store"
 )
@@ -252,7 +252,11 @@ func (r *run) buildPartition(key string, segs []segment, spills []*os.File, inpu
 	if len(all) == 0 {
 		return nil, stats, nil
 	}
-	kept, dups := deduplicate(all)
+	reports := make(map[*sounding.Sounding]qc.Report, len(all))
+	for _, s := range all {
+		reports[s] = qc.Check(s, r.qcCfg)
+	}
+	kept, dups := deduplicate(all, reports)
 	stats.duplicates = dups
 
 	h := sha256.New()
@@ -277,7 +281,7 @@ func (r *run) buildPartition(key string, segs []segment, spills []*os.File, inpu
 	results := make([]result, len(kept))
 	stats.notAnalysable = map[string]int{}
 	for i, d := range kept {
-		res := analyzeOne(d.s, r.cfg)
+		res := analyzeOne(d.s, reports[d.s], r.cfg, r.opt.UseSuspect)
 		res.sounding.SoundingHash = soundingHash(d.s)
 		res.sounding.DuplicatesMerged = int32(d.merged)
 		res.sounding.DuplicateChoice = d.reason
@@ -291,7 +295,9 @@ func (r *run) buildPartition(key string, segs []segment, spills []*os.File, inpu
 	var irows []schema.InversionRow
 	var mrows []schema.MixedLayerRow
 	var hrows []schema.MixingHeightRow
+	var qrows []schema.QCFindingRow
 	for i := range results {
+		qrows = append(qrows, results[i].findings...)
 		srows[i] = results[i].sounding
 		lrows = append(lrows, results[i].levels...)
 		irows = append(irows, results[i].inv...)
@@ -318,6 +324,7 @@ func (r *run) buildPartition(key string, segs []segment, spills []*os.File, inpu
 		write(schema.TableMixedLayers, len(mrows), func(f string) error { return schema.WriteFile(f, schema.TableMixedLayers, mrows) }),
 		write(schema.TableMixingHeights, len(hrows), func(f string) error { return schema.WriteFile(f, schema.TableMixingHeights, hrows) }),
 		write(schema.TableAfternoon, len(arows), func(f string) error { return schema.WriteFile(f, schema.TableAfternoon, arows) }),
+		write(schema.TableQCFindings, len(qrows), func(f string) error { return schema.WriteFile(f, schema.TableQCFindings, qrows) }),
 	} {
 		if err != nil {
 			return nil, stats, err
@@ -330,7 +337,7 @@ func (r *run) buildPartition(key string, segs []segment, spills []*os.File, inpu
 
 // tables lists the store's tables; every partition has one file in each.
 var tables = []string{schema.TableSoundings, schema.TableLevels, schema.TableInversions,
-	schema.TableMixedLayers, schema.TableMixingHeights, schema.TableAfternoon}
+	schema.TableMixedLayers, schema.TableMixingHeights, schema.TableAfternoon, schema.TableQCFindings}
 
 // compareWithPrevious counts new, replaced, unchanged and removed
 // soundings against the partition's previous soundings file.
@@ -387,8 +394,10 @@ type kept struct {
 
 // deduplicate keeps one sounding per launch time (the station and year are
 // the partition's) and returns them sorted by launch time, with the number
-// of copies dropped. See better for the precedence.
-func deduplicate(all []*sounding.Sounding) ([]kept, int) {
+// of copies dropped. The choice among copies is qc.ChooseDuplicate's
+// documented precedence; copies are compared in source order, so the
+// result does not depend on input order.
+func deduplicate(all []*sounding.Sounding, reports map[*sounding.Sounding]qc.Report) ([]kept, int) {
 	sort.SliceStable(all, func(i, j int) bool {
 		if !all[i].LaunchTime.Equal(all[j].LaunchTime) {
 			return all[i].LaunchTime.Before(all[j].LaunchTime)
@@ -401,52 +410,17 @@ func deduplicate(all []*sounding.Sounding) ([]kept, int) {
 		j := i + 1
 		best, reason := all[i], ""
 		for ; j < len(all) && all[j].LaunchTime.Equal(all[i].LaunchTime); j++ {
-			if b, why := better(all[j], best); b {
-				best, reason = all[j], why
-			} else if reason == "" {
-				reason = why
+			keep, why := qc.ChooseDuplicate(qc.CandidateOf(best, reports[best]), qc.CandidateOf(all[j], reports[all[j]]))
+			if keep == 1 {
+				best = all[j]
 			}
+			reason = why
 		}
 		out = append(out, kept{s: best, merged: j - i - 1, reason: reason})
 		dups += j - i - 1
 		i = j
 	}
 	return out, dups
-}
-
-// better reports whether a should be kept instead of b, two copies of the
-// same station and launch time, and names the deciding rule. Precedence:
-//  1. more levels with pressure and temperature at or below 500 hPa (the
-//     boundary-layer analysis depends on them);
-//  2. more levels in all;
-//  3. the copy read from the later source (greater file path, then member,
-//     then line): a re-issued or corrected file is usually named later.
-//
-// The rule is common practice, no source; it is deterministic, so the
-// result does not depend on input order.
-func better(a, b *sounding.Sounding) (bool, string) {
-	ua, ub := usableLevels(a), usableLevels(b)
-	if ua != ub {
-		return ua > ub, "more_levels_below_500hpa"
-	}
-	if len(a.Levels) != len(b.Levels) {
-		return len(a.Levels) > len(b.Levels), "more_levels"
-	}
-	if sourceLess(a, b) == sourceLess(b, a) {
-		return false, "identical_source"
-	}
-	return sourceLess(b, a), "later_source"
-}
-
-func usableLevels(s *sounding.Sounding) int {
-	n := 0
-	for i := range s.Levels {
-		l := &s.Levels[i]
-		if l.PressurePa >= 50000 && !math.IsNaN(l.TemperatureK) {
-			n++
-		}
-	}
-	return n
 }
 
 func sourceLess(a, b *sounding.Sounding) bool {

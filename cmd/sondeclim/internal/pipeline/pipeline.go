@@ -28,6 +28,7 @@ import (
 
 	"github.com/sondeclim/sondeclim/analyze"
 	"github.com/sondeclim/sondeclim/ingest/input"
+	"github.com/sondeclim/sondeclim/qc"
 	"github.com/sondeclim/sondeclim/schema/store"
 )
 
@@ -61,6 +62,11 @@ type Options struct {
 	Full bool
 	// Wait waits for another writer's lock instead of failing.
 	Wait bool
+	// QC is the quality-control configuration; nil means qc.DefaultConfig().
+	QC *qc.Config
+	// UseSuspect lets the analysis use values QC flags as suspect (bad
+	// values are never used).
+	UseSuspect bool
 	// DailyMaxima supplies daily maximum temperatures for the afternoon
 	// (Holzworth) mixing height; nil uses the afternoon soundings' surface
 	// temperatures only.
@@ -137,6 +143,7 @@ type run struct {
 	dir     string
 	opt     Options
 	cfg     analyze.Config
+	qcCfg   qc.Config
 	params  string
 	log     *slog.Logger
 	workers int
@@ -179,6 +186,10 @@ func Run(ctx context.Context, storeDir string, paths []string, opt Options) (*Su
 	if opt.Analysis != nil {
 		r.cfg = *opt.Analysis
 	}
+	r.qcCfg = qc.DefaultConfig()
+	if opt.QC != nil {
+		r.qcCfg = *opt.QC
+	}
 	r.log = opt.Log
 	if r.log == nil {
 		r.log = slog.New(slog.DiscardHandler)
@@ -186,8 +197,10 @@ func Run(ctx context.Context, storeDir string, paths []string, opt Options) (*Su
 	paramsText, err := json.Marshal(struct {
 		Store, Derivation int
 		Analysis          analyze.Config
+		QC                qc.Config
+		UseSuspect        bool
 		DailyMaxima       string
-	}{store.Version, DerivationVersion, r.cfg, maximaDigest(opt.DailyMaxima)})
+	}{store.Version, DerivationVersion, r.cfg, r.qcCfg, opt.UseSuspect, maximaDigest(opt.DailyMaxima)})
 	if err != nil {
 		return nil, fmt.Errorf("encode parameters: %w", err)
 	}

@@ -6,6 +6,7 @@ import (
 
 	"github.com/sondeclim/sondeclim/analyze"
 	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/qc"
 	"github.com/sondeclim/sondeclim/schema"
 )
 
@@ -44,13 +45,24 @@ type result struct {
 	inv      []schema.InversionRow
 	mixed    []schema.MixedLayerRow
 	heights  []schema.MixingHeightRow
+	findings []schema.QCFindingRow
 	status   string
 	analysis analyze.Result
 }
 
-// analyzeOne runs the analysis of one sounding and turns it into rows.
-func analyzeOne(s *sounding.Sounding, cfg analyze.Config) result {
-	res := analyze.Analyze(s, cfg)
+// analyzeOne runs the analysis of one sounding, using only the values its
+// quality control allows, and turns it into rows. The levels table keeps
+// the values as observed, with their QC flags.
+func analyzeOne(s *sounding.Sounding, rep qc.Report, cfg analyze.Config, useSuspect bool) result {
+	var res analyze.Result
+	if rep.Usable() {
+		res = analyze.Analyze(qc.Apply(s, rep, useSuspect), cfg)
+	} else {
+		// Excluded by QC: still written, counted as attempted but not
+		// valid, with the QC reason as its analysis status.
+		res = analyze.Analyze(nil, cfg)
+		res.Status = "qc_" + rep.Status
+	}
 	padPerLevel(&res, len(s.Levels))
 	season, sy := Season(s.NominalTime)
 	row := schema.SoundingRow{
@@ -75,6 +87,7 @@ func analyzeOne(s *sounding.Sounding, cfg analyze.Config) result {
 		DeclaredLevels: int32(s.DeclaredLevels),
 		LevelCount:     int32(len(s.Levels)),
 		AnalysisStatus: res.Status,
+		QCStatus:       rep.Status,
 		ConstantSet:    res.ConstantSet,
 
 		SurfacePressureHPa: math.NaN(), SurfaceTemperatureC: math.NaN(), SurfaceDewpointC: math.NaN(),
@@ -131,7 +144,15 @@ func analyzeOne(s *sounding.Sounding, cfg analyze.Config) result {
 		}
 	}
 
+	bad, suspect, corrected := rep.Counts()
+	row.QCBad, row.QCSuspect, row.QCCorrected = int32(bad), int32(suspect), int32(corrected)
 	out := result{sounding: row, status: res.Status, analysis: res}
+	flag := func(i int, v sounding.Var) string {
+		if i < len(rep.Flags) {
+			return rep.Flags[i][v].String()
+		}
+		return ""
+	}
 	out.levels = make([]schema.LevelRow, len(s.Levels))
 	for i, l := range s.Levels {
 		out.levels[i] = schema.LevelRow{
@@ -156,7 +177,23 @@ func analyzeOne(s *sounding.Sounding, cfg analyze.Config) result {
 			TemperatureStatus: l.Status[sounding.VarTemperature].String(),
 			HeightStatus:      heightStatus(l, res.HeightDerived[i]),
 			HumidityStatus:    l.Status[sounding.VarDewpointDepression].String(),
+			PressureQC:        flag(i, sounding.VarPressure),
+			HeightQC:          flag(i, sounding.VarHeight),
+			TemperatureQC:     flag(i, sounding.VarTemperature),
+			HumidityQC:        flag(i, sounding.VarDewpointDepression),
+			WindQC:            flag(i, sounding.VarWindSpeed),
 		}
+	}
+	for _, f := range rep.Findings {
+		p := math.NaN()
+		if f.Level >= 0 && f.Level < len(s.Levels) {
+			p = hPa(s.Levels[f.Level].PressurePa)
+		}
+		out.findings = append(out.findings, schema.QCFindingRow{
+			StationID: s.StationID, LaunchTime: row.LaunchTime, Year: row.Year, Index: int32(f.Level),
+			PressureHPa: p, Variable: f.VariableName(), Check: f.Check, Severity: f.Severity.String(),
+			Value: qc.DisplayValue(f.Var, f.Value), Corrected: qc.DisplayValue(f.Var, f.NewValue), Message: f.Message,
+		})
 	}
 	for i, v := range res.Inversions {
 		out.inv = append(out.inv, schema.InversionRow{
