@@ -88,7 +88,7 @@ func WriteTable[T any](storeDir, table string, rows []T) (files []string, err er
 	for _, p := range parts {
 		dir := filepath.Join(storeDir, table,
 			StationKey+"="+p.station, YearKey+"="+strconv.FormatInt(p.year, 10))
-		path, err := writePartition(dir, PartFile, sc, cols, rows, p.rows)
+		path, err := writePartition(dir, PartFile, sc, cols, rows, p.rows, true)
 		if err != nil {
 			return files, fmt.Errorf("schema: table %s: %w", table, err)
 		}
@@ -146,7 +146,11 @@ func partitions[T any](cols []Column, rows []T) ([]*partition, error) {
 // under a temporary name in its directory, synced and renamed into place.
 // The caller chooses the partition and is responsible for the rows
 // belonging to it. Zero rows write a valid empty file.
-func WriteFile[T any](path, table string, rows []T) error {
+//
+// With sync false the file and its directory are not synced: a writer of
+// many files makes them durable at once before it commits (see
+// store.Sync), which is much cheaper than one sync per file.
+func WriteFile[T any](path, table string, rows []T, sync bool) error {
 	cols, err := Columns[T]()
 	if err != nil {
 		return err
@@ -158,7 +162,7 @@ func WriteFile[T any](path, table string, rows []T) error {
 	for i := range idx {
 		idx[i] = i
 	}
-	if _, err := writePartition(filepath.Dir(path), filepath.Base(path), arrowSchema(table, cols), cols, rows, idx); err != nil {
+	if _, err := writePartition(filepath.Dir(path), filepath.Base(path), arrowSchema(table, cols), cols, rows, idx, sync); err != nil {
 		return fmt.Errorf("schema: table %s: %w", table, err)
 	}
 	return nil
@@ -166,7 +170,7 @@ func WriteFile[T any](path, table string, rows []T) error {
 
 // writePartition writes rows[idx...] to dir/name through a temporary file
 // and returns the final path.
-func writePartition[T any](dir, name string, sc *arrow.Schema, cols []Column, rows []T, idx []int) (path string, err error) {
+func writePartition[T any](dir, name string, sc *arrow.Schema, cols []Column, rows []T, idx []int, sync bool) (path string, err error) {
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return "", err
 	}
@@ -187,7 +191,9 @@ func writePartition[T any](dir, name string, sc *arrow.Schema, cols []Column, ro
 	if err := bw.Flush(); err != nil {
 		return "", fmt.Errorf("write %s: %w", tmp.Name(), err)
 	}
-	if err := tmp.Sync(); err != nil {
+	if !sync {
+		// durability is the caller's (store.Sync before its commit)
+	} else if err := tmp.Sync(); err != nil {
 		return "", fmt.Errorf("sync %s: %w", tmp.Name(), err)
 	}
 	if err := tmp.Close(); err != nil {
@@ -196,6 +202,9 @@ func writePartition[T any](dir, name string, sc *arrow.Schema, cols []Column, ro
 	path = filepath.Join(dir, name)
 	if err := os.Rename(tmp.Name(), path); err != nil {
 		return "", err
+	}
+	if !sync {
+		return path, nil
 	}
 	return path, syncDir(dir)
 }
@@ -218,10 +227,20 @@ func syncDir(dir string) error {
 
 // encode writes rows[idx...] as one Parquet file to w.
 func encode[T any](w *bufio.Writer, sc *arrow.Schema, cols []Column, rows []T, idx []int) (err error) {
-	props := parquet.NewWriterProperties(
+	// Dictionary encoding pays for repetitive text (ids, statuses, classes)
+	// but costs a hash lookup per value for measurements, which rarely
+	// repeat: it is on for string columns only.
+	opts := []parquet.WriterProperty{
 		parquet.WithCompression(compress.Codecs.Zstd),
 		parquet.WithMaxRowGroupLength(rowGroupRows),
-	)
+		parquet.WithDictionaryDefault(false),
+	}
+	for _, c := range cols {
+		if c.kind == kindString || c.kind == kindPtrString {
+			opts = append(opts, parquet.WithDictionaryFor(c.Name, true))
+		}
+	}
+	props := parquet.NewWriterProperties(opts...)
 	// w is a *bufio.Writer, which has no Close, so fw.Close leaves the file
 	// open for the caller to flush and sync. WithStoreSchema embeds the Arrow schema (with each field's doc) in
 	// the file, since Parquet's own schema has no place for descriptions.

@@ -7,6 +7,7 @@ import (
 	"log/slog"
 	"os"
 	"runtime"
+	"runtime/pprof"
 	"sort"
 	"strings"
 	"text/tabwriter"
@@ -72,6 +73,7 @@ skipped.`,
 	wait := fs.Bool("wait", false, "wait for another ingest into the same store to finish instead of failing")
 	shard := fs.String("shard", "", "write only the stations of shard `K/N` (stations are assigned by a hash of their id)")
 	useSuspect := fs.Bool("use-suspect", false, "let the analysis use values quality control flags as suspect (bad values are never used)")
+	cpuProfile := fs.String("cpuprofile", "", "write a CPU profile to `file` (for performance work: go tool pprof FILE)")
 	summaryJSON := fs.String("summary-json", "", "write a machine-readable summary of the run to `file`")
 	if err := parseFlags(fs, args); err != nil {
 		return err
@@ -104,6 +106,17 @@ skipped.`,
 			return err
 		}
 		opt.Stations = m
+	}
+	if *cpuProfile != "" {
+		f, err := os.Create(*cpuProfile)
+		if err != nil {
+			return fmt.Errorf("ingest: %w", err)
+		}
+		defer f.Close()
+		if err := pprof.StartCPUProfile(f); err != nil {
+			return fmt.Errorf("ingest: %w", err)
+		}
+		defer pprof.StopCPUProfile()
 	}
 	sum, err := pipeline.Run(ctx, *storeDir, fs.Args(), opt)
 	if err != nil {

@@ -122,3 +122,15 @@ func Clean(dir string, sh Shard, m *Manifest) ([]string, error) {
 	}
 	return removed, nil
 }
+
+// Sync makes every file written so far durable, with one sync(2) call,
+// which a writer of many files does once before it commits its manifest
+// instead of syncing each file (sync(2) also flushes other file systems; it
+// is portable across Unix systems, unlike syncfs). dir is checked to exist.
+func Sync(dir string) error {
+	if _, err := os.Stat(dir); err != nil {
+		return fmt.Errorf("store: sync: %w", err)
+	}
+	syscall.Sync()
+	return nil
+}

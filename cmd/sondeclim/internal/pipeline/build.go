@@ -132,6 +132,10 @@ func (r *run) ingest(files []string, old *store.Manifest, full bool, paramsText 
 		r.log.Info("nothing changed; store left as it was")
 		return old, nil
 	}
+	// Every new file must be durable before the manifest names it.
+	if err := store.Sync(r.dir); err != nil {
+		return nil, err
+	}
 	pauseAt("commit")
 	if err := store.Commit(r.dir, r.opt.Shard, next); err != nil {
 		return nil, err
@@ -318,13 +322,13 @@ func (r *run) buildPartition(key string, segs []segment, spills []*os.File, inpu
 		return nil
 	}
 	for _, err := range []error{
-		write(schema.TableSoundings, len(srows), func(f string) error { return schema.WriteFile(f, schema.TableSoundings, srows) }),
-		write(schema.TableLevels, len(lrows), func(f string) error { return schema.WriteFile(f, schema.TableLevels, lrows) }),
-		write(schema.TableInversions, len(irows), func(f string) error { return schema.WriteFile(f, schema.TableInversions, irows) }),
-		write(schema.TableMixedLayers, len(mrows), func(f string) error { return schema.WriteFile(f, schema.TableMixedLayers, mrows) }),
-		write(schema.TableMixingHeights, len(hrows), func(f string) error { return schema.WriteFile(f, schema.TableMixingHeights, hrows) }),
-		write(schema.TableAfternoon, len(arows), func(f string) error { return schema.WriteFile(f, schema.TableAfternoon, arows) }),
-		write(schema.TableQCFindings, len(qrows), func(f string) error { return schema.WriteFile(f, schema.TableQCFindings, qrows) }),
+		write(schema.TableSoundings, len(srows), func(f string) error { return schema.WriteFile(f, schema.TableSoundings, srows, false) }),
+		write(schema.TableLevels, len(lrows), func(f string) error { return schema.WriteFile(f, schema.TableLevels, lrows, false) }),
+		write(schema.TableInversions, len(irows), func(f string) error { return schema.WriteFile(f, schema.TableInversions, irows, false) }),
+		write(schema.TableMixedLayers, len(mrows), func(f string) error { return schema.WriteFile(f, schema.TableMixedLayers, mrows, false) }),
+		write(schema.TableMixingHeights, len(hrows), func(f string) error { return schema.WriteFile(f, schema.TableMixingHeights, hrows, false) }),
+		write(schema.TableAfternoon, len(arows), func(f string) error { return schema.WriteFile(f, schema.TableAfternoon, arows, false) }),
+		write(schema.TableQCFindings, len(qrows), func(f string) error { return schema.WriteFile(f, schema.TableQCFindings, qrows, false) }),
 	} {
 		if err != nil {
 			return nil, stats, err
