@@ -256,10 +256,12 @@ func (r *run) buildPartition(key string, segs []segment, spills []*os.File, inpu
 	if len(all) == 0 {
 		return nil, stats, nil
 	}
+	t0 := time.Now()
 	reports := make(map[*sounding.Sounding]qc.Report, len(all))
 	for _, s := range all {
 		reports[s] = qc.Check(s, r.qcCfg)
 	}
+	r.stage("qc", t0)
 	kept, dups := deduplicate(all, reports)
 	stats.duplicates = dups
 
@@ -282,6 +284,7 @@ func (r *run) buildPartition(key string, segs []segment, spills []*os.File, inpu
 		return prev, stats, nil
 	}
 
+	t0 = time.Now()
 	results := make([]result, len(kept))
 	stats.notAnalysable = map[string]int{}
 	for i, d := range kept {
@@ -309,9 +312,11 @@ func (r *run) buildPartition(key string, segs []segment, spills []*os.File, inpu
 		hrows = append(hrows, results[i].heights...)
 	}
 	arows := afternoonRows(results, r.opt.DailyMaxima, analyze.DefaultPairingConfig())
+	r.stage("analysis", t0)
 	if err := r.compareWithPrevious(prev, srows, &stats); err != nil {
 		return nil, stats, err
 	}
+	defer r.stage("write", time.Now())
 	stats.rows = map[string]int{}
 	write := func(table string, n int, w func(path string) error) error {
 		if err := w(filepath.Join(r.dir, p.Files[table])); err != nil {

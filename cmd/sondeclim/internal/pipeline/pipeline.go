@@ -124,8 +124,13 @@ type Summary struct {
 	Files         []string       `json:"files_written"`          // Parquet files written, relative to the store
 	Removed       []string       `json:"stray_files_removed"`    // left by earlier runs, removed
 	Committed     bool           `json:"committed"`              // a new manifest was committed
-	ElapsedS      float64        `json:"elapsed_s"`
-	Elapsed       time.Duration  `json:"-"`
+	// StageSeconds is the time spent in each stage summed over workers
+	// (read_parse: reading, decompressing, decoding and staging inputs;
+	// qc; analysis; write: building and writing Parquet files), s. On an
+	// otherwise idle machine it approximates CPU time per stage.
+	StageSeconds map[string]float64 `json:"stage_seconds"`
+	ElapsedS     float64            `json:"elapsed_s"`
+	Elapsed      time.Duration      `json:"-"`
 }
 
 // SkippedByReason counts Skipped by reason.
@@ -153,6 +158,14 @@ type run struct {
 	mu sync.Mutex // guards sum.Skipped, sum.Notes, sum.Members
 }
 
+// stage adds the time since start to a stage's total.
+func (r *run) stage(name string, start time.Time) {
+	d := time.Since(start).Seconds()
+	r.mu.Lock()
+	r.sum.StageSeconds[name] += d
+	r.mu.Unlock()
+}
+
 func (r *run) skip(s Skip) {
 	r.mu.Lock()
 	r.sum.Skipped = append(r.sum.Skipped, s)
@@ -178,7 +191,7 @@ func Run(ctx context.Context, storeDir string, paths []string, opt Options) (*Su
 		return nil, err
 	}
 	r := &run{ctx: ctx, dir: storeDir, opt: opt, workers: opt.Workers,
-		sum: &Summary{Inputs: files, NotAnalysable: map[string]int{}, Rows: map[string]int{}}}
+		sum: &Summary{Inputs: files, NotAnalysable: map[string]int{}, Rows: map[string]int{}, StageSeconds: map[string]float64{}}}
 	if r.workers <= 0 {
 		r.workers = runtime.NumCPU()
 	}

@@ -13,6 +13,7 @@ import (
 	"sort"
 	"strconv"
 	"sync"
+	"time"
 
 	"golang.org/x/sync/errgroup"
 
@@ -83,6 +84,7 @@ func (r *run) stageInputs(files []string, st *staged, keep map[string]bool) ([]r
 
 // stageFile reads one input file (all its members) into its spill file.
 func (r *run) stageFile(ctx context.Context, path string, fi int, spill string, st *staged, keep map[string]bool) (readResult, error) {
+	defer r.stage("read_parse", time.Now())
 	res := readResult{path: path, parts: map[string]int{}}
 	fst, err := os.Stat(path)
 	if err != nil {

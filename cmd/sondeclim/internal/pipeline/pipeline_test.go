@@ -1,0 +1,179 @@
+package pipeline
+
+import (
+	"context"
+	"math"
+	"os"
+	"path/filepath"
+	"reflect"
+	"testing"
+	"time"
+
+	"github.com/sondeclim/sondeclim/ingest/archivev2"
+	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/ingest/synth"
+	"github.com/sondeclim/sondeclim/qc"
+)
+
+// repoRoot walks up to the directory holding go.mod.
+func repoRoot(tb testing.TB) string {
+	tb.Helper()
+	dir, _ := os.Getwd()
+	for {
+		if _, err := os.Stat(filepath.Join(dir, "go.mod")); err == nil {
+			return dir
+		}
+		parent := filepath.Dir(dir)
+		if parent == dir {
+			tb.Fatal("go.mod not found")
+		}
+		dir = parent
+	}
+}
+
+// realSoundings reads a real archive file from ../shared/validation, or
+// skips when it is absent.
+func realSoundings(tb testing.TB, name string) []*sounding.Sounding {
+	tb.Helper()
+	path := filepath.Join(repoRoot(tb), "..", "shared", "validation", "archive-v2", name)
+	f, err := os.Open(path)
+	if err != nil {
+		tb.Skipf("real validation data not available: %v", err)
+	}
+	defer f.Close()
+	r := archivev2.NewReader(f, path, "")
+	var out []*sounding.Sounding
+	for {
+		s, err := r.Next()
+		if err != nil {
+			break
+		}
+		out = append(out, s)
+	}
+	return out
+}
+
+// TestCodecRoundTrip: staging must give back exactly what the reader
+// decoded (every float bit, status, tier and source position), on the real
+// Cape Kennedy 1950 and Barrow files (PROVENANCE.md), whose levels carry
+// −9999 and −8888 codes, A/B tiers and wind-only levels.
+func TestCodecRoundTrip(t *testing.T) {
+	all := append(realSoundings(t, "USM00074794-data-1950-portion.txt"), realSoundings(t, "USM00070026-data-truncated.txt")...)
+	if len(all) != 16 {
+		t.Fatalf("read %d soundings, PROVENANCE.md gives 14 + 2 whole", len(all))
+	}
+	var buf []byte
+	for _, s := range all {
+		buf = appendSounding(buf, s, true)
+	}
+	rest := buf
+	for i, want := range all {
+		got, tail, err := decodeSounding(rest)
+		if err != nil {
+			t.Fatalf("sounding %d: %v", i, err)
+		}
+		rest = tail
+		if !sameSounding(got, want) {
+			t.Errorf("sounding %d (%s) changed in the round trip", i, want.Source)
+		}
+	}
+	if len(rest) != 0 {
+		t.Errorf("%d bytes left over", len(rest))
+	}
+	// A sounding cut anywhere is an error, not a panic.
+	one := appendSounding(nil, all[0], true)
+	for _, n := range []int{0, 1, 10, len(one) / 2, len(one) - 1} {
+		if _, _, err := decodeSounding(one[:n]); err == nil {
+			t.Errorf("decoding %d of %d bytes gave no error", n, len(one))
+		}
+	}
+}
+
+// sameSounding compares two soundings treating NaN as equal to NaN.
+func sameSounding(a, b *sounding.Sounding) bool {
+	fa, fb := *a, *b
+	fa.Levels, fb.Levels = nil, nil
+	for _, p := range []*float64{&fa.LatitudeDeg, &fa.LongitudeDeg, &fa.ElevationM, &fb.LatitudeDeg, &fb.LongitudeDeg, &fb.ElevationM} {
+		if math.IsNaN(*p) {
+			*p = -1e300
+		}
+	}
+	if !fa.NominalTime.Equal(fb.NominalTime) || !fa.LaunchTime.Equal(fb.LaunchTime) {
+		return false
+	}
+	fa.NominalTime, fb.NominalTime, fa.LaunchTime, fb.LaunchTime = time.Time{}, time.Time{}, time.Time{}, time.Time{}
+	if !reflect.DeepEqual(fa, fb) || len(a.Levels) != len(b.Levels) {
+		return false
+	}
+	for i := range a.Levels {
+		la, lb := a.Levels[i], b.Levels[i]
+		for _, p := range [][2]*float64{{&la.ElapsedS, &lb.ElapsedS}, {&la.PressurePa, &lb.PressurePa}, {&la.HeightM, &lb.HeightM},
+			{&la.TemperatureK, &lb.TemperatureK}, {&la.DewpointK, &lb.DewpointK}, {&la.DewpointDepressionK, &lb.DewpointDepressionK},
+			{&la.RelHumidityPct, &lb.RelHumidityPct}, {&la.WindDirectionDeg, &lb.WindDirectionDeg}, {&la.WindSpeedMS, &lb.WindSpeedMS}} {
+			if math.Float64bits(*p[0]) != math.Float64bits(*p[1]) {
+				return false
+			}
+			*p[0], *p[1] = 0, 0
+		}
+		if !reflect.DeepEqual(la, lb) {
+			return false
+		}
+	}
+	return true
+}
+
+// TestDeduplicateOrderFree: the copy kept among duplicates does not depend
+// on the order they arrive in (real Göteborg file, PROVENANCE.md: five
+// soundings that are two ascents).
+func TestDeduplicateOrderFree(t *testing.T) {
+	ss := realSoundings(t, "SWM00002527-data-hour99.txt")
+	if len(ss) != 5 {
+		t.Fatalf("%d soundings, want 5", len(ss))
+	}
+	reports := map[*sounding.Sounding]qc.Report{}
+	for _, s := range ss {
+		reports[s] = qc.Check(s, qc.DefaultConfig())
+	}
+	fwd, n1 := deduplicate(append([]*sounding.Sounding{}, ss...), reports)
+	rev := []*sounding.Sounding{ss[4], ss[3], ss[2], ss[1], ss[0]}
+	bwd, n2 := deduplicate(rev, reports)
+	if n1 != 3 || n2 != 3 || len(fwd) != 2 || len(bwd) != 2 {
+		t.Fatalf("kept %d and %d, merged %d and %d; want 2 kept, 3 merged", len(fwd), len(bwd), n1, n2)
+	}
+	for i := range fwd {
+		if fwd[i].s != bwd[i].s || fwd[i].reason != bwd[i].reason {
+			t.Errorf("ascent %d: kept %s (%s) in file order, %s (%s) reversed", i,
+				fwd[i].s.Source, fwd[i].reason, bwd[i].s.Source, bwd[i].reason)
+		}
+	}
+}
+
+// BenchmarkIngest measures end-to-end ingest (read, stage, QC, analysis,
+// Parquet) of an invented archive of 2 stations x 2 years (2,920
+// soundings) into a fresh store, for 1 and 2 workers. The soundings/s
+// metric is what the README's Performance section reports at scale with
+// `sondeclim bench`.
+func BenchmarkIngest(b *testing.B) {
+	dir := b.TempDir()
+	n := 0
+	for i := range 2 {
+		cfg := synth.DefaultConfig()
+		cfg.StationIndex, cfg.Years = i, 2
+		_, k, err := synth.WriteFile(dir, cfg)
+		if err != nil {
+			b.Fatal(err)
+		}
+		n += k
+	}
+	for _, w := range []int{1, 2} {
+		b.Run(map[int]string{1: "workers=1", 2: "workers=2"}[w], func(b *testing.B) {
+			for i := 0; b.Loop(); i++ {
+				store := filepath.Join(b.TempDir(), "store")
+				if _, err := Run(context.Background(), store, []string{dir}, Options{Workers: w}); err != nil {
+					b.Fatal(err)
+				}
+			}
+			b.ReportMetric(float64(n*b.N)/b.Elapsed().Seconds(), "soundings/s")
+		})
+	}
+}
