@@ -232,6 +232,7 @@ func encode[T any](w *bufio.Writer, sc *arrow.Schema, cols []Column, rows []T, i
 	// repeat: it is on for string columns only.
 	opts := []parquet.WriterProperty{
 		parquet.WithCompression(compress.Codecs.Zstd),
+		parquet.WithCompressionLevel(1),
 		parquet.WithMaxRowGroupLength(rowGroupRows),
 		parquet.WithDictionaryDefault(false),
 	}
