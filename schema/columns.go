@@ -6,6 +6,7 @@ import (
 	"reflect"
 	"regexp"
 	"time"
+	"unsafe"
 
 	"github.com/apache/arrow-go/v18/arrow"
 	"github.com/apache/arrow-go/v18/arrow/array"
@@ -31,8 +32,9 @@ type Column struct {
 	Nullable bool           // whether the column can hold null (NaN floats, nil pointers, zero times)
 	Doc      string         // units first, then meaning, from the field's `doc` tag
 
-	field int       // index of the struct field
-	kind  fieldKind // how values are appended
+	field  int       // index of the struct field
+	offset uintptr   // byte offset of the field in the struct
+	kind   fieldKind // how values are appended
 }
 
 // fieldKind enumerates the Go field types the writer supports.
@@ -135,7 +137,7 @@ func columnsOf(t reflect.Type) ([]Column, error) {
 		}
 		cols = append(cols, Column{
 			Name: name, Type: typ, Nullable: nullable, Doc: f.Tag.Get("doc"),
-			field: i, kind: kind,
+			field: i, offset: f.Offset, kind: kind,
 		})
 	}
 	if len(cols) == 0 {
@@ -160,43 +162,84 @@ func arrowSchema(table string, cols []Column) *arrow.Schema {
 	return arrow.NewSchema(fields, &md)
 }
 
-// appendValue appends field c of the struct value row to builder b.
-func (c *Column) appendValue(b array.Builder, row reflect.Value) {
-	v := row.Field(c.field)
+// appendColumn appends field c of rows[idx...] to builder b, one column at
+// a time so that the builder's type is resolved once per batch. Fields are
+// read through their byte offset (the row type was checked by Columns, so
+// the offset and the field's Go type agree); NaN and nil become nulls and a
+// zero time.Time is null.
+func appendColumn[T any](c *Column, b array.Builder, rows []T, idx []int) {
+	at := func(i int) unsafe.Pointer { return unsafe.Add(unsafe.Pointer(&rows[i]), c.offset) }
 	switch c.kind {
 	case kindString:
-		b.(*array.StringBuilder).Append(v.String())
+		sb := b.(*array.StringBuilder)
+		sb.Reserve(len(idx))
+		for _, i := range idx {
+			sb.Append(*(*string)(at(i)))
+		}
 	case kindBool:
-		b.(*array.BooleanBuilder).Append(v.Bool())
+		bb := b.(*array.BooleanBuilder)
+		bb.Reserve(len(idx))
+		for _, i := range idx {
+			bb.UnsafeAppend(*(*bool)(at(i)))
+		}
 	case kindInt32:
-		b.(*array.Int32Builder).Append(int32(v.Int()))
+		ib := b.(*array.Int32Builder)
+		ib.Reserve(len(idx))
+		for _, i := range idx {
+			ib.UnsafeAppend(*(*int32)(at(i)))
+		}
 	case kindInt64:
-		b.(*array.Int64Builder).Append(v.Int())
+		ib := b.(*array.Int64Builder)
+		ib.Reserve(len(idx))
+		for _, i := range idx {
+			ib.UnsafeAppend(*(*int64)(at(i)))
+		}
 	case kindFloat64:
-		if x := v.Float(); math.IsNaN(x) {
-			b.AppendNull()
-		} else {
-			b.(*array.Float64Builder).Append(x)
+		fb := b.(*array.Float64Builder)
+		fb.Reserve(len(idx))
+		for _, i := range idx {
+			if x := *(*float64)(at(i)); math.IsNaN(x) {
+				fb.UnsafeAppendBoolToBitmap(false)
+			} else {
+				fb.UnsafeAppend(x)
+			}
 		}
 	case kindTime:
-		if t := v.Interface().(time.Time); t.IsZero() {
-			b.AppendNull()
-		} else {
-			b.(*array.TimestampBuilder).Append(arrow.Timestamp(t.UnixMicro()))
+		tb := b.(*array.TimestampBuilder)
+		tb.Reserve(len(idx))
+		for _, i := range idx {
+			if t := (*time.Time)(at(i)); t.IsZero() {
+				tb.UnsafeAppendBoolToBitmap(false)
+			} else {
+				tb.UnsafeAppend(arrow.Timestamp(t.UnixMicro()))
+			}
 		}
-	case kindPtrBool, kindPtrInt32, kindPtrString:
-		if v.IsNil() {
-			b.AppendNull()
-			return
+	case kindPtrBool:
+		bb := b.(*array.BooleanBuilder)
+		for _, i := range idx {
+			if p := *(**bool)(at(i)); p == nil {
+				bb.AppendNull()
+			} else {
+				bb.Append(*p)
+			}
 		}
-		e := v.Elem()
-		switch c.kind {
-		case kindPtrBool:
-			b.(*array.BooleanBuilder).Append(e.Bool())
-		case kindPtrInt32:
-			b.(*array.Int32Builder).Append(int32(e.Int()))
-		default:
-			b.(*array.StringBuilder).Append(e.String())
+	case kindPtrInt32:
+		ib := b.(*array.Int32Builder)
+		for _, i := range idx {
+			if p := *(**int32)(at(i)); p == nil {
+				ib.AppendNull()
+			} else {
+				ib.Append(*p)
+			}
+		}
+	case kindPtrString:
+		sb := b.(*array.StringBuilder)
+		for _, i := range idx {
+			if p := *(**string)(at(i)); p == nil {
+				sb.AppendNull()
+			} else {
+				sb.Append(*p)
+			}
 		}
 	}
 }

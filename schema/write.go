@@ -259,11 +259,8 @@ func encode[T any](w *bufio.Writer, sc *arrow.Schema, cols []Column, rows []T, i
 	defer rb.Release()
 	for start := 0; start < len(idx); start += batchRows {
 		end := min(start+batchRows, len(idx))
-		for _, i := range idx[start:end] {
-			v := reflect.ValueOf(&rows[i]).Elem()
-			for c := range cols {
-				cols[c].appendValue(rb.Field(c), v)
-			}
+		for c := range cols {
+			appendColumn(&cols[c], rb.Field(c), rows, idx[start:end])
 		}
 		rec := rb.NewRecordBatch()
 		err := fw.WriteBuffered(rec)
