@@ -2,9 +2,11 @@ package schema
 
 import (
 	"fmt"
+	"github.com/apache/arrow-go/v18/arrow/memory"
 	"math"
 	"reflect"
 	"regexp"
+	"strings"
 	"time"
 	"unsafe"
 
@@ -32,9 +34,11 @@ type Column struct {
 	Nullable bool           // whether the column can hold null (NaN floats, nil pointers, zero times)
 	Doc      string         // units first, then meaning, from the field's `doc` tag
 
-	field  int       // index of the struct field
-	offset uintptr   // byte offset of the field in the struct
-	kind   fieldKind // how values are appended
+	field  int            // index of the struct field
+	offset uintptr        // byte offset of the field in the struct
+	kind   fieldKind      // how values are appended
+	enum   map[string]int // kindEnum: index of each allowed value ("" is null)
+	dict   *array.String  // kindEnum: the allowed values, in tag order
 }
 
 // fieldKind enumerates the Go field types the writer supports.
@@ -50,6 +54,7 @@ const (
 	kindPtrBool
 	kindPtrInt32
 	kindPtrString
+	kindEnum // a string field tagged enum:"a,b,…": written as a dictionary column
 )
 
 var (
@@ -135,10 +140,23 @@ func columnsOf(t reflect.Type) ([]Column, error) {
 		if !ok {
 			return nil, fmt.Errorf("schema: %s: unsupported Go type %v for column %q", where, f.Type, name)
 		}
-		cols = append(cols, Column{
-			Name: name, Type: typ, Nullable: nullable, Doc: f.Tag.Get("doc"),
-			field: i, offset: f.Offset, kind: kind,
-		})
+		c := Column{Name: name, Type: typ, Nullable: nullable, Doc: f.Tag.Get("doc"), field: i, offset: f.Offset, kind: kind}
+		if values, ok := f.Tag.Lookup("enum"); ok {
+			if kind != kindString || values == "" {
+				return nil, fmt.Errorf("schema: %s: an enum tag needs a string field and at least one value", where)
+			}
+			c.kind, c.Nullable, c.enum = kindEnum, true, map[string]int{}
+			c.Type = &arrow.DictionaryType{IndexType: arrow.PrimitiveTypes.Int16, ValueType: arrow.BinaryTypes.String}
+			list := strings.Split(values, ",")
+			for k, v := range list {
+				c.enum[v] = k
+			}
+			b := array.NewStringBuilder(memory.DefaultAllocator)
+			b.AppendValues(list, nil)
+			c.dict = b.NewStringArray()
+			b.Release()
+		}
+		cols = append(cols, c)
 	}
 	if len(cols) == 0 {
 		return nil, fmt.Errorf("schema: row type %v has no columns", t)
@@ -167,7 +185,7 @@ func arrowSchema(table string, cols []Column) *arrow.Schema {
 // read through their byte offset (the row type was checked by Columns, so
 // the offset and the field's Go type agree); NaN and nil become nulls and a
 // zero time.Time is null.
-func appendColumn[T any](c *Column, b array.Builder, rows []T, idx []int) {
+func appendColumn[T any](c *Column, b array.Builder, rows []T, idx []int) error {
 	at := func(i int) unsafe.Pointer { return unsafe.Add(unsafe.Pointer(&rows[i]), c.offset) }
 	switch c.kind {
 	case kindString:
@@ -241,5 +259,29 @@ func appendColumn[T any](c *Column, b array.Builder, rows []T, idx []int) {
 				sb.Append(*p)
 			}
 		}
+	case kindEnum:
+		// The dictionary is the tag's fixed list, so values are appended
+		// as indices: no hashing here or in the Parquet writer.
+		db := b.(*array.BinaryDictionaryBuilder)
+		if db.DictionarySize() == 0 {
+			if err := db.InsertStringDictValues(c.dict); err != nil {
+				return err
+			}
+		}
+		ix := make([]int, len(idx))
+		valid := make([]bool, len(idx))
+		for k, i := range idx {
+			v := *(*string)(at(i))
+			if v == "" {
+				continue
+			}
+			n, ok := c.enum[v]
+			if !ok {
+				return fmt.Errorf("column %s: value %q is not one of its enum values", c.Name, v)
+			}
+			ix[k], valid[k] = n, true
+		}
+		db.AppendIndices(ix, valid)
 	}
+	return nil
 }

@@ -175,7 +175,7 @@ type LevelRow struct {
 	LaunchTime time.Time `col:"launch_time" doc:"UTC; launch time of the sounding this level belongs to"`
 	Year       int32     `col:"year" doc:"calendar year of the sounding's nominal time"`
 	Index      int32     `col:"level_index" doc:"0-based position of the level in the source order"`
-	Kind       string    `col:"level_kind" doc:"surface, standard, significant or wind_only"`
+	Kind       string    `col:"level_kind" enum:"significant,surface,standard,wind_only" doc:"surface, standard, significant or wind_only"`
 	SourceLine int64     `col:"source_line" doc:"1-based line of the level in the source file (0 if not line-oriented)"`
 
 	ElapsedS       float64 `col:"elapsed_s" doc:"s since release"`
@@ -191,13 +191,13 @@ type LevelRow struct {
 	ThetaK         float64 `col:"theta_k" doc:"K; potential temperature, T (1000 hPa / p)^kappa"`
 	MixingRatioGKg float64 `col:"mixing_ratio_gkg" doc:"g/kg; water-vapour mixing ratio from dewpoint and pressure"`
 
-	TemperatureStatus string `col:"temperature_status" doc:"reported, missing, removed_upstream or derived"`
-	HeightStatus      string `col:"height_status" doc:"reported, missing, removed_upstream or derived"`
-	HumidityStatus    string `col:"humidity_status" doc:"status of the dewpoint depression (reported, missing, removed_upstream or derived)"`
+	TemperatureStatus string `col:"temperature_status" enum:"reported,missing,removed_upstream,derived" doc:"reported, missing, removed_upstream or derived"`
+	HeightStatus      string `col:"height_status" enum:"reported,missing,removed_upstream,derived" doc:"reported, missing, removed_upstream or derived"`
+	HumidityStatus    string `col:"humidity_status" enum:"reported,missing,removed_upstream,derived" doc:"status of the dewpoint depression (reported, missing, removed_upstream or derived)"`
 
-	PressureQC    string `col:"pressure_qc" doc:"quality-control flag of the pressure: good, suspect, bad, missing or corrected"`
-	HeightQC      string `col:"height_qc" doc:"quality-control flag of the height"`
-	TemperatureQC string `col:"temperature_qc" doc:"quality-control flag of the temperature (derived values use the corrected value when corrected)"`
-	HumidityQC    string `col:"humidity_qc" doc:"quality-control flag of the humidity (dewpoint depression)"`
-	WindQC        string `col:"wind_qc" doc:"quality-control flag of the wind speed"`
+	PressureQC    string `col:"pressure_qc" enum:"good,missing,suspect,bad,corrected" doc:"quality-control flag of the pressure: good, suspect, bad, missing or corrected"`
+	HeightQC      string `col:"height_qc" enum:"good,missing,suspect,bad,corrected" doc:"quality-control flag of the height"`
+	TemperatureQC string `col:"temperature_qc" enum:"good,missing,suspect,bad,corrected" doc:"quality-control flag of the temperature (derived values use the corrected value when corrected)"`
+	HumidityQC    string `col:"humidity_qc" enum:"good,missing,suspect,bad,corrected" doc:"quality-control flag of the humidity (dewpoint depression)"`
+	WindQC        string `col:"wind_qc" enum:"good,missing,suspect,bad,corrected" doc:"quality-control flag of the wind speed"`
 }

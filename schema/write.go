@@ -260,9 +260,17 @@ func encode[T any](w *bufio.Writer, sc *arrow.Schema, cols []Column, rows []T, i
 	for start := 0; start < len(idx); start += batchRows {
 		end := min(start+batchRows, len(idx))
 		for c := range cols {
-			appendColumn(&cols[c], rb.Field(c), rows, idx[start:end])
+			if err := appendColumn(&cols[c], rb.Field(c), rows, idx[start:end]); err != nil {
+				return err
+			}
 		}
 		rec := rb.NewRecordBatch()
+		for c := range cols {
+			if cols[c].kind == kindEnum {
+				// Start the next batch with the same fixed dictionary.
+				rb.Field(c).(*array.BinaryDictionaryBuilder).ResetFull()
+			}
+		}
 		err := fw.WriteBuffered(rec)
 		rec.Release()
 		if err != nil {
