@@ -36,3 +36,19 @@ func ExampleWriteJSON() {
 	//   {"station_id":"XQ002","n_valid":0,"sbi_frequency":null}
 	// ]
 }
+
+func ExampleWriteMarkdown() {
+	t := &queries.Table{
+		Columns: []string{"station_id", "season", "mixing_height_p50_m", "note"},
+		Rows: [][]any{
+			{"XQ001", "DJF", 150.0, ""},
+			{"XQ001", "JJA", nil, "n_valid<45; p10/p90 n<25"},
+		},
+	}
+	queries.WriteMarkdown(os.Stdout, t)
+	// Output:
+	// | station_id | season | mixing_height_p50_m | note |
+	// |---|---|---:|---|
+	// | XQ001 | DJF | 150 |  |
+	// | XQ001 | JJA | - | n_valid<45; p10/p90 n<25 |
+}

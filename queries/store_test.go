@@ -6,6 +6,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 	"time"
@@ -29,10 +30,14 @@ func sounding(station, season string, year, hour int32, status, ps string, mh fl
 		LatitudeDeg: 45, LongitudeDeg: 10, ElevationM: 100,
 		AnalysisStatus: status, ConstantSet: "USSA76",
 		ParcelMHM: mh, ParcelMHStatus: ps,
+		// The consensus mirrors the parcel height in this scaffolding, so
+		// the hand-worked statistics hold for both.
+		ConsensusMHM: mh, ConsensusStatus: ps,
 		SBIPresent: sbi, SBIStrengthK: strengthK, SBITopAGLM: topM,
 		SurfacePressureHPa: math.NaN(), SurfaceTemperatureC: math.NaN(), SurfaceDewpointC: math.NaN(),
 		SurfaceThetaK: math.NaN(), SurfaceWindSpeedMS: math.NaN(), SBITopPressHPa: math.NaN(),
 		MixedBaseAGLM: math.NaN(), MixedTopAGLM: math.NaN(), MixedThetaK: math.NaN(), MixedMixingRatio: math.NaN(),
+		TransportWindMS: math.NaN(), VentilationM2S: math.NaN(), VentilationKtFt: math.NaN(),
 	}
 }
 
@@ -69,11 +74,38 @@ func handRows() []schema.SoundingRow {
 }
 
 // writeStore writes rows as the soundings table of a new store, plus a tiny
-// levels table, and returns the store directory.
+// levels table, a mixing_heights table holding each sounding's parcel
+// height, and an inversions table with one elevated inversion of the
+// first sounding (every view the climatology reads must exist), and
+// returns the store directory.
 func writeStore(t testing.TB, dir string, rows []schema.SoundingRow) string {
 	t.Helper()
+	// A sounding is identified by station and launch time (the pipeline
+	// merges duplicates); the scaffolding gives many rows the same nominal
+	// time, so each launch is moved by its index in seconds.
+	rows = slices.Clone(rows)
+	for i := range rows {
+		rows[i].LaunchTime = rows[i].LaunchTime.Add(time.Duration(i) * time.Second)
+	}
 	if _, err := schema.WriteTable(dir, schema.TableSoundings, rows); err != nil {
 		t.Fatal(err)
+	}
+	var mh []schema.MixingHeightRow
+	for _, r := range rows {
+		mh = append(mh, schema.MixingHeightRow{StationID: r.StationID, LaunchTime: r.LaunchTime, Year: r.Year,
+			Method: "parcel", HeightAGLM: r.ParcelMHM, Status: r.ParcelMHStatus, LevelSpacingM: nan})
+	}
+	if _, err := schema.WriteTable(dir, schema.TableMixingHeights, mh); err != nil {
+		t.Fatal(err)
+	}
+	if len(rows) > 0 {
+		inv := []schema.InversionRow{{StationID: rows[0].StationID, LaunchTime: rows[0].LaunchTime, Year: rows[0].Year,
+			BaseAGLM: 900, TopAGLM: 1100, DepthM: 200, StrengthK: 2, Class: "subsidence",
+			BasePressHPa: nan, TopPressHPa: nan, GradientKPerKm: 10, ThetaDeltaK: nan, DPDDeltaK: nan,
+			RHDeltaPct: nan, WDeltaGKg: nan, TurningDeg: nan, Levels: 2}}
+		if _, err := schema.WriteTable(dir, schema.TableInversions, inv); err != nil {
+			t.Fatal(err)
+		}
 	}
 	levels := []schema.LevelRow{{StationID: "XA001", Year: 2016, Kind: "surface", PressureHPa: 1000,
 		TemperatureC: 5, DewpointC: nan, LaunchTime: time.Date(2016, 1, 15, 23, 0, 0, 0, time.UTC)}}
@@ -131,8 +163,8 @@ func TestOpenViews(t *testing.T) {
 	for _, r := range tab.Rows {
 		names = append(names, r[0].(string))
 	}
-	if got := strings.Join(names, ","); got != "extras,levels,soundings" {
-		t.Errorf("views = %s, want extras,levels,soundings", got)
+	if got := strings.Join(names, ","); got != "extras,inversions,levels,mixing_heights,soundings" {
+		t.Errorf("views = %s, want extras,inversions,levels,mixing_heights,soundings", got)
 	}
 
 	// Types of the partition columns are pinned, and the redundant path

@@ -3,56 +3,250 @@ package main
 import (
 	"context"
 	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
 
 	"github.com/sondeclim/sondeclim/queries"
 )
 
 func init() {
-	register("climatology", "print the seasonal mixing-height and surface-inversion climatology of a store", func(e env) command { return &climatologyCmd{env: e} })
+	register("climatology", "mixing height, inversions, mixed layers and ventilation per station, season or month, and hour",
+		func(e env) command { return &climatologyCmd{env: e} })
 }
 
-// climatologyCmd prints the seasonal climatology of a store.
+// climatologyCmd prints the boundary-layer climatology of a store.
 type climatologyCmd struct {
 	env
 }
 
 func (c *climatologyCmd) Run(ctx context.Context, args []string) error {
-	fs := newFlags("climatology", "--store DIR [--format text|csv|json]", `
-Print, per station, season (DJF, MAM, JJA, SON) and nominal hour (UTC): the
-soundings attempted and valid, the 10th/25th/50th/75th/90th percentiles of
-the parcel mixing height in m above ground (linear interpolation between
-order statistics, Hyndman-Fan type 7; "surface" counts as 0 m, "undefined"
-is counted apart and left out of the percentiles), and the share of valid
-soundings with a surface-based inversion with its median strength and top.`,
+	fs := newFlags("climatology", "--store DIR [--by season|month] [--time hour|sun] [--station ID]... [--years Y1-Y2] [--table VIEW] [--format F] [--out DIR]", `
+Boundary-layer climatology of a store, one row per cell: station × period
+(--by season: DJF, MAM, JJA, SON, named winter/spring/summer/autumn, the
+names flipped south of the equator; --by month: 1-12) × time of day (--time
+hour: nominal hour UTC; --time sun: day, twilight or night at launch).
+
+Views (--table):
+  summary      soundings attempted and valid, consensus mixing height
+               p10/p25/p50/p75/p90, surface-based inversion (SBI) frequency
+               and median strength, median ventilation index (text default)
+  mixing       one row per method (consensus, parcel, parcel_virtual,
+               heffter, bulk_richardson, bulk_richardson_alt, liu_liang,
+               sbi_top, elevated_inversion_base): ok/surface/undefined counts
+               and percentiles
+  inversions   SBI frequency, median strength and depth where one occurs;
+               elevated-inversion frequency, overall and by class
+  mixed        well-mixed layer frequency, depth, mean θ and mixing ratio
+  ventilation  transport wind, ventilation index, category frequencies
+  all          text/markdown: the four views above in turn; csv/json: every
+               column in one wide row per cell (csv/json default)
+
+Heights are m above ground. Percentiles are Hyndman-Fan type 7 (linear
+interpolation between order statistics); a "surface" mixing height counts
+as 0 m, "undefined" ones are counted apart and left out. Frequencies are
+fractions of the valid soundings. Thin cells stay in the table with a note:
+fewer valid soundings than --min-soundings, fewer than --min-tail values
+behind p10/p90, or (by season) a month with fewer than 10 valid soundings.
+--out DIR writes every view to DIR/climatology-VIEW.EXT instead.`,
 		`  sondeclim climatology --store ./store
-  sondeclim climatology --store ./store --format csv > climatology.csv`,
+  sondeclim climatology --store ./store --by month --time sun --station USM00072403
+  sondeclim climatology --store ./store --years 1991-2020 --table inversions
+  sondeclim climatology --store ./store --format csv > climatology.csv
+  sondeclim climatology --store ./store --format markdown --out ./tables`,
 		c.stderr)
 	store := fs.String("store", "", "store `directory` written by sondeclim ingest")
-	format := fs.String("format", "text", "output `format`: text, csv or json")
+	by := fs.String("by", "season", "`period` of a cell: season or month")
+	tod := fs.String("time", "hour", "time of day of a cell: hour (nominal, UTC) or sun (sun class)")
+	var stations stationList
+	fs.Var(&stations, "station", "station `ID` to include (repeat or comma-separate; default all)")
+	years := fs.String("years", "", "`range` of years to include, e.g. 1991-2020 or 2016 (by season: the season's year, December counting with the following DJF)")
+	minN := fs.Int("min-soundings", 0, "valid soundings below which a cell is noted (`N`; default 45 by season, 15 by month)")
+	minTail := fs.Int("min-tail", queries.MinTailSoundings, "values below which p10/p90 are noted (`N`)")
+	view := fs.String("table", "", "`view`: summary, mixing, inversions, mixed, ventilation or all (default summary for text and markdown, all for csv and json)")
+	format := fs.String("format", "text", "output `format`: text, csv, json or markdown")
+	out := fs.String("out", "", "write every view to files in `directory` instead of stdout")
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
 	if *store == "" {
 		return fmt.Errorf("climatology: --store is required: %w", errUsage)
 	}
-	write, err := tableWriter(*format)
+	if fs.NArg() != 0 {
+		return fmt.Errorf("climatology: unexpected argument %q: %w", fs.Arg(0), errUsage)
+	}
+	first, last, err := parseYears(*years)
 	if err != nil {
 		return fmt.Errorf("climatology: %w", err)
+	}
+	if *minN < 0 || *minTail < 0 {
+		return fmt.Errorf("climatology: --min-soundings and --min-tail must not be negative: %w", errUsage)
+	}
+	write, ext, err := reportWriter(*format)
+	if err != nil {
+		return fmt.Errorf("climatology: %w", err)
+	}
+	if *view == "" {
+		*view = "summary"
+		if *format == "csv" || *format == "json" {
+			*view = "all"
+		}
+	}
+	if !contains(queries.ClimatologyViews, *view) {
+		return fmt.Errorf("climatology: unknown --table %q (%s): %w", *view, strings.Join(queries.ClimatologyViews, ", "), errUsage)
+	}
+	opts := queries.ClimatologyOptions{By: *by, Time: *tod, Stations: stations, FirstYear: first, LastYear: last,
+		MinSoundings: *minN, MinTail: *minTail}
+	if (opts.By != queries.BySeason && opts.By != queries.ByMonth) || (opts.Time != queries.ByHour && opts.Time != queries.BySun) {
+		return fmt.Errorf("climatology: --by is season or month, --time hour or sun: %w", errUsage)
 	}
 	db, err := queries.Open(ctx, *store)
 	if err != nil {
 		return fmt.Errorf("climatology: %w", err)
 	}
 	defer db.Close()
-	t, err := queries.Climatology(ctx, db)
+	ct, err := queries.ClimatologyOf(ctx, db, opts)
 	if err != nil {
 		return fmt.Errorf("climatology: %w", err)
 	}
-	if err := write(c.stdout, t); err != nil {
-		return err
+	people := *format == "text" || *format == "markdown"
+	if *out != "" {
+		return writeViews(c.stdout, *out, "climatology", ext, queries.ClimatologyViews, ct.Table, write)
 	}
-	if *format == "text" {
-		fmt.Fprintf(c.stdout, "\nPercentiles: Hyndman-Fan type 7. Heights in m above ground.\n%s\n", caution)
+	views := []string{*view}
+	if *view == "all" && people {
+		views = []string{"summary", "mixing", "inversions", "mixed", "ventilation"}
+	}
+	for i, v := range views {
+		t, err := ct.Table(v)
+		if err != nil {
+			return fmt.Errorf("climatology: %w", err)
+		}
+		if people {
+			if i > 0 {
+				fmt.Fprintln(c.stdout)
+			}
+			fmt.Fprintf(c.stdout, "%s\n\n", climatologyTitle(v, ct.Options))
+		}
+		if err := write(c.stdout, t); err != nil {
+			return err
+		}
+	}
+	if people {
+		fmt.Fprintf(c.stdout, "\n%s\n%s\n", climatologyFootnote(ct.Options), caution)
 	}
 	return nil
+}
+
+// climatologyTitle is the heading of a view for people.
+func climatologyTitle(view string, o queries.ClimatologyOptions) string {
+	what := map[string]string{
+		"summary":     "Boundary-layer climatology",
+		"mixing":      "Mixing height by method",
+		"inversions":  "Inversions",
+		"mixed":       "Well-mixed layers",
+		"ventilation": "Ventilation",
+		"all":         "Boundary-layer climatology, every column",
+	}[view]
+	tod := "nominal hour (UTC)"
+	if o.Time == queries.BySun {
+		tod = "sun class at launch"
+	}
+	return fmt.Sprintf("%s per station, %s and %s", what, o.By, tod)
+}
+
+// climatologyFootnote states the statistics' definitions under a table.
+func climatologyFootnote(o queries.ClimatologyOptions) string {
+	return fmt.Sprintf("Percentiles: Hyndman-Fan type 7. Heights in m above ground; surface = 0 m, undefined counted apart.\n"+
+		"Frequencies are fractions of the valid soundings. Notes mark cells with fewer than %d valid soundings\n"+
+		"or fewer than %d values behind p10/p90 (minimum samples: METHODS §8 proposals).", o.MinSoundings, o.MinTail)
+}
+
+// reportWriter returns the writer and file extension of an output format.
+func reportWriter(format string) (func(io.Writer, *queries.Table) error, string, error) {
+	switch format {
+	case "text":
+		return queries.WriteText, "txt", nil
+	case "csv":
+		return queries.WriteCSV, "csv", nil
+	case "json":
+		return queries.WriteJSON, "json", nil
+	case "markdown", "md":
+		return queries.WriteMarkdown, "md", nil
+	}
+	return nil, "", fmt.Errorf("unknown --format %q (text, csv, json or markdown): %w", format, errUsage)
+}
+
+// writeViews writes each view to dir/prefix-VIEW.ext and lists the files
+// on w.
+func writeViews(w io.Writer, dir, prefix, ext string, views []string, table func(string) (*queries.Table, error),
+	write func(io.Writer, *queries.Table) error) error {
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return fmt.Errorf("%s: %w", prefix, err)
+	}
+	for _, v := range views {
+		t, err := table(v)
+		if err != nil {
+			return fmt.Errorf("%s: %w", prefix, err)
+		}
+		path := filepath.Join(dir, prefix+"-"+v+"."+ext)
+		f, err := os.Create(path)
+		if err != nil {
+			return fmt.Errorf("%s: %w", prefix, err)
+		}
+		err = write(f, t)
+		if cerr := f.Close(); err == nil {
+			err = cerr
+		}
+		if err != nil {
+			return fmt.Errorf("%s: write %s: %w", prefix, path, err)
+		}
+		fmt.Fprintf(w, "%s\t%d rows\n", path, len(t.Rows))
+	}
+	return nil
+}
+
+// stationList is a flag holding station ids, repeatable and
+// comma-separated.
+type stationList []string
+
+func (s *stationList) String() string { return strings.Join(*s, ",") }
+
+func (s *stationList) Set(v string) error {
+	for _, id := range strings.Split(v, ",") {
+		if id = strings.TrimSpace(id); id != "" {
+			*s = append(*s, id)
+		}
+	}
+	return nil
+}
+
+// parseYears reads "Y1-Y2" or "Y" (empty: no bound) into an inclusive
+// range; 0 means open.
+func parseYears(s string) (first, last int, err error) {
+	if s == "" {
+		return 0, 0, nil
+	}
+	a, b, ok := strings.Cut(s, "-")
+	if !ok {
+		b = a
+	}
+	first, err1 := strconv.Atoi(strings.TrimSpace(a))
+	last, err2 := strconv.Atoi(strings.TrimSpace(b))
+	if err1 != nil || err2 != nil || first < 1 || last < first || last > 9999 {
+		return 0, 0, fmt.Errorf("--years %q: want YEAR or FIRST-LAST, e.g. 1991-2020: %w", s, errUsage)
+	}
+	return first, last, nil
+}
+
+// contains reports whether list holds s.
+func contains(list []string, s string) bool {
+	for _, v := range list {
+		if v == s {
+			return true
+		}
+	}
+	return false
 }

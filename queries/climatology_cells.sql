@@ -1,0 +1,105 @@
+-- Boundary-layer climatology per cell: station × period (season or month)
+-- × time of day (nominal hour or sun class).
+--
+-- Source: the CTE `sample` (climatology_sample.sql, placed in front by Go)
+-- and the inversions view (classes of elevated inversions).
+-- Parameters: $1-$5 as in climatology_sample.sql, and
+--   $6  minimum valid soundings of a cell (METHODS §8: 15 per month, 45 per season)
+--   $7  minimum values for p10/p90 (METHODS §8: 25)
+--
+-- One row per cell, ordered by station, period and time of day:
+--   n_soundings                    soundings attempted
+--   n_valid                        soundings with analysis_status = 'ok'
+--   n_consensus_ok/_surface/_undefined  valid soundings by consensus status
+--   mixing_height_pNN_m            m above ground; percentiles 10/25/50/75/90 of
+--                                  the consensus mixing height of valid soundings,
+--                                  surface counted as 0 m, undefined left out
+--   sbi_frequency                  fraction 0-1 of valid soundings with a surface-based inversion
+--   sbi_median_strength_k          K; median strength where an SBI occurs
+--   sbi_median_depth_m             m; median depth (= top above ground) where an SBI occurs
+--   ei_frequency                   fraction of valid soundings with at least one elevated inversion
+--   ei_<class>_frequency           the same for class subsidence, frontal, capping, unclassified
+--   ml_frequency                   fraction of valid soundings with a well-mixed layer
+--   ml_depth_p25/p50/p75_m         m; depth of the lowest mixed layer where there is one
+--   ml_theta_median_k              K; median of its mass-weighted mean potential temperature
+--   ml_mixing_ratio_median_gkg     g/kg; median of its mass-weighted mean mixing ratio
+--   n_ventilation                  valid soundings with a ventilation index
+--   transport_wind_p25/p50/p75_ms  m/s; transport wind
+--   ventilation_index_pNN_m2s      m2/s; percentiles 10/25/50/75/90 of the ventilation index
+--   ventilation_table              category table(s) of the store, comma-separated
+--   note                           empty, or why the cell is thin: "n_valid<$6",
+--                                  "p10/p90 n<$7" (consensus heights), "month n<10"
+--                                  (season mode: a month of the season has fewer than
+--                                  10 valid soundings; METHODS §8)
+--
+-- Percentiles are quantile_cont: Hyndman & Fan type 7, h = (n-1)p on 0-based
+-- sorted x, linear interpolation. A statistic over no values is null;
+-- frequencies are null when n_valid = 0.
+, ei AS (
+    SELECT station_id, launch_time,
+        bool_or(class = 'subsidence') AS ei_subsidence,
+        bool_or(class = 'frontal') AS ei_frontal,
+        bool_or(class = 'capping') AS ei_capping,
+        bool_or(class = 'unclassified') AS ei_unclassified
+    FROM inversions
+    WHERE NOT surface_based
+    GROUP BY station_id, launch_time
+),
+c AS (
+    SELECT
+        x.station_id, x.season, x.season_name, x.month, x.nominal_hour, x.sun_class,
+        count(*) AS n_soundings,
+        count(*) FILTER (WHERE x.valid) AS n_valid,
+        count(*) FILTER (WHERE x.valid AND x.consensus_status = 'ok') AS n_consensus_ok,
+        count(*) FILTER (WHERE x.valid AND x.consensus_status = 'surface') AS n_consensus_surface,
+        count(*) FILTER (WHERE x.valid AND x.consensus_status NOT IN ('ok', 'surface')) AS n_consensus_undefined,
+        quantile_cont(x.consensus_m, 0.10) FILTER (WHERE x.valid) AS mixing_height_p10_m,
+        quantile_cont(x.consensus_m, 0.25) FILTER (WHERE x.valid) AS mixing_height_p25_m,
+        quantile_cont(x.consensus_m, 0.50) FILTER (WHERE x.valid) AS mixing_height_p50_m,
+        quantile_cont(x.consensus_m, 0.75) FILTER (WHERE x.valid) AS mixing_height_p75_m,
+        quantile_cont(x.consensus_m, 0.90) FILTER (WHERE x.valid) AS mixing_height_p90_m,
+        count(*) FILTER (WHERE x.valid AND x.sbi_present)::DOUBLE / nullif(count(*) FILTER (WHERE x.valid), 0) AS sbi_frequency,
+        quantile_cont(x.sbi_strength_k, 0.5) FILTER (WHERE x.valid AND x.sbi_present) AS sbi_median_strength_k,
+        quantile_cont(x.sbi_top_agl_m, 0.5) FILTER (WHERE x.valid AND x.sbi_present) AS sbi_median_depth_m,
+        count(*) FILTER (WHERE x.valid AND ei.launch_time IS NOT NULL)::DOUBLE / nullif(count(*) FILTER (WHERE x.valid), 0) AS ei_frequency,
+        count(*) FILTER (WHERE x.valid AND ei.ei_subsidence)::DOUBLE / nullif(count(*) FILTER (WHERE x.valid), 0) AS ei_subsidence_frequency,
+        count(*) FILTER (WHERE x.valid AND ei.ei_frontal)::DOUBLE / nullif(count(*) FILTER (WHERE x.valid), 0) AS ei_frontal_frequency,
+        count(*) FILTER (WHERE x.valid AND ei.ei_capping)::DOUBLE / nullif(count(*) FILTER (WHERE x.valid), 0) AS ei_capping_frequency,
+        count(*) FILTER (WHERE x.valid AND ei.ei_unclassified)::DOUBLE / nullif(count(*) FILTER (WHERE x.valid), 0) AS ei_unclassified_frequency,
+        count(*) FILTER (WHERE x.valid AND x.ml_present)::DOUBLE / nullif(count(*) FILTER (WHERE x.valid), 0) AS ml_frequency,
+        quantile_cont(x.ml_depth_m, 0.25) FILTER (WHERE x.valid AND x.ml_present) AS ml_depth_p25_m,
+        quantile_cont(x.ml_depth_m, 0.50) FILTER (WHERE x.valid AND x.ml_present) AS ml_depth_p50_m,
+        quantile_cont(x.ml_depth_m, 0.75) FILTER (WHERE x.valid AND x.ml_present) AS ml_depth_p75_m,
+        quantile_cont(x.mixed_layer_theta_k, 0.5) FILTER (WHERE x.valid AND x.ml_present) AS ml_theta_median_k,
+        quantile_cont(x.mixed_layer_mixing_ratio_gkg, 0.5) FILTER (WHERE x.valid AND x.ml_present) AS ml_mixing_ratio_median_gkg,
+        count(x.ventilation_index_m2s) FILTER (WHERE x.valid) AS n_ventilation,
+        quantile_cont(x.transport_wind_ms, 0.25) FILTER (WHERE x.valid) AS transport_wind_p25_ms,
+        quantile_cont(x.transport_wind_ms, 0.50) FILTER (WHERE x.valid) AS transport_wind_p50_ms,
+        quantile_cont(x.transport_wind_ms, 0.75) FILTER (WHERE x.valid) AS transport_wind_p75_ms,
+        quantile_cont(x.ventilation_index_m2s, 0.10) FILTER (WHERE x.valid) AS ventilation_index_p10_m2s,
+        quantile_cont(x.ventilation_index_m2s, 0.25) FILTER (WHERE x.valid) AS ventilation_index_p25_m2s,
+        quantile_cont(x.ventilation_index_m2s, 0.50) FILTER (WHERE x.valid) AS ventilation_index_p50_m2s,
+        quantile_cont(x.ventilation_index_m2s, 0.75) FILTER (WHERE x.valid) AS ventilation_index_p75_m2s,
+        quantile_cont(x.ventilation_index_m2s, 0.90) FILTER (WHERE x.valid) AS ventilation_index_p90_m2s,
+        coalesce(string_agg(DISTINCT nullif(x.ventilation_table, ''), ',' ORDER BY nullif(x.ventilation_table, '')), '') AS ventilation_table,
+        least(
+            count(*) FILTER (WHERE x.valid AND x.calendar_month % 3 = 0),
+            count(*) FILTER (WHERE x.valid AND x.calendar_month % 3 = 1),
+            count(*) FILTER (WHERE x.valid AND x.calendar_month % 3 = 2)) AS n_fewest_month
+    FROM sample x
+    LEFT JOIN ei USING (station_id, launch_time)
+    GROUP BY ALL
+)
+SELECT
+    * EXCLUDE (n_fewest_month),
+    concat_ws('; ',
+        CASE WHEN n_valid < $6 THEN 'n_valid<' || $6 END,
+        CASE WHEN n_consensus_ok + n_consensus_surface < $7 THEN 'p10/p90 n<' || $7 END,
+        CASE WHEN $1 = 'season' AND n_fewest_month < 10 THEN 'month n<10' END) AS note
+FROM c
+ORDER BY
+    station_id,
+    CASE season WHEN 'DJF' THEN 1 WHEN 'MAM' THEN 2 WHEN 'JJA' THEN 3 WHEN 'SON' THEN 4 ELSE 5 END,
+    month,
+    nominal_hour,
+    CASE sun_class WHEN 'day' THEN 1 WHEN 'twilight' THEN 2 WHEN 'night' THEN 3 ELSE 4 END

@@ -1,0 +1,64 @@
+-- Mixing-height percentiles per cell and method: every method of the
+-- mixing_heights table, and the consensus of the soundings table.
+--
+-- Source: the CTE `sample` (climatology_sample.sql, placed in front by Go)
+-- joined with the mixing_heights view on station_id and launch_time.
+-- Parameters: $1-$5 as in climatology_sample.sql, $6 the minimum valid
+-- soundings of a cell, $7 the minimum values for p10/p90.
+--
+-- One row per cell and method (consensus first, then the methods in the
+-- order of the mixing_heights documentation), over valid soundings only:
+--   method                 consensus, parcel, parcel_virtual, heffter,
+--                          bulk_richardson, bulk_richardson_alt, liu_liang,
+--                          sbi_top, elevated_inversion_base
+--   n_valid                valid soundings of the cell with a row for the method
+--   n_ok, n_surface, n_undefined   by status; undefined is counted here and
+--                          left out of the percentiles
+--   pNN_m                  m above ground; percentiles 10/25/50/75/90 (type 7,
+--                          quantile_cont) of the heights, surface counted as 0 m
+--   note                   "n_valid<$6" and/or "p10/p90 n<$7" (n = n_ok + n_surface)
+, m AS (
+    SELECT x.station_id, x.season, x.season_name, x.month, x.nominal_hour, x.sun_class,
+        'consensus' AS method, x.consensus_status AS status, x.consensus_m AS height_m
+    FROM sample x
+    WHERE x.valid
+    UNION ALL
+    SELECT x.station_id, x.season, x.season_name, x.month, x.nominal_hour, x.sun_class,
+        h.method, h.status,
+        CASE h.status WHEN 'surface' THEN 0.0 WHEN 'ok' THEN h.height_agl_m END
+    FROM sample x
+    JOIN mixing_heights h USING (station_id, launch_time)
+    WHERE x.valid
+),
+c AS (
+    SELECT
+        station_id, season, season_name, month, nominal_hour, sun_class, method,
+        count(*) AS n_valid,
+        count(*) FILTER (WHERE status = 'ok') AS n_ok,
+        count(*) FILTER (WHERE status = 'surface') AS n_surface,
+        count(*) FILTER (WHERE status NOT IN ('ok', 'surface')) AS n_undefined,
+        quantile_cont(height_m, 0.10) AS p10_m,
+        quantile_cont(height_m, 0.25) AS p25_m,
+        quantile_cont(height_m, 0.50) AS p50_m,
+        quantile_cont(height_m, 0.75) AS p75_m,
+        quantile_cont(height_m, 0.90) AS p90_m
+    FROM m
+    GROUP BY ALL
+)
+SELECT
+    *,
+    concat_ws('; ',
+        CASE WHEN n_valid < $6 THEN 'n_valid<' || $6 END,
+        CASE WHEN n_ok + n_surface < $7 THEN 'p10/p90 n<' || $7 END) AS note
+FROM c
+ORDER BY
+    station_id,
+    CASE season WHEN 'DJF' THEN 1 WHEN 'MAM' THEN 2 WHEN 'JJA' THEN 3 WHEN 'SON' THEN 4 ELSE 5 END,
+    month,
+    nominal_hour,
+    CASE sun_class WHEN 'day' THEN 1 WHEN 'twilight' THEN 2 WHEN 'night' THEN 3 ELSE 4 END,
+    CASE method
+        WHEN 'consensus' THEN 0 WHEN 'parcel' THEN 1 WHEN 'parcel_virtual' THEN 2 WHEN 'heffter' THEN 3
+        WHEN 'bulk_richardson' THEN 4 WHEN 'bulk_richardson_alt' THEN 5 WHEN 'liu_liang' THEN 6
+        WHEN 'sbi_top' THEN 7 WHEN 'elevated_inversion_base' THEN 8 ELSE 9 END,
+    method

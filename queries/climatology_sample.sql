@@ -1,0 +1,58 @@
+-- The sample of the climatology: the soundings a climatology
+-- run looks at, with the keys of its cells. This text is the body of the
+-- common table expression `sample` that Go places in front of
+-- climatology_cells.sql, climatology_methods.sql and
+-- climatology_categories.sql (WITH sample AS (<this text>) <that text>), so
+-- the three statements always see the same soundings.
+--
+-- Source: the soundings view.
+-- Parameters (bound, never pasted):
+--   $1  'season' or 'month': the period of a cell
+--   $2  'hour' or 'sun': the time of day of a cell (nominal hour UTC, or
+--       the sun class day/night/twilight/unknown at launch)
+--   $3  VARCHAR[] station ids to keep; an empty list keeps every station
+--   $4  first year kept, $5 last year kept (inclusive): season_year when
+--       $1 = 'season' (December counts with the following year's DJF,
+--       METHODS §8), the calendar year of the nominal time when 'month'
+--
+-- Columns: the cell keys station_id, season (DJF/MAM/JJA/SON, null in month
+-- mode), season_name (winter/spring/summer/autumn by the station's mean
+-- latitude: latitude < 0 flips the label, the code stays), month (1-12,
+-- null in season mode), nominal_hour (null in sun mode), sun_class (null in
+-- hour mode); then per sounding: calendar_month, launch_time, valid
+-- (analysis_status = 'ok') and the per-sounding values the statistics use.
+SELECT
+    s.station_id,
+    CASE WHEN $1 = 'season' THEN s.season END AS season,
+    CASE WHEN $1 = 'season' THEN
+        CASE WHEN avg(s.latitude_deg) OVER (PARTITION BY s.station_id) < 0 THEN
+            CASE s.season WHEN 'DJF' THEN 'summer' WHEN 'MAM' THEN 'autumn' WHEN 'JJA' THEN 'winter' WHEN 'SON' THEN 'spring' END
+        ELSE
+            CASE s.season WHEN 'DJF' THEN 'winter' WHEN 'MAM' THEN 'spring' WHEN 'JJA' THEN 'summer' WHEN 'SON' THEN 'autumn' END
+        END
+    END AS season_name,
+    CASE WHEN $1 = 'month' THEN s.month END AS month,
+    CASE WHEN $2 = 'hour' THEN s.nominal_hour END AS nominal_hour,
+    CASE WHEN $2 = 'sun' THEN s.sun_class END AS sun_class,
+    s.month AS calendar_month,
+    s.launch_time,
+    s.analysis_status = 'ok' AS valid,
+    s.mixing_height_consensus_status AS consensus_status,
+    CASE s.mixing_height_consensus_status
+        WHEN 'surface' THEN 0.0
+        WHEN 'ok' THEN s.mixing_height_consensus_m
+    END AS consensus_m,
+    s.sbi_present,
+    s.sbi_strength_k,
+    s.sbi_top_agl_m,
+    s.mixed_layer_levels > 0 AS ml_present,
+    s.mixed_layer_top_agl_m - s.mixed_layer_base_agl_m AS ml_depth_m,
+    s.mixed_layer_theta_k,
+    s.mixed_layer_mixing_ratio_gkg,
+    s.transport_wind_ms,
+    s.ventilation_index_m2s,
+    s.ventilation_category,
+    s.ventilation_table
+FROM soundings s
+WHERE (len($3::VARCHAR[]) = 0 OR list_contains($3::VARCHAR[], s.station_id))
+    AND (CASE WHEN $1 = 'season' THEN s.season_year ELSE s.year END) BETWEEN $4 AND $5

@@ -1,0 +1,204 @@
+package queries
+
+import (
+	"context"
+	"database/sql"
+	"fmt"
+	"slices"
+	"strconv"
+)
+
+// GuidanceOptions selects the sample and the classes of the forecasters'
+// tables. The zero value uses every station and year and the defaults
+// documented on the fields.
+type GuidanceOptions struct {
+	Stations            []string // station ids to keep; empty keeps all
+	FirstYear, LastYear int      // inclusive, 0 = open (season_year; calendar year for ventilation)
+	// SBIClassesK are the ascending limits (K) of the morning SBI strength
+	// classes; default 0, 2, 5: none, 0-2 K, 2-5 K, >=5 K (common practice,
+	// no source).
+	SBIClassesK []float64
+	// BelowM are the heights (m above ground) whose probability of not
+	// being reached is tabulated; default 600, 1000, 1500 (common
+	// practice, no source).
+	BelowM []float64
+	// TmaxStepC is the width of the maximum-temperature bins in °C of
+	// the Holzworth lookup; default 5.
+	TmaxStepC float64
+	// MinDays notes rows with fewer days; default MinTailSoundings.
+	MinDays int
+}
+
+// GuidanceTables holds the forecasters' tables (GuidanceOf).
+type GuidanceTables struct {
+	Options GuidanceOptions // with defaults filled in
+	// Afternoon: one row per station, season, morning SBI class and
+	// source, with n_below_<h>m and p_below_<h>m for each height of
+	// BelowM (guidance_afternoon.sql).
+	Afternoon *Table
+	// Holzworth: afternoon mixing height by maximum-temperature bin
+	// (guidance_holzworth.sql).
+	Holzworth *Table
+	// Ventilation: per station, month and hour, <category>_n and
+	// <category>_frequency for each ventilation category
+	// (guidance_ventilation.sql).
+	Ventilation *Table
+}
+
+// GuidanceViews names the tables of GuidanceTables for Table.
+var GuidanceViews = []string{"afternoon", "holzworth", "ventilation"}
+
+// Table returns the table of GuidanceViews called name.
+func (g *GuidanceTables) Table(name string) (*Table, error) {
+	switch name {
+	case "afternoon":
+		return g.Afternoon, nil
+	case "holzworth":
+		return g.Holzworth, nil
+	case "ventilation":
+		return g.Ventilation, nil
+	}
+	return nil, fmt.Errorf("guidance: unknown table %q", name)
+}
+
+// normalized fills defaults and checks o.
+func (o GuidanceOptions) normalized() (GuidanceOptions, error) {
+	if o.SBIClassesK == nil {
+		o.SBIClassesK = []float64{0, 2, 5}
+	}
+	if o.BelowM == nil {
+		o.BelowM = []float64{600, 1000, 1500}
+	}
+	if o.TmaxStepC == 0 {
+		o.TmaxStepC = 5
+	}
+	if o.MinDays == 0 {
+		o.MinDays = MinTailSoundings
+	}
+	switch {
+	case len(o.SBIClassesK) == 0 || !slices.IsSorted(o.SBIClassesK) || hasDup(o.SBIClassesK):
+		return o, fmt.Errorf("guidance: SBI class limits must be ascending and distinct, got %v", o.SBIClassesK)
+	case len(o.BelowM) == 0 || slices.ContainsFunc(o.BelowM, func(h float64) bool { return !(h > 0) }):
+		return o, fmt.Errorf("guidance: heights to stay below must be positive, got %v", o.BelowM)
+	case !(o.TmaxStepC > 0):
+		return o, fmt.Errorf("guidance: the maximum-temperature step must be positive, got %v", o.TmaxStepC)
+	case o.MinDays < 0:
+		return o, fmt.Errorf("guidance: minimum days must not be negative")
+	}
+	o.BelowM = slices.Clone(o.BelowM)
+	slices.Sort(o.BelowM)
+	o.BelowM = slices.Compact(o.BelowM)
+	return o, nil
+}
+
+func hasDup(x []float64) bool {
+	for i := 1; i < len(x); i++ {
+		if x[i] == x[i-1] {
+			return true
+		}
+	}
+	return false
+}
+
+// yearBounds turns 0 (open) bounds into bindable ones.
+func yearBounds(first, last int) (int64, int64) {
+	f, l := int64(first), int64(last)
+	if f == 0 {
+		f = -1 << 30
+	}
+	if l == 0 {
+		l = 1 << 30
+	}
+	return f, l
+}
+
+// GuidanceOf computes the forecasters' tables of db (see Open; it needs
+// the soundings and afternoon_mixing views). The columns are documented
+// in guidance_afternoon.sql, guidance_holzworth.sql and
+// guidance_ventilation.sql.
+func GuidanceOf(ctx context.Context, db *sql.DB, o GuidanceOptions) (*GuidanceTables, error) {
+	o, err := o.normalized()
+	if err != nil {
+		return nil, err
+	}
+	g := &GuidanceTables{Options: o}
+	st := o.Stations
+	if st == nil {
+		st = []string{}
+	}
+	first, last := yearBounds(o.FirstYear, o.LastYear)
+	sample, err := statement("guidance_sample.sql")
+	if err != nil {
+		return nil, err
+	}
+	days := func(name string) (string, error) {
+		body, err := statement(name)
+		if err != nil {
+			return "", err
+		}
+		return "WITH days AS (\n" + sample + "\n)\n" + body, nil
+	}
+	q, err := days("guidance_afternoon.sql")
+	if err != nil {
+		return nil, err
+	}
+	long, err := Query(ctx, db, q, st, first, last, o.SBIClassesK, o.BelowM, int64(o.MinDays))
+	if err != nil {
+		return nil, fmt.Errorf("guidance (afternoon): %w", err)
+	}
+	g.Afternoon = afternoonWide(long)
+	if q, err = days("guidance_holzworth.sql"); err != nil {
+		return nil, err
+	}
+	if g.Holzworth, err = Query(ctx, db, q, st, first, last, o.SBIClassesK, o.TmaxStepC, int64(o.MinDays)); err != nil {
+		return nil, fmt.Errorf("guidance (holzworth): %w", err)
+	}
+	vent, err := runStatement(ctx, db, "guidance_ventilation.sql", "guidance (ventilation)", st, first, last)
+	if err != nil {
+		return nil, err
+	}
+	keys := []string{"station_id", "month", "nominal_hour"}
+	base := distinctRows(selectColumns(vent, append(slices.Clone(keys), "n_valid")), keys)
+	g.Ventilation = withCategories(base, vent, keys, []string{"n", "frequency"})
+	return g, nil
+}
+
+// afternoonWide turns the long afternoon table (one row per height of
+// BelowM) into one row per group with n_below_<h>m and p_below_<h>m
+// columns, the note last.
+func afternoonWide(long *Table) *Table {
+	keys := []string{"station_id", "season", "sbi_rank", "source"}
+	var cols []string
+	for _, c := range long.Columns {
+		switch c {
+		case "below_m", "n_below", "p_below", "note", "sbi_rank":
+		default:
+			cols = append(cols, c)
+		}
+	}
+	base := distinctRows(selectColumns(long, append(append([]string{"sbi_rank"}, cols...), "note")), keys)
+	wide := pivot(selectColumns(base, append([]string{"sbi_rank"}, cols...)), long, keys, "below_m",
+		[]string{"n_below", "p_below"}, func(v, s string) string {
+			if f, err := strconv.ParseFloat(v, 64); err == nil {
+				v = strconv.FormatFloat(f, 'f', -1, 64)
+			}
+			return s + "_" + v + "m"
+		})
+	wide = appendColumnFrom(wide, base, "note")
+	return selectColumns(wide, slices.DeleteFunc(slices.Clone(wide.Columns), func(c string) bool { return c == "sbi_rank" }))
+}
+
+// distinctRows keeps the first row of each key (rows of equal key are
+// adjacent or not; order of first appearance is kept).
+func distinctRows(t *Table, keys []string) *Table {
+	seen := map[string]bool{}
+	out := &Table{Columns: t.Columns}
+	for _, r := range t.Rows {
+		k := keyOf(t, r, keys)
+		if !seen[k] {
+			seen[k] = true
+			out.Rows = append(out.Rows, r)
+		}
+	}
+	return out
+}
