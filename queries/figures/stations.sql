@@ -1,0 +1,17 @@
+-- Stations of a store with their names and period of record.
+--
+-- Source: the soundings view. Parameters: none.
+-- One row per station_id, sorted by station_id:
+--   station_name   the longest name given for the station ('' when none)
+--   first_time     earliest nominal_time (UTC)
+--   last_time      latest nominal_time (UTC)
+--   n_soundings    soundings attempted (every row)
+SELECT
+    station_id,
+    coalesce(arg_max(station_name, length(station_name)), '') AS station_name,
+    min(nominal_time) AS first_time,
+    max(nominal_time) AS last_time,
+    count(*) AS n_soundings
+FROM soundings
+GROUP BY station_id
+ORDER BY station_id

@@ -1,0 +1,105 @@
+package report
+
+import (
+	"bytes"
+	"context"
+	"regexp"
+	"strings"
+	"testing"
+	"time"
+
+	"github.com/sondeclim/sondeclim/queries"
+	"github.com/sondeclim/sondeclim/schema"
+)
+
+// TestBuild writes a report of an invented store (unit scaffolding;
+// stations XR001 and XR002 do not exist) and checks the coverage counts,
+// worked out by hand, and that the page is self-contained.
+func TestBuild(t *testing.T) {
+	dir := t.TempDir()
+	var rows []schema.SoundingRow
+	add := func(station string, year int, qc, analysis string, n int) {
+		for i := 0; i < n; i++ {
+			nominal := time.Date(year, 1, 1+i, 12, 0, 0, 0, time.UTC)
+			rows = append(rows, schema.SoundingRow{StationID: station, StationName: "INVENTED", LaunchTime: nominal.Add(-time.Hour),
+				NominalTime: nominal, NominalHour: 12, Year: int32(year), Month: 1, Season: "DJF", SeasonYear: int32(year),
+				QCStatus: qc, AnalysisStatus: analysis, ConsensusStatus: "ok", ConsensusMHM: float64(100 * (i + 1))})
+		}
+	}
+	add("XR001", 2015, "ok", "ok", 4)
+	add("XR001", 2015, "suspect", "ok", 1)
+	add("XR001", 2016, "rejected:pressure_order", "rejected", 2)
+	add("XR001", 2016, "ok", "no_surface_level", 1)
+	add("XR002", 2016, "ok", "ok", 3)
+	if _, err := schema.WriteTable(dir, schema.TableSoundings, rows); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := schema.WriteTable(dir, schema.TableMixingHeights, []schema.MixingHeightRow{{StationID: "XR001", LaunchTime: rows[0].LaunchTime, Year: 2015, Method: "parcel", Status: "surface"}}); err != nil {
+		t.Fatal(err)
+	}
+	// The climatology also reads the layer tables; one row each.
+	if _, err := schema.WriteTable(dir, schema.TableInversions, []schema.InversionRow{{StationID: "XR001", LaunchTime: rows[0].LaunchTime, Year: 2015, SurfaceBased: true, TopAGLM: 100, StrengthK: 2, Class: "radiation"}}); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := schema.WriteTable(dir, schema.TableMixedLayers, []schema.MixedLayerRow{{StationID: "XR001", LaunchTime: rows[0].LaunchTime, Year: 2015, BaseAGLM: 100, TopAGLM: 600}}); err != nil {
+		t.Fatal(err)
+	}
+	ctx := context.Background()
+	db, err := queries.Open(ctx, dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer db.Close()
+
+	r, err := Build(ctx, db, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	// station, year, attempted, valid, QC-excluded, not analysable, suspect.
+	want := [][]string{
+		{"XR001", "2015", "5", "5", "0", "0", "1"},
+		{"XR001", "2016", "3", "0", "2", "1", "0"},
+		{"XR002", "2016", "3", "3", "0", "0", "0"},
+	}
+	if got := r.Coverage.Rows; len(got) != len(want) || strings.Join(flat(got), ",") != strings.Join(flat(want), ",") {
+		t.Errorf("coverage %v, want %v", got, want)
+	}
+	if len(r.Sections) != 2 || len(r.Sections[0].Images) != 3 {
+		t.Errorf("%d sections", len(r.Sections))
+	}
+	var buf bytes.Buffer
+	if err := r.WriteHTML(&buf); err != nil {
+		t.Fatal(err)
+	}
+	page := buf.String()
+	if m := regexp.MustCompile(`(?i)(src|href)\s*=\s*"(https?:|//)`).FindString(page); m != "" {
+		t.Errorf("page refers outside itself: %q", m)
+	}
+	if !strings.Contains(page, Caution) || strings.Count(page, `src="data:image/png;base64,`) != 6 {
+		t.Errorf("page lacks the caution or the 6 figures")
+	}
+
+	one, err := Build(ctx, db, Options{Station: "XR002"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(one.Coverage.Rows) != 1 || len(one.Sections) != 1 || !strings.Contains(one.Title, "XR002 INVENTED") {
+		t.Errorf("station report: %d coverage rows, %d sections, title %q", len(one.Coverage.Rows), len(one.Sections), one.Title)
+	}
+	for _, row := range one.Climatology.Rows {
+		if row[0] != "XR002" {
+			t.Errorf("climatology row of another station: %v", row)
+		}
+	}
+	if _, err := Build(ctx, db, Options{Station: "NOPE"}); err == nil {
+		t.Error("unknown station accepted")
+	}
+}
+
+func flat(rows [][]string) []string {
+	var out []string
+	for _, r := range rows {
+		out = append(out, strings.Join(r, " "))
+	}
+	return out
+}
