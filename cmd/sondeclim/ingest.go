@@ -7,6 +7,7 @@ import (
 	"log/slog"
 	"os"
 	"runtime"
+	"runtime/debug"
 	"runtime/pprof"
 	"sort"
 	"strings"
@@ -118,6 +119,7 @@ skipped.`,
 		}
 		defer pprof.StopCPUProfile()
 	}
+	tuneGC()
 	sum, err := pipeline.Run(ctx, *storeDir, fs.Args(), opt)
 	if err != nil {
 		if *summaryJSON != "" {
@@ -233,4 +235,21 @@ func loadStations(path string, log *slog.Logger) (map[string]pipeline.StationInf
 	}
 	log.Info("station list read", "file", path, "stations", len(m))
 	return m, nil
+}
+
+// ingestMemoryLimit is the Go heap size ingest lets garbage build up to
+// before collecting (unless GOGC or GOMEMLIMIT is set). A run holds one
+// station-year per worker, far below it; collecting rarely instead of
+// every time the heap doubles cut ingest time by about a quarter in
+// measurements (README, Performance), with peak memory still under 1 GB.
+const ingestMemoryLimit = 768 << 20
+
+// tuneGC switches the collector to the memory limit above, unless the
+// user chose settings through the environment.
+func tuneGC() {
+	if os.Getenv("GOGC") != "" || os.Getenv("GOMEMLIMIT") != "" {
+		return
+	}
+	debug.SetMemoryLimit(ingestMemoryLimit)
+	debug.SetGCPercent(-1)
 }

@@ -113,6 +113,11 @@ func (r *run) ingest(files []string, old *store.Manifest, full bool, paramsText 
 	if err != nil {
 		return nil, err
 	}
+	// The staged copies are no longer needed; remove them before the sync
+	// below, which would otherwise write them to disk for nothing.
+	if err := os.RemoveAll(r.staging); err != nil {
+		return nil, err
+	}
 	for i, k := range keys {
 		p := built[i]
 		switch {

@@ -44,9 +44,21 @@ func appendSounding(b []byte, s *sounding.Sounding, source bool) []byte {
 	for i := range s.Levels {
 		l := &s.Levels[i]
 		b = append(b, byte(l.Kind), flags(l.Tropopause, false, false))
-		for _, v := range [...]float64{l.ElapsedS, l.PressurePa, l.HeightM, l.TemperatureK, l.DewpointK,
-			l.DewpointDepressionK, l.RelHumidityPct, l.WindDirectionDeg, l.WindSpeedMS} {
-			b = appendFloat(b, v)
+		// A bitmap says which of the nine values are present (not NaN);
+		// only those follow, since archive levels miss many of them.
+		vals := [...]float64{l.ElapsedS, l.PressurePa, l.HeightM, l.TemperatureK, l.DewpointK,
+			l.DewpointDepressionK, l.RelHumidityPct, l.WindDirectionDeg, l.WindSpeedMS}
+		var present uint16
+		for k, v := range vals {
+			if !math.IsNaN(v) {
+				present |= 1 << k
+			}
+		}
+		b = binary.LittleEndian.AppendUint16(b, present)
+		for k, v := range vals {
+			if present&(1<<k) != 0 {
+				b = appendFloat(b, v)
+			}
 		}
 		for v := range sounding.NumVars {
 			b = append(b, byte(l.Status[v]), l.UpstreamTier[v])
@@ -130,6 +142,16 @@ func (d *decoder) string() string {
 	return s
 }
 
+func (d *decoder) uint16() uint16 {
+	if len(d.b) < 2 {
+		d.fail()
+		return 0
+	}
+	v := binary.LittleEndian.Uint16(d.b)
+	d.b = d.b[2:]
+	return v
+}
+
 func (d *decoder) float() float64 {
 	if len(d.b) < 8 {
 		d.fail()
@@ -163,9 +185,9 @@ func decodeSounding(b []byte) (*sounding.Sounding, []byte, error) {
 		s.Source.Format = d.string()
 	}
 	n := d.uvarint()
-	// Each level takes at least 2 + 9·8 + 2·NumVars bytes: bound n by the
+	// Each level takes at least 2 + 2 + 2·NumVars bytes: bound n by the
 	// bytes left before allocating.
-	if n > uint64(len(d.b))/uint64(2+9*8+2*int(sounding.NumVars)) {
+	if n > uint64(len(d.b))/uint64(4+2*int(sounding.NumVars)) {
 		return nil, nil, errCodec
 	}
 	s.Levels = make([]sounding.Level, n)
@@ -173,9 +195,14 @@ func decodeSounding(b []byte) (*sounding.Sounding, []byte, error) {
 		l := &s.Levels[i]
 		l.Kind = sounding.LevelKind(d.byte())
 		l.Tropopause = d.byte()&1 != 0
-		for _, p := range [...]*float64{&l.ElapsedS, &l.PressurePa, &l.HeightM, &l.TemperatureK, &l.DewpointK,
+		present := d.uint16()
+		for k, p := range [...]*float64{&l.ElapsedS, &l.PressurePa, &l.HeightM, &l.TemperatureK, &l.DewpointK,
 			&l.DewpointDepressionK, &l.RelHumidityPct, &l.WindDirectionDeg, &l.WindSpeedMS} {
-			*p = d.float()
+			if present&(1<<k) != 0 {
+				*p = d.float()
+			} else {
+				*p = math.NaN()
+			}
 		}
 		for v := range sounding.NumVars {
 			l.Status[v] = sounding.Status(d.byte())
