@@ -104,20 +104,6 @@ func (o ClimatologyOptions) sampleArgs() []any {
 	return []any{o.By, o.Time, st, int64(first), int64(last)}
 }
 
-// withSample returns the embedded statement name preceded by the common
-// table expression `sample` of climatology_sample.sql.
-func withSample(name string) (string, error) {
-	sample, err := statement("climatology_sample.sql")
-	if err != nil {
-		return "", err
-	}
-	body, err := statement(name)
-	if err != nil {
-		return "", err
-	}
-	return "WITH sample AS (\n" + sample + "\n)\n" + body, nil
-}
-
 // ClimatologyTables holds one climatology run: the statistics per cell,
 // per cell and mixing-height method, and per cell and ventilation
 // category. Table renders the views commands print.
@@ -141,21 +127,41 @@ func ClimatologyOf(ctx context.Context, db *sql.DB, o ClimatologyOptions) (*Clim
 	}
 	ct := &ClimatologyTables{Options: o}
 	args := o.sampleArgs()
-	full := append(slices.Clone(args), int64(o.MinSoundings), int64(o.MinTail))
+	// The three statements share one sample of soundings: it is built once
+	// as a temporary table on one connection (reading the store's files
+	// once), and each statement reads it.
+	conn, err := db.Conn(ctx)
+	if err != nil {
+		return nil, fmt.Errorf("climatology: %w", err)
+	}
+	defer conn.Close()
+	sample, err := statement("climatology_sample.sql")
+	if err != nil {
+		return nil, err
+	}
+	if _, err := conn.ExecContext(ctx, "CREATE OR REPLACE TEMP TABLE sample AS\n"+sample, args...); err != nil {
+		return nil, fmt.Errorf("climatology (climatology_sample.sql): %w", err)
+	}
+	defer conn.ExecContext(context.WithoutCancel(ctx), "DROP TABLE IF EXISTS sample")
+	minN, minTail := int64(o.MinSoundings), int64(o.MinTail)
 	for _, q := range []struct {
 		file string
 		args []any
 		dst  **Table
 	}{
-		{"climatology_cells.sql", full, &ct.Cells},
-		{"climatology_methods.sql", full, &ct.Methods},
-		{"climatology_categories.sql", args, &ct.Categories},
+		{"climatology_cells.sql", []any{o.By, minN, minTail}, &ct.Cells},
+		{"climatology_methods.sql", []any{minN, minTail}, &ct.Methods},
+		{"climatology_categories.sql", nil, &ct.Categories},
 	} {
-		text, err := withSample(q.file)
+		body, err := statement(q.file)
 		if err != nil {
 			return nil, err
 		}
-		t, err := Query(ctx, db, text, q.args...)
+		// The bodies continue a WITH clause whose first member was the
+		// sample; the sample is now a table, so an empty first member
+		// stands in for it.
+		text := "WITH unused AS (SELECT 1)\n" + body
+		t, err := queryOn(ctx, conn, text, q.args...)
 		if err != nil {
 			return nil, fmt.Errorf("climatology (%s): %w", q.file, err)
 		}

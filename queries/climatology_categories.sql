@@ -1,7 +1,8 @@
 -- Ventilation category frequencies per cell.
 --
 -- Source: the CTE `sample` (climatology_sample.sql, placed in front by Go).
--- Parameters: $1-$5 as in climatology_sample.sql.
+-- Parameters: none (the sample is built first, with its own, as a
+-- temporary table named sample).
 --
 -- One row per cell, category table and category, over valid soundings:
 --   ventilation_table   name of the category table (as stored per sounding)

@@ -3,9 +3,11 @@
 --
 -- Source: the CTE `sample` (climatology_sample.sql, placed in front by Go)
 -- and the inversions view (classes of elevated inversions).
--- Parameters: $1-$5 as in climatology_sample.sql, and
---   $6  minimum valid soundings of a cell (METHODS §8: 15 per month, 45 per season)
---   $7  minimum values for p10/p90 (METHODS §8: 25)
+-- Parameters (the sample is built first, with its own, as a temporary
+-- table named sample):
+--   $1  'season' or 'month', as $1 of climatology_sample.sql
+--   $2  minimum valid soundings of a cell (METHODS §8: 15 per month, 45 per season)
+--   $3  minimum values for p10/p90 (METHODS §8: 25)
 --
 -- One row per cell, ordered by station, period and time of day:
 --   n_soundings                    soundings attempted
@@ -27,8 +29,8 @@
 --   transport_wind_p25/p50/p75_ms  m/s; transport wind
 --   ventilation_index_pNN_m2s      m2/s; percentiles 10/25/50/75/90 of the ventilation index
 --   ventilation_table              category table(s) of the store, comma-separated
---   note                           empty, or why the cell is thin: "n_valid<$6",
---                                  "p10/p90 n<$7" (consensus heights), "month n<10"
+--   note                           empty, or why the cell is thin: "n_valid<$2",
+--                                  "p10/p90 n<$3" (consensus heights), "month n<10"
 --                                  (season mode: a month of the season has fewer than
 --                                  10 valid soundings; METHODS §8)
 --
@@ -93,8 +95,8 @@ c AS (
 SELECT
     * EXCLUDE (n_fewest_month),
     concat_ws('; ',
-        CASE WHEN n_valid < $6 THEN 'n_valid<' || $6 END,
-        CASE WHEN n_consensus_ok + n_consensus_surface < $7 THEN 'p10/p90 n<' || $7 END,
+        CASE WHEN n_valid < $2 THEN 'n_valid<' || $2 END,
+        CASE WHEN n_consensus_ok + n_consensus_surface < $3 THEN 'p10/p90 n<' || $3 END,
         CASE WHEN $1 = 'season' AND n_fewest_month < 10 THEN 'month n<10' END) AS note
 FROM c
 ORDER BY

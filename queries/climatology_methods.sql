@@ -3,8 +3,9 @@
 --
 -- Source: the CTE `sample` (climatology_sample.sql, placed in front by Go)
 -- joined with the mixing_heights view on station_id and launch_time.
--- Parameters: $1-$5 as in climatology_sample.sql, $6 the minimum valid
--- soundings of a cell, $7 the minimum values for p10/p90.
+-- Parameters (the sample is built first, with its own, as a temporary
+-- table named sample): $1 the minimum valid soundings of a cell, $2 the
+-- minimum values for p10/p90.
 --
 -- One row per cell and method (consensus first, then the methods in the
 -- order of the mixing_heights documentation), over valid soundings only:
@@ -16,7 +17,7 @@
 --                          left out of the percentiles
 --   pNN_m                  m above ground; percentiles 10/25/50/75/90 (type 7,
 --                          quantile_cont) of the heights, surface counted as 0 m
---   note                   "n_valid<$6" and/or "p10/p90 n<$7" (n = n_ok + n_surface)
+--   note                   "n_valid<$1" and/or "p10/p90 n<$2" (n = n_ok + n_surface)
 , m AS (
     SELECT x.station_id, x.season, x.season_name, x.month, x.nominal_hour, x.sun_class,
         'consensus' AS method, x.consensus_status AS status, x.consensus_m AS height_m
@@ -48,8 +49,8 @@ c AS (
 SELECT
     *,
     concat_ws('; ',
-        CASE WHEN n_valid < $6 THEN 'n_valid<' || $6 END,
-        CASE WHEN n_ok + n_surface < $7 THEN 'p10/p90 n<' || $7 END) AS note
+        CASE WHEN n_valid < $1 THEN 'n_valid<' || $1 END,
+        CASE WHEN n_ok + n_surface < $2 THEN 'p10/p90 n<' || $2 END) AS note
 FROM c
 ORDER BY
     station_id,

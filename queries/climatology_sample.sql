@@ -1,9 +1,9 @@
 -- The sample of the climatology: the soundings a climatology
--- run looks at, with the keys of its cells. This text is the body of the
--- common table expression `sample` that Go places in front of
--- climatology_cells.sql, climatology_methods.sql and
--- climatology_categories.sql (WITH sample AS (<this text>) <that text>), so
--- the three statements always see the same soundings.
+-- run looks at, with the keys of its cells. Go creates a temporary table
+-- named sample from this statement (CREATE TEMP TABLE sample AS <this
+-- text>) and then runs climatology_cells.sql, climatology_methods.sql and
+-- climatology_categories.sql on the same connection, so the three
+-- statements see the same soundings and the store is read once.
 --
 -- Source: the soundings view.
 -- Parameters (bound, never pasted):

@@ -28,6 +28,16 @@ type Table struct {
 // Query runs query on db with bound args and reads the whole result into a
 // Table.
 func Query(ctx context.Context, db *sql.DB, query string, args ...any) (*Table, error) {
+	return queryOn(ctx, db, query, args...)
+}
+
+// queryer is what Query needs: a *sql.DB or a *sql.Conn (for statements
+// that share a connection's temporary tables).
+type queryer interface {
+	QueryContext(ctx context.Context, query string, args ...any) (*sql.Rows, error)
+}
+
+func queryOn(ctx context.Context, db queryer, query string, args ...any) (*Table, error) {
 	rows, err := db.QueryContext(ctx, query, args...)
 	if err != nil {
 		return nil, fmt.Errorf("queries: %w", err)
