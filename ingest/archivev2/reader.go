@@ -175,18 +175,8 @@ func (r *Reader) Next() (*sounding.Sounding, error) {
 	count, badLine := 0, 0
 	var badErr error
 	for {
-		line, long, err := r.readLine()
-		if err != nil {
-			if r.err == nil {
-				r.stop(err)
-			}
-			break
-		}
-		if !long && isBlank(line) {
-			continue
-		}
-		if line[0] == '#' {
-			r.keepHeader(line, long)
+		line, long, ok := r.nextData()
+		if !ok {
 			break
 		}
 		count++
@@ -194,6 +184,7 @@ func (r *Reader) Next() (*sounding.Sounding, error) {
 			continue
 		}
 		var lv sounding.Level
+		var err error
 		if long {
 			err = fmt.Errorf("%w: line longer than %d bytes", ingest.ErrBadLevel, maxLine)
 		} else {
@@ -240,18 +231,7 @@ func (r *Reader) findHeader() error {
 	}
 	first, last := 0, 0
 	for {
-		line, long, err := r.readLine()
-		if err != nil {
-			if r.err == nil {
-				r.stop(err)
-			}
-			break
-		}
-		if !long && isBlank(line) {
-			continue
-		}
-		if line[0] == '#' {
-			r.keepHeader(line, long)
+		if _, _, ok := r.nextData(); !ok {
 			break
 		}
 		if first == 0 {
@@ -267,4 +247,27 @@ func (r *Reader) findHeader() error {
 		return r.err
 	}
 	return nil
+}
+
+// nextData returns the next data record, skipping blank lines. At a header
+// (kept for the next call of Next) or at the end of the input (or a read
+// error, kept in r.err) it returns ok false.
+func (r *Reader) nextData() (line []byte, long, ok bool) {
+	for {
+		line, long, err := r.readLine()
+		if err != nil {
+			if r.err == nil {
+				r.stop(err)
+			}
+			return nil, false, false
+		}
+		if !long && isBlank(line) {
+			continue
+		}
+		if line[0] == '#' {
+			r.keepHeader(line, long)
+			return nil, false, false
+		}
+		return line, long, true
+	}
 }
