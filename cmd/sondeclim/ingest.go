@@ -13,6 +13,7 @@ import (
 	"strings"
 	"text/tabwriter"
 
+	"github.com/sondeclim/sondeclim/analyze"
 	"github.com/sondeclim/sondeclim/cmd/sondeclim/internal/pipeline"
 	"github.com/sondeclim/sondeclim/ingest/archivev2"
 	"github.com/sondeclim/sondeclim/schema/store"
@@ -73,6 +74,7 @@ skipped.`,
 	full := fs.Bool("full", false, "ignore what was ingested before and rebuild every partition from the inputs given")
 	wait := fs.Bool("wait", false, "wait for another ingest into the same store to finish instead of failing")
 	shard := fs.String("shard", "", "write only the stations of shard `K/N` (stations are assigned by a hash of their id)")
+	dailyMax := fs.String("daily-max", "", "CSV `file` of daily maximum temperatures (station_id,date,tmax_c; date local YYYY-MM-DD) for the afternoon (Holzworth) mixing height; without it, the same day's afternoon sounding is used")
 	useSuspect := fs.Bool("use-suspect", false, "let the analysis use values quality control flags as suspect (bad values are never used)")
 	cpuProfile := fs.String("cpuprofile", "", "write a CPU profile to `file` (for performance work: go tool pprof FILE)")
 	summaryJSON := fs.String("summary-json", "", "write a machine-readable summary of the run to `file`")
@@ -98,6 +100,18 @@ skipped.`,
 		return fmt.Errorf("ingest: %v: %w", err, errUsage)
 	}
 	opt := pipeline.Options{Workers: *workers, Format: *format, Log: log, Shard: sh, Full: *full, Wait: *wait, UseSuspect: *useSuspect}
+	if *dailyMax != "" {
+		f, err := os.Open(*dailyMax)
+		if err != nil {
+			return fmt.Errorf("ingest: %w", err)
+		}
+		m, err := analyze.ReadDailyMaxima(f)
+		f.Close()
+		if err != nil {
+			return fmt.Errorf("ingest: daily maxima %s: %w", *dailyMax, err)
+		}
+		opt.DailyMaxima = m
+	}
 	if !*quiet && isTerminal(c.stderr) {
 		opt.Progress = progressBar(c.stderr)
 	}

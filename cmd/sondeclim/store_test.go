@@ -357,3 +357,53 @@ func TestOldStoreRefused(t *testing.T) {
 		t.Errorf("ingest into a store without manifest: exit %d, %q", code, errs)
 	}
 }
+
+// TestParameterChangeKeepsOtherInputs: a run with different analysis
+// settings (here --use-suspect) that names only some inputs rebuilds every
+// partition, reading the other inputs again, and loses nothing. Real files
+// from ../shared/validation (PROVENANCE.md: Cape Kennedy 14, Wien 321).
+func TestParameterChangeKeepsOtherInputs(t *testing.T) {
+	v := sharedDir(t)
+	a := filepath.Join(v, "archive-v2", "USM00074794-data-1950-portion.txt")
+	b := filepath.Join(v, "archive-v2", "AUM00011035-data.txt.gz")
+	s := t.TempDir()
+	mustIngest(t, "--store", s, a, b)
+	sum := filepath.Join(t.TempDir(), "summary.json")
+	mustIngest(t, "--store", s, "--use-suspect", "--summary-json", sum, a)
+	got := readSummary(t, sum)
+	if got.Soundings != 14+321 || got.PartitionsWritten != 2 || got.InputsRead != 2 {
+		t.Errorf("after a parameter change naming one input: %d soundings in store, %d partitions written, %d inputs read; want 335, 2, 2",
+			got.Soundings, got.PartitionsWritten, got.InputsRead)
+	}
+	code, out, _ := runCmd(t, "query", "--store", s, "--format", "csv", "select count(*) from soundings")
+	if code != exitOK || out != "count_star()\n335\n" {
+		t.Errorf("store after the rebuild: %q", out)
+	}
+}
+
+// TestDailyMaxima: --daily-max feeds the afternoon (Holzworth) mixing
+// height, and changing it re-derives the store. The sounding file is real
+// (Sterling 2016, PROVENANCE.md); the two maxima are invented plumbing
+// values, not observations.
+func TestDailyMaxima(t *testing.T) {
+	v := sharedDir(t)
+	in := filepath.Join(v, "archive-v2", "USM00072403-data-beg2016.txt.zip")
+	maxima := filepath.Join(t.TempDir(), "tmax.csv")
+	os.WriteFile(maxima, []byte("station_id,date,tmax_c\nUSM00072403,2016-07-01,33.5\nUSM00072403,2016-07-02,31.0\n"), 0o644)
+	s := t.TempDir()
+	mustIngest(t, "--store", s, in)
+	mustIngest(t, "--store", s, "--daily-max", maxima, in)
+	code, out, errs := runCmd(t, "query", "--store", s, "--format", "csv",
+		"select strftime(local_date, '%Y-%m-%d') as d, tmax_c, status from afternoon_mixing "+
+			"where tmax_source = 'daily_maxima' order by 1")
+	if code != exitOK {
+		t.Fatalf("query: exit %d %s", code, errs)
+	}
+	if !strings.HasPrefix(out, "d,tmax_c,status\n2016-07-01,33.5,") || !strings.Contains(out, "\n2016-07-02,31,") {
+		t.Errorf("afternoon rows from the daily maxima:\n%s", out)
+	}
+	code, _, errs = runCmd(t, "ingest", "--store", s, "--daily-max", filepath.Join(t.TempDir(), "absent.csv"), in)
+	if code != exitFailure || !strings.Contains(errs, "absent.csv") {
+		t.Errorf("missing maxima file: exit %d, %q", code, errs)
+	}
+}

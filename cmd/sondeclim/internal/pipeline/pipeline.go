@@ -253,13 +253,40 @@ func Run(ctx context.Context, storeDir string, paths []string, opt Options) (*Su
 		}
 	}
 	full := opt.Full || old.Params != r.params
-	if !opt.Full && full && len(old.Partitions) > 0 {
-		r.log.Info("analysis parameters or derivation version changed since the last commit: rebuilding every partition the inputs touch")
+	if !opt.Full && full && len(old.Inputs) > 0 {
+		// Every partition must be re-derived with the new parameters, so
+		// every input ingested before is read again, whether or not this
+		// run names it: a rebuild must not lose what other runs added.
+		named := map[string]bool{}
+		for _, f := range files {
+			named[f] = true
+		}
+		var missing []string
+		for f := range old.Inputs {
+			if named[f] {
+				continue
+			}
+			if _, err := os.Stat(f); err != nil {
+				missing = append(missing, f)
+				continue
+			}
+			files = append(files, f)
+		}
+		if len(missing) > 0 {
+			sort.Strings(missing)
+			return nil, fmt.Errorf("analysis parameters or derivation version changed since the last commit, so every partition "+
+				"must be rebuilt, but %d input(s) ingested before cannot be read now (first: %s); restore them, or rebuild "+
+				"with --full from the inputs you have (partitions of missing inputs are then dropped)", len(missing), missing[0])
+		}
+		sort.Strings(files)
+		r.log.Info("analysis parameters or derivation version changed since the last commit: rebuilding every partition",
+			"inputs", len(files))
 	}
 
 	// Station lists given among the inputs supply metadata, not soundings.
+	before := len(files)
 	files, r.opt.Stations = takeStationLists(files, opt.SizeLimit, opt.Stations, r.skip)
-	r.sum.StationLists = len(r.sum.Inputs) - len(files)
+	r.sum.StationLists = before - len(files)
 
 	r.staging = filepath.Join(storeDir, store.MetaDir, "staging-"+opt.Shard.Name())
 	if err := os.RemoveAll(r.staging); err != nil {
