@@ -71,10 +71,9 @@ func uniform(r *rand.Rand, lo, hi float64) float64 { return lo + (hi-lo)*r.Float
 // afternoon designs a late-afternoon sounding: a well-mixed layer of depth
 // 300–3200 m (deeper in summer), a capping inversion with dry air above,
 // then the free troposphere. s is the season (0 mid-winter, 1 mid-summer).
-func (pr *profile) afternoon(r *rand.Rand, cl climate, s, anomK, pSfcPa, elevM float64) (tropAGLM float64) {
+func (pr *profile) afternoon(r *rand.Rand, cl climate, s, anomK, pSfcPa, elevM, h float64) (tropAGLM float64) {
 	tS := lerp(cl.tmaxWinter, cl.tmaxSummer, s) + anomK + zeroCK
 	w := lerp(cl.wWinter, cl.wSummer, s) * math.Exp(0.2*r.NormFloat64())
-	h := clamp(lerp(500, 2300, s)*math.Exp(0.22*r.NormFloat64()), 300, 3200)
 	// Keep the lifting condensation level (about 122 m per kelvin of
 	// dewpoint depression; common practice, no source) above the mixed
 	// layer, so that the mixed layer stays unsaturated.
@@ -98,7 +97,7 @@ func (pr *profile) afternoon(r *rand.Rand, cl climate, s, anomK, pSfcPa, elevM f
 // (probability 85 % in mid-winter to 40 % in mid-summer) or a stable but
 // not inverted surface layer, the previous day's residual layer, a weak
 // inversion at its top, then the free troposphere.
-func (pr *profile) morning(r *rand.Rand, cl climate, s, anomK, pSfcPa, elevM float64) (tropAGLM float64) {
+func (pr *profile) morning(r *rand.Rand, cl climate, s, anomK, pSfcPa, elevM, h float64) (tropAGLM float64) {
 	tS := lerp(cl.tmaxWinter-cl.dtrWinter, cl.tmaxSummer-cl.dtrSummer, s) + anomK + r.NormFloat64() + zeroCK
 	dpd := uniform(r, 0.3, 3)
 	pr.reset(pSfcPa, tS, tS-dpd)
@@ -111,13 +110,23 @@ func (pr *profile) morning(r *rand.Rand, cl climate, s, anomK, pSfcPa, elevM flo
 		dz := uniform(r, 150, 400)
 		pr.addDPD(dz, tS-uniform(r, 3, 8)*dz/1000, dpd+uniform(r, 0, 2))
 	}
+	// The residual layer: what is left of the mixed layer of the day's
+	// afternoon (depth h, drawn once per local day and shared with the
+	// afternoon sounding), a few tenths of a kelvin cooler in θ than the
+	// afternoon's, so that today's heating mixes up through it to the cap
+	// as the Holzworth construction assumes. A stable transition joins it
+	// to the layer below.
 	l := pr.last()
-	zr := max(l.zAGLM+200, lerp(600, 2300, s)*math.Exp(0.22*r.NormFloat64()))
-	lapse := uniform(r, 8, 9.5) / 1000
+	tAft := lerp(cl.tmaxWinter, cl.tmaxSummer, s) + anomK + zeroCK
+	thetaR := tAft*math.Pow(p0Pa/pSfcPa, kappa) - uniform(r, 0.2, 0.8)
 	w := mixingRatio(l.tdK, l.pPa)
-	half := (zr - l.zAGLM) / 2
-	pr.addW(half, l.tK-lapse*half, w)
-	pr.addW(half, l.tK-2*lapse*half, w)
+	zr := max(l.zAGLM+200, h)
+	if thetaL := l.tK * math.Pow(p0Pa/l.pPa, kappa); thetaR > thetaL+0.3 {
+		dz := min(uniform(r, 100, 300), (zr-l.zAGLM)/2)
+		pr.addThetaW(dz, thetaR, w)
+	}
+	pr.addThetaW((zr-pr.last().zAGLM)/2, thetaR+0.1*r.NormFloat64(), w)
+	pr.addThetaW(zr-pr.last().zAGLM, thetaR+0.2, w)
 	top := pr.last()
 	pr.addDPD(uniform(r, 80, 250), top.tK+uniform(r, 0.5, 2.5), top.tK-top.tdK+uniform(r, 5, 15))
 	return pr.freeTroposphere(r, s, elevM)
@@ -180,4 +189,11 @@ func (pr *profile) freeTroposphere(r *rand.Rand, s, elevM float64) (tropAGLM flo
 		}
 		pr.addDPD(dz, l.tK-lapse*dz, dpd)
 	}
+}
+
+// mixedDepth draws the depth of a day's afternoon mixed layer, m: about
+// 500 m in mid-winter to 2300 m in mid-summer, log-normally spread
+// (the scenario's own choice).
+func mixedDepth(r *rand.Rand, s float64) float64 {
+	return clamp(lerp(500, 2300, s)*math.Exp(0.22*r.NormFloat64()), 300, 3200)
 }

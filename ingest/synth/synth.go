@@ -133,6 +133,12 @@ type generator struct {
 	levels      []level
 	buf         []byte
 	releaseHHMM int
+	// dayMixedM is the afternoon mixed-layer depth drawn with a morning
+	// sounding, used by the next afternoon sounding (the same local day),
+	// so that the morning's residual layer and the afternoon's mixed layer
+	// agree; NaN when none is pending.
+	dayMixedM float64
+	started   bool // the anomalies have been drawn once
 }
 
 func newGenerator(cfg Config) *generator {
@@ -141,6 +147,8 @@ func newGenerator(cfg Config) *generator {
 		rng: rand.New(rand.NewPCG(cfg.Seed, uint64(cfg.StationIndex)^0x9e3779b97f4a7c15)),
 		st:  st,
 		cl:  climateOf(st),
+
+		dayMixedM: math.NaN(),
 	}
 }
 
@@ -155,20 +163,33 @@ func (g *generator) season(t time.Time) float64 {
 // sounding designs the sounding nominally at t into g.levels.
 func (g *generator) sounding(t time.Time) {
 	r := g.rng
-	// Synoptic anomalies: AR(1) with lag-12 h correlation 0.85,
-	// standard deviations 3.5 K and 700 Pa (common practice, no source).
-	const phi = 0.85
-	inno := math.Sqrt(1 - phi*phi)
-	g.anomK = phi*g.anomK + 3.5*inno*r.NormFloat64()
-	g.anomPa = phi*g.anomPa + 700*inno*r.NormFloat64()
+	// Synoptic anomalies: AR(1) from one local day to the next with
+	// correlation 0.85, standard deviations 3.5 K and 700 Pa (common
+	// practice, no source). They change with the morning (12 UTC)
+	// sounding, so a day's morning and afternoon share them.
+	if t.Hour() != 0 || !g.started {
+		const phi = 0.85
+		inno := math.Sqrt(1 - phi*phi)
+		g.anomK = phi*g.anomK + 3.5*inno*r.NormFloat64()
+		g.anomPa = phi*g.anomPa + 700*inno*r.NormFloat64()
+		g.started = true
+	}
 	s := g.season(t)
 	pSfc := math.Round(g.cl.surfacePa + g.anomPa)
 	var ztrop float64
 	if t.Hour() == 0 {
-		ztrop = g.pr.afternoon(r, g.cl, s, g.anomK, pSfc, g.st.ElevationM)
+		h := g.dayMixedM
+		if math.IsNaN(h) {
+			h = mixedDepth(r, s)
+		}
+		g.dayMixedM = math.NaN()
+		ztrop = g.pr.afternoon(r, g.cl, s, g.anomK, pSfc, g.st.ElevationM, h)
 		g.releaseHHMM = 2300 + r.IntN(41)
 	} else {
-		ztrop = g.pr.morning(r, g.cl, s, g.anomK, pSfc, g.st.ElevationM)
+		// 12 UTC is before dawn; 00 UTC next comes the same local day's
+		// late afternoon (package documentation).
+		g.dayMixedM = mixedDepth(r, s)
+		ztrop = g.pr.morning(r, g.cl, s, g.anomK, pSfc, g.st.ElevationM, g.dayMixedM)
 		g.releaseHHMM = 1100 + r.IntN(41)
 	}
 	g.assemble()
