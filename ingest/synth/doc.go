@@ -18,11 +18,13 @@
 // with a probability that falls from 85 % in mid-winter to 40 % in
 // mid-summer; winter inversions are deeper (typically 200–600 m) and
 // stronger (typically 3–9 K) than summer ones (100–250 m, 2–4 K). Above it lies a residual
-// layer (constant θ, a few tenths of a kelvin below the coming afternoon's
-// mixed-layer θ) as deep as the same local day's afternoon mixed layer,
-// capped by a weak elevated inversion: the morning and afternoon soundings
-// of one day agree, as the Holzworth afternoon construction (morning
-// profile lifted from the day's maximum temperature) assumes.
+// layer (constant θ, 1–3 K below the coming afternoon's mixed-layer θ) as
+// deep as the same local day's afternoon mixed layer, capped by a weak
+// elevated inversion: the morning and afternoon soundings of one day
+// agree, as the Holzworth afternoon construction (morning profile lifted
+// from the day's maximum temperature) assumes. The dawn surface
+// temperature follows from the residual layer and the night's inversion,
+// so the diurnal range is an outcome (typically 6–12 K).
 // Every afternoon sounding has a well-mixed layer (θ and mixing ratio
 // constant) whose depth grows from about 400–850 m in winter to 1600–3000 m
 // in summer, capped by an inversion with much drier air above. About half

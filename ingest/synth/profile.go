@@ -98,45 +98,42 @@ func (pr *profile) afternoon(r *rand.Rand, cl climate, s, anomK, pSfcPa, elevM, 
 // not inverted surface layer, the previous day's residual layer, a weak
 // inversion at its top, then the free troposphere.
 func (pr *profile) morning(r *rand.Rand, cl climate, s, anomK, pSfcPa, elevM, h float64) (tropAGLM float64) {
-	tS := lerp(cl.tmaxWinter-cl.dtrWinter, cl.tmaxSummer-cl.dtrSummer, s) + anomK + r.NormFloat64() + zeroCK
+	// Above the night's surface layer lies the residual layer: what is
+	// left of the mixed layer of the day's afternoon (depth h, drawn once
+	// per local day and shared with the afternoon sounding), cooled by
+	// 1–3 K over the night, so that today's heating mixes up through it to
+	// the cap as the Holzworth construction assumes. The surface layer is
+	// built down from it: the night's cooling is what makes the surface
+	// inversion, so the dawn temperature follows from the inversion's
+	// strength and depth (and the diurnal range emerges).
+	tAft := lerp(cl.tmaxWinter, cl.tmaxSummer, s) + anomK + zeroCK
+	thetaR := tAft*math.Pow(p0Pa/pSfcPa, kappa) - uniform(r, 1, 3)
+	tR := thetaR * math.Pow(pSfcPa/p0Pa, kappa) // at the surface pressure
 	dpd := uniform(r, 0.3, 3)
-	pr.reset(pSfcPa, tS, tS-dpd)
 	if r.Float64() < lerp(0.85, 0.40, s) {
 		depth := clamp(lerp(350, 150, s)*math.Exp(0.35*r.NormFloat64()), 60, 900)
 		dT := clamp(lerp(6, 2.5, s)*math.Exp(0.4*r.NormFloat64()), 0.8, 15)
+		tS := tR - dT - dryLapseKPerM*depth
+		pr.reset(pSfcPa, tS, tS-dpd)
 		pr.addDPD(0.3*depth, tS+0.6*dT, dpd+uniform(r, 0, 1.5))
 		pr.addDPD(0.7*depth, tS+dT, dpd+uniform(r, 1, 5))
 	} else {
 		dz := uniform(r, 150, 400)
-		pr.addDPD(dz, tS-uniform(r, 3, 8)*dz/1000, dpd+uniform(r, 0, 2))
+		lapse := uniform(r, 3, 8) / 1000
+		tS := tR - (dryLapseKPerM-lapse)*dz - uniform(r, 0, 0.5)
+		pr.reset(pSfcPa, tS, tS-dpd)
+		pr.addDPD(dz, tS-lapse*dz, dpd+uniform(r, 0, 2))
 	}
-	// The residual layer: what is left of the mixed layer of the day's
-	// afternoon (depth h, drawn once per local day and shared with the
-	// afternoon sounding), a few tenths of a kelvin cooler in θ than the
-	// afternoon's, so that today's heating mixes up through it to the cap
-	// as the Holzworth construction assumes. A stable transition joins it
-	// to the layer below.
 	l := pr.last()
-	tAft := lerp(cl.tmaxWinter, cl.tmaxSummer, s) + anomK + zeroCK
-	thetaR := tAft*math.Pow(p0Pa/pSfcPa, kappa) - uniform(r, 0.2, 0.8)
 	w := mixingRatio(l.tdK, l.pPa)
 	zr := max(l.zAGLM+200, h)
-	if thetaL := l.tK * math.Pow(p0Pa/l.pPa, kappa); thetaR > thetaL+0.3 {
-		dz := min(uniform(r, 100, 300), (zr-l.zAGLM)/2)
-		pr.addThetaW(dz, thetaR, w)
-	}
-	pr.addThetaW((zr-pr.last().zAGLM)/2, thetaR+0.1*r.NormFloat64(), w)
+	pr.addThetaW((zr-l.zAGLM)/2, thetaR+0.1*r.NormFloat64(), w)
 	pr.addThetaW(zr-pr.last().zAGLM, thetaR+0.2, w)
 	top := pr.last()
 	pr.addDPD(uniform(r, 80, 250), top.tK+uniform(r, 0.5, 2.5), top.tK-top.tdK+uniform(r, 5, 15))
 	return pr.freeTroposphere(r, s, elevM)
 }
 
-// freeTroposphere continues the profile from its current top with layers
-// 140–300 m thick cooling at 6.5 ± 0.9 K/km, an optional subsidence
-// inversion (probability 0.5) 1–3 km higher with drier air above, a
-// tropopause near 10 km (winter) to 12 km (summer) above sea level, and a
-// nearly isothermal stratosphere up to a top between 92 and 99 hPa.
 func (pr *profile) freeTroposphere(r *rand.Rand, s, elevM float64) (tropAGLM float64) {
 	z := pr.last().zAGLM
 	ztrop := max(lerp(10000, 12200, s)+400*r.NormFloat64()-elevM, z+2000)
