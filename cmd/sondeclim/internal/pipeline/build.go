@@ -189,7 +189,7 @@ func (r *run) buildAll(keys []string, st *staged, old *store.Manifest) ([]*store
 			}
 			if time.Since(tick) >= every {
 				tick = time.Now()
-				r.log.Info("progress", "partitions_done", n, "partitions", len(keys))
+				r.log.Info("progress: building station-years", "done", n, "of", len(keys))
 			}
 			mu.Unlock()
 			return nil

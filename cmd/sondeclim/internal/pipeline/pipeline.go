@@ -155,7 +155,8 @@ type run struct {
 	sum     *Summary
 	staging string
 
-	mu sync.Mutex // guards sum.Skipped, sum.Notes, sum.Members
+	mu        sync.Mutex // guards sum.Skipped, sum.Notes, sum.Members, sum.SoundingsRead, filesRead
+	filesRead int        // input files staged so far, for progress
 }
 
 // stage adds the time since start to a stage's total.

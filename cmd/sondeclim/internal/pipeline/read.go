@@ -60,6 +60,8 @@ func (r *run) stageInputs(files []string, st *staged, keep map[string]bool) ([]r
 	results := make([]readResult, len(files))
 	g, ctx := errgroup.WithContext(r.ctx)
 	g.SetLimit(r.workers)
+	stop := r.reportReading(len(files))
+	defer stop()
 	for i, path := range files {
 		st.mu.Lock()
 		fi := len(st.files)
@@ -73,6 +75,9 @@ func (r *run) stageInputs(files []string, st *staged, keep map[string]bool) ([]r
 				return err
 			}
 			results[i] = res
+			r.mu.Lock()
+			r.filesRead++
+			r.mu.Unlock()
 			return nil
 		})
 	}
@@ -282,4 +287,30 @@ func applyStation(s *sounding.Sounding, info StationInfo) {
 	if s.ElevationM != s.ElevationM {
 		s.ElevationM = info.ElevationM
 	}
+}
+
+// reportReading logs the reading progress every ProgressEvery until the
+// returned function is called.
+func (r *run) reportReading(total int) (stop func()) {
+	every := r.opt.ProgressEvery
+	if every <= 0 {
+		every = 5 * time.Second
+	}
+	done := make(chan struct{})
+	tick := time.NewTicker(every)
+	go func() {
+		defer tick.Stop()
+		for {
+			select {
+			case <-done:
+				return
+			case <-tick.C:
+				r.mu.Lock()
+				files, n := r.filesRead, r.sum.SoundingsRead
+				r.mu.Unlock()
+				r.log.Info("progress: reading", "files_done", files, "files", total, "soundings_read", n)
+			}
+		}
+	}()
+	return func() { close(done) }
 }
