@@ -4,6 +4,7 @@ import (
 	"archive/zip"
 	"compress/gzip"
 	"errors"
+	"github.com/sondeclim/sondeclim/ingest/validation"
 	"io"
 	"math"
 	"os"
@@ -15,30 +16,8 @@ import (
 	"github.com/sondeclim/sondeclim/ingest/sounding"
 )
 
-// validationDir returns ../shared/validation/archive-v2 relative to the
-// module root (the directory holding go.mod), or skips the test.
-func validationDir(tb testing.TB) string {
-	tb.Helper()
-	dir, err := os.Getwd()
-	if err != nil {
-		tb.Fatal(err)
-	}
-	for {
-		if _, err := os.Stat(filepath.Join(dir, "go.mod")); err == nil {
-			break
-		}
-		parent := filepath.Dir(dir)
-		if parent == dir {
-			tb.Skip("go.mod not found above the test directory; real archive files unavailable")
-		}
-		dir = parent
-	}
-	v := filepath.Join(dir, "..", "shared", "validation", "archive-v2")
-	if _, err := os.Stat(v); err != nil {
-		tb.Skipf("real archive files absent (%v); they live in ../shared/validation, see PROVENANCE.md", err)
-	}
-	return v
-}
+// validationDir returns ../shared/validation/archive-v2, or skips the test.
+func validationDir(tb testing.TB) string { return validation.Dir(tb, "archive-v2") }
 
 // readAll drains an archive-v2 reader; parse errors fail the test.
 func readAll(tb testing.TB, r io.Reader, name string) []*sounding.Sounding {

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"flag"
+	"github.com/sondeclim/sondeclim/ingest/validation"
 	"os"
 	"path/filepath"
 	"regexp"
@@ -44,19 +45,9 @@ func golden(t *testing.T, name, got string) {
 	}
 }
 
-// sharedDir returns ../shared/validation relative to the repository root,
-// or skips the test when it is absent (a clone outside the team's machines).
-func sharedDir(t *testing.T) string {
-	t.Helper()
-	dir, err := filepath.Abs("../../../shared/validation")
-	if err != nil {
-		t.Fatal(err)
-	}
-	if _, err := os.Stat(dir); err != nil {
-		t.Skipf("real validation data not available (%s absent): %v", dir, err)
-	}
-	return dir
-}
+// sharedDir returns ../shared/validation (beside the repository), or skips
+// the test when it is absent (a clone outside the team's machines).
+func sharedDir(t *testing.T) string { return validation.Dir(t) }
 
 func TestUsage(t *testing.T) {
 	code, out, _ := runCmd(t, "help")

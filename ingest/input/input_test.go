@@ -7,6 +7,7 @@ import (
 	"compress/gzip"
 	"errors"
 	"fmt"
+	"github.com/sondeclim/sondeclim/ingest/validation"
 	"io"
 	"os"
 	"path/filepath"
@@ -218,26 +219,8 @@ func TestEachStops(t *testing.T) {
 	}
 }
 
-// validationDir returns ../shared/validation/archive-v2 relative to the
-// module root or skips the test.
-func validationDir(t *testing.T) string {
-	t.Helper()
-	dir, _ := os.Getwd()
-	for {
-		if _, err := os.Stat(filepath.Join(dir, "go.mod")); err == nil {
-			break
-		}
-		if filepath.Dir(dir) == dir {
-			t.Skip("go.mod not found; cannot locate ../shared/validation")
-		}
-		dir = filepath.Dir(dir)
-	}
-	v := filepath.Join(dir, "..", "shared", "validation", "archive-v2")
-	if _, err := os.Stat(v); err != nil {
-		t.Skipf("real archive files absent (%v); see ../shared/validation/PROVENANCE.md", err)
-	}
-	return v
-}
+// validationDir returns ../shared/validation/archive-v2, or skips the test.
+func validationDir(t *testing.T) string { return validation.Dir(t, "archive-v2") }
 
 // headers streams a member and counts its lines and header lines.
 func headers(r io.Reader) (lines, hdrs int, first string, err error) {

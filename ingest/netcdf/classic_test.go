@@ -3,6 +3,7 @@ package netcdf
 import (
 	"bytes"
 	"errors"
+	"github.com/sondeclim/sondeclim/ingest/validation"
 	"math"
 	"os"
 	"path/filepath"
@@ -10,16 +11,8 @@ import (
 	"testing"
 )
 
-// sharedDir returns ../shared/validation/netcdf relative to the module
-// root (the directory holding go.mod), or skips the test when it is absent.
-func sharedDir(t testing.TB) string {
-	t.Helper()
-	s := findShared()
-	if s == "" {
-		t.Skip("../shared/validation/netcdf (relative to the module root) not available")
-	}
-	return s
-}
+// sharedDir returns ../shared/validation/netcdf, or skips the test.
+func sharedDir(t testing.TB) string { return validation.Dir(t, "netcdf") }
 
 // tinyFile is invented scaffolding: two fixed variables, two record
 // variables of which one is a short (exercising the 4-byte padding of each

@@ -4,6 +4,7 @@ import (
 	"bufio"
 	"bytes"
 	"fmt"
+	"github.com/sondeclim/sondeclim/ingest/validation"
 	"io"
 	"math"
 	"os"
@@ -154,30 +155,8 @@ func parseFile(r io.Reader) ([]snd, error) {
 	return out, sc.Err()
 }
 
-// sharedDir returns ../shared relative to the repository root (the
-// directory holding go.mod), or skips the test when it is absent.
-func sharedDir(t testing.TB) string {
-	t.Helper()
-	dir, err := os.Getwd()
-	if err != nil {
-		t.Fatal(err)
-	}
-	for {
-		if _, err := os.Stat(filepath.Join(dir, "go.mod")); err == nil {
-			break
-		}
-		parent := filepath.Dir(dir)
-		if parent == dir {
-			t.Skip("repository root (go.mod) not found; skipping test that needs ../shared")
-		}
-		dir = parent
-	}
-	shared := filepath.Join(dir, "..", "shared", "validation")
-	if _, err := os.Stat(shared); err != nil {
-		t.Skipf("validation data %s not present; skipping", shared)
-	}
-	return shared
-}
+// sharedDir returns ../shared/validation, or skips the test.
+func sharedDir(t testing.TB) string { return validation.Dir(t) }
 
 // generate returns the output of Write for cfg.
 func generate(t testing.TB, cfg Config) []byte {

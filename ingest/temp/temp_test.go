@@ -2,6 +2,7 @@ package temp
 
 import (
 	"errors"
+	"github.com/sondeclim/sondeclim/ingest/validation"
 	"io"
 	"math"
 	"os"
@@ -15,29 +16,8 @@ import (
 	"github.com/sondeclim/sondeclim/ingest/sounding"
 )
 
-// sharedDir returns ../shared/validation/temp relative to the repository
-// root (the directory holding go.mod), or skips the test.
-func sharedDir(t testing.TB) string {
-	dir, err := os.Getwd()
-	if err != nil {
-		t.Fatal(err)
-	}
-	for {
-		if _, err := os.Stat(filepath.Join(dir, "go.mod")); err == nil {
-			break
-		}
-		parent := filepath.Dir(dir)
-		if parent == dir {
-			t.Skip("go.mod not found above the test directory")
-		}
-		dir = parent
-	}
-	v := filepath.Join(dir, "..", "shared", "validation", "temp")
-	if _, err := os.Stat(v); err != nil {
-		t.Skipf("validation data not available (%s): %v", v, err)
-	}
-	return v
-}
+// sharedDir returns ../shared/validation/temp, or skips the test.
+func sharedDir(t testing.TB) string { return validation.Dir(t, "temp") }
 
 // readAll decodes every sounding of r and returns them with the errors.
 func readAll(t testing.TB, rd *Reader) ([]*sounding.Sounding, []error) {

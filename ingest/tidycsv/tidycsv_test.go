@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"errors"
 	"fmt"
+	"github.com/sondeclim/sondeclim/ingest/validation"
 	"io"
 	"math"
 	"os"
@@ -147,29 +148,8 @@ func TestSniff(t *testing.T) {
 	}
 }
 
-// sharedDir returns ../shared/validation/netcdf relative to the module
-// root (the directory holding go.mod), or skips when it is absent.
-func sharedDir(t testing.TB) string {
-	t.Helper()
-	dir, err := os.Getwd()
-	if err != nil {
-		t.Fatal(err)
-	}
-	for {
-		if _, err := os.Stat(filepath.Join(dir, "go.mod")); err == nil {
-			break
-		}
-		if filepath.Dir(dir) == dir {
-			t.Skip("go.mod not found; cannot locate ../shared")
-		}
-		dir = filepath.Dir(dir)
-	}
-	s := filepath.Join(dir, "..", "shared", "validation", "netcdf")
-	if _, err := os.Stat(s); err != nil {
-		t.Skipf("validation data not available (%s): %v", s, err)
-	}
-	return s
-}
+// sharedDir returns ../shared/validation/netcdf, or skips the test.
+func sharedDir(t testing.TB) string { return validation.Dir(t, "netcdf") }
 
 func readNetCDF(t testing.TB, name string) *sounding.Sounding {
 	raw, err := os.ReadFile(name)

@@ -2,6 +2,7 @@ package pipeline
 
 import (
 	"context"
+	"github.com/sondeclim/sondeclim/ingest/validation"
 	"math"
 	"os"
 	"path/filepath"
@@ -15,30 +16,14 @@ import (
 	"github.com/sondeclim/sondeclim/qc"
 )
 
-// repoRoot walks up to the directory holding go.mod.
-func repoRoot(tb testing.TB) string {
-	tb.Helper()
-	dir, _ := os.Getwd()
-	for {
-		if _, err := os.Stat(filepath.Join(dir, "go.mod")); err == nil {
-			return dir
-		}
-		parent := filepath.Dir(dir)
-		if parent == dir {
-			tb.Fatal("go.mod not found")
-		}
-		dir = parent
-	}
-}
-
 // realSoundings reads a real archive file from ../shared/validation, or
 // skips when it is absent.
 func realSoundings(tb testing.TB, name string) []*sounding.Sounding {
 	tb.Helper()
-	path := filepath.Join(repoRoot(tb), "..", "shared", "validation", "archive-v2", name)
+	path := filepath.Join(validation.Dir(tb, "archive-v2"), name)
 	f, err := os.Open(path)
 	if err != nil {
-		tb.Skipf("real validation data not available: %v", err)
+		tb.Fatal(err)
 	}
 	defer f.Close()
 	r := archivev2.NewReader(f, path, "")
