@@ -302,19 +302,16 @@ func TestReadErrors(t *testing.T) {
 
 // ExampleRead reads one flight from the validation data.
 func ExampleRead() {
-	name := "../../../shared/validation/netcdf/sgpsondewnpnC1.b1.20190101.053200.cdf"
-	raw, err := os.ReadFile(name)
-	if err != nil {
-		fmt.Println("validation data not available")
-		return
-	}
-	s, findings, err := Read(bytes.NewReader(raw), int64(len(raw)), name, DefaultMapping())
+	// A three-record flight (invented, built in memory; the real files of
+	// ../shared/validation/netcdf are read the same way).
+	raw := tinySonde().bytes()
+	s, findings, err := Read(bytes.NewReader(raw), int64(len(raw)), "abcsondeX7.b1.cdf", DefaultMapping())
 	if err != nil {
 		fmt.Println(err)
 		return
 	}
 	top := s.Levels[len(s.Levels)-1]
-	fmt.Printf("%s %s: %d levels, top %.1f hPa, %d findings\n",
+	fmt.Printf("%s %s: %d levels, top %.1f hPa, %d finding(s)\n",
 		s.StationID, s.LaunchTime.Format(time.RFC3339), len(s.Levels), top.PressurePa/100, len(findings))
-	// Output: sgpC1 2019-01-01T05:32:00Z: 4176 levels, top 25.8 hPa, 0 findings
+	// Output: abcX7 2025-06-19T00:30:00Z: 3 levels, top 980.0 hPa, 1 finding(s)
 }
