@@ -38,6 +38,13 @@ const (
 	tempFilePrefix = ".part.parquet.tmp-"
 )
 
+// statsColumns are the columns whose min/max statistics are written (the
+// keys queries select on).
+var statsColumns = map[string]bool{
+	StationColumn: true, YearColumn: true, "launch_time": true, "nominal_time": true,
+	"local_date": true, "month": true, "season": true, "nominal_hour": true,
+}
+
 var (
 	tableName = regexp.MustCompile(`^[a-z][a-z0-9_]*$`)
 	// stationID is what a station identifier may contain to be used as a
@@ -239,6 +246,15 @@ func encode[T any](w *bufio.Writer, sc *arrow.Schema, cols []Column, rows []T, i
 	for _, c := range cols {
 		if c.kind == kindString || c.kind == kindPtrString {
 			opts = append(opts, parquet.WithDictionaryFor(c.Name, true))
+		}
+	}
+	// Min/max statistics let readers skip row groups, which pays for the
+	// columns queries select on (the keys), not for every measurement:
+	// computing them for all columns cost about 15 % of the writing time.
+	opts = append(opts, parquet.WithStats(false))
+	for _, c := range cols {
+		if statsColumns[c.Name] {
+			opts = append(opts, parquet.WithStatsFor(c.Name, true))
 		}
 	}
 	props := parquet.NewWriterProperties(opts...)
