@@ -313,6 +313,27 @@ func timeQueries(ctx context.Context, store string, res *benchResult) error {
 		run  func() (*queries.Table, error)
 	}{
 		{"seasonal climatology", func() (*queries.Table, error) { return queries.Climatology(ctx, db) }},
+		{"monthly climatology by sun class", func() (*queries.Table, error) {
+			ct, err := queries.ClimatologyOf(ctx, db, queries.ClimatologyOptions{By: queries.ByMonth, Time: queries.BySun})
+			if err != nil {
+				return nil, err
+			}
+			return ct.Cells, nil
+		}},
+		{"guidance tables", func() (*queries.Table, error) {
+			gt, err := queries.GuidanceOf(ctx, db, queries.GuidanceOptions{})
+			if err != nil {
+				return nil, err
+			}
+			return gt.Afternoon, nil
+		}},
+		{"trends", func() (*queries.Table, error) {
+			tt, err := queries.Trends(ctx, db, queries.TrendOptions{})
+			if err != nil {
+				return nil, err
+			}
+			return tt.Trends, nil
+		}},
 		{"qc findings by check", func() (*queries.Table, error) { return queries.QCByCheck(ctx, db) }},
 		{"qc by month", func() (*queries.Table, error) { return queries.QCMonthly(ctx, db) }},
 		{"levels: count and mean theta", func() (*queries.Table, error) {
