@@ -87,6 +87,15 @@ type Config struct {
 	// is at least SuperadiabaticLayerPa deep. Defaults 200 m, 50 hPa and
 	// 10 hPa (METHODS §6 "Superadiabatic").
 	SuperadiabaticMinAGLM, SuperadiabaticMinDepthPa, SuperadiabaticLayerPa float64
+	// NightSunBelowDeg: when the sun at launch is lower than this (night),
+	// the near-surface layers excused above are checked too, with the same
+	// lapse-rate limit, and a superadiabatic one is suspect (never bad:
+	// warm surfaces such as water or cities can keep one after dark).
+	// Default 0° (METHODS §6 "Superadiabatic": allow near-surface layers by
+	// day, flag them only at night; night is a sun below the horizon,
+	// METHODS §8). NaN disables the night check; soundings without a
+	// position are not checked.
+	NightSunBelowDeg float64
 	// SuspectLapseKPerM and BadLapseKPerM: a layer cooling with height
 	// faster than these is suspect or bad. Defaults 12 K/km and 25 K/km
 	// (METHODS §6 "Superadiabatic"; the dry adiabatic rate is 9.76 K/km).
@@ -141,6 +150,7 @@ func DefaultConfig() Config {
 
 		SuperadiabaticMinAGLM: 200, SuperadiabaticMinDepthPa: 5000, SuperadiabaticLayerPa: 1000,
 		SuspectLapseKPerM: 0.012, BadLapseKPerM: 0.025,
+		NightSunBelowDeg: 0,
 
 		ColdHumidityK:            c0 - 40,
 		MaxSurfacePressureDiffPa: 6000,

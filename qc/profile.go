@@ -1,6 +1,7 @@
 package qc
 
 import (
+	"github.com/sondeclim/sondeclim/analyze/sun"
 	"math"
 
 	"github.com/sondeclim/sondeclim/analyze/thermo"
@@ -74,9 +75,11 @@ func (st *state) superadiabatic() {
 	}
 	z := st.heightsAGL(idx)
 	pLow := st.p[idx[0]]
+	night := st.night()
 	for n := 0; n+1 < len(idx); n++ {
 		a := idx[n]
-		if z[n] < c.SuperadiabaticMinAGLM || st.p[a] > pLow-c.SuperadiabaticMinDepthPa {
+		nearSurface := z[n] < c.SuperadiabaticMinAGLM || st.p[a] > pLow-c.SuperadiabaticMinDepthPa
+		if nearSurface && !night {
 			continue
 		}
 		m := n + 1
@@ -90,9 +93,15 @@ func (st *state) superadiabatic() {
 		dz := z[m] - z[n]
 		lapse := -(st.t[b] - st.t[a]) / dz
 		if dz > 0 && lapse > c.SuspectLapseKPerM {
-			st.flag(b, sounding.VarTemperature, sev(lapse > c.BadLapseKPerM), CheckSuperadiabatic, st.t[b], nan,
-				"layer %.1f–%.1f hPa (%.0f m deep, base %.0f m above ground) cools %.1f K/km",
-				st.p[a]/100, st.p[b]/100, dz, z[n], lapse*1000)
+			if nearSurface {
+				st.flag(b, sounding.VarTemperature, Suspect, CheckSuperadiabatic, st.t[b], nan,
+					"layer %.1f–%.1f hPa (%.0f m deep, base %.0f m above ground) cools %.1f K/km at night (sun below %.0f°)",
+					st.p[a]/100, st.p[b]/100, dz, z[n], lapse*1000, c.NightSunBelowDeg)
+			} else {
+				st.flag(b, sounding.VarTemperature, sev(lapse > c.BadLapseKPerM), CheckSuperadiabatic, st.t[b], nan,
+					"layer %.1f–%.1f hPa (%.0f m deep, base %.0f m above ground) cools %.1f K/km",
+					st.p[a]/100, st.p[b]/100, dz, z[n], lapse*1000)
+			}
 			n = m - 1
 		}
 	}
@@ -240,4 +249,16 @@ func (st *state) mostlyBad() {
 		st.reject("mostly_bad", "%d of %d temperatures are bad (more than %.0f %%)",
 			bad, reported, 100*st.cfg.MaxBadTemperatureFrac)
 	}
+}
+
+// night reports whether the sun was below Config.NightSunBelowDeg at
+// launch (sun.ElevationDeg: Astronomical Almanac low-precision formulas).
+// Without a position, a launch time or a threshold it is false, so the
+// near-surface layers stay excused.
+func (st *state) night() bool {
+	s := st.s
+	if math.IsNaN(st.cfg.NightSunBelowDeg) || math.IsNaN(s.LatitudeDeg) || math.IsNaN(s.LongitudeDeg) || s.LaunchTime.IsZero() {
+		return false
+	}
+	return sun.ElevationDeg(s.LaunchTime, s.LatitudeDeg, s.LongitudeDeg) < st.cfg.NightSunBelowDeg
 }
