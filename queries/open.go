@@ -28,6 +28,9 @@ var viewName = regexp.MustCompile(`^[a-z][a-z0-9_]*$`)
 //
 //	read_parquet('storeDir/TABLE/**/*.parquet', hive_partitioning = true, union_by_name = true, …)
 //
+// (for a store with a manifest, the list of files it names, without
+// union_by_name: its files share one schema version)
+//
 // For tables partitioned by package schema (station=…/year=…), the Hive
 // types are pinned (station VARCHAR, year INTEGER) so that a numeric-looking
 // station directory is not read as a number, and the redundant `station`
@@ -184,10 +187,16 @@ func viewDDL(store string, t table) string {
 		lit = "[" + strings.Join(q, ", ") + "]"
 	}
 	sel, opts := "*", ""
+	if t.files == nil {
+		// A store without a manifest may mix files of different layouts;
+		// a store with one holds files of one schema version (checked), so
+		// the costly reading of every file's schema up front is skipped.
+		opts = ", union_by_name = true"
+	}
 	if t.partitioned {
 		sel = fmt.Sprintf("* EXCLUDE (%s)", schema.StationKey)
-		opts = fmt.Sprintf(", hive_types = {'%s': VARCHAR, '%s': INTEGER}", schema.StationKey, schema.YearKey)
+		opts += fmt.Sprintf(", hive_types = {'%s': VARCHAR, '%s': INTEGER}", schema.StationKey, schema.YearKey)
 	}
-	return fmt.Sprintf(`CREATE VIEW "%s" AS SELECT %s FROM read_parquet(%s, hive_partitioning = true, union_by_name = true%s)`,
+	return fmt.Sprintf(`CREATE VIEW "%s" AS SELECT %s FROM read_parquet(%s, hive_partitioning = true%s)`,
 		t.name, sel, lit, opts)
 }
