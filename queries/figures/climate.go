@@ -155,7 +155,6 @@ type MonthlyHeights struct {
 // (analysis_status ok) count. A method the store does not have is an
 // error naming the methods it has.
 func LoadMonthlyHeights(ctx context.Context, db *sql.DB, st Station, method string) (*MonthlyHeights, error) {
-	file, args := "monthly_heights_consensus.sql", []any{st.ID}
 	if method != Consensus {
 		known, err := Methods(ctx, db)
 		if err != nil {
@@ -164,13 +163,12 @@ func LoadMonthlyHeights(ctx context.Context, db *sql.DB, st Station, method stri
 		if !contains(known, method) {
 			return nil, fmt.Errorf("figures: unknown mixing-height method %q (the store has: %s)", method, strings.Join(known, ", "))
 		}
-		file, args = "monthly_heights_method.sql", []any{st.ID, method}
 	}
-	q, err := statement(file)
+	q, err := statement("monthly_heights.sql")
 	if err != nil {
 		return nil, err
 	}
-	rows, err := db.QueryContext(ctx, q, args...)
+	rows, err := db.QueryContext(ctx, q, st.ID, method)
 	if err != nil {
 		return nil, fmt.Errorf("figures: monthly mixing heights of %s: %w", st.ID, err)
 	}

@@ -1,0 +1,51 @@
+-- Mixing height per month and nominal hour, from the consensus of methods
+-- (soundings.mixing_height_consensus_m) or from one method of the
+-- mixing_heights table.
+--
+-- Source: the soundings view, joined to mixing_heights on station_id and
+-- launch_time for a single method. Parameters: $1 station_id, $2 method
+-- name ('consensus' for the consensus of methods).
+-- One row per month (1-12) and nominal_hour (h UTC) with at least one valid
+-- sounding (analysis_status = 'ok'):
+--   n_values     soundings whose status is ok or surface
+--   n_undefined  soundings whose status is undefined (counted, left out of
+--                the percentiles)
+--   p10_m … p90_m  m above ground; percentiles of the height, surface
+--                counted as 0 m; quantile_cont is Hyndman & Fan type 7
+--                (linear interpolation between order statistics)
+WITH raw AS (
+    SELECT s.month, s.nominal_hour,
+        s.mixing_height_consensus_status AS status, s.mixing_height_consensus_m AS h
+    FROM soundings AS s
+    WHERE s.station_id = $1 AND s.analysis_status = 'ok' AND $2 = 'consensus'
+    UNION ALL
+    SELECT s.month, s.nominal_hour, m.status, m.height_agl_m AS h
+    FROM soundings AS s
+    JOIN mixing_heights AS m
+        ON m.station_id = s.station_id AND m.launch_time = s.launch_time
+    WHERE s.station_id = $1 AND s.analysis_status = 'ok' AND m.method = $2
+),
+v AS (
+    SELECT
+        month,
+        nominal_hour,
+        status,
+        CASE status
+            WHEN 'surface' THEN 0.0
+            WHEN 'ok' THEN h
+        END AS height_m
+    FROM raw
+)
+SELECT
+    month,
+    nominal_hour,
+    count(height_m) AS n_values,
+    count(*) FILTER (WHERE status = 'undefined' OR height_m IS NULL) AS n_undefined,
+    quantile_cont(height_m, 0.10) AS p10_m,
+    quantile_cont(height_m, 0.25) AS p25_m,
+    quantile_cont(height_m, 0.50) AS p50_m,
+    quantile_cont(height_m, 0.75) AS p75_m,
+    quantile_cont(height_m, 0.90) AS p90_m
+FROM v
+GROUP BY month, nominal_hour
+ORDER BY month, nominal_hour
