@@ -261,6 +261,31 @@ func (r *run) buildPartition(key string, segs []segment, spills []*os.File, inpu
 	if len(all) == 0 {
 		return nil, stats, nil
 	}
+	// The partition's identity is every staged copy, in a fixed order, and
+	// the parameters: duplicates are resolved deterministically from that
+	// set, so an unchanged partition is recognised before any QC or
+	// analysis is spent on it.
+	sortCopies(all)
+	h := sha256.New()
+	h.Write([]byte(r.params))
+	var enc []byte
+	for _, s := range all {
+		enc = appendSounding(enc[:0], s, true)
+		h.Write(enc)
+	}
+	hash := hex.EncodeToString(h.Sum(nil))
+	p := &store.Partition{ContentHash: hash, Files: map[string]string{},
+		Inputs: slices.Sorted(maps.Keys(contributors))}
+	fileName := "part-" + hash[:16] + ".parquet"
+	for _, t := range tables {
+		p.Files[t] = filepath.Join(store.PartitionDir(t, station, year), fileName)
+	}
+	if prev != nil && prev.ContentHash == hash && filesExist(r.dir, prev.Files) {
+		stats.unchanged = true
+		stats.duplicates = len(all) - prev.Soundings
+		return prev, stats, nil
+	}
+
 	t0 := time.Now()
 	reports := make(map[*sounding.Sounding]qc.Report, len(all))
 	for _, s := range all {
@@ -269,25 +294,7 @@ func (r *run) buildPartition(key string, segs []segment, spills []*os.File, inpu
 	r.stage("qc", t0)
 	kept, dups := deduplicate(all, reports)
 	stats.duplicates = dups
-
-	h := sha256.New()
-	h.Write([]byte(r.params))
-	var enc []byte
-	for _, d := range kept {
-		enc = appendSounding(enc[:0], d.s, true)
-		h.Write(enc)
-	}
-	hash := hex.EncodeToString(h.Sum(nil))
-	p := &store.Partition{ContentHash: hash, Soundings: len(kept), Files: map[string]string{},
-		Inputs: slices.Sorted(maps.Keys(contributors))}
-	fileName := "part-" + hash[:16] + ".parquet"
-	for _, t := range tables {
-		p.Files[t] = filepath.Join(store.PartitionDir(t, station, year), fileName)
-	}
-	if prev != nil && prev.ContentHash == hash && filesExist(r.dir, prev.Files) {
-		stats.unchanged = true
-		return prev, stats, nil
-	}
+	p.Soundings = len(kept)
 
 	t0 = time.Now()
 	results := make([]result, len(kept))
@@ -412,12 +419,7 @@ type kept struct {
 // documented precedence; copies are compared in source order, so the
 // result does not depend on input order.
 func deduplicate(all []*sounding.Sounding, reports map[*sounding.Sounding]qc.Report) ([]kept, int) {
-	sort.SliceStable(all, func(i, j int) bool {
-		if !all[i].LaunchTime.Equal(all[j].LaunchTime) {
-			return all[i].LaunchTime.Before(all[j].LaunchTime)
-		}
-		return sourceLess(all[i], all[j])
-	})
+	sortCopies(all)
 	var out []kept
 	dups := 0
 	for i := 0; i < len(all); {
@@ -435,6 +437,16 @@ func deduplicate(all []*sounding.Sounding, reports map[*sounding.Sounding]qc.Rep
 		i = j
 	}
 	return out, dups
+}
+
+// sortCopies orders soundings by launch time, then by source position.
+func sortCopies(all []*sounding.Sounding) {
+	sort.SliceStable(all, func(i, j int) bool {
+		if !all[i].LaunchTime.Equal(all[j].LaunchTime) {
+			return all[i].LaunchTime.Before(all[j].LaunchTime)
+		}
+		return sourceLess(all[i], all[j])
+	})
 }
 
 func sourceLess(a, b *sounding.Sounding) bool {
