@@ -244,7 +244,7 @@ func encode[T any](w *bufio.Writer, sc *arrow.Schema, cols []Column, rows []T, i
 		parquet.WithDictionaryDefault(false),
 	}
 	for _, c := range cols {
-		if c.kind == kindString || c.kind == kindPtrString {
+		if c.kind == kindString || c.kind == kindPtrString || c.kind == kindEnum {
 			opts = append(opts, parquet.WithDictionaryFor(c.Name, true))
 		}
 	}
