@@ -12,7 +12,6 @@ import (
 
 	"github.com/apache/arrow-go/v18/arrow"
 	"github.com/apache/arrow-go/v18/arrow/array"
-	"github.com/apache/arrow-go/v18/arrow/memory"
 	"github.com/apache/arrow-go/v18/parquet"
 	"github.com/apache/arrow-go/v18/parquet/compress"
 	"github.com/apache/arrow-go/v18/parquet/file"
@@ -33,7 +32,7 @@ const (
 	StationKey     = "station"    // Hive key of the station directory level
 	YearKey        = "year"       // Hive key of the year directory level
 	PartFile       = "part-0.parquet"
-	batchRows      = 64 * 1024  // rows per Arrow record batch
+	batchRows      = 128 * 1024 // rows per Arrow record batch (one per row group)
 	rowGroupRows   = 128 * 1024 // rows per Parquet row group
 	tempFilePrefix = ".part.parquet.tmp-"
 )
@@ -271,21 +270,19 @@ func encode[T any](w *bufio.Writer, sc *arrow.Schema, cols []Column, rows []T, i
 			err = cerr
 		}
 	}()
-	rb := array.NewRecordBuilder(memory.DefaultAllocator, sc)
-	defer rb.Release()
+	arrs := make([]arrow.Array, len(cols))
 	for start := 0; start < len(idx); start += batchRows {
 		end := min(start+batchRows, len(idx))
 		for c := range cols {
-			if err := appendColumn(&cols[c], rb.Field(c), rows, idx[start:end]); err != nil {
+			a, err := columnArray(&cols[c], rows, idx[start:end])
+			if err != nil {
 				return err
 			}
+			arrs[c] = a
 		}
-		rec := rb.NewRecordBatch()
-		for c := range cols {
-			if cols[c].kind == kindEnum {
-				// Start the next batch with the same fixed dictionary.
-				rb.Field(c).(*array.BinaryDictionaryBuilder).ResetFull()
-			}
+		rec := array.NewRecordBatch(sc, arrs, int64(end-start))
+		for _, a := range arrs {
+			a.Release()
 		}
 		err := fw.WriteBuffered(rec)
 		rec.Release()
