@@ -299,30 +299,25 @@ func (r *run) buildPartition(key string, segs []segment, spills []*os.File, inpu
 	t0 = time.Now()
 	results := make([]result, len(kept))
 	stats.notAnalysable = map[string]int{}
+	nLevels := 0
+	for _, d := range kept {
+		nLevels += len(d.s.Levels)
+	}
+	rows := partRows{levels: make([]schema.LevelRow, 0, nLevels),
+		heights: make([]schema.MixingHeightRow, 0, len(kept)*len(analyze.MixingHeightMethods))}
+	srows := make([]schema.SoundingRow, len(kept))
 	for i, d := range kept {
-		res := analyzeOne(d.s, reports[d.s], r.cfg, r.opt.UseSuspect)
+		res := analyzeOne(d.s, reports[d.s], r.cfg, r.opt.UseSuspect, &rows)
 		res.sounding.SoundingHash = soundingHash(d.s)
 		res.sounding.DuplicatesMerged = int32(d.merged)
 		res.sounding.DuplicateChoice = d.reason
 		results[i] = res
+		srows[i] = res.sounding
 		if res.status != "ok" {
 			stats.notAnalysable[res.status]++
 		}
 	}
-	srows := make([]schema.SoundingRow, len(results))
-	var lrows []schema.LevelRow
-	var irows []schema.InversionRow
-	var mrows []schema.MixedLayerRow
-	var hrows []schema.MixingHeightRow
-	var qrows []schema.QCFindingRow
-	for i := range results {
-		qrows = append(qrows, results[i].findings...)
-		srows[i] = results[i].sounding
-		lrows = append(lrows, results[i].levels...)
-		irows = append(irows, results[i].inv...)
-		mrows = append(mrows, results[i].mixed...)
-		hrows = append(hrows, results[i].heights...)
-	}
+	lrows, irows, mrows, hrows, qrows := rows.levels, rows.inv, rows.mixed, rows.heights, rows.findings
 	arows := afternoonRows(results, r.opt.DailyMaxima, analyze.DefaultPairingConfig())
 	r.stage("analysis", t0)
 	if err := r.compareWithPrevious(prev, srows, &stats); err != nil {

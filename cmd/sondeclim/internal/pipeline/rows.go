@@ -38,22 +38,29 @@ func Season(t time.Time) (code string, year int) {
 	return "SON", y
 }
 
-// result is one analysed sounding as table rows.
+// result is one analysed sounding: its soundings-table row and what the
+// afternoon pairing needs. Its other rows go to a partRows.
 type result struct {
 	sounding schema.SoundingRow
+	status   string
+	analysis analyze.Result
+}
+
+// partRows collects the rows of one station-year's tables other than
+// soundings and afternoon_mixing, appended sounding by sounding so that
+// nothing is copied again before writing.
+type partRows struct {
 	levels   []schema.LevelRow
 	inv      []schema.InversionRow
 	mixed    []schema.MixedLayerRow
 	heights  []schema.MixingHeightRow
 	findings []schema.QCFindingRow
-	status   string
-	analysis analyze.Result
 }
 
 // analyzeOne runs the analysis of one sounding, using only the values its
-// quality control allows, and turns it into rows. The levels table keeps
-// the values as observed, with their QC flags.
-func analyzeOne(s *sounding.Sounding, rep qc.Report, cfg analyze.Config, useSuspect bool) result {
+// quality control allows, and turns it into rows (appended to out). The
+// levels table keeps the values as observed, with their QC flags.
+func analyzeOne(s *sounding.Sounding, rep qc.Report, cfg analyze.Config, useSuspect bool, out *partRows) result {
 	var res analyze.Result
 	if rep.Usable() {
 		res = analyze.Analyze(qc.Apply(s, rep, useSuspect), cfg)
@@ -146,16 +153,14 @@ func analyzeOne(s *sounding.Sounding, rep qc.Report, cfg analyze.Config, useSusp
 
 	bad, suspect, corrected := rep.Counts()
 	row.QCBad, row.QCSuspect, row.QCCorrected = int32(bad), int32(suspect), int32(corrected)
-	out := result{sounding: row, status: res.Status, analysis: res}
 	flag := func(i int, v sounding.Var) string {
 		if i < len(rep.Flags) {
 			return rep.Flags[i][v].String()
 		}
 		return ""
 	}
-	out.levels = make([]schema.LevelRow, len(s.Levels))
 	for i, l := range s.Levels {
-		out.levels[i] = schema.LevelRow{
+		out.levels = append(out.levels, schema.LevelRow{
 			StationID:         s.StationID,
 			LaunchTime:        row.LaunchTime,
 			Year:              row.Year,
@@ -182,7 +187,7 @@ func analyzeOne(s *sounding.Sounding, rep qc.Report, cfg analyze.Config, useSusp
 			TemperatureQC:     flag(i, sounding.VarTemperature),
 			HumidityQC:        flag(i, sounding.VarDewpointDepression),
 			WindQC:            flag(i, sounding.VarWindSpeed),
-		}
+		})
 	}
 	for _, f := range rep.Findings {
 		p := math.NaN()
@@ -221,7 +226,7 @@ func analyzeOne(s *sounding.Sounding, rep qc.Report, cfg analyze.Config, useSusp
 			HeightAGLM: h.HeightAGLM, Status: h.Status, Note: h.Note, LevelSpacingM: h.LevelSpacingM, Unresolved: h.Unresolved,
 		})
 	}
-	return out
+	return result{sounding: row, status: res.Status, analysis: res}
 }
 
 // afternoonRows pairs the morning soundings of one station-year with the
