@@ -266,12 +266,19 @@ func (r *run) buildPartition(key string, segs []segment, spills []*os.File, inpu
 	// set, so an unchanged partition is recognised before any QC or
 	// analysis is spent on it.
 	sortCopies(all)
+	// Each copy enters as the hash of its observation (which is also the
+	// sounding_hash of the copy that is kept) followed by its source
+	// position, so every sounding is encoded and hashed once.
 	h := sha256.New()
 	h.Write([]byte(r.params))
 	var enc []byte
+	observed := make(map[*sounding.Sounding]string, len(all))
 	for _, s := range all {
-		enc = appendSounding(enc[:0], s, true)
-		h.Write(enc)
+		enc = appendSounding(enc[:0], s, false)
+		sum := sha256.Sum256(enc)
+		observed[s] = hex.EncodeToString(sum[:8])
+		h.Write(sum[:])
+		h.Write(appendSource(enc[:0], s))
 	}
 	hash := hex.EncodeToString(h.Sum(nil))
 	p := &store.Partition{ContentHash: hash, Files: map[string]string{},
@@ -308,7 +315,7 @@ func (r *run) buildPartition(key string, segs []segment, spills []*os.File, inpu
 	srows := make([]schema.SoundingRow, len(kept))
 	for i, d := range kept {
 		res := analyzeOne(d.s, reports[d.s], r.cfg, r.opt.UseSuspect, &rows)
-		res.sounding.SoundingHash = soundingHash(d.s)
+		res.sounding.SoundingHash = observed[d.s]
 		res.sounding.DuplicatesMerged = int32(d.merged)
 		res.sounding.DuplicateChoice = d.reason
 		results[i] = res
@@ -392,13 +399,6 @@ func filesExist(dir string, files map[string]string) bool {
 		}
 	}
 	return true
-}
-
-// soundingHash identifies a sounding's observed content (not where it was
-// read from), as 16 hex digits of SHA-256.
-func soundingHash(s *sounding.Sounding) string {
-	h := sha256.Sum256(appendSounding(nil, s, false))
-	return hex.EncodeToString(h[:8])
 }
 
 // kept is a sounding chosen among copies of the same identity.

@@ -70,6 +70,19 @@ func appendSounding(b []byte, s *sounding.Sounding, source bool) []byte {
 	return b
 }
 
+// appendSource appends the source position of s and of its levels: what
+// appendSounding(b, s, true) holds beyond appendSounding(b, s, false).
+func appendSource(b []byte, s *sounding.Sounding) []byte {
+	b = appendString(b, s.Source.File)
+	b = appendString(b, s.Source.Member)
+	b = binary.AppendVarint(b, int64(s.Source.Line))
+	b = appendString(b, s.Source.Format)
+	for i := range s.Levels {
+		b = binary.AppendVarint(b, int64(s.Levels[i].Line))
+	}
+	return b
+}
+
 func flags(a, b, c bool) byte {
 	var f byte
 	if a {
