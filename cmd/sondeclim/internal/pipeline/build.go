@@ -160,6 +160,11 @@ func (r *run) buildAll(keys []string, st *staged, old *store.Manifest) ([]*store
 			return nil, err
 		}
 		defer fh.Close()
+		if st.inPlace[i] {
+			if err := sameAsIndexed(fh, st.stamp[i]); err != nil {
+				return nil, err
+			}
+		}
 		spills[i] = fh
 	}
 	var done atomic.Int64
@@ -172,7 +177,7 @@ func (r *run) buildAll(keys []string, st *staged, old *store.Manifest) ([]*store
 			if err := ctx.Err(); err != nil {
 				return err
 			}
-			p, stats, err := r.buildPartition(k, st.byPart[k], spills, st.inputs, old.Partitions[k])
+			p, stats, err := r.buildPartition(k, st.byPart[k], spills, st.inputs, st.inPlace, old.Partitions[k])
 			if err != nil {
 				return fmt.Errorf("partition %s: %w", k, err)
 			}
@@ -199,6 +204,21 @@ func (r *run) buildAll(keys []string, st *staged, old *store.Manifest) ([]*store
 		return nil, err
 	}
 	return out, nil
+}
+
+// sameAsIndexed checks that an input read in place is still the file that
+// was indexed: a file replaced since (renamed over) keeps its old content
+// open here, but one rewritten in place does not, and its byte ranges
+// would no longer hold the soundings found.
+func sameAsIndexed(fh *os.File, stamp store.Input) error {
+	fi, err := fh.Stat()
+	if err != nil {
+		return err
+	}
+	if fi.Size() != stamp.SizeBytes || !fi.ModTime().UTC().Equal(stamp.ModTime) {
+		return fmt.Errorf("input %s changed while it was being ingested (size or time differs from when it was read); run the ingest again", fh.Name())
+	}
+	return nil
 }
 
 // buildStats is what building one partition counts.
@@ -233,7 +253,7 @@ func (s *Summary) add(b buildStats) {
 }
 
 // buildPartition rebuilds one station-year from its staged soundings.
-func (r *run) buildPartition(key string, segs []segment, spills []*os.File, inputs []string, prev *store.Partition) (*store.Partition, buildStats, error) {
+func (r *run) buildPartition(key string, segs []segment, spills []*os.File, inputs []string, inPlace []bool, prev *store.Partition) (*store.Partition, buildStats, error) {
 	var stats buildStats
 	station, year, err := store.SplitPartitionKey(key)
 	if err != nil {
@@ -247,6 +267,15 @@ func (r *run) buildPartition(key string, segs []segment, spills []*os.File, inpu
 		if _, err := spills[sg.file].ReadAt(buf, sg.off); err != nil {
 			return nil, stats, fmt.Errorf("read staging: %w", err)
 		}
+		contributors[inputs[sg.file]] = true
+		if inPlace[sg.file] {
+			got, err := r.readInPlace(buf, inputs[sg.file], sg)
+			if err != nil {
+				return nil, stats, err
+			}
+			all = append(all, got...)
+			continue
+		}
 		rest := buf
 		for range sg.count {
 			s, tail, err := decodeSounding(rest)
@@ -256,7 +285,6 @@ func (r *run) buildPartition(key string, segs []segment, spills []*os.File, inpu
 			all = append(all, s)
 			rest = tail
 		}
-		contributors[inputs[sg.file]] = true
 	}
 	if len(all) == 0 {
 		return nil, stats, nil

@@ -6,6 +6,13 @@
 // analysed, and the partition's Parquet files are written under new names.
 // The store's manifest is committed last.
 //
+// Plain archive-v2 files, the bulk of a large archive, are not copied to
+// the staging area: they are indexed by station-year (byte ranges of the
+// file) and each partition decodes its ranges from the file itself, which
+// gives the same soundings and the same skipped lines as reading the file
+// whole. Compressed files, archive members and the other formats are
+// decoded once into the staging area.
+//
 // Results do not depend on the number of workers, on the order of the
 // inputs, or on which earlier runs built the store: a partition's content
 // is a function of its deduplicated soundings and the analysis parameters.

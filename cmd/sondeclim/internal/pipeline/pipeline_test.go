@@ -7,6 +7,7 @@ import (
 	"os"
 	"path/filepath"
 	"reflect"
+	"strings"
 	"testing"
 	"time"
 
@@ -14,6 +15,7 @@ import (
 	"github.com/sondeclim/sondeclim/ingest/sounding"
 	"github.com/sondeclim/sondeclim/ingest/synth"
 	"github.com/sondeclim/sondeclim/qc"
+	"github.com/sondeclim/sondeclim/schema/store"
 )
 
 // realSoundings reads a real archive file from ../shared/validation, or
@@ -160,5 +162,54 @@ func BenchmarkIngest(b *testing.B) {
 			}
 			b.ReportMetric(float64(n*b.N)/b.Elapsed().Seconds(), "soundings/s")
 		})
+	}
+}
+
+// TestSameAsIndexed: an input read in place that grows after it was
+// indexed is refused, not decoded from shifted byte ranges; one that was
+// replaced by rename is still read through the open handle. (Invented
+// file content; unit scaffolding.)
+func TestSameAsIndexed(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "in.txt")
+	if err := os.WriteFile(path, []byte("first\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	fi, err := os.Stat(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	stamp := store.Input{SizeBytes: fi.Size(), ModTime: fi.ModTime().UTC()}
+	fh, err := os.Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer fh.Close()
+	if err := sameAsIndexed(fh, stamp); err != nil {
+		t.Fatalf("unchanged file refused: %v", err)
+	}
+	// Replaced by rename: the open handle still sees the indexed file.
+	tmp := path + ".new"
+	if err := os.WriteFile(tmp, []byte("second, longer\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.Rename(tmp, path); err != nil {
+		t.Fatal(err)
+	}
+	if err := sameAsIndexed(fh, stamp); err != nil {
+		t.Fatalf("renamed-over file refused through its old handle: %v", err)
+	}
+	// Grown in place: refused.
+	fh2, err := os.OpenFile(path, os.O_RDWR, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer fh2.Close()
+	fi2, _ := fh2.Stat()
+	stamp2 := store.Input{SizeBytes: fi2.Size(), ModTime: fi2.ModTime().UTC()}
+	if _, err := fh2.WriteAt([]byte("appended line\n"), fi2.Size()); err != nil {
+		t.Fatal(err)
+	}
+	if err := sameAsIndexed(fh2, stamp2); err == nil || !strings.Contains(err.Error(), "changed while it was being ingested") {
+		t.Errorf("grown file: got %v, want a refusal", err)
 	}
 }

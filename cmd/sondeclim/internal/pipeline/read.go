@@ -2,6 +2,7 @@ package pipeline
 
 import (
 	"bufio"
+	"bytes"
 	"context"
 	"crypto/sha256"
 	"encoding/hex"
@@ -18,26 +19,30 @@ import (
 	"golang.org/x/sync/errgroup"
 
 	"github.com/sondeclim/sondeclim/ingest"
+	"github.com/sondeclim/sondeclim/ingest/archivev2"
 	"github.com/sondeclim/sondeclim/ingest/input"
 	"github.com/sondeclim/sondeclim/ingest/sounding"
 	"github.com/sondeclim/sondeclim/schema/store"
 )
 
-// segment is a run of staged soundings of one station-year in one spill
-// file.
+// segment is a run of soundings of one station-year: encoded soundings in
+// a spill file, or, for an input read in place, lines of the input itself.
 type segment struct {
 	file      int // index into staged.files
 	off, size int64
-	count     int
+	count     int // soundings (spill) or header records (in place)
+	line      int // in place: 1-based line of the range's first line
 }
 
 // staged is what the reading phase leaves for the building phase: spill
 // files and, per station-year, where its soundings are.
 type staged struct {
-	mu     sync.Mutex
-	files  []string // spill files
-	inputs []string // the input file each spill file holds
-	byPart map[string][]segment
+	mu      sync.Mutex
+	files   []string      // spill files, or the input itself when inPlace
+	inputs  []string      // the input file each spill file holds
+	inPlace []bool        // the input is read in place (plain archive-v2 file)
+	stamp   []store.Input // in place: size and time of the input when indexed
+	byPart  map[string][]segment
 }
 
 func (st *staged) add(key string, seg segment) {
@@ -68,6 +73,8 @@ func (r *run) stageInputs(files []string, st *staged, keep map[string]bool) ([]r
 		spill := filepath.Join(r.staging, strconv.Itoa(fi)+".bin")
 		st.files = append(st.files, spill)
 		st.inputs = append(st.inputs, path)
+		st.inPlace = append(st.inPlace, false)
+		st.stamp = append(st.stamp, store.Input{})
 		st.mu.Unlock()
 		g.Go(func() error {
 			res, err := r.stageFile(ctx, path, fi, spill, st, keep)
@@ -97,6 +104,9 @@ func (r *run) stageFile(ctx context.Context, path string, fi int, spill string, 
 		return res, nil
 	}
 	res.info.SizeBytes, res.info.ModTime = fst.Size(), fst.ModTime().UTC()
+	if ok, err := r.indexInPlace(ctx, path, fi, st, keep, &res); ok || err != nil {
+		return res, err
+	}
 	out, err := os.Create(spill)
 	if err != nil {
 		return res, err
@@ -145,6 +155,122 @@ func (r *run) stageFile(ctx context.Context, path string, fi int, spill string, 
 	}
 	sort.Strings(res.info.Partitions)
 	return res, nil
+}
+
+// indexInPlace stages a plain (uncompressed, not archived) archive-v2
+// file without decoding or copying it: the file is indexed by station-year
+// (archivev2.Index) and each partition later decodes its byte ranges from
+// the file itself. Copying decoded soundings to a spill file would write
+// more bytes than the input holds. It reports false, having staged
+// nothing, when the file is not such a file or has no readable header;
+// the caller then reads it the ordinary way, which reports why.
+func (r *run) indexInPlace(ctx context.Context, path string, fi int, st *staged, keep map[string]bool, res *readResult) (bool, error) {
+	limit := r.opt.SizeLimit
+	if limit <= 0 {
+		limit = input.DefaultLimit
+	}
+	if r.opt.Format != "" && r.opt.Format != archivev2.Format || res.info.SizeBytes > limit {
+		return false, nil
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return false, nil
+	}
+	defer f.Close()
+	head := make([]byte, 4096)
+	n, _ := io.ReadFull(f, head)
+	head = head[:n]
+	compressed := n >= 2 && head[0] == 0x1f && head[1] == 0x8b ||
+		n >= 4 && (string(head[:4]) == "PK\x03\x04" || string(head[:4]) == "PK\x05\x06")
+	if compressed || (r.opt.Format == "" && !archivev2.Sniff(head)) {
+		return false, nil
+	}
+	if _, err := f.Seek(0, io.SeekStart); err != nil {
+		return false, nil
+	}
+	// The same digest as the ordinary path: member name "" then content.
+	sum := sha256.New()
+	io.WriteString(sum, "\x00")
+	var segs []segment
+	var keys []string
+	err = archivev2.Index(io.TeeReader(f, sum), func(sg archivev2.Segment) error {
+		if err := ctx.Err(); err != nil {
+			return err
+		}
+		if !r.opt.Shard.Owns(sg.StationID) {
+			r.mu.Lock()
+			r.sum.OtherShards += sg.Headers
+			r.mu.Unlock()
+			return nil
+		}
+		key := store.PartitionKey(sg.StationID, sg.Year)
+		if keep != nil && !keep[key] {
+			return nil
+		}
+		res.parts[key] += sg.Headers
+		segs = append(segs, segment{file: fi, off: sg.Offset, size: sg.Size, count: sg.Headers, line: sg.FirstLine})
+		keys = append(keys, key)
+		return nil
+	})
+	switch {
+	case ctx.Err() != nil:
+		return true, ctx.Err()
+	case errors.Is(err, archivev2.ErrNoHeaders):
+		clear(res.parts)
+		return false, nil
+	case err != nil:
+		clear(res.parts)
+		r.skip(Skip{Where: path, Reason: "unreadable", Detail: err.Error()})
+		return true, nil
+	}
+	st.mu.Lock()
+	st.files[fi], st.inPlace[fi] = path, true
+	st.stamp[fi] = store.Input{SizeBytes: res.info.SizeBytes, ModTime: res.info.ModTime}
+	for i, k := range keys {
+		st.byPart[k] = append(st.byPart[k], segs[i])
+	}
+	st.mu.Unlock()
+	r.mu.Lock()
+	r.sum.Members++
+	r.mu.Unlock()
+	res.info.SHA256 = hex.EncodeToString(sum.Sum(nil))
+	for k, n := range res.parts {
+		res.info.Partitions = append(res.info.Partitions, k)
+		res.info.Soundings += n
+	}
+	sort.Strings(res.info.Partitions)
+	return true, nil
+}
+
+// readInPlace decodes one in-place segment (the bytes of buf) of input
+// path: soundings are returned, rejected ones reported as skips, as
+// reading the whole file would.
+func (r *run) readInPlace(buf []byte, path string, sg segment) ([]*sounding.Sounding, error) {
+	defer r.stage("read_parse", time.Now())
+	rd := archivev2.NewReaderAt(bytes.NewReader(buf), path, "", sg.line)
+	var out []*sounding.Sounding
+	for {
+		s, err := rd.Next()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			var pe *ingest.ParseError
+			if !errors.As(err, &pe) {
+				return nil, fmt.Errorf("%s: %w", path, err)
+			}
+			r.skip(Skip{Where: path, Reason: reasonOf(err), Detail: err.Error()})
+			continue
+		}
+		if info, ok := r.opt.Stations[s.StationID]; ok {
+			applyStation(s, info)
+		}
+		out = append(out, s)
+	}
+	r.mu.Lock()
+	r.sum.SoundingsRead += len(out)
+	r.mu.Unlock()
+	return out, nil
 }
 
 // writeError marks failures of the staging area (the store's disk), which
