@@ -180,135 +180,183 @@ func arrowSchema(table string, cols []Column) *arrow.Schema {
 	return arrow.NewSchema(fields, &md)
 }
 
-// columnArray returns field c of rows[idx...] as an Arrow array whose
-// buffers are plain Go memory, filled in one pass: no builder, no
-// reallocation. Fields are read through their byte offset (the row type was
-// checked by Columns, so the offset and the field's Go type agree); NaN and
-// nil become nulls and a zero time.Time is null. An enum value outside the
-// column's list is an error.
-func columnArray[T any](c *Column, rows []T, idx []int) (arrow.Array, error) {
-	at := func(i int) unsafe.Pointer { return unsafe.Add(unsafe.Pointer(&rows[i]), c.offset) }
-	n := len(idx)
-	var valid validity
+// colBuf is one column of a record batch under construction: plain Go
+// memory that becomes the Arrow array's buffers without a copy.
+type colBuf struct {
+	n       int
+	valid   validity
+	f64     []float64
+	i64     []int64
+	i32     []int32 // int32 values, or string offsets (n+1)
+	i16     []int16 // enum indices
+	bits    []byte  // bool values
+	data    []byte  // string bytes
+	last    string  // enum: the last value looked up
+	lastIdx int16
+}
+
+func newColBuf(c *Column, n int) *colBuf {
+	b := &colBuf{n: n, lastIdx: -1}
+	if c.Nullable {
+		b.valid = newValidity(n)
+	}
 	switch c.kind {
 	case kindString, kindPtrString:
-		offsets := make([]int32, n+1)
-		size := 0
-		for _, i := range idx {
-			if c.kind == kindString {
-				size += len(*(*string)(at(i)))
-			} else if p := *(**string)(at(i)); p != nil {
-				size += len(*p)
-			}
-		}
-		if size > math.MaxInt32 {
-			return nil, fmt.Errorf("column %s: %d bytes of text exceed one Arrow string array", c.Name, size)
-		}
-		data := make([]byte, 0, size)
-		if c.kind == kindPtrString {
-			valid = newValidity(n)
-		}
+		b.i32 = make([]int32, n+1)
+		b.data = make([]byte, 0, 16*n)
+	case kindBool, kindPtrBool:
+		b.bits = make([]byte, bitmapBytes(n))
+	case kindInt32, kindPtrInt32:
+		b.i32 = make([]int32, n)
+	case kindInt64, kindTime:
+		b.i64 = make([]int64, n)
+	case kindFloat64:
+		b.f64 = make([]float64, n)
+	case kindEnum:
+		b.i16 = make([]int16, n)
+	}
+	return b
+}
+
+// fillColumn stores field c of rows[idx...] at positions base… of b.
+// Fields are read through their byte offset (the row type was checked by
+// Columns, so the offset and the field's Go type agree); NaN and nil
+// become nulls and a zero time.Time is null. An enum value outside the
+// column's list is an error.
+//
+// Callers fill all columns block by block (a few hundred rows at a time),
+// so that the rows being read stay in the processor's cache while every
+// column takes its values from them: filling a whole column at a time
+// read the full row slice once per column.
+func fillColumn[T any](c *Column, b *colBuf, rows []T, idx []int, base int) error {
+	at := func(i int) unsafe.Pointer { return unsafe.Add(unsafe.Pointer(&rows[i]), c.offset) }
+	switch c.kind {
+	case kindString, kindPtrString:
 		for k, i := range idx {
 			if c.kind == kindString {
-				data = append(data, *(*string)(at(i))...)
+				b.data = append(b.data, *(*string)(at(i))...)
 			} else if p := *(**string)(at(i)); p == nil {
-				valid.null(k)
+				b.valid.null(base + k)
 			} else {
-				data = append(data, *p...)
+				b.data = append(b.data, *p...)
 			}
-			offsets[k+1] = int32(len(data))
+			if len(b.data) > math.MaxInt32 {
+				return fmt.Errorf("column %s: more than %d bytes of text in one Arrow string array", c.Name, math.MaxInt32)
+			}
+			b.i32[base+k+1] = int32(len(b.data))
 		}
-		return array.MakeFromData(valid.data(c.Type, n, bytesOf(offsets), data)), nil
 	case kindBool, kindPtrBool:
-		bits := make([]byte, bitmapBytes(n))
-		if c.kind == kindPtrBool {
-			valid = newValidity(n)
-		}
 		for k, i := range idx {
 			var v bool
 			if c.kind == kindBool {
 				v = *(*bool)(at(i))
 			} else if p := *(**bool)(at(i)); p == nil {
-				valid.null(k)
+				b.valid.null(base + k)
 			} else {
 				v = *p
 			}
 			if v {
-				bits[k/8] |= 1 << (k % 8)
+				b.bits[(base+k)/8] |= 1 << ((base + k) % 8)
 			}
 		}
-		return array.MakeFromData(valid.data(c.Type, n, bits)), nil
-	case kindInt32, kindPtrInt32:
-		vals := make([]int32, n)
-		if c.kind == kindPtrInt32 {
-			valid = newValidity(n)
-		}
+	case kindInt32:
 		for k, i := range idx {
-			if c.kind == kindInt32 {
-				vals[k] = *(*int32)(at(i))
-			} else if p := *(**int32)(at(i)); p == nil {
-				valid.null(k)
+			b.i32[base+k] = *(*int32)(at(i))
+		}
+	case kindPtrInt32:
+		for k, i := range idx {
+			if p := *(**int32)(at(i)); p == nil {
+				b.valid.null(base + k)
 			} else {
-				vals[k] = *p
+				b.i32[base+k] = *p
 			}
 		}
-		return array.MakeFromData(valid.data(c.Type, n, bytesOf(vals))), nil
 	case kindInt64:
-		vals := make([]int64, n)
 		for k, i := range idx {
-			vals[k] = *(*int64)(at(i))
+			b.i64[base+k] = *(*int64)(at(i))
 		}
-		return array.MakeFromData(valid.data(c.Type, n, bytesOf(vals))), nil
 	case kindFloat64:
-		vals := make([]float64, n)
-		valid = newValidity(n)
+		out := b.f64[base : base+len(idx)]
 		for k, i := range idx {
 			if x := *(*float64)(at(i)); x != x {
-				valid.null(k)
+				b.valid.null(base + k)
 			} else {
-				vals[k] = x
+				out[k] = x
 			}
 		}
-		return array.MakeFromData(valid.data(c.Type, n, bytesOf(vals))), nil
 	case kindTime:
-		vals := make([]int64, n)
-		valid = newValidity(n)
 		for k, i := range idx {
 			if t := (*time.Time)(at(i)); t.IsZero() {
-				valid.null(k)
+				b.valid.null(base + k)
 			} else {
-				vals[k] = t.UnixMicro()
+				b.i64[base+k] = t.UnixMicro()
 			}
 		}
-		return array.MakeFromData(valid.data(c.Type, n, bytesOf(vals))), nil
 	case kindEnum:
 		// The dictionary is the tag's fixed list, so values are stored as
 		// indices: no hashing here or in the Parquet writer. Values repeat
 		// (flags are mostly "good"), so the last lookup is remembered.
-		ix := make([]int16, n)
-		valid = newValidity(n)
-		last, lastIx := "", int16(-1)
 		for k, i := range idx {
 			v := *(*string)(at(i))
 			switch {
 			case v == "":
-				valid.null(k)
+				b.valid.null(base + k)
 				continue
-			case v == last:
+			case v == b.last && b.lastIdx >= 0:
 			default:
 				m, ok := c.enum[v]
 				if !ok {
-					return nil, fmt.Errorf("column %s: value %q is not one of its enum values", c.Name, v)
+					return fmt.Errorf("column %s: value %q is not one of its enum values", c.Name, v)
 				}
-				last, lastIx = v, int16(m)
+				b.last, b.lastIdx = v, int16(m)
 			}
-			ix[k] = lastIx
+			b.i16[base+k] = b.lastIdx
 		}
-		d := valid.data(c.Type, n, bytesOf(ix)).(*array.Data)
-		d.SetDictionary(c.dict.Data())
-		return array.MakeFromData(d), nil
+	default:
+		return fmt.Errorf("column %s: unsupported kind %d", c.Name, c.kind)
 	}
-	return nil, fmt.Errorf("column %s: unsupported kind %d", c.Name, c.kind)
+	return nil
+}
+
+// array returns the filled column as an Arrow array over b's memory.
+func (b *colBuf) array(c *Column) arrow.Array {
+	switch c.kind {
+	case kindString, kindPtrString:
+		return array.MakeFromData(b.valid.data(c.Type, b.n, bytesOf(b.i32), b.data))
+	case kindBool, kindPtrBool:
+		return array.MakeFromData(b.valid.data(c.Type, b.n, b.bits))
+	case kindInt32, kindPtrInt32:
+		return array.MakeFromData(b.valid.data(c.Type, b.n, bytesOf(b.i32)))
+	case kindInt64, kindTime:
+		return array.MakeFromData(b.valid.data(c.Type, b.n, bytesOf(b.i64)))
+	case kindFloat64:
+		return array.MakeFromData(b.valid.data(c.Type, b.n, bytesOf(b.f64)))
+	}
+	d := b.valid.data(c.Type, b.n, bytesOf(b.i16)).(*array.Data)
+	d.SetDictionary(c.dict.Data())
+	return array.MakeFromData(d)
+}
+
+// columnArrays returns the columns cols of rows[idx...] as Arrow arrays.
+func columnArrays[T any](cols []Column, rows []T, idx []int) ([]arrow.Array, error) {
+	const block = 256 // rows per block: a few tens of KB of row structs
+	bufs := make([]*colBuf, len(cols))
+	for c := range cols {
+		bufs[c] = newColBuf(&cols[c], len(idx))
+	}
+	for lo := 0; lo < len(idx); lo += block {
+		hi := min(lo+block, len(idx))
+		for c := range cols {
+			if err := fillColumn(&cols[c], bufs[c], rows, idx[lo:hi], lo); err != nil {
+				return nil, err
+			}
+		}
+	}
+	arrs := make([]arrow.Array, len(cols))
+	for c := range cols {
+		arrs[c] = bufs[c].array(&cols[c])
+	}
+	return arrs, nil
 }
 
 // validity is a column's validity bitmap under construction; the zero

@@ -270,21 +270,17 @@ func encode[T any](w *bufio.Writer, sc *arrow.Schema, cols []Column, rows []T, i
 			err = cerr
 		}
 	}()
-	arrs := make([]arrow.Array, len(cols))
 	for start := 0; start < len(idx); start += batchRows {
 		end := min(start+batchRows, len(idx))
-		for c := range cols {
-			a, err := columnArray(&cols[c], rows, idx[start:end])
-			if err != nil {
-				return err
-			}
-			arrs[c] = a
+		arrs, err := columnArrays(cols, rows, idx[start:end])
+		if err != nil {
+			return err
 		}
 		rec := array.NewRecordBatch(sc, arrs, int64(end-start))
 		for _, a := range arrs {
 			a.Release()
 		}
-		err := fw.WriteBuffered(rec)
+		err = fw.WriteBuffered(rec)
 		rec.Release()
 		if err != nil {
 			return err
