@@ -47,7 +47,9 @@
     WHERE NOT surface_based
     GROUP BY station_id, launch_time
 ),
-c AS (
+a AS (
+    -- Percentiles of one quantity are computed together (a list), which
+    -- keeps one copy of the values per cell instead of one per percentile.
     SELECT
         x.station_id, x.season, x.season_name, x.month, x.nominal_hour, x.sun_class,
         count(*) AS n_soundings,
@@ -55,11 +57,7 @@ c AS (
         count(*) FILTER (WHERE x.valid AND x.consensus_status = 'ok') AS n_consensus_ok,
         count(*) FILTER (WHERE x.valid AND x.consensus_status = 'surface') AS n_consensus_surface,
         count(*) FILTER (WHERE x.valid AND x.consensus_status NOT IN ('ok', 'surface')) AS n_consensus_undefined,
-        quantile_cont(x.consensus_m, 0.10) FILTER (WHERE x.valid) AS mixing_height_p10_m,
-        quantile_cont(x.consensus_m, 0.25) FILTER (WHERE x.valid) AS mixing_height_p25_m,
-        quantile_cont(x.consensus_m, 0.50) FILTER (WHERE x.valid) AS mixing_height_p50_m,
-        quantile_cont(x.consensus_m, 0.75) FILTER (WHERE x.valid) AS mixing_height_p75_m,
-        quantile_cont(x.consensus_m, 0.90) FILTER (WHERE x.valid) AS mixing_height_p90_m,
+        quantile_cont(x.consensus_m, [0.10, 0.25, 0.50, 0.75, 0.90]) FILTER (WHERE x.valid) AS mixing_height_q,
         count(*) FILTER (WHERE x.valid AND x.sbi_present)::DOUBLE / nullif(count(*) FILTER (WHERE x.valid), 0) AS sbi_frequency,
         quantile_cont(x.sbi_strength_k, 0.5) FILTER (WHERE x.valid AND x.sbi_present) AS sbi_median_strength_k,
         quantile_cont(x.sbi_top_agl_m, 0.5) FILTER (WHERE x.valid AND x.sbi_present) AS sbi_median_depth_m,
@@ -69,20 +67,12 @@ c AS (
         count(*) FILTER (WHERE x.valid AND ei.ei_capping)::DOUBLE / nullif(count(*) FILTER (WHERE x.valid), 0) AS ei_capping_frequency,
         count(*) FILTER (WHERE x.valid AND ei.ei_unclassified)::DOUBLE / nullif(count(*) FILTER (WHERE x.valid), 0) AS ei_unclassified_frequency,
         count(*) FILTER (WHERE x.valid AND x.ml_present)::DOUBLE / nullif(count(*) FILTER (WHERE x.valid), 0) AS ml_frequency,
-        quantile_cont(x.ml_depth_m, 0.25) FILTER (WHERE x.valid AND x.ml_present) AS ml_depth_p25_m,
-        quantile_cont(x.ml_depth_m, 0.50) FILTER (WHERE x.valid AND x.ml_present) AS ml_depth_p50_m,
-        quantile_cont(x.ml_depth_m, 0.75) FILTER (WHERE x.valid AND x.ml_present) AS ml_depth_p75_m,
+        quantile_cont(x.ml_depth_m, [0.25, 0.50, 0.75]) FILTER (WHERE x.valid AND x.ml_present) AS ml_depth_q,
         quantile_cont(x.mixed_layer_theta_k, 0.5) FILTER (WHERE x.valid AND x.ml_present) AS ml_theta_median_k,
         quantile_cont(x.mixed_layer_mixing_ratio_gkg, 0.5) FILTER (WHERE x.valid AND x.ml_present) AS ml_mixing_ratio_median_gkg,
         count(x.ventilation_index_m2s) FILTER (WHERE x.valid) AS n_ventilation,
-        quantile_cont(x.transport_wind_ms, 0.25) FILTER (WHERE x.valid) AS transport_wind_p25_ms,
-        quantile_cont(x.transport_wind_ms, 0.50) FILTER (WHERE x.valid) AS transport_wind_p50_ms,
-        quantile_cont(x.transport_wind_ms, 0.75) FILTER (WHERE x.valid) AS transport_wind_p75_ms,
-        quantile_cont(x.ventilation_index_m2s, 0.10) FILTER (WHERE x.valid) AS ventilation_index_p10_m2s,
-        quantile_cont(x.ventilation_index_m2s, 0.25) FILTER (WHERE x.valid) AS ventilation_index_p25_m2s,
-        quantile_cont(x.ventilation_index_m2s, 0.50) FILTER (WHERE x.valid) AS ventilation_index_p50_m2s,
-        quantile_cont(x.ventilation_index_m2s, 0.75) FILTER (WHERE x.valid) AS ventilation_index_p75_m2s,
-        quantile_cont(x.ventilation_index_m2s, 0.90) FILTER (WHERE x.valid) AS ventilation_index_p90_m2s,
+        quantile_cont(x.transport_wind_ms, [0.25, 0.50, 0.75]) FILTER (WHERE x.valid) AS transport_wind_q,
+        quantile_cont(x.ventilation_index_m2s, [0.10, 0.25, 0.50, 0.75, 0.90]) FILTER (WHERE x.valid) AS ventilation_index_q,
         coalesce(string_agg(DISTINCT nullif(x.ventilation_table, ''), ',' ORDER BY nullif(x.ventilation_table, '')), '') AS ventilation_table,
         least(
             count(*) FILTER (WHERE x.valid AND x.calendar_month % 3 = 0),
@@ -91,6 +81,33 @@ c AS (
     FROM sample x
     LEFT JOIN ei USING (station_id, launch_time)
     GROUP BY ALL
+),
+c AS (
+    SELECT
+        station_id, season, season_name, month, nominal_hour, sun_class,
+        n_soundings, n_valid, n_consensus_ok, n_consensus_surface, n_consensus_undefined,
+        mixing_height_q[1] AS mixing_height_p10_m,
+        mixing_height_q[2] AS mixing_height_p25_m,
+        mixing_height_q[3] AS mixing_height_p50_m,
+        mixing_height_q[4] AS mixing_height_p75_m,
+        mixing_height_q[5] AS mixing_height_p90_m,
+        sbi_frequency, sbi_median_strength_k, sbi_median_depth_m,
+        ei_frequency, ei_subsidence_frequency, ei_frontal_frequency, ei_capping_frequency, ei_unclassified_frequency,
+        ml_frequency,
+        ml_depth_q[1] AS ml_depth_p25_m,
+        ml_depth_q[2] AS ml_depth_p50_m,
+        ml_depth_q[3] AS ml_depth_p75_m,
+        ml_theta_median_k, ml_mixing_ratio_median_gkg, n_ventilation,
+        transport_wind_q[1] AS transport_wind_p25_ms,
+        transport_wind_q[2] AS transport_wind_p50_ms,
+        transport_wind_q[3] AS transport_wind_p75_ms,
+        ventilation_index_q[1] AS ventilation_index_p10_m2s,
+        ventilation_index_q[2] AS ventilation_index_p25_m2s,
+        ventilation_index_q[3] AS ventilation_index_p50_m2s,
+        ventilation_index_q[4] AS ventilation_index_p75_m2s,
+        ventilation_index_q[5] AS ventilation_index_p90_m2s,
+        ventilation_table, n_fewest_month
+    FROM a
 )
 SELECT
     * EXCLUDE (n_fewest_month),

@@ -63,7 +63,13 @@ func Open(ctx context.Context, storeDir string) (*sql.DB, error) {
 		return nil, err
 	}
 	conn, err := duckdb.NewConnector("", func(ex driver.ExecerContext) error {
-		_, err := ex.ExecContext(context.Background(), "SET TimeZone = 'UTC'", nil)
+		if _, err := ex.ExecContext(context.Background(), "SET TimeZone = 'UTC'", nil); err != nil {
+			return err
+		}
+		// Statements of one command often read the same files more than
+		// once (a climatology reads the soundings files twice); the store's
+		// files never change under a name, so their footers can be kept.
+		_, err := ex.ExecContext(context.Background(), "SET parquet_metadata_cache = true", nil)
 		return err
 	})
 	if err != nil {
