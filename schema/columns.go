@@ -181,7 +181,8 @@ func arrowSchema(table string, cols []Column) *arrow.Schema {
 }
 
 // colBuf is one column of a record batch under construction: plain Go
-// memory that becomes the Arrow array's buffers without a copy.
+// memory that becomes the Arrow array's buffers without a copy. Its slices
+// hold exactly n rows (n+1 string offsets); grow extends them.
 type colBuf struct {
 	n       int
 	valid   validity
@@ -196,26 +197,51 @@ type colBuf struct {
 }
 
 func newColBuf(c *Column, n int) *colBuf {
-	b := &colBuf{n: n, lastIdx: -1}
+	b := &colBuf{lastIdx: -1}
+	if c.kind == kindString || c.kind == kindPtrString {
+		b.i32 = []int32{0}
+		b.data = make([]byte, 0, 16*n)
+	}
+	b.grow(c, n)
+	return b
+}
+
+// extend returns s with length n, reallocating (doubling) when its
+// capacity is too small; new elements are zero.
+func extend[E any](s []E, n int) []E {
+	if n <= cap(s) {
+		s = s[:n]
+		return s
+	}
+	t := make([]E, n, max(n, 2*cap(s)))
+	copy(t, s)
+	return t
+}
+
+// grow makes room for n rows in all.
+func (b *colBuf) grow(c *Column, n int) {
 	if c.Nullable {
-		b.valid = newValidity(n)
+		old := len(b.valid.bits)
+		b.valid.bits = extend(b.valid.bits, bitmapBytes(n))
+		for i := old; i < len(b.valid.bits); i++ {
+			b.valid.bits[i] = 0xff
+		}
 	}
 	switch c.kind {
 	case kindString, kindPtrString:
-		b.i32 = make([]int32, n+1)
-		b.data = make([]byte, 0, 16*n)
+		b.i32 = extend(b.i32, n+1)
 	case kindBool, kindPtrBool:
-		b.bits = make([]byte, bitmapBytes(n))
+		b.bits = extend(b.bits, bitmapBytes(n))
 	case kindInt32, kindPtrInt32:
-		b.i32 = make([]int32, n)
+		b.i32 = extend(b.i32, n)
 	case kindInt64, kindTime:
-		b.i64 = make([]int64, n)
+		b.i64 = extend(b.i64, n)
 	case kindFloat64:
-		b.f64 = make([]float64, n)
+		b.f64 = extend(b.f64, n)
 	case kindEnum:
-		b.i16 = make([]int16, n)
+		b.i16 = extend(b.i16, n)
 	}
-	return b
+	b.n = n
 }
 
 // fillColumn stores field c of rows[idx...] at positions base… of b.
@@ -339,24 +365,108 @@ func (b *colBuf) array(c *Column) arrow.Array {
 
 // columnArrays returns the columns cols of rows[idx...] as Arrow arrays.
 func columnArrays[T any](cols []Column, rows []T, idx []int) ([]arrow.Array, error) {
-	const block = 256 // rows per block: a few tens of KB of row structs
 	bufs := make([]*colBuf, len(cols))
 	for c := range cols {
 		bufs[c] = newColBuf(&cols[c], len(idx))
 	}
-	for lo := 0; lo < len(idx); lo += block {
-		hi := min(lo+block, len(idx))
+	for lo := 0; lo < len(idx); lo += fillBlock {
+		hi := min(lo+fillBlock, len(idx))
 		for c := range cols {
 			if err := fillColumn(&cols[c], bufs[c], rows, idx[lo:hi], lo); err != nil {
 				return nil, err
 			}
 		}
 	}
+	return arraysOf(cols, bufs), nil
+}
+
+// fillBlock is the number of rows filled into all columns at a time: a few
+// tens of KB of row structs, which stay in cache while each column takes
+// its values.
+const fillBlock = 256
+
+func arraysOf(cols []Column, bufs []*colBuf) []arrow.Array {
 	arrs := make([]arrow.Array, len(cols))
 	for c := range cols {
 		arrs[c] = bufs[c].array(&cols[c])
 	}
-	return arrs, nil
+	return arrs
+}
+
+// identity[i] = i: the row indices of a block.
+var identity = func() []int {
+	s := make([]int, fillBlock)
+	for i := range s {
+		s[i] = i
+	}
+	return s
+}()
+
+// Rows collects the rows of one Parquet file column by column, for
+// WriteRows. Appended rows wait in a block of fillBlock row structs that is
+// moved into the columns when full, so a large table is never held as row
+// structs: the levels of a station-year are some 70,000 rows of 300 bytes,
+// which as a slice cost their own allocation, zeroing and a second pass
+// through memory to transpose.
+type Rows[T any] struct {
+	cols  []Column
+	bufs  []*colBuf
+	n     int // rows moved into bufs
+	block []T
+	err   error
+}
+
+// NewRows returns an empty Rows for the row type T (see Columns) with room
+// for about capacity rows before its columns grow.
+func NewRows[T any](capacity int) (*Rows[T], error) {
+	cols, err := Columns[T]()
+	if err != nil {
+		return nil, err
+	}
+	r := &Rows[T]{cols: cols, bufs: make([]*colBuf, len(cols)), block: make([]T, 0, fillBlock)}
+	for c := range cols {
+		r.bufs[c] = newColBuf(&cols[c], 0)
+		r.bufs[c].grow(&cols[c], capacity)
+		r.bufs[c].grow(&cols[c], 0)
+	}
+	return r, nil
+}
+
+// Append adds one row. A value the column cannot hold (an enum value
+// outside its list) is reported by WriteRows.
+func (r *Rows[T]) Append(row T) {
+	r.block = append(r.block, row)
+	if len(r.block) == fillBlock {
+		r.flush()
+	}
+}
+
+// Len returns the number of rows appended.
+func (r *Rows[T]) Len() int { return r.n + len(r.block) }
+
+func (r *Rows[T]) flush() {
+	if len(r.block) == 0 {
+		return
+	}
+	n := r.n + len(r.block)
+	for c := range r.cols {
+		r.bufs[c].grow(&r.cols[c], n)
+		if err := fillColumn(&r.cols[c], r.bufs[c], r.block, identity[:len(r.block)], r.n); err != nil && r.err == nil {
+			r.err = err
+		}
+	}
+	r.n = n
+	clear(r.block) // drop references held by the rows' strings and pointers
+	r.block = r.block[:0]
+}
+
+// arrays moves the pending rows into the columns and returns them.
+func (r *Rows[T]) arrays() ([]arrow.Array, int, error) {
+	r.flush()
+	if r.err != nil {
+		return nil, 0, r.err
+	}
+	return arraysOf(r.cols, r.bufs), r.n, nil
 }
 
 // validity is a column's validity bitmap under construction; the zero

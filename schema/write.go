@@ -32,7 +32,6 @@ const (
 	StationKey     = "station"    // Hive key of the station directory level
 	YearKey        = "year"       // Hive key of the year directory level
 	PartFile       = "part-0.parquet"
-	batchRows      = 128 * 1024 // rows per Arrow record batch (one per row group)
 	rowGroupRows   = 128 * 1024 // rows per Parquet row group
 	tempFilePrefix = ".part.parquet.tmp-"
 )
@@ -94,7 +93,10 @@ func WriteTable[T any](storeDir, table string, rows []T) (files []string, err er
 	for _, p := range parts {
 		dir := filepath.Join(storeDir, table,
 			StationKey+"="+p.station, YearKey+"="+strconv.FormatInt(p.year, 10))
-		path, err := writePartition(dir, PartFile, sc, cols, rows, p.rows, true)
+		path, err := writePartition(dir, PartFile, sc, cols, func() ([]arrow.Array, int, error) {
+			a, err := columnArrays(cols, rows, p.rows)
+			return a, len(p.rows), err
+		}, true)
 		if err != nil {
 			return files, fmt.Errorf("schema: table %s: %w", table, err)
 		}
@@ -168,15 +170,30 @@ func WriteFile[T any](path, table string, rows []T, sync bool) error {
 	for i := range idx {
 		idx[i] = i
 	}
-	if _, err := writePartition(filepath.Dir(path), filepath.Base(path), arrowSchema(table, cols), cols, rows, idx, sync); err != nil {
+	arrays := func() ([]arrow.Array, int, error) {
+		a, err := columnArrays(cols, rows, idx)
+		return a, len(rows), err
+	}
+	if _, err := writePartition(filepath.Dir(path), filepath.Base(path), arrowSchema(table, cols), cols, arrays, sync); err != nil {
 		return fmt.Errorf("schema: table %s: %w", table, err)
 	}
 	return nil
 }
 
-// writePartition writes rows[idx...] to dir/name through a temporary file
-// and returns the final path.
-func writePartition[T any](dir, name string, sc *arrow.Schema, cols []Column, rows []T, idx []int, sync bool) (path string, err error) {
+// WriteRows is WriteFile for rows collected in a Rows.
+func WriteRows[T any](path, table string, rows *Rows[T], sync bool) error {
+	if !tableName.MatchString(table) {
+		return fmt.Errorf("schema: table name %q is not a lower-case identifier", table)
+	}
+	if _, err := writePartition(filepath.Dir(path), filepath.Base(path), arrowSchema(table, rows.cols), rows.cols, rows.arrays, sync); err != nil {
+		return fmt.Errorf("schema: table %s: %w", table, err)
+	}
+	return nil
+}
+
+// writePartition writes the columns that arrays returns (and their row
+// count) to dir/name through a temporary file and returns the final path.
+func writePartition(dir, name string, sc *arrow.Schema, cols []Column, arrays func() ([]arrow.Array, int, error), sync bool) (path string, err error) {
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return "", err
 	}
@@ -191,7 +208,7 @@ func writePartition[T any](dir, name string, sc *arrow.Schema, cols []Column, ro
 		}
 	}()
 	bw := bufio.NewWriterSize(tmp, 1<<20)
-	if err := encode(bw, sc, cols, rows, idx); err != nil {
+	if err := encode(bw, sc, cols, arrays); err != nil {
 		return "", fmt.Errorf("write %s: %w", tmp.Name(), err)
 	}
 	if err := bw.Flush(); err != nil {
@@ -231,8 +248,8 @@ func syncDir(dir string) error {
 	return nil
 }
 
-// encode writes rows[idx...] as one Parquet file to w.
-func encode[T any](w *bufio.Writer, sc *arrow.Schema, cols []Column, rows []T, idx []int) (err error) {
+// encode writes the columns arrays returns as one Parquet file to w.
+func encode(w *bufio.Writer, sc *arrow.Schema, cols []Column, arrays func() ([]arrow.Array, int, error)) (err error) {
 	// Dictionary encoding pays for repetitive text (ids, statuses, classes)
 	// but costs a hash lookup per value for measurements, which rarely
 	// repeat: it is on for string columns only.
@@ -270,23 +287,20 @@ func encode[T any](w *bufio.Writer, sc *arrow.Schema, cols []Column, rows []T, i
 			err = cerr
 		}
 	}()
-	for start := 0; start < len(idx); start += batchRows {
-		end := min(start+batchRows, len(idx))
-		arrs, err := columnArrays(cols, rows, idx[start:end])
-		if err != nil {
-			return err
-		}
-		rec := array.NewRecordBatch(sc, arrs, int64(end-start))
-		for _, a := range arrs {
-			a.Release()
-		}
-		err = fw.WriteBuffered(rec)
-		rec.Release()
-		if err != nil {
-			return err
-		}
+	arrs, n, err := arrays()
+	if err != nil {
+		return err
 	}
-	return nil
+	rec := array.NewRecordBatch(sc, arrs, int64(n))
+	for _, a := range arrs {
+		a.Release()
+	}
+	defer rec.Release()
+	if n == 0 {
+		return nil // a valid file without rows
+	}
+	// One batch: the writer cuts it into row groups of rowGroupRows.
+	return fw.WriteBuffered(rec)
 }
 
 // ReadVersion returns the schema version recorded in the key-value metadata

@@ -338,7 +338,11 @@ func (r *run) buildPartition(key string, segs []segment, spills []*os.File, inpu
 	for _, d := range kept {
 		nLevels += len(d.s.Levels)
 	}
-	rows := partRows{levels: make([]schema.LevelRow, 0, nLevels),
+	levels, err := schema.NewRows[schema.LevelRow](nLevels)
+	if err != nil {
+		return nil, stats, err
+	}
+	rows := partRows{levels: levels,
 		heights: make([]schema.MixingHeightRow, 0, len(kept)*len(analyze.MixingHeightMethods))}
 	srows := make([]schema.SoundingRow, len(kept))
 	for i, d := range kept {
@@ -370,7 +374,7 @@ func (r *run) buildPartition(key string, segs []segment, spills []*os.File, inpu
 	}
 	for _, err := range []error{
 		write(schema.TableSoundings, len(srows), func(f string) error { return schema.WriteFile(f, schema.TableSoundings, srows, false) }),
-		write(schema.TableLevels, len(lrows), func(f string) error { return schema.WriteFile(f, schema.TableLevels, lrows, false) }),
+		write(schema.TableLevels, lrows.Len(), func(f string) error { return schema.WriteRows(f, schema.TableLevels, lrows, false) }),
 		write(schema.TableInversions, len(irows), func(f string) error { return schema.WriteFile(f, schema.TableInversions, irows, false) }),
 		write(schema.TableMixedLayers, len(mrows), func(f string) error { return schema.WriteFile(f, schema.TableMixedLayers, mrows, false) }),
 		write(schema.TableMixingHeights, len(hrows), func(f string) error { return schema.WriteFile(f, schema.TableMixingHeights, hrows, false) }),

@@ -50,7 +50,7 @@ type result struct {
 // soundings and afternoon_mixing, appended sounding by sounding so that
 // nothing is copied again before writing.
 type partRows struct {
-	levels   []schema.LevelRow
+	levels   *schema.Rows[schema.LevelRow]
 	inv      []schema.InversionRow
 	mixed    []schema.MixedLayerRow
 	heights  []schema.MixingHeightRow
@@ -160,7 +160,7 @@ func analyzeOne(s *sounding.Sounding, rep qc.Report, cfg analyze.Config, useSusp
 		return ""
 	}
 	for i, l := range s.Levels {
-		out.levels = append(out.levels, schema.LevelRow{
+		out.levels.Append(schema.LevelRow{
 			StationID:         s.StationID,
 			LaunchTime:        row.LaunchTime,
 			Year:              row.Year,
