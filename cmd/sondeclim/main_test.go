@@ -247,11 +247,13 @@ func TestIngestAllFormats(t *testing.T) {
 	}
 }
 
-// TestInPlaceEqualsStaged: plain archive-v2 files are read in place (by
-// station-year byte ranges); the same files gzipped go through the staging
-// copy. Both give the same tables and the same skipped lines, on real files
-// of ../shared/validation (PROVENANCE.md) joined into one file of three
-// stations and years, the truncated Barrow file among them.
+// TestInPlaceEqualsStaged: a plain archive-v2 file is read in place (by
+// station-year byte ranges); the same file gzipped is decompressed into a
+// copy in the staging area first. Both give the same tables and the same
+// skipped lines, on real files of ../shared/validation (PROVENANCE.md)
+// joined into one file of three stations and years, the truncated Barrow
+// file among them. (The pipeline's TestInPlaceEqualsDecoded compares both
+// with the decoding path.)
 func TestInPlaceEqualsStaged(t *testing.T) {
 	v := sharedDir(t)
 	var joined []byte

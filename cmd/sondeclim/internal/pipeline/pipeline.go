@@ -85,6 +85,11 @@ type Options struct {
 	Progress func(done, total int)
 	// ProgressEvery is the interval between progress log messages; 0 means 5 s.
 	ProgressEvery time.Duration
+
+	// decodeAll makes every input go through the decoding staging path,
+	// as inputs of formats other than archive-v2 do (tests compare the
+	// two paths).
+	decodeAll bool
 }
 
 // StationInfo is station metadata from a station list.

@@ -1,8 +1,12 @@
 package pipeline
 
 import (
+	"archive/zip"
+	"bytes"
+	"compress/gzip"
 	"context"
 	"github.com/sondeclim/sondeclim/ingest/validation"
+	"io"
 	"math"
 	"os"
 	"path/filepath"
@@ -211,5 +215,87 @@ func TestSameAsIndexed(t *testing.T) {
 	}
 	if err := sameAsIndexed(fh2, stamp2); err == nil || !strings.Contains(err.Error(), "changed while it was being ingested") {
 		t.Errorf("grown file: got %v, want a refusal", err)
+	}
+}
+
+// TestInPlaceEqualsDecoded: archive-v2 input indexed and read in place
+// (plain file, gzip copy, zip members) stages exactly the soundings the
+// decoding path stages: every partition's content hash (which covers each
+// copy's observation and its file, member and line) and every skipped item
+// agree. Real files of ../shared/validation (PROVENANCE.md): Barrow cut
+// short, Göteborg with hour 99, Omaha 1950 portion, Wien; the zip holds two
+// members so that member names and per-member line numbers are exercised.
+func TestInPlaceEqualsDecoded(t *testing.T) {
+	v := validation.Dir(t, "archive-v2")
+	read := func(name string) []byte {
+		b, err := os.ReadFile(filepath.Join(v, name))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if strings.HasSuffix(name, ".gz") {
+			zr, err := gzip.NewReader(bytes.NewReader(b))
+			if err != nil {
+				t.Fatal(err)
+			}
+			if b, err = io.ReadAll(zr); err != nil {
+				t.Fatal(err)
+			}
+		}
+		return b
+	}
+	first := append(read("USM00070026-data-truncated.txt"), read("SWM00002527-data-hour99.txt")...)
+	second := append(read("USM00074794-data-1950-portion.txt"), read("AUM00011035-data.txt.gz")...)
+	in := t.TempDir()
+	write := func(name string, b []byte) {
+		if err := os.WriteFile(filepath.Join(in, name), b, 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	write("plain.txt", first)
+	var gz bytes.Buffer
+	zw := gzip.NewWriter(&gz)
+	zw.Write(second)
+	zw.Close()
+	write("second.txt.gz", gz.Bytes())
+	var zb bytes.Buffer
+	za := zip.NewWriter(&zb)
+	for name, b := range map[string][]byte{"a/first.txt": first, "b/second.txt": second} {
+		w, err := za.Create(name)
+		if err != nil {
+			t.Fatal(err)
+		}
+		w.Write(b)
+	}
+	za.Close()
+	write("both.zip", zb.Bytes())
+
+	run := func(decodeAll bool) (map[string]string, []Skip, *Summary) {
+		storeDir := t.TempDir()
+		sum, err := Run(context.Background(), storeDir, []string{in}, Options{Workers: 2, decodeAll: decodeAll})
+		if err != nil {
+			t.Fatal(err)
+		}
+		m, err := store.ReadManifest(storeDir, store.Shard{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		hashes := map[string]string{}
+		for k, p := range m.Partitions {
+			hashes[k] = p.ContentHash
+		}
+		return hashes, sum.Skipped, sum
+	}
+	inPlace, skipsA, sumA := run(false)
+	decoded, skipsB, sumB := run(true)
+	if len(inPlace) != 4 || !reflect.DeepEqual(inPlace, decoded) {
+		t.Errorf("partition hashes differ or are not the 4 station-years:\nin place %v\ndecoded  %v", inPlace, decoded)
+	}
+	if !reflect.DeepEqual(skipsA, skipsB) || len(skipsA) != 2 {
+		t.Errorf("skips differ or are not the truncated sounding twice (plain file and zip member):\n%v\n%v", skipsA, skipsB)
+	}
+	// Each text is read twice (file and zip member): Barrow 2 of its 3
+	// soundings (the third is cut short), Göteborg 5, Omaha 14, Wien 321.
+	if want := 2 * (2 + 5 + 14 + 321); sumA.SoundingsRead != want || sumB.SoundingsRead != want || sumA.Members != 4 || sumB.Members != 4 {
+		t.Errorf("soundings read %d / %d, members %d / %d", sumA.SoundingsRead, sumB.SoundingsRead, sumA.Members, sumB.Members)
 	}
 }

@@ -9,6 +9,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"maps"
 	"os"
 	"path/filepath"
 	"sort"
@@ -30,8 +31,9 @@ import (
 type segment struct {
 	file      int // index into staged.files
 	off, size int64
-	count     int // soundings (spill) or header records (in place)
-	line      int // in place: 1-based line of the range's first line
+	count     int    // soundings (spill) or header records (in place)
+	line      int    // in place: 1-based line of the range's first line in its member
+	member    string // in place: the archive member the range comes from
 }
 
 // staged is what the reading phase leaves for the building phase: spill
@@ -157,82 +159,112 @@ func (r *run) stageFile(ctx context.Context, path string, fi int, spill string, 
 	return res, nil
 }
 
-// indexInPlace stages a plain (uncompressed, not archived) archive-v2
-// file without decoding or copying it: the file is indexed by station-year
-// (archivev2.Index) and each partition later decodes its byte ranges from
-// the file itself. Copying decoded soundings to a spill file would write
-// more bytes than the input holds. It reports false, having staged
-// nothing, when the file is not such a file or has no readable header;
-// the caller then reads it the ordinary way, which reports why.
+// indexInPlace stages an archive-v2 file without decoding it: the file is
+// indexed by station-year (archivev2.Index) and each partition later
+// decodes its byte ranges. A plain file is read in place; a gzip file or a
+// zip archive is decompressed once into a copy in the staging area, which
+// is then read the same way. (Staging decoded soundings instead wrote more
+// bytes than the text holds, and encoding and decoding them cost more than
+// parsing.) It reports false, having staged nothing, when the file is not
+// such a file (another format, a member that is not archive-v2, no
+// readable header, over the size limit, unreadable); the caller then reads
+// it the ordinary way, which reports why.
 func (r *run) indexInPlace(ctx context.Context, path string, fi int, st *staged, keep map[string]bool, res *readResult) (bool, error) {
-	limit := r.opt.SizeLimit
-	if limit <= 0 {
-		limit = input.DefaultLimit
-	}
-	if r.opt.Format != "" && r.opt.Format != archivev2.Format || res.info.SizeBytes > limit {
+	if r.opt.decodeAll || r.opt.Format != "" && r.opt.Format != archivev2.Format {
 		return false, nil
 	}
 	f, err := os.Open(path)
 	if err != nil {
 		return false, nil
 	}
-	defer f.Close()
 	head := make([]byte, 4096)
 	n, _ := io.ReadFull(f, head)
 	head = head[:n]
+	f.Close()
 	compressed := n >= 2 && head[0] == 0x1f && head[1] == 0x8b ||
 		n >= 4 && (string(head[:4]) == "PK\x03\x04" || string(head[:4]) == "PK\x05\x06")
-	if compressed || (r.opt.Format == "" && !archivev2.Sniff(head)) {
+	limit := r.opt.SizeLimit
+	if limit <= 0 {
+		limit = input.DefaultLimit
+	}
+	if !compressed && (res.info.SizeBytes > limit || r.opt.Format == "" && !archivev2.Sniff(head)) {
 		return false, nil
 	}
-	if _, err := f.Seek(0, io.SeekStart); err != nil {
-		return false, nil
+
+	ix := &indexer{r: r, ctx: ctx, fi: fi, keep: keep, parts: map[string]int{}}
+	sum := sha256.New() // the same digest as the ordinary path: per member, its name, NUL, content
+	readFrom := path
+	copyPath := filepath.Join(r.staging, strconv.Itoa(fi)+".txt")
+	members := 0
+	if !compressed {
+		err = func() error {
+			f, err := os.Open(path)
+			if err != nil {
+				return err
+			}
+			defer f.Close()
+			members = 1
+			io.WriteString(sum, "\x00")
+			return ix.member(io.TeeReader(f, sum), "", 0)
+		}()
+	} else {
+		readFrom = copyPath
+		err = func() error {
+			out, err := os.Create(copyPath)
+			if err != nil {
+				return &writeError{err}
+			}
+			defer out.Close()
+			cw := &countingWriter{w: bufio.NewWriterSize(out, 1<<20)}
+			err = input.Each(path, r.opt.SizeLimit, func(member string, rd io.Reader) error {
+				members++
+				io.WriteString(sum, member+"\x00")
+				br := bufio.NewReaderSize(io.TeeReader(rd, sum), 1<<16)
+				if h, _ := br.Peek(4096); r.opt.Format == "" && !archivev2.Sniff(h) {
+					return errNotInPlace
+				}
+				return ix.member(io.TeeReader(br, cw), member, cw.n)
+			})
+			if err != nil {
+				return err
+			}
+			if members == 0 {
+				return errNotInPlace
+			}
+			if err := cw.w.Flush(); err != nil {
+				return &writeError{err}
+			}
+			return out.Close()
+		}()
 	}
-	// The same digest as the ordinary path: member name "" then content.
-	sum := sha256.New()
-	io.WriteString(sum, "\x00")
-	var segs []segment
-	var keys []string
-	err = archivev2.Index(io.TeeReader(f, sum), func(sg archivev2.Segment) error {
-		if err := ctx.Err(); err != nil {
-			return err
-		}
-		if !r.opt.Shard.Owns(sg.StationID) {
-			r.mu.Lock()
-			r.sum.OtherShards += sg.Headers
-			r.mu.Unlock()
-			return nil
-		}
-		key := store.PartitionKey(sg.StationID, sg.Year)
-		if keep != nil && !keep[key] {
-			return nil
-		}
-		res.parts[key] += sg.Headers
-		segs = append(segs, segment{file: fi, off: sg.Offset, size: sg.Size, count: sg.Headers, line: sg.FirstLine})
-		keys = append(keys, key)
-		return nil
-	})
-	switch {
-	case ctx.Err() != nil:
+	if ctx.Err() != nil {
 		return true, ctx.Err()
-	case errors.Is(err, archivev2.ErrNoHeaders):
-		clear(res.parts)
+	}
+	if isWriteError(err) {
+		return true, fmt.Errorf("staging %s: %w", path, err)
+	}
+	if err != nil {
+		// Not for this path (errNotInPlace, ErrNoHeaders) or a problem
+		// the ordinary path reports with its usual reason.
+		os.Remove(copyPath)
 		return false, nil
-	case err != nil:
-		clear(res.parts)
-		r.skip(Skip{Where: path, Reason: "unreadable", Detail: err.Error()})
-		return true, nil
+	}
+	cst, err := os.Stat(readFrom)
+	if err != nil {
+		return true, err
 	}
 	st.mu.Lock()
-	st.files[fi], st.inPlace[fi] = path, true
-	st.stamp[fi] = store.Input{SizeBytes: res.info.SizeBytes, ModTime: res.info.ModTime}
-	for i, k := range keys {
-		st.byPart[k] = append(st.byPart[k], segs[i])
+	st.files[fi], st.inPlace[fi] = readFrom, true
+	st.stamp[fi] = store.Input{SizeBytes: cst.Size(), ModTime: cst.ModTime().UTC()}
+	for i, k := range ix.keys {
+		st.byPart[k] = append(st.byPart[k], ix.segs[i])
 	}
 	st.mu.Unlock()
 	r.mu.Lock()
-	r.sum.Members++
+	r.sum.Members += members
+	r.sum.OtherShards += ix.otherShards
 	r.mu.Unlock()
+	maps.Copy(res.parts, ix.parts)
 	res.info.SHA256 = hex.EncodeToString(sum.Sum(nil))
 	for k, n := range res.parts {
 		res.info.Partitions = append(res.info.Partitions, k)
@@ -242,12 +274,70 @@ func (r *run) indexInPlace(ctx context.Context, path string, fi int, st *staged,
 	return true, nil
 }
 
+// errNotInPlace makes indexInPlace hand a file to the ordinary path.
+var errNotInPlace = errors.New("not an archive-v2 file")
+
+// indexer collects the segments of one input file's members.
+type indexer struct {
+	r           *run
+	ctx         context.Context
+	fi          int
+	keep        map[string]bool
+	segs        []segment
+	keys        []string
+	parts       map[string]int
+	otherShards int
+}
+
+// member indexes one member read from rd, whose first byte is at offset
+// base of the file the partitions will read.
+func (ix *indexer) member(rd io.Reader, member string, base int64) error {
+	err := archivev2.Index(rd, func(sg archivev2.Segment) error {
+		if err := ix.ctx.Err(); err != nil {
+			return err
+		}
+		if !ix.r.opt.Shard.Owns(sg.StationID) {
+			ix.otherShards += sg.Headers
+			return nil
+		}
+		key := store.PartitionKey(sg.StationID, sg.Year)
+		if ix.keep != nil && !ix.keep[key] {
+			return nil
+		}
+		ix.parts[key] += sg.Headers
+		ix.segs = append(ix.segs, segment{file: ix.fi, off: base + sg.Offset, size: sg.Size, count: sg.Headers,
+			line: sg.FirstLine, member: member})
+		ix.keys = append(ix.keys, key)
+		return nil
+	})
+	if errors.Is(err, archivev2.ErrNoHeaders) {
+		return errNotInPlace
+	}
+	return err
+}
+
+// countingWriter counts the bytes written through it; a write error is a
+// writeError (the staging disk, not the input).
+type countingWriter struct {
+	w *bufio.Writer
+	n int64
+}
+
+func (c *countingWriter) Write(p []byte) (int, error) {
+	n, err := c.w.Write(p)
+	c.n += int64(n)
+	if err != nil {
+		return n, &writeError{err}
+	}
+	return n, nil
+}
+
 // readInPlace decodes one in-place segment (the bytes of buf) of input
 // path: soundings are returned, rejected ones reported as skips, as
 // reading the whole file would.
 func (r *run) readInPlace(buf []byte, path string, sg segment) ([]*sounding.Sounding, error) {
 	defer r.stage("read_parse", time.Now())
-	rd := archivev2.NewReaderAt(bytes.NewReader(buf), path, "", sg.line)
+	rd := archivev2.NewReaderAt(bytes.NewReader(buf), path, sg.member, sg.line)
 	var out []*sounding.Sounding
 	for {
 		s, err := rd.Next()
@@ -257,9 +347,9 @@ func (r *run) readInPlace(buf []byte, path string, sg segment) ([]*sounding.Soun
 		if err != nil {
 			var pe *ingest.ParseError
 			if !errors.As(err, &pe) {
-				return nil, fmt.Errorf("%s: %w", path, err)
+				return nil, fmt.Errorf("%s: %w", name(path, sg.member), err)
 			}
-			r.skip(Skip{Where: path, Reason: reasonOf(err), Detail: err.Error()})
+			r.skip(Skip{Where: name(path, sg.member), Reason: reasonOf(err), Detail: err.Error()})
 			continue
 		}
 		if info, ok := r.opt.Stations[s.StationID]; ok {
