@@ -43,19 +43,28 @@ func (st *state) thickness(a, b int, t, td []float64) float64 {
 	if math.IsNaN(t[a]) || math.IsNaN(t[b]) {
 		return nan
 	}
+	sum, _ := st.thicknessFrom(a, b, t, td, st.virtualT(t[a], td[a], st.p[a]))
+	return sum
+}
+
+// thicknessFrom is thickness with the virtual temperature at a given
+// (tvA, K); it also returns the virtual temperature at b, so that a chain
+// of layers computes each level's once.
+func (st *state) thicknessFrom(a, b int, t, td []float64, tvA float64) (sum, tvB float64) {
 	c := st.cfg.Constants
-	var sum float64
-	prev := a
+	prev, tvPrev := a, tvA
 	for i := a + 1; i <= b; i++ {
 		if math.IsNaN(st.p[i]) || math.IsNaN(t[i]) {
 			continue
 		}
-		tv1 := st.virtualT(t[prev], td[prev], st.p[prev])
-		tv2 := st.virtualT(t[i], td[i], st.p[i])
-		sum += thermo.Thickness(st.p[prev], st.p[i], tv1, tv2, c.Rd, c.G0)
-		prev = i
+		tv := st.virtualT(t[i], td[i], st.p[i])
+		sum += thermo.Thickness(st.p[prev], st.p[i], tvPrev, tv, c.Rd, c.G0)
+		prev, tvPrev = i, tv
 	}
-	return sum
+	if prev != b { // b itself had no pressure
+		tvPrev = st.virtualT(t[b], td[b], st.p[b])
+	}
+	return sum, tvPrev
 }
 
 // evaluate fills l's thickness, residual and tolerance from t and td.

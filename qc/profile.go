@@ -53,8 +53,18 @@ func (st *state) heightsAGL(idx []int) []float64 {
 	if base := st.z[idx[0]] - st.elev; base > 0 {
 		z[0] = base
 	}
+	// Each level's virtual temperature is computed once along the chain.
+	tv := st.virtualT(st.t[idx[0]], st.td[idx[0]], st.p[idx[0]])
 	for n := 1; n < len(idx); n++ {
-		z[n] = z[n-1] + st.thickness(idx[n-1], idx[n], st.t, st.td)
+		a, b := idx[n-1], idx[n]
+		if math.IsNaN(st.t[a]) || math.IsNaN(st.t[b]) {
+			z[n] = z[n-1] + nan
+			tv = st.virtualT(st.t[b], st.td[b], st.p[b])
+			continue
+		}
+		var dz float64
+		dz, tv = st.thicknessFrom(a, b, st.t, st.td, tv)
+		z[n] = z[n-1] + dz
 	}
 	return z
 }
