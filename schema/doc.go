@@ -4,7 +4,8 @@
 // exported field carries a `col` tag (the column name, snake_case with the
 // unit in it) and a `doc` tag (units first, then meaning). Columns derives
 // the Arrow schema from such a struct by reflection, WriteTable writes rows as
-// zstd-compressed Parquet in a Hive-partitioned layout
+// compressed Parquet (zstd for levels, Snappy for the smaller tables) in a
+// Hive-partitioned layout
 //
 //	STORE/TABLE/station=ID/year=YYYY/part-0.parquet
 //

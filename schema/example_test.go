@@ -57,7 +57,7 @@ func ExampleMarkdown() {
 	// Output:
 	// # Store schema, version 2
 	//
-	// Each table is a directory of zstd-compressed Parquet files, one per station and year:
+	// Each table is a directory of Parquet files (zstd-compressed for levels, Snappy for the other tables), one per station and year:
 	// `TABLE/station=ID/year=YYYY/part-HASH.parquet` (the files a store's manifest lists). Missing values are null.
 	//
 	// ## ascents

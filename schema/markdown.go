@@ -67,7 +67,7 @@ func Tables() ([]TableDoc, error) {
 func Markdown(w io.Writer, tables ...TableDoc) error {
 	bw := bufio.NewWriter(w)
 	fmt.Fprintf(bw, "# Store schema, version %d\n\n", Version)
-	fmt.Fprintf(bw, "Each table is a directory of zstd-compressed Parquet files, one per station and year:\n")
+	fmt.Fprintf(bw, "Each table is a directory of Parquet files (zstd-compressed for levels, Snappy for the other tables), one per station and year:\n")
 	fmt.Fprintf(bw, "`TABLE/%s=ID/%s=YYYY/part-HASH.parquet` (the files a store's manifest lists). Missing values are null.\n", StationKey, YearKey)
 	for _, t := range tables {
 		fmt.Fprintf(bw, "\n## %s\n\n", mdText(t.Name))

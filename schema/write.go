@@ -66,8 +66,8 @@ type partition struct {
 // The partition of a row is given by its station_id (string) and year
 // (int32 or int64) columns, which T must have (see Columns). Rows of one
 // partition keep their given order; sorting is the caller's job. Each file
-// is zstd-compressed, built from record batches of up to 65 536 rows in row
-// groups of up to 131 072 rows, written under a temporary name in its
+// is compressed (zstd for the levels table, Snappy for the others: see
+// compactTables), in row groups of up to 131 072 rows, written under a temporary name in its
 // directory, synced, and renamed into place, so a reader never sees a
 // partial file. An existing file of the same partition is replaced;
 // partitions absent from rows are left alone. The partition columns are also
@@ -254,7 +254,7 @@ func encode(w *bufio.Writer, sc *arrow.Schema, cols []Column, arrays func() ([]a
 	// but costs a hash lookup per value for measurements, which rarely
 	// repeat: it is on for string columns only.
 	opts := []parquet.WriterProperty{
-		parquet.WithCompression(compress.Codecs.Zstd),
+		parquet.WithCompression(codecOf(sc)),
 		parquet.WithCompressionLevel(1),
 		parquet.WithMaxRowGroupLength(rowGroupRows),
 		parquet.WithDictionaryDefault(false),
@@ -301,6 +301,26 @@ func encode(w *bufio.Writer, sc *arrow.Schema, cols []Column, arrays func() ([]a
 	}
 	// One batch: the writer cuts it into row groups of rowGroupRows.
 	return fw.WriteBuffered(rec)
+}
+
+// compactTables are compressed with zstd; the others with Snappy.
+//
+// The levels table holds nine tenths of a store's bytes and is read a few
+// columns at a time, so the better compression pays. The other tables are
+// small and queries read them whole: a climatology over 600 station-years
+// reads some 25 columns of 600 soundings files, thousands of small column
+// chunks, and Snappy's cheaper decompression made it about 0.3 s faster
+// (of 1.9 s) for 1 % more store.
+var compactTables = map[string]bool{TableLevels: true}
+
+// codecOf returns the compression of the table whose schema is sc (the
+// table name is in its metadata, see arrowSchema).
+func codecOf(sc *arrow.Schema) compress.Compression {
+	md := sc.Metadata()
+	if i := md.FindKey(TableKey); i >= 0 && !compactTables[md.Values()[i]] {
+		return compress.Codecs.Snappy
+	}
+	return compress.Codecs.Zstd
 }
 
 // ReadVersion returns the schema version recorded in the key-value metadata

@@ -203,8 +203,9 @@ func TestWriteTableMetadata(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			if got := cc.Compression().String(); got != "ZSTD" {
-				t.Errorf("column %d compression %s, want ZSTD", c, got)
+			// A table other than levels is Snappy-compressed (compactTables).
+			if got := cc.Compression().String(); got != "SNAPPY" {
+				t.Errorf("column %d compression %s, want SNAPPY", c, got)
 			}
 		}
 	}
@@ -469,6 +470,19 @@ func TestWriteRowsEqualsWriteFile(t *testing.T) {
 	if len(ab) < 1000 || !bytes.Equal(ab, bb) {
 		t.Errorf("files differ (%d and %d bytes)", len(ab), len(bb))
 	}
+	// The levels table is the zstd-compressed one (compactTables).
+	pf, err := file.OpenParquetFile(a, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	cc, err := pf.MetaData().RowGroup(0).ColumnChunk(0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := cc.Compression().String(); got != "ZSTD" {
+		t.Errorf("levels compression %s, want ZSTD", got)
+	}
+	pf.Close()
 
 	bad, _ := NewRows[LevelRow](0)
 	bad.Append(LevelRow{StationID: "ZQ1", Year: 2003, Kind: "no such kind"})
