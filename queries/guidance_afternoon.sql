@@ -26,11 +26,8 @@
         count(*) AS n_days,
         count(height_m) AS n,
         count(*) - count(height_m) AS n_undefined,
-        quantile_cont(height_m, 0.10) AS p10_m,
-        quantile_cont(height_m, 0.25) AS p25_m,
-        quantile_cont(height_m, 0.50) AS p50_m,
-        quantile_cont(height_m, 0.75) AS p75_m,
-        quantile_cont(height_m, 0.90) AS p90_m
+        -- the five percentiles together: one copy of the values per group
+        quantile_cont(height_m, [0.10, 0.25, 0.50, 0.75, 0.90]) AS q
     FROM days
     GROUP BY ALL
 ),
@@ -41,7 +38,9 @@ below AS (
     CROSS JOIN (SELECT unnest($5::DOUBLE[]) AS below_m) b
     GROUP BY ALL
 )
-SELECT s.*, b.below_m, b.n_below,
+SELECT s.* EXCLUDE (q),
+    s.q[1] AS p10_m, s.q[2] AS p25_m, s.q[3] AS p50_m, s.q[4] AS p75_m, s.q[5] AS p90_m,
+    b.below_m, b.n_below,
     b.n_below::DOUBLE / nullif(s.n, 0) AS p_below,
     CASE WHEN s.n < $6 THEN 'n<' || $6 ELSE '' END AS note
 FROM stats s

@@ -20,21 +20,23 @@
     SELECT station_id, season, season_name, floor(tmax_c / $5) * $5 AS tmax_from_c, height_m
     FROM days
     WHERE source = 'holzworth' AND tmax_c IS NOT NULL
+),
+g AS (
+    SELECT station_id, season, season_name,
+        tmax_from_c,
+        tmax_from_c + $5 AS tmax_to_c,
+        count(*) AS n_days,
+        count(height_m) AS n,
+        count(*) - count(height_m) AS n_undefined,
+        -- the five percentiles together: one copy of the values per group
+        quantile_cont(height_m, [0.10, 0.25, 0.50, 0.75, 0.90]) AS q,
+        CASE WHEN count(height_m) < $6 THEN 'n<' || $6 ELSE '' END AS note
+    FROM b
+    GROUP BY station_id, season, season_name, tmax_from_c
 )
-SELECT station_id, season, season_name,
-    tmax_from_c,
-    tmax_from_c + $5 AS tmax_to_c,
-    count(*) AS n_days,
-    count(height_m) AS n,
-    count(*) - count(height_m) AS n_undefined,
-    quantile_cont(height_m, 0.10) AS p10_m,
-    quantile_cont(height_m, 0.25) AS p25_m,
-    quantile_cont(height_m, 0.50) AS p50_m,
-    quantile_cont(height_m, 0.75) AS p75_m,
-    quantile_cont(height_m, 0.90) AS p90_m,
-    CASE WHEN count(height_m) < $6 THEN 'n<' || $6 ELSE '' END AS note
-FROM b
-GROUP BY station_id, season, season_name, tmax_from_c
+SELECT station_id, season, season_name, tmax_from_c, tmax_to_c, n_days, n, n_undefined,
+    q[1] AS p10_m, q[2] AS p25_m, q[3] AS p50_m, q[4] AS p75_m, q[5] AS p90_m, note
+FROM g
 ORDER BY station_id,
     CASE season WHEN 'DJF' THEN 1 WHEN 'MAM' THEN 2 WHEN 'JJA' THEN 3 WHEN 'SON' THEN 4 ELSE 5 END,
     tmax_from_c
