@@ -50,6 +50,11 @@ about 60-90 levels each, archive-v2 format, plain or gzipped), then reports:
              analysis, Parquet writing; summed over workers);
   queries    the time of each climatology query over the whole store.
 
+With --profile each ingest also writes a CPU profile next to its store
+(store-wN.pprof); "go tool pprof -top FILE" lists where the time went,
+function by function (Parquet encoding and compression, analysis, quality
+control, parsing, the runtime).
+
 Run it at two archive sizes to see whether memory grows with the archive.
 Timings depend on what else the machine is doing.`,
 		`  sondeclim bench                                  # 20 stations x 30 years
@@ -61,6 +66,7 @@ Timings depend on what else the machine is doing.`,
 	gz := fs.Bool("gzip", false, "write the archive gzipped")
 	workersList := fs.String("workers", "1,2", "comma-separated worker counts to measure")
 	asJSON := fs.Bool("json", false, "print the results as JSON")
+	profile := fs.Bool("profile", false, "write a CPU profile of each ingest (store-wN.pprof in --dir)")
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
@@ -96,7 +102,11 @@ Timings depend on what else the machine is doing.`,
 			return fmt.Errorf("bench: %w", err)
 		}
 		fmt.Fprintf(c.stderr, "bench: ingest with %d worker(s)\n", w)
-		run, err := ingestProcess(ctx, archive, store, w)
+		prof := ""
+		if *profile {
+			prof = store + ".pprof"
+		}
+		run, err := ingestProcess(ctx, archive, store, w, prof)
 		if err != nil {
 			return fmt.Errorf("bench: %w", err)
 		}
@@ -138,6 +148,7 @@ type ingestRun struct {
 	WallS         float64
 	UserS, SysS   float64
 	PeakRSSMB     float64
+	Profile       string `json:",omitempty"` // CPU profile written, if any
 	Soundings     int
 	SoundingsPerS float64
 	MBPerS        float64
@@ -267,15 +278,20 @@ func floor(dir string, res *benchResult) error {
 
 // ingestProcess runs "sondeclim ingest" as a child process, so its peak
 // memory can be measured on its own.
-func ingestProcess(ctx context.Context, archive, store string, workers int) (ingestRun, error) {
+// With profile not empty it also writes the process's CPU profile there.
+func ingestProcess(ctx context.Context, archive, store string, workers int, profile string) (ingestRun, error) {
 	run := ingestRun{Workers: workers}
 	exe, err := os.Executable()
 	if err != nil {
 		return run, err
 	}
 	sumFile := store + "-summary.json"
-	cmd := exec.CommandContext(ctx, exe, "ingest", "--quiet", "--workers", strconv.Itoa(workers),
-		"--summary-json", sumFile, "--store", store, archive)
+	args := []string{"ingest", "--quiet", "--workers", strconv.Itoa(workers), "--summary-json", sumFile, "--store", store}
+	if profile != "" {
+		args = append(args, "--cpuprofile", profile)
+	}
+	run.Profile = profile
+	cmd := exec.CommandContext(ctx, exe, append(args, archive)...)
 	cmd.Env = append(os.Environ(), "SONDECLIM_RUN_MAIN=1")
 	cmd.Stderr = os.Stderr
 	start := time.Now()
@@ -366,6 +382,11 @@ func (r *benchResult) print(w io.Writer) {
 			i.MBPerS, i.FloorRatio, i.PeakRSSMB, i.UserS, i.SysS, st["read_parse"], st["qc"], st["analysis"], st["write"])
 	}
 	tw.Flush()
+	for _, i := range r.Ingest {
+		if i.Profile != "" {
+			fmt.Fprintf(w, "CPU profile, %d worker(s): %s (go tool pprof -top %s)\n", i.Workers, i.Profile, i.Profile)
+		}
+	}
 	fmt.Fprintln(w)
 	tw = tabwriter.NewWriter(w, 0, 4, 2, ' ', 0)
 	fmt.Fprintln(tw, "query\tseconds\trows")
