@@ -482,6 +482,15 @@ func TestWriteRowsEqualsWriteFile(t *testing.T) {
 	if got := cc.Compression().String(); got != "ZSTD" {
 		t.Errorf("levels compression %s, want ZSTD", got)
 	}
+	// Measurements are byte-stream split (DuckDB reads them back in the
+	// store tests of cmd/sondeclim).
+	pc, err := pf.MetaData().RowGroup(0).ColumnChunk(pf.MetaData().Schema.ColumnIndexByName("pressure_hpa"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := fmt.Sprint(pc.Encodings()); !strings.Contains(got, "BYTE_STREAM_SPLIT") {
+		t.Errorf("pressure_hpa encodings %s, want BYTE_STREAM_SPLIT", got)
+	}
 	pf.Close()
 
 	bad, _ := NewRows[LevelRow](0)
