@@ -140,18 +140,40 @@ func Each(path string, limit int64, fn func(member string, r io.Reader) error) e
 	if err != nil && err != io.EOF {
 		return fmt.Errorf("read %s: %w", path, err)
 	}
-	switch {
-	case len(magic) >= 2 && magic[0] == 0x1f && magic[1] == 0x8b:
+	switch KindOf(magic) {
+	case Gzip:
 		zr, err := gzip.NewReader(br)
 		if err != nil {
 			return fmt.Errorf("read %s: %w", path, err)
 		}
 		defer zr.Close()
 		return call(path, "", zr, limit, fn)
-	case len(magic) == 4 && (string(magic) == "PK\x03\x04" || string(magic) == "PK\x05\x06"):
+	case Zip:
 		return eachZip(f, path, limit, fn)
 	}
 	return call(path, "", br, limit, fn)
+}
+
+// Kind is how a file holds its content.
+type Kind int
+
+const (
+	Plain Kind = iota // the content itself
+	Gzip              // one gzip stream
+	Zip               // a zip archive of members
+)
+
+// KindOf tells the kind of a file from its first bytes (at least 4 when
+// the file has them): gzip starts 1F 8B, zip "PK\x03\x04" or "PK\x05\x06"
+// (an empty archive); anything else is plain.
+func KindOf(magic []byte) Kind {
+	switch {
+	case len(magic) >= 2 && magic[0] == 0x1f && magic[1] == 0x8b:
+		return Gzip
+	case len(magic) >= 4 && (string(magic[:4]) == "PK\x03\x04" || string(magic[:4]) == "PK\x05\x06"):
+		return Zip
+	}
+	return Plain
 }
 
 func eachZip(f *os.File, path string, limit int64, fn func(string, io.Reader) error) error {

@@ -8,6 +8,7 @@ import (
 	"encoding/hex"
 	"errors"
 	"fmt"
+	"hash"
 	"io"
 	"maps"
 	"os"
@@ -150,13 +151,18 @@ func (r *run) stageFile(ctx context.Context, path string, fi int, spill string, 
 	if err := w.close(); err != nil {
 		return res, fmt.Errorf("staging %s: %w", path, err)
 	}
+	res.finish(sum)
+	return res, nil
+}
+
+// finish records the input's digest and the station-years it holds.
+func (res *readResult) finish(sum hash.Hash) {
 	res.info.SHA256 = hex.EncodeToString(sum.Sum(nil))
 	for k, n := range res.parts {
 		res.info.Partitions = append(res.info.Partitions, k)
 		res.info.Soundings += n
 	}
 	sort.Strings(res.info.Partitions)
-	return res, nil
 }
 
 // indexInPlace stages an archive-v2 file without decoding it: the file is
@@ -177,12 +183,11 @@ func (r *run) indexInPlace(ctx context.Context, path string, fi int, st *staged,
 	if err != nil {
 		return false, nil
 	}
+	defer f.Close()
 	head := make([]byte, 4096)
 	n, _ := io.ReadFull(f, head)
 	head = head[:n]
-	f.Close()
-	compressed := n >= 2 && head[0] == 0x1f && head[1] == 0x8b ||
-		n >= 4 && (string(head[:4]) == "PK\x03\x04" || string(head[:4]) == "PK\x05\x06")
+	compressed := input.KindOf(head) != input.Plain
 	limit := r.opt.SizeLimit
 	if limit <= 0 {
 		limit = input.DefaultLimit
@@ -197,16 +202,11 @@ func (r *run) indexInPlace(ctx context.Context, path string, fi int, st *staged,
 	copyPath := filepath.Join(r.staging, strconv.Itoa(fi)+".txt")
 	members := 0
 	if !compressed {
-		err = func() error {
-			f, err := os.Open(path)
-			if err != nil {
-				return err
-			}
-			defer f.Close()
-			members = 1
-			io.WriteString(sum, "\x00")
-			return ix.member(io.TeeReader(f, sum), "", 0)
-		}()
+		members = 1
+		io.WriteString(sum, "\x00")
+		if _, err = f.Seek(0, io.SeekStart); err == nil {
+			err = ix.member(io.TeeReader(f, sum), "", 0)
+		}
 	} else {
 		readFrom = copyPath
 		err = func() error {
@@ -265,12 +265,7 @@ func (r *run) indexInPlace(ctx context.Context, path string, fi int, st *staged,
 	r.sum.OtherShards += ix.otherShards
 	r.mu.Unlock()
 	maps.Copy(res.parts, ix.parts)
-	res.info.SHA256 = hex.EncodeToString(sum.Sum(nil))
-	for k, n := range res.parts {
-		res.info.Partitions = append(res.info.Partitions, k)
-		res.info.Soundings += n
-	}
-	sort.Strings(res.info.Partitions)
+	res.finish(sum)
 	return true, nil
 }
 
@@ -345,22 +340,38 @@ func (r *run) readInPlace(buf []byte, path string, sg segment) ([]*sounding.Soun
 			break
 		}
 		if err != nil {
-			var pe *ingest.ParseError
-			if !errors.As(err, &pe) {
-				return nil, fmt.Errorf("%s: %w", name(path, sg.member), err)
+			if err := r.rejected(name(path, sg.member), err); err != nil {
+				return nil, err
 			}
-			r.skip(Skip{Where: name(path, sg.member), Reason: reasonOf(err), Detail: err.Error()})
 			continue
 		}
-		if info, ok := r.opt.Stations[s.StationID]; ok {
-			applyStation(s, info)
-		}
+		r.accepted(s)
 		out = append(out, s)
 	}
-	r.mu.Lock()
-	r.sum.SoundingsRead += len(out)
-	r.mu.Unlock()
 	return out, nil
+}
+
+// rejected reports a reader's error for one item (an *ingest.ParseError)
+// as a skip and returns nil; any other error means the input itself
+// failed and is returned, naming where.
+func (r *run) rejected(where string, err error) error {
+	var pe *ingest.ParseError
+	if !errors.As(err, &pe) {
+		return fmt.Errorf("%s: %w", where, err)
+	}
+	r.skip(Skip{Where: where, Reason: reasonOf(err), Detail: err.Error()})
+	return nil
+}
+
+// accepted completes a sounding's station metadata from the station list
+// and counts it as read.
+func (r *run) accepted(s *sounding.Sounding) {
+	if info, ok := r.opt.Stations[s.StationID]; ok {
+		applyStation(s, info)
+	}
+	r.mu.Lock()
+	r.sum.SoundingsRead++
+	r.mu.Unlock()
 }
 
 // writeError marks failures of the staging area (the store's disk), which
@@ -443,24 +454,16 @@ func (r *run) readMember(ctx context.Context, path, member string, rd io.Reader,
 			return nil
 		}
 		if err != nil {
-			var pe *ingest.ParseError
-			if !errors.As(err, &pe) {
-				// Not a per-item error: the input itself failed.
-				return fmt.Errorf("%s: %w", where, err)
+			if err := r.rejected(where, err); err != nil {
+				return err
 			}
-			r.skip(Skip{Where: where, Reason: reasonOf(err), Detail: err.Error()})
 			if bad++; bad > maxConsecutive {
 				return fmt.Errorf("%s: too many consecutive errors, giving up on this input", where)
 			}
 			continue
 		}
 		bad = 0
-		if info, ok := r.opt.Stations[s.StationID]; ok {
-			applyStation(s, info)
-		}
-		r.mu.Lock()
-		r.sum.SoundingsRead++
-		r.mu.Unlock()
+		r.accepted(s)
 		if err := emit(s); err != nil {
 			return err
 		}
