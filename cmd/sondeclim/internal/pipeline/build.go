@@ -153,7 +153,9 @@ func (r *run) ingest(files []string, old *store.Manifest, full bool, paramsText 
 // in the same order (nil for a partition left without soundings).
 func (r *run) buildAll(keys []string, st *staged, old *store.Manifest) ([]*store.Partition, error) {
 	out := make([]*store.Partition, len(keys))
-	spills := make([]*os.File, len(st.files))
+	// The staged files: spill files of decoded soundings, and the inputs
+	// (or decompressed copies) read in place.
+	sources := make([]*os.File, len(st.files))
 	for i, f := range st.files {
 		fh, err := os.Open(f)
 		if err != nil {
@@ -165,7 +167,7 @@ func (r *run) buildAll(keys []string, st *staged, old *store.Manifest) ([]*store
 				return nil, err
 			}
 		}
-		spills[i] = fh
+		sources[i] = fh
 	}
 	var done atomic.Int64
 	var mu sync.Mutex
@@ -177,7 +179,7 @@ func (r *run) buildAll(keys []string, st *staged, old *store.Manifest) ([]*store
 			if err := ctx.Err(); err != nil {
 				return err
 			}
-			p, stats, err := r.buildPartition(k, st.byPart[k], spills, st.inputs, st.inPlace, old.Partitions[k])
+			p, stats, err := r.buildPartition(k, st.byPart[k], sources, st.inputs, st.inPlace, old.Partitions[k])
 			if err != nil {
 				return fmt.Errorf("partition %s: %w", k, err)
 			}
@@ -253,7 +255,7 @@ func (s *Summary) add(b buildStats) {
 }
 
 // buildPartition rebuilds one station-year from its staged soundings.
-func (r *run) buildPartition(key string, segs []segment, spills []*os.File, inputs []string, inPlace []bool, prev *store.Partition) (*store.Partition, buildStats, error) {
+func (r *run) buildPartition(key string, segs []segment, sources []*os.File, inputs []string, inPlace []bool, prev *store.Partition) (*store.Partition, buildStats, error) {
 	var stats buildStats
 	station, year, err := store.SplitPartitionKey(key)
 	if err != nil {
@@ -264,8 +266,8 @@ func (r *run) buildPartition(key string, segs []segment, spills []*os.File, inpu
 	var buf []byte
 	for _, sg := range segs {
 		buf = slices.Grow(buf[:0], int(sg.size))[:sg.size]
-		if _, err := spills[sg.file].ReadAt(buf, sg.off); err != nil {
-			return nil, stats, fmt.Errorf("read staging: %w", err)
+		if _, err := sources[sg.file].ReadAt(buf, sg.off); err != nil {
+			return nil, stats, fmt.Errorf("read staged input %s: %w", inputs[sg.file], err)
 		}
 		contributors[inputs[sg.file]] = true
 		if inPlace[sg.file] {
