@@ -153,22 +153,6 @@ func (r *run) ingest(files []string, old *store.Manifest, full bool, paramsText 
 // in the same order (nil for a partition left without soundings).
 func (r *run) buildAll(keys []string, st *staged, old *store.Manifest) ([]*store.Partition, error) {
 	out := make([]*store.Partition, len(keys))
-	// The staged files: spill files of decoded soundings, and the inputs
-	// (or decompressed copies) read in place.
-	sources := make([]*os.File, len(st.files))
-	for i, f := range st.files {
-		fh, err := os.Open(f)
-		if err != nil {
-			return nil, err
-		}
-		defer fh.Close()
-		if st.inPlace[i] {
-			if err := sameAsIndexed(fh, st.stamp[i]); err != nil {
-				return nil, err
-			}
-		}
-		sources[i] = fh
-	}
 	var done atomic.Int64
 	var mu sync.Mutex
 	tick := time.Now()
@@ -179,7 +163,7 @@ func (r *run) buildAll(keys []string, st *staged, old *store.Manifest) ([]*store
 			if err := ctx.Err(); err != nil {
 				return err
 			}
-			p, stats, err := r.buildPartition(k, st.byPart[k], sources, st.inputs, st.inPlace, old.Partitions[k])
+			p, stats, err := r.buildPartition(k, st, old.Partitions[k])
 			if err != nil {
 				return fmt.Errorf("partition %s: %w", k, err)
 			}
@@ -208,10 +192,9 @@ func (r *run) buildAll(keys []string, st *staged, old *store.Manifest) ([]*store
 	return out, nil
 }
 
-// sameAsIndexed checks that an input read in place is still the file that
-// was indexed: a file replaced since (renamed over) keeps its old content
-// open here, but one rewritten in place does not, and its byte ranges
-// would no longer hold the soundings found.
+// sameAsIndexed checks that an opened input read in place is still the
+// file that was indexed (same size and modification time): the byte ranges
+// of a file rewritten or replaced since would not hold the soundings found.
 func sameAsIndexed(fh *os.File, stamp store.Input) error {
 	fi, err := fh.Stat()
 	if err != nil {
@@ -254,8 +237,31 @@ func (s *Summary) add(b buildStats) {
 	s.Files = append(s.Files, b.files...)
 }
 
+// readSegment reads the bytes of one segment from its staged file (a
+// spill file, or an input or decompressed copy read in place, which must
+// still be the file that was indexed). Files are opened per segment, not
+// held open for the run, so that archives of many thousands of files stay
+// within the process's file limit.
+func readSegment(st *staged, sg segment, buf []byte) ([]byte, error) {
+	fh, err := os.Open(st.files[sg.file])
+	if err != nil {
+		return nil, err
+	}
+	defer fh.Close()
+	if st.inPlace[sg.file] {
+		if err := sameAsIndexed(fh, st.stamp[sg.file]); err != nil {
+			return nil, err
+		}
+	}
+	buf = slices.Grow(buf[:0], int(sg.size))[:sg.size]
+	if _, err := fh.ReadAt(buf, sg.off); err != nil {
+		return nil, fmt.Errorf("read staged input %s: %w", st.inputs[sg.file], err)
+	}
+	return buf, nil
+}
+
 // buildPartition rebuilds one station-year from its staged soundings.
-func (r *run) buildPartition(key string, segs []segment, sources []*os.File, inputs []string, inPlace []bool, prev *store.Partition) (*store.Partition, buildStats, error) {
+func (r *run) buildPartition(key string, st *staged, prev *store.Partition) (*store.Partition, buildStats, error) {
 	var stats buildStats
 	station, year, err := store.SplitPartitionKey(key)
 	if err != nil {
@@ -264,14 +270,13 @@ func (r *run) buildPartition(key string, segs []segment, sources []*os.File, inp
 	var all []*sounding.Sounding
 	contributors := map[string]bool{}
 	var buf []byte
-	for _, sg := range segs {
-		buf = slices.Grow(buf[:0], int(sg.size))[:sg.size]
-		if _, err := sources[sg.file].ReadAt(buf, sg.off); err != nil {
-			return nil, stats, fmt.Errorf("read staged input %s: %w", inputs[sg.file], err)
+	for _, sg := range st.byPart[key] {
+		if buf, err = readSegment(st, sg, buf); err != nil {
+			return nil, stats, err
 		}
-		contributors[inputs[sg.file]] = true
-		if inPlace[sg.file] {
-			got, err := r.readInPlace(buf, inputs[sg.file], sg)
+		contributors[st.inputs[sg.file]] = true
+		if st.inPlace[sg.file] {
+			got, err := r.readInPlace(buf, st.inputs[sg.file], sg)
 			if err != nil {
 				return nil, stats, err
 			}
