@@ -67,7 +67,7 @@ skipped.`,
   sondeclim ingest --shard 3/8 --store /shared/store /shared/archive/`,
 		c.stderr)
 	storeDir := fs.String("store", "", "store `directory` to write (created if absent)")
-	workers := fs.Int("workers", runtime.NumCPU(), "soundings analysed at once (results do not depend on it)")
+	workers := fs.Int("workers", runtime.NumCPU(), "files read, station-years analysed and station-years written at once (results do not depend on it)")
 	format := fs.String("format", "", "force the input `format` instead of detecting it ("+strings.Join(pipeline.FormatNames(), ", ")+")")
 	stations := fs.String("stations", "", "station list `file` (archive-v2 layout) for names, positions and elevations")
 	quiet := fs.Bool("quiet", false, "print only warnings and the summary's last line (for schedulers)")

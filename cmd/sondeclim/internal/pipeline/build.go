@@ -1,6 +1,7 @@
 package pipeline
 
 import (
+	"context"
 	"crypto/sha256"
 	"encoding/hex"
 	"fmt"
@@ -149,45 +150,85 @@ func (r *run) ingest(files []string, old *store.Manifest, full bool, paramsText 
 	return next, nil
 }
 
-// buildAll builds the partitions keys on the worker pool and returns them
-// in the same order (nil for a partition left without soundings).
+// buildAll builds the partitions keys and returns them in the same order
+// (nil for a partition left without soundings).
+//
+// Building is a two-stage pipeline: up to r.workers partitions are read
+// and analysed at once, and up to r.workers analysed partitions are
+// written at once, while the next ones are analysed. A partition that
+// finds every writer busy waits, so at most 2 × r.workers partitions are
+// held in memory; with one worker, analysis and writing still use two
+// cores.
 func (r *run) buildAll(keys []string, st *staged, old *store.Manifest) ([]*store.Partition, error) {
 	out := make([]*store.Partition, len(keys))
+	ctx, cancel := context.WithCancelCause(r.ctx)
+	defer cancel(nil)
+	fail := func(k string, err error) error {
+		err = fmt.Errorf("partition %s: %w", k, err)
+		cancel(err)
+		return err
+	}
 	var done atomic.Int64
 	var mu sync.Mutex
 	tick := time.Now()
-	g, ctx := errgroup.WithContext(r.ctx)
-	g.SetLimit(r.workers)
+	finish := func(i int, p *store.Partition, stats *buildStats) {
+		out[i] = p
+		n := int(done.Add(1))
+		mu.Lock()
+		defer mu.Unlock()
+		r.sum.add(*stats)
+		if r.opt.Progress != nil {
+			r.opt.Progress(n, len(keys))
+		}
+		every := r.opt.ProgressEvery
+		if every <= 0 {
+			every = 5 * time.Second
+		}
+		if time.Since(tick) >= every {
+			tick = time.Now()
+			r.log.Info("progress: building station-years", "done", n, "of", len(keys))
+		}
+	}
+	var analysing, writing errgroup.Group
+	analysing.SetLimit(r.workers)
+	writing.SetLimit(r.workers)
 	for i, k := range keys {
-		g.Go(func() error {
-			if err := ctx.Err(); err != nil {
-				return err
+		analysing.Go(func() error {
+			if ctx.Err() != nil {
+				return context.Cause(ctx)
 			}
-			p, stats, err := r.buildPartition(k, st, old.Partitions[k])
+			p, stats, write, err := r.buildPartition(k, st, old.Partitions[k])
 			if err != nil {
-				return fmt.Errorf("partition %s: %w", k, err)
+				return fail(k, err)
 			}
-			out[i] = p
-			n := int(done.Add(1))
-			mu.Lock()
-			r.sum.add(stats)
-			if r.opt.Progress != nil {
-				r.opt.Progress(n, len(keys))
+			if write == nil {
+				finish(i, p, stats)
+				return nil
 			}
-			every := r.opt.ProgressEvery
-			if every <= 0 {
-				every = 5 * time.Second
-			}
-			if time.Since(tick) >= every {
-				tick = time.Now()
-				r.log.Info("progress: building station-years", "done", n, "of", len(keys))
-			}
-			mu.Unlock()
+			writing.Go(func() error { // waits while every writer is busy
+				if ctx.Err() != nil {
+					return context.Cause(ctx)
+				}
+				if err := write(); err != nil {
+					return fail(k, err)
+				}
+				finish(i, p, stats)
+				return nil
+			})
 			return nil
 		})
 	}
-	if err := g.Wait(); err != nil {
+	// Every writing.Go call is made by an analysing goroutine, so the
+	// writers are waited for after the analysers.
+	errA := analysing.Wait()
+	errW := writing.Wait()
+	if err := context.Cause(ctx); err != nil && err != context.Canceled {
 		return nil, err
+	}
+	for _, err := range []error{errA, errW, r.ctx.Err()} {
+		if err != nil {
+			return nil, err
+		}
 	}
 	return out, nil
 }
@@ -260,25 +301,29 @@ func readSegment(st *staged, sg segment, buf []byte) ([]byte, error) {
 	return buf, nil
 }
 
-// buildPartition rebuilds one station-year from its staged soundings.
-func (r *run) buildPartition(key string, st *staged, prev *store.Partition) (*store.Partition, buildStats, error) {
-	var stats buildStats
+// buildPartition rebuilds one station-year from its staged soundings: it
+// reads, checks and analyses them and returns the partition with a write
+// function that writes its files (nil when there is nothing to write: no
+// soundings, or the partition is unchanged). stats is complete once write
+// has returned.
+func (r *run) buildPartition(key string, st *staged, prev *store.Partition) (_ *store.Partition, stats *buildStats, write func() error, _ error) {
+	stats = &buildStats{}
 	station, year, err := store.SplitPartitionKey(key)
 	if err != nil {
-		return nil, stats, err
+		return nil, stats, nil, err
 	}
 	var all []*sounding.Sounding
 	contributors := map[string]bool{}
 	var buf []byte
 	for _, sg := range st.byPart[key] {
 		if buf, err = readSegment(st, sg, buf); err != nil {
-			return nil, stats, err
+			return nil, stats, nil, err
 		}
 		contributors[st.inputs[sg.file]] = true
 		if st.inPlace[sg.file] {
 			got, err := r.readInPlace(buf, st.inputs[sg.file], sg)
 			if err != nil {
-				return nil, stats, err
+				return nil, stats, nil, err
 			}
 			all = append(all, got...)
 			continue
@@ -287,14 +332,14 @@ func (r *run) buildPartition(key string, st *staged, prev *store.Partition) (*st
 		for range sg.count {
 			s, tail, err := decodeSounding(rest)
 			if err != nil {
-				return nil, stats, err
+				return nil, stats, nil, err
 			}
 			all = append(all, s)
 			rest = tail
 		}
 	}
 	if len(all) == 0 {
-		return nil, stats, nil
+		return nil, stats, nil, nil
 	}
 	// The partition's identity is every staged copy, in a fixed order, and
 	// the parameters: duplicates are resolved deterministically from that
@@ -325,7 +370,7 @@ func (r *run) buildPartition(key string, st *staged, prev *store.Partition) (*st
 	if prev != nil && prev.ContentHash == hash && filesExist(r.dir, prev.Files) {
 		stats.unchanged = true
 		stats.duplicates = len(all) - prev.Soundings
-		return prev, stats, nil
+		return prev, stats, nil, nil
 	}
 
 	t0 := time.Now()
@@ -347,7 +392,7 @@ func (r *run) buildPartition(key string, st *staged, prev *store.Partition) (*st
 	}
 	levels, err := schema.NewRows[schema.LevelRow](nLevels)
 	if err != nil {
-		return nil, stats, err
+		return nil, stats, nil, err
 	}
 	rows := partRows{levels: levels,
 		heights: make([]schema.MixingHeightRow, 0, len(kept)*len(analyze.MixingHeightMethods))}
@@ -366,9 +411,16 @@ func (r *run) buildPartition(key string, st *staged, prev *store.Partition) (*st
 	lrows, irows, mrows, hrows, qrows := rows.levels, rows.inv, rows.mixed, rows.heights, rows.findings
 	arows := afternoonRows(results, r.opt.DailyMaxima, analyze.DefaultPairingConfig())
 	r.stage("analysis", t0)
-	if err := r.compareWithPrevious(prev, srows, &stats); err != nil {
-		return nil, stats, err
+	if err := r.compareWithPrevious(prev, srows, stats); err != nil {
+		return nil, stats, nil, err
 	}
+	return p, stats, func() error { return r.writePartition(p, stats, srows, lrows, irows, mrows, hrows, arows, qrows) }, nil
+}
+
+// writePartition writes the files of partition p and counts them in stats.
+func (r *run) writePartition(p *store.Partition, stats *buildStats, srows []schema.SoundingRow, lrows *schema.Rows[schema.LevelRow],
+	irows []schema.InversionRow, mrows []schema.MixedLayerRow, hrows []schema.MixingHeightRow, arows []schema.AfternoonRow,
+	qrows []schema.QCFindingRow) error {
 	defer r.stage("write", time.Now())
 	stats.rows = map[string]int{}
 	write := func(table string, n int, w func(path string) error) error {
@@ -389,12 +441,12 @@ func (r *run) buildPartition(key string, st *staged, prev *store.Partition) (*st
 		write(schema.TableQCFindings, len(qrows), func(f string) error { return schema.WriteFile(f, schema.TableQCFindings, qrows, false) }),
 	} {
 		if err != nil {
-			return nil, stats, err
+			return err
 		}
 	}
 	stats.written = true
 	pauseAt("written")
-	return p, stats, nil
+	return nil
 }
 
 // tables lists the store's tables; every partition has one file in each.

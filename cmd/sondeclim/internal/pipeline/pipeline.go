@@ -47,8 +47,9 @@ const DerivationVersion = 1
 // Options configures a run. The zero value is usable: one worker per CPU,
 // the default analysis configuration, no logging, incremental, unsharded.
 type Options struct {
-	// Workers bounds the files read at once and the partitions built at
-	// once. 0 means runtime.NumCPU().
+	// Workers bounds the files read at once, the partitions analysed at
+	// once and the partitions written at once (analysis and writing
+	// overlap, see buildAll). 0 means runtime.NumCPU().
 	Workers int
 	// Analysis is the analysis configuration; nil means
 	// analyze.DefaultConfig().

@@ -299,3 +299,35 @@ func TestInPlaceEqualsDecoded(t *testing.T) {
 		t.Errorf("soundings read %d / %d, members %d / %d", sumA.SoundingsRead, sumB.SoundingsRead, sumA.Members, sumB.Members)
 	}
 }
+
+// TestWriteFailureStopsRun: when a partition cannot be written (here the
+// levels table's folder is a file), the run returns the error naming the
+// partition, commits nothing, and does not hang with analysed partitions
+// waiting for writers. Invented archive (unit scaffolding), 2 years so that
+// several partitions are in the pipeline; with 1 and 2 workers.
+func TestWriteFailureStopsRun(t *testing.T) {
+	in := t.TempDir()
+	cfg := synth.DefaultConfig()
+	cfg.Years = 3
+	if _, _, err := synth.WriteFile(in, cfg); err != nil {
+		t.Fatal(err)
+	}
+	for _, workers := range []int{1, 2} {
+		storeDir := t.TempDir()
+		if err := os.WriteFile(filepath.Join(storeDir, "levels"), []byte("not a folder"), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		_, err := Run(context.Background(), storeDir, []string{in}, Options{Workers: workers})
+		if err == nil || !strings.Contains(err.Error(), "partition ") {
+			t.Fatalf("workers %d: got %v, want a partition's write error", workers, err)
+		}
+		t.Logf("workers %d: %v", workers, err)
+		m, err := store.ReadManifest(storeDir, store.Shard{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if len(m.Partitions) != 0 {
+			t.Errorf("workers %d: %d partitions committed after a failed run", workers, len(m.Partitions))
+		}
+	}
+}
