@@ -2,7 +2,6 @@ package archivev2
 
 import (
 	"bytes"
-	"compress/gzip"
 	"errors"
 	"fmt"
 	"io"
@@ -13,6 +12,7 @@ import (
 	"testing"
 
 	"github.com/sondeclim/sondeclim/ingest"
+	"github.com/sondeclim/sondeclim/ingest/validation"
 )
 
 // outcome is what a reader yields, in order: a sounding's key and levels,
@@ -112,20 +112,7 @@ func checkSame(t testing.TB, in []byte) []Segment {
 
 func readValidation(t *testing.T, name string) []byte {
 	t.Helper()
-	b, err := os.ReadFile(filepath.Join(validationDir(t), name))
-	if err != nil {
-		t.Fatal(err)
-	}
-	if strings.HasSuffix(name, ".gz") {
-		zr, err := gzip.NewReader(bytes.NewReader(b))
-		if err != nil {
-			t.Fatal(err)
-		}
-		if b, err = io.ReadAll(zr); err != nil {
-			t.Fatal(err)
-		}
-	}
-	return b
+	return validation.Text(t, "archive-v2", name)
 }
 
 // TestIndexRealFiles: on the real station files of ../shared/validation

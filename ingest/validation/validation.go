@@ -7,8 +7,12 @@
 package validation
 
 import (
+	"bytes"
+	"compress/gzip"
+	"io"
 	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 )
 
@@ -25,6 +29,28 @@ func Dir(tb testing.TB, sub ...string) string {
 		tb.Skipf("real validation data absent (%v); it lives in ../shared/validation beside the repository, see its PROVENANCE.md", err)
 	}
 	return dir
+}
+
+// Text returns the content of ../shared/validation/SUB…, decompressed when
+// its name ends in ".gz", or skips the calling test as Dir does; a file
+// that cannot be read fails the test.
+func Text(tb testing.TB, sub ...string) []byte {
+	tb.Helper()
+	path := Dir(tb, sub...)
+	b, err := os.ReadFile(path)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	if strings.HasSuffix(path, ".gz") {
+		zr, err := gzip.NewReader(bytes.NewReader(b))
+		if err != nil {
+			tb.Fatalf("%s: %v", path, err)
+		}
+		if b, err = io.ReadAll(zr); err != nil {
+			tb.Fatalf("%s: %v", path, err)
+		}
+	}
+	return b
 }
 
 // moduleRoot walks up from the working directory (a test's package

@@ -6,7 +6,6 @@ import (
 	"compress/gzip"
 	"context"
 	"github.com/sondeclim/sondeclim/ingest/validation"
-	"io"
 	"math"
 	"os"
 	"path/filepath"
@@ -226,23 +225,7 @@ func TestSameAsIndexed(t *testing.T) {
 // short, Göteborg with hour 99, Omaha 1950 portion, Wien; the zip holds two
 // members so that member names and per-member line numbers are exercised.
 func TestInPlaceEqualsDecoded(t *testing.T) {
-	v := validation.Dir(t, "archive-v2")
-	read := func(name string) []byte {
-		b, err := os.ReadFile(filepath.Join(v, name))
-		if err != nil {
-			t.Fatal(err)
-		}
-		if strings.HasSuffix(name, ".gz") {
-			zr, err := gzip.NewReader(bytes.NewReader(b))
-			if err != nil {
-				t.Fatal(err)
-			}
-			if b, err = io.ReadAll(zr); err != nil {
-				t.Fatal(err)
-			}
-		}
-		return b
-	}
+	read := func(name string) []byte { return validation.Text(t, "archive-v2", name) }
 	first := append(read("USM00070026-data-truncated.txt"), read("SWM00002527-data-hour99.txt")...)
 	second := append(read("USM00074794-data-1950-portion.txt"), read("AUM00011035-data.txt.gz")...)
 	in := t.TempDir()
