@@ -10,8 +10,8 @@ import (
 	"strings"
 	"time"
 
-	"github.com/sondeclim/sondeclim/analyze/sun"
-	"github.com/sondeclim/sondeclim/analyze/thermo"
+	"github.com/sondeclim/sondeclim/physics/sun"
+	"github.com/sondeclim/sondeclim/physics/thermo"
 )
 
 // ParcelProfile is the part of an analysed sounding that the afternoon

@@ -3,9 +3,9 @@ package analyze
 import (
 	"math"
 
-	"github.com/sondeclim/sondeclim/analyze/sun"
-	"github.com/sondeclim/sondeclim/analyze/thermo"
-	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/physics/sun"
+	"github.com/sondeclim/sondeclim/physics/thermo"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // Analysis statuses. Anything other than StatusOK means the sounding was

@@ -4,8 +4,8 @@ import (
 	"math"
 	"testing"
 
-	"github.com/sondeclim/sondeclim/analyze/thermo"
-	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/physics/thermo"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // TestAnalyzeTTBB checks the METHODS §9 TTBB snippet: SBI base 0 m AGL, top

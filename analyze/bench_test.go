@@ -4,7 +4,7 @@ import (
 	"testing"
 	"time"
 
-	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // benchSounding returns a 100-level sounding (invented scaffolding): a

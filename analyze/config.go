@@ -1,8 +1,8 @@
 package analyze
 
 import (
-	"github.com/sondeclim/sondeclim/analyze/sun"
-	"github.com/sondeclim/sondeclim/analyze/thermo"
+	"github.com/sondeclim/sondeclim/physics/sun"
+	"github.com/sondeclim/sondeclim/physics/thermo"
 )
 
 // Config holds every tunable parameter of Analyze. Start from DefaultConfig

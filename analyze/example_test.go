@@ -5,7 +5,7 @@ import (
 	"math"
 
 	"github.com/sondeclim/sondeclim/analyze"
-	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // level builds a level from hPa, m and °C (NaN for missing).

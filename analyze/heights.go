@@ -4,8 +4,8 @@ import (
 	"math"
 	"sort"
 
-	"github.com/sondeclim/sondeclim/analyze/thermo"
-	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/physics/thermo"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // HeightAnchor records a level whose reported height was used to re-anchor

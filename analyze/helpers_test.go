@@ -4,7 +4,7 @@ import (
 	"math"
 	"testing"
 
-	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 var nan = math.NaN()

@@ -3,8 +3,8 @@ package analyze
 import (
 	"math"
 
-	"github.com/sondeclim/sondeclim/analyze/sun"
-	"github.com/sondeclim/sondeclim/analyze/thermo"
+	"github.com/sondeclim/sondeclim/physics/sun"
+	"github.com/sondeclim/sondeclim/physics/thermo"
 )
 
 // Inversion classes (see InversionClassConfig for the rules and their order).

@@ -5,7 +5,7 @@ import (
 	"math"
 	"sort"
 
-	"github.com/sondeclim/sondeclim/analyze/thermo"
+	"github.com/sondeclim/sondeclim/physics/thermo"
 )
 
 // Mixing-height statuses (METHODS §4): every method reports one.

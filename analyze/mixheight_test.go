@@ -4,8 +4,8 @@ import (
 	"math"
 	"testing"
 
-	"github.com/sondeclim/sondeclim/analyze/thermo"
-	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/physics/thermo"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // ribProfile is the METHODS §9 bulk Richardson profile [D]: z = 0…1200 m,

@@ -6,9 +6,9 @@ import (
 	"testing"
 	"time"
 
-	"github.com/sondeclim/sondeclim/analyze/sun"
-	"github.com/sondeclim/sondeclim/analyze/thermo"
-	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/physics/sun"
+	"github.com/sondeclim/sondeclim/physics/thermo"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // TestInversionProperties: the METHODS §9 TTBB snippet's SBI (0–489.9 m,

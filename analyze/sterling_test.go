@@ -10,10 +10,10 @@ import (
 	"testing"
 	"time"
 
-	"github.com/sondeclim/sondeclim/analyze/sun"
 	"github.com/sondeclim/sondeclim/ingest"
 	"github.com/sondeclim/sondeclim/ingest/archivev2"
-	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/physics/sun"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // sharedDir returns ../shared relative to the repository root (the

@@ -4,7 +4,7 @@ import (
 	"math"
 	"sort"
 
-	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // Transport-wind averaging conventions (METHODS §5).

@@ -3,7 +3,7 @@ package qc
 import (
 	"math"
 
-	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // Apply returns a copy of s in which every value the analysis must not use

@@ -4,7 +4,7 @@ import (
 	"fmt"
 	"math"
 
-	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // Check runs every quality-control check on s with the thresholds of cfg

@@ -1,6 +1,6 @@
 package qc
 
-import "github.com/sondeclim/sondeclim/analyze/thermo"
+import "github.com/sondeclim/sondeclim/physics/thermo"
 
 // Config holds every threshold of Check. Start from DefaultConfig and
 // change fields. Units are SI (Pa, K, m, m/s) like the sounding model;

@@ -3,7 +3,7 @@ package qc
 import (
 	"math"
 
-	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // Candidate is what ChooseDuplicate needs to know about one of two

@@ -4,8 +4,8 @@ import (
 	"fmt"
 	"math"
 
-	"github.com/sondeclim/sondeclim/ingest/sounding"
 	"github.com/sondeclim/sondeclim/qc"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // level is scaffolding: pressure hPa, height gpm, temperature °C.

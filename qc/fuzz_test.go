@@ -5,7 +5,7 @@ import (
 	"math"
 	"testing"
 
-	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // fromBytes builds a sounding from arbitrary bytes: 10 bytes per level

@@ -4,7 +4,7 @@ import (
 	"archive/zip"
 	"compress/gzip"
 	"errors"
-	"github.com/sondeclim/sondeclim/ingest/validation"
+	"github.com/sondeclim/sondeclim/internal/realdata"
 	"io"
 	"math"
 	"os"
@@ -13,11 +13,11 @@ import (
 
 	"github.com/sondeclim/sondeclim/ingest"
 	"github.com/sondeclim/sondeclim/ingest/archivev2"
-	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // validationDir returns ../shared/validation/archive-v2, or skips the test.
-func validationDir(tb testing.TB) string { return validation.Dir(tb, "archive-v2") }
+func validationDir(tb testing.TB) string { return realdata.Dir(tb, "archive-v2") }
 
 // readAll drains an archive-v2 reader; parse errors fail the test.
 func readAll(tb testing.TB, r io.Reader, name string) []*sounding.Sounding {

@@ -3,8 +3,8 @@ package qc
 import (
 	"math"
 
-	"github.com/sondeclim/sondeclim/analyze/thermo"
-	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/physics/thermo"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // layer is one hydrostatic layer between two consecutive levels with

@@ -6,7 +6,7 @@ import (
 	"testing"
 	"time"
 
-	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // nearSurfaceProfile is invented scaffolding: a surface level 2 K warmer

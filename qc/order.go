@@ -4,7 +4,7 @@ import (
 	"math"
 	"sort"
 
-	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // longestRun returns, for the values x[idx[0]], x[idx[1]], … taken in

@@ -1,11 +1,11 @@
 package qc
 
 import (
-	"github.com/sondeclim/sondeclim/analyze/sun"
+	"github.com/sondeclim/sondeclim/physics/sun"
 	"math"
 
-	"github.com/sondeclim/sondeclim/analyze/thermo"
-	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/physics/thermo"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // thermoLevels returns the indices of the levels with a usable pressure and

@@ -6,7 +6,7 @@ import (
 	"strings"
 	"testing"
 
-	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // stats summarises the findings of many soundings per check.

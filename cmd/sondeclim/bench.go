@@ -19,7 +19,7 @@ import (
 
 	"golang.org/x/sync/errgroup"
 
-	"github.com/sondeclim/sondeclim/cmd/sondeclim/internal/pipeline"
+	"github.com/sondeclim/sondeclim/engine"
 	"github.com/sondeclim/sondeclim/ingest/input"
 	"github.com/sondeclim/sondeclim/ingest/synth"
 	"github.com/sondeclim/sondeclim/queries"
@@ -308,7 +308,7 @@ func ingestProcess(ctx context.Context, archive, store string, workers int, prof
 	if err != nil {
 		return run, err
 	}
-	var v struct{ Summary pipeline.Summary }
+	var v struct{ Summary engine.Summary }
 	if err := json.Unmarshal(b, &v); err != nil {
 		return run, err
 	}

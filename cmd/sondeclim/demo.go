@@ -8,7 +8,7 @@ import (
 	"path/filepath"
 	"runtime"
 
-	"github.com/sondeclim/sondeclim/cmd/sondeclim/internal/pipeline"
+	"github.com/sondeclim/sondeclim/engine"
 	"github.com/sondeclim/sondeclim/ingest/synth"
 	"github.com/sondeclim/sondeclim/queries"
 )
@@ -62,7 +62,7 @@ run gives the same numbers); the station and its setting do not exist.`,
 	}
 	log.Info("invented archive written", "station", st.ID, "name", st.Name, "soundings", n, "file", path)
 
-	sum, err := pipeline.Run(ctx, store, []string{path}, pipeline.Options{Workers: *workers, Log: log})
+	sum, err := engine.Run(ctx, store, []string{path}, engine.Options{Workers: *workers, Log: log})
 	if err != nil {
 		return fmt.Errorf("demo: %w", err)
 	}

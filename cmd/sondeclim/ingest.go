@@ -14,7 +14,7 @@ import (
 	"text/tabwriter"
 
 	"github.com/sondeclim/sondeclim/analyze"
-	"github.com/sondeclim/sondeclim/cmd/sondeclim/internal/pipeline"
+	"github.com/sondeclim/sondeclim/engine"
 	"github.com/sondeclim/sondeclim/ingest/archivev2"
 	"github.com/sondeclim/sondeclim/schema/store"
 )
@@ -68,7 +68,7 @@ skipped.`,
 		c.stderr)
 	storeDir := fs.String("store", "", "store `directory` to write (created if absent)")
 	workers := fs.Int("workers", runtime.NumCPU(), "files read, station-years analysed and station-years written at once (results do not depend on it)")
-	format := fs.String("format", "", "force the input `format` instead of detecting it ("+strings.Join(pipeline.FormatNames(), ", ")+")")
+	format := fs.String("format", "", "force the input `format` instead of detecting it ("+strings.Join(engine.FormatNames(), ", ")+")")
 	stations := fs.String("stations", "", "station list `file` (archive-v2 layout) for names, positions and elevations")
 	quiet := fs.Bool("quiet", false, "print only warnings and the summary's last line (for schedulers)")
 	full := fs.Bool("full", false, "ignore what was ingested before and rebuild every partition from the inputs given")
@@ -99,7 +99,7 @@ skipped.`,
 	if err != nil {
 		return fmt.Errorf("ingest: %v: %w", err, errUsage)
 	}
-	opt := pipeline.Options{Workers: *workers, Format: *format, Log: log, Shard: sh, Full: *full, Wait: *wait, UseSuspect: *useSuspect}
+	opt := engine.Options{Workers: *workers, Format: *format, Log: log, Shard: sh, Full: *full, Wait: *wait, UseSuspect: *useSuspect}
 	if *dailyMax != "" {
 		f, err := os.Open(*dailyMax)
 		if err != nil {
@@ -134,7 +134,7 @@ skipped.`,
 		defer pprof.StopCPUProfile()
 	}
 	tuneGC()
-	sum, err := pipeline.Run(ctx, *storeDir, fs.Args(), opt)
+	sum, err := engine.Run(ctx, *storeDir, fs.Args(), opt)
 	if err != nil {
 		if *summaryJSON != "" {
 			writeSummaryJSON(*summaryJSON, nil, err)
@@ -154,7 +154,7 @@ skipped.`,
 }
 
 // printSummary writes the run's summary to stderr (data goes to the store).
-func printSummary(c *ingestCmd, s *pipeline.Summary, store string, quiet bool) {
+func printSummary(c *ingestCmd, s *engine.Summary, store string, quiet bool) {
 	skipped := len(s.Skipped)
 	if !quiet {
 		tw := tabwriter.NewWriter(c.stderr, 0, 4, 2, ' ', 0)
@@ -199,12 +199,12 @@ func printSummary(c *ingestCmd, s *pipeline.Summary, store string, quiet bool) {
 
 // writeSummaryJSON writes the run summary (or the error that stopped the
 // run) for schedulers and monitoring.
-func writeSummaryJSON(path string, s *pipeline.Summary, runErr error) error {
+func writeSummaryJSON(path string, s *engine.Summary, runErr error) error {
 	v := struct {
-		OK       bool              `json:"ok"`
-		ExitCode int               `json:"exit_code"`
-		Error    string            `json:"error,omitempty"`
-		Summary  *pipeline.Summary `json:"summary,omitempty"`
+		OK       bool            `json:"ok"`
+		ExitCode int             `json:"exit_code"`
+		Error    string          `json:"error,omitempty"`
+		Summary  *engine.Summary `json:"summary,omitempty"`
 	}{OK: runErr == nil, Summary: s}
 	switch {
 	case runErr != nil:
@@ -229,7 +229,7 @@ func sortedKeys(m map[string]int) []string {
 }
 
 // loadStations reads a station list; lines it cannot parse are logged.
-func loadStations(path string, log *slog.Logger) (map[string]pipeline.StationInfo, error) {
+func loadStations(path string, log *slog.Logger) (map[string]engine.StationInfo, error) {
 	f, err := os.Open(path)
 	if err != nil {
 		return nil, fmt.Errorf("ingest: station list: %w", err)
@@ -243,9 +243,9 @@ func loadStations(path string, log *slog.Logger) (map[string]pipeline.StationInf
 		// Good lines are kept; each rejected line is named.
 		log.Warn("station list lines skipped", "file", path, "errors", err.Error())
 	}
-	m := make(map[string]pipeline.StationInfo, len(list))
+	m := make(map[string]engine.StationInfo, len(list))
 	for id, s := range list {
-		m[id] = pipeline.StationInfo{Name: s.Name, LatitudeDeg: s.LatitudeDeg, LongitudeDeg: s.LongitudeDeg, ElevationM: s.ElevationM}
+		m[id] = engine.StationInfo{Name: s.Name, LatitudeDeg: s.LatitudeDeg, LongitudeDeg: s.LongitudeDeg, ElevationM: s.ElevationM}
 	}
 	log.Info("station list read", "file", path, "stations", len(m))
 	return m, nil

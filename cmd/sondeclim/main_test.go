@@ -11,7 +11,7 @@ import (
 	"strings"
 	"testing"
 
-	"github.com/sondeclim/sondeclim/ingest/validation"
+	"github.com/sondeclim/sondeclim/internal/realdata"
 )
 
 var update = flag.Bool("update", false, "rewrite golden files under testdata/")
@@ -49,7 +49,7 @@ func golden(t *testing.T, name, got string) {
 
 // sharedDir returns ../shared/validation (beside the repository), or skips
 // the test when it is absent (a clone outside the team's machines).
-func sharedDir(t *testing.T) string { return validation.Dir(t) }
+func sharedDir(t *testing.T) string { return realdata.Dir(t) }
 
 func TestUsage(t *testing.T) {
 	code, out, _ := runCmd(t, "help")

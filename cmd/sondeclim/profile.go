@@ -15,7 +15,7 @@ import (
 	"text/tabwriter"
 	"time"
 
-	"github.com/sondeclim/sondeclim/cmd/sondeclim/internal/pipeline"
+	"github.com/sondeclim/sondeclim/engine"
 	"github.com/sondeclim/sondeclim/queries"
 	"github.com/sondeclim/sondeclim/queries/figures"
 )
@@ -98,7 +98,7 @@ Level flags: "z derived" is a height filled by hypsometric integration;
 		}
 		defer os.RemoveAll(tmp)
 		dir = filepath.Join(tmp, "store")
-		sum, err := pipeline.Run(ctx, dir, []string{*file}, pipeline.Options{Workers: 1})
+		sum, err := engine.Run(ctx, dir, []string{*file}, engine.Options{Workers: 1})
 		if err != nil {
 			return fmt.Errorf("profile: %w", err)
 		}

@@ -18,7 +18,7 @@ import (
 	"testing"
 	"time"
 
-	"github.com/sondeclim/sondeclim/cmd/sondeclim/internal/pipeline"
+	"github.com/sondeclim/sondeclim/engine"
 	"github.com/sondeclim/sondeclim/schema/store"
 )
 
@@ -37,14 +37,14 @@ func TestMain(m *testing.M) {
 }
 
 // startSub starts the command in a subprocess; pauseAt, when not empty,
-// makes it stop at that point (pipeline.PauseEnv). It returns once the
+// makes it stop at that point (engine.PauseEnv). It returns once the
 // process has reached the pause point (or at once without one).
 func startSub(t *testing.T, pauseAt string, args ...string) *exec.Cmd {
 	t.Helper()
 	cmd := exec.Command(os.Args[0], args...)
 	cmd.Env = append(os.Environ(), "SONDECLIM_RUN_MAIN=1")
 	if pauseAt != "" {
-		cmd.Env = append(cmd.Env, pipeline.PauseEnv+"="+pauseAt)
+		cmd.Env = append(cmd.Env, engine.PauseEnv+"="+pauseAt)
 	}
 	stderr, err := cmd.StderrPipe()
 	if err != nil {
@@ -212,7 +212,7 @@ func TestRerunUnchangedChangesNothing(t *testing.T) {
 	}
 }
 
-func readSummary(t *testing.T, path string) pipeline.Summary {
+func readSummary(t *testing.T, path string) engine.Summary {
 	t.Helper()
 	b, err := os.ReadFile(path)
 	if err != nil {
@@ -220,7 +220,7 @@ func readSummary(t *testing.T, path string) pipeline.Summary {
 	}
 	var v struct {
 		OK      bool
-		Summary pipeline.Summary
+		Summary engine.Summary
 	}
 	if err := json.Unmarshal(b, &v); err != nil {
 		t.Fatal(err)

@@ -12,7 +12,7 @@ import (
 	"testing"
 
 	"github.com/sondeclim/sondeclim/ingest"
-	"github.com/sondeclim/sondeclim/ingest/validation"
+	"github.com/sondeclim/sondeclim/internal/realdata"
 )
 
 // outcome is what a reader yields, in order: a sounding's key and levels,
@@ -112,7 +112,7 @@ func checkSame(t testing.TB, in []byte) []Segment {
 
 func readValidation(t *testing.T, name string) []byte {
 	t.Helper()
-	return validation.Text(t, "archive-v2", name)
+	return realdata.Text(t, "archive-v2", name)
 }
 
 // TestIndexRealFiles: on the real station files of ../shared/validation

@@ -7,7 +7,7 @@ import (
 	"time"
 
 	"github.com/sondeclim/sondeclim/ingest"
-	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // Special values of the data records (igra2-data-format.txt).

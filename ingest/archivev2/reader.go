@@ -8,7 +8,7 @@ import (
 	"slices"
 
 	"github.com/sondeclim/sondeclim/ingest"
-	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // Format is the name this reader gives in sounding.Source.Format.

@@ -13,7 +13,7 @@ import (
 	"time"
 
 	"github.com/sondeclim/sondeclim/ingest"
-	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // findValidation returns ../shared/validation/archive-v2 relative to the

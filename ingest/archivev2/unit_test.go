@@ -12,7 +12,7 @@ import (
 	"time"
 
 	"github.com/sondeclim/sondeclim/ingest"
-	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // Invented scaffolding records in the layout of igra2-data-format.txt

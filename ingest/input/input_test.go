@@ -7,7 +7,7 @@ import (
 	"compress/gzip"
 	"errors"
 	"fmt"
-	"github.com/sondeclim/sondeclim/ingest/validation"
+	"github.com/sondeclim/sondeclim/internal/realdata"
 	"io"
 	"os"
 	"path/filepath"
@@ -220,7 +220,7 @@ func TestEachStops(t *testing.T) {
 }
 
 // validationDir returns ../shared/validation/archive-v2, or skips the test.
-func validationDir(t *testing.T) string { return validation.Dir(t, "archive-v2") }
+func validationDir(t *testing.T) string { return realdata.Dir(t, "archive-v2") }
 
 // headers streams a member and counts its lines and header lines.
 func headers(r io.Reader) (lines, hdrs int, first string, err error) {

@@ -3,7 +3,7 @@ package netcdf
 import (
 	"bytes"
 	"errors"
-	"github.com/sondeclim/sondeclim/ingest/validation"
+	"github.com/sondeclim/sondeclim/internal/realdata"
 	"math"
 	"os"
 	"path/filepath"
@@ -12,7 +12,7 @@ import (
 )
 
 // sharedDir returns ../shared/validation/netcdf, or skips the test.
-func sharedDir(t testing.TB) string { return validation.Dir(t, "netcdf") }
+func sharedDir(t testing.TB) string { return realdata.Dir(t, "netcdf") }
 
 // tinyFile is invented scaffolding: two fixed variables, two record
 // variables of which one is a short (exercising the 4-byte padding of each

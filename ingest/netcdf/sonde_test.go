@@ -12,7 +12,7 @@ import (
 	"time"
 
 	"github.com/sondeclim/sondeclim/ingest"
-	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 func readFile(t testing.TB, name string) (*sounding.Sounding, []*Finding) {

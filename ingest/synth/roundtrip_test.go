@@ -9,8 +9,8 @@ import (
 	"time"
 
 	"github.com/sondeclim/sondeclim/ingest/archivev2"
-	"github.com/sondeclim/sondeclim/ingest/sounding"
 	"github.com/sondeclim/sondeclim/ingest/synth"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // TestRoundTrip reads a generated year back with the project's reader for

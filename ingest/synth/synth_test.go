@@ -4,7 +4,7 @@ import (
 	"bufio"
 	"bytes"
 	"fmt"
-	"github.com/sondeclim/sondeclim/ingest/validation"
+	"github.com/sondeclim/sondeclim/internal/realdata"
 	"io"
 	"math"
 	"os"
@@ -156,7 +156,7 @@ func parseFile(r io.Reader) ([]snd, error) {
 }
 
 // sharedDir returns ../shared/validation, or skips the test.
-func sharedDir(t testing.TB) string { return validation.Dir(t) }
+func sharedDir(t testing.TB) string { return realdata.Dir(t) }
 
 // generate returns the output of Write for cfg.
 func generate(t testing.TB, cfg Config) []byte {

@@ -4,7 +4,7 @@ import (
 	"math"
 	"sort"
 
-	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // kindPriority orders kinds when two parts give the same pressure.

@@ -4,7 +4,7 @@ import (
 	"math"
 	"strconv"
 
-	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // levelsOf returns the standard levels of Part A or C.

@@ -2,7 +2,7 @@ package temp
 
 import (
 	"errors"
-	"github.com/sondeclim/sondeclim/ingest/validation"
+	"github.com/sondeclim/sondeclim/internal/realdata"
 	"io"
 	"math"
 	"os"
@@ -13,11 +13,11 @@ import (
 	"time"
 
 	"github.com/sondeclim/sondeclim/ingest"
-	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // sharedDir returns ../shared/validation/temp, or skips the test.
-func sharedDir(t testing.TB) string { return validation.Dir(t, "temp") }
+func sharedDir(t testing.TB) string { return realdata.Dir(t, "temp") }
 
 // readAll decodes every sounding of r and returns them with the errors.
 func readAll(t testing.TB, rd *Reader) ([]*sounding.Sounding, []error) {

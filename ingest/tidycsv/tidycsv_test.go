@@ -4,7 +4,7 @@ import (
 	"bytes"
 	"errors"
 	"fmt"
-	"github.com/sondeclim/sondeclim/ingest/validation"
+	"github.com/sondeclim/sondeclim/internal/realdata"
 	"io"
 	"math"
 	"os"
@@ -15,7 +15,7 @@ import (
 
 	"github.com/sondeclim/sondeclim/ingest"
 	"github.com/sondeclim/sondeclim/ingest/netcdf"
-	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // The CSV texts here are invented scaffolding (station XQ01 does not
@@ -149,7 +149,7 @@ func TestSniff(t *testing.T) {
 }
 
 // sharedDir returns ../shared/validation/netcdf, or skips the test.
-func sharedDir(t testing.TB) string { return validation.Dir(t, "netcdf") }
+func sharedDir(t testing.TB) string { return realdata.Dir(t, "netcdf") }
 
 func readNetCDF(t testing.TB, name string) *sounding.Sounding {
 	raw, err := os.ReadFile(name)

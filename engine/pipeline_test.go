@@ -1,11 +1,11 @@
-package pipeline
+package engine
 
 import (
 	"archive/zip"
 	"bytes"
 	"compress/gzip"
 	"context"
-	"github.com/sondeclim/sondeclim/ingest/validation"
+	"github.com/sondeclim/sondeclim/internal/realdata"
 	"math"
 	"os"
 	"path/filepath"
@@ -15,17 +15,17 @@ import (
 	"time"
 
 	"github.com/sondeclim/sondeclim/ingest/archivev2"
-	"github.com/sondeclim/sondeclim/ingest/sounding"
 	"github.com/sondeclim/sondeclim/ingest/synth"
 	"github.com/sondeclim/sondeclim/qc"
 	"github.com/sondeclim/sondeclim/schema/store"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // realSoundings reads a real archive file from ../shared/validation, or
 // skips when it is absent.
 func realSoundings(tb testing.TB, name string) []*sounding.Sounding {
 	tb.Helper()
-	path := filepath.Join(validation.Dir(tb, "archive-v2"), name)
+	path := filepath.Join(realdata.Dir(tb, "archive-v2"), name)
 	f, err := os.Open(path)
 	if err != nil {
 		tb.Fatal(err)
@@ -225,7 +225,7 @@ func TestSameAsIndexed(t *testing.T) {
 // short, Göteborg with hour 99, Omaha 1950 portion, Wien; the zip holds two
 // members so that member names and per-member line numbers are exercised.
 func TestInPlaceEqualsDecoded(t *testing.T) {
-	read := func(name string) []byte { return validation.Text(t, "archive-v2", name) }
+	read := func(name string) []byte { return realdata.Text(t, "archive-v2", name) }
 	first := append(read("USM00070026-data-truncated.txt"), read("SWM00002527-data-hour99.txt")...)
 	second := append(read("USM00074794-data-1950-portion.txt"), read("AUM00011035-data.txt.gz")...)
 	in := t.TempDir()

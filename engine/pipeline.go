@@ -1,4 +1,4 @@
-// Package pipeline runs one ingestion into a store: it expands the input
+// Package engine runs one ingestion into a store: it expands the input
 // paths, decides which inputs changed since the store's last commit, reads
 // those (every file and every member of a compressed archive, through the
 // reader for its format) into a staging area on disk, and then rebuilds
@@ -16,7 +16,7 @@
 // Results do not depend on the number of workers, on the order of the
 // inputs, or on which earlier runs built the store: a partition's content
 // is a function of its deduplicated soundings and the analysis parameters.
-package pipeline
+package engine
 
 import (
 	"context"

@@ -1,4 +1,4 @@
-package pipeline
+package engine
 
 import (
 	"bufio"
@@ -23,8 +23,8 @@ import (
 	"github.com/sondeclim/sondeclim/ingest"
 	"github.com/sondeclim/sondeclim/ingest/archivev2"
 	"github.com/sondeclim/sondeclim/ingest/input"
-	"github.com/sondeclim/sondeclim/ingest/sounding"
 	"github.com/sondeclim/sondeclim/schema/store"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // segment is a run of soundings of one station-year: encoded soundings in

@@ -1,4 +1,4 @@
-package pipeline
+package engine
 
 import (
 	"bytes"
@@ -11,9 +11,9 @@ import (
 	"github.com/sondeclim/sondeclim/ingest"
 	"github.com/sondeclim/sondeclim/ingest/archivev2"
 	"github.com/sondeclim/sondeclim/ingest/netcdf"
-	"github.com/sondeclim/sondeclim/ingest/sounding"
 	"github.com/sondeclim/sondeclim/ingest/temp"
 	"github.com/sondeclim/sondeclim/ingest/tidycsv"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // format is one reader the pipeline knows: its name, a content test and a

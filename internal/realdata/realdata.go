@@ -1,10 +1,10 @@
-// Package validation locates the real observed soundings that tests check
+// Package realdata locates the real observed soundings that tests check
 // the pipeline against: the folder shared/validation that lies beside the
 // repository (../shared/validation from the directory holding go.mod; its
 // PROVENANCE.md says where each file comes from). The files are never
 // copied into the repository, so a clone elsewhere does not have them:
-// Dir then skips the calling test with a message saying so.
-package validation
+// (test-only: it is imported by _test.go files alone.) Dir then skips the calling test with a message saying so.
+package realdata
 
 import (
 	"bytes"

@@ -1,4 +1,4 @@
-package pipeline
+package engine
 
 import (
 	"encoding/binary"
@@ -6,7 +6,7 @@ import (
 	"math"
 	"time"
 
-	"github.com/sondeclim/sondeclim/ingest/sounding"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // The codec turns a decoded sounding into bytes and back, exactly (float

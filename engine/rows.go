@@ -1,13 +1,13 @@
-package pipeline
+package engine
 
 import (
 	"math"
 	"time"
 
 	"github.com/sondeclim/sondeclim/analyze"
-	"github.com/sondeclim/sondeclim/ingest/sounding"
 	"github.com/sondeclim/sondeclim/qc"
 	"github.com/sondeclim/sondeclim/schema"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // Display-unit conversions at the output edge.

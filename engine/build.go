@@ -1,4 +1,4 @@
-package pipeline
+package engine
 
 import (
 	"context"
@@ -17,10 +17,10 @@ import (
 	"golang.org/x/sync/errgroup"
 
 	"github.com/sondeclim/sondeclim/analyze"
-	"github.com/sondeclim/sondeclim/ingest/sounding"
 	"github.com/sondeclim/sondeclim/qc"
 	"github.com/sondeclim/sondeclim/schema"
 	"github.com/sondeclim/sondeclim/schema/store"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // ingest decides what to read, stages it, rebuilds the affected partitions
