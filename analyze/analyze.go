@@ -73,8 +73,8 @@ type Result struct {
 	// first of them when it starts there.
 	MixedLayers []MixedLayer
 
-	// MixingHeights holds one entry per method, in the order of
-	// MixingHeightMethods, whatever the Status (all undefined when the
+	// MixingHeights holds one entry per registered method (Methods), in
+	// registry order, whatever the Status (all undefined when the
 	// sounding could not be analysed).
 	MixingHeights []MixingHeight
 	// MixingHeightConsensus summarises the methods listed in
@@ -115,9 +115,9 @@ func Analyze(s *sounding.Sounding, cfg Config) Result {
 			Table: cfg.Ventilation.Table.Name},
 		Profile: ParcelProfile{SurfacePressurePa: nan, SurfaceTemperatureK: nan, CeilingAGLM: nan},
 	}
-	r.MixingHeights = make([]MixingHeight, len(MixingHeightMethods))
-	for i, m := range MixingHeightMethods {
-		r.MixingHeights[i] = undefinedMH(m, "not_analysed")
+	r.MixingHeights = make([]MixingHeight, len(methods))
+	for i, m := range methods {
+		r.MixingHeights[i] = undefinedMH(m.Name, "not_analysed")
 	}
 	if s != nil {
 		r.SunElevationDeg = sun.ElevationDeg(s.LaunchTime, s.LatitudeDeg, s.LongitudeDeg)

@@ -4,8 +4,6 @@ import (
 	"fmt"
 	"math"
 	"sort"
-
-	"github.com/sondeclim/sondeclim/physics/thermo"
 )
 
 // Mixing-height statuses (METHODS §4): every method reports one.
@@ -15,7 +13,7 @@ const (
 	MixingHeightUndefined = ParcelUndefined // no result (no crossing, missing input)
 )
 
-// Mixing-height method names, in the fixed order of Result.MixingHeights.
+// Mixing-height method names (the registry, methods.go, gives their order).
 const (
 	// MethodParcel: Holzworth parcel, surface temperature + Parcel.ExcessK,
 	// environmental θ (METHODS §4.1). Same value as Result.Parcel.
@@ -37,14 +35,9 @@ const (
 	MethodElevatedBase = "elevated_inversion_base"
 )
 
-// MixingHeightMethods lists the methods in the order of
-// Result.MixingHeights. Do not modify.
-var MixingHeightMethods = []string{MethodParcel, MethodParcelVirtual, MethodHeffter,
-	MethodRichardson, MethodRichardsonAlt, MethodLiuLiang, MethodSBITop, MethodElevatedBase}
-
 // MixingHeight is one method's mixing height.
 type MixingHeight struct {
-	Method     string  // one of MixingHeightMethods
+	Method     string  // the Name of a registered Method
 	HeightAGLM float64 // m AGL; 0 for surface, NaN for undefined
 	Status     string  // MixingHeightOK, MixingHeightSurface or MixingHeightUndefined
 	// Note is a short snake_case reason for undefined results (e.g.
@@ -73,9 +66,10 @@ func mhFrom(method string, h float64, status, note string) MixingHeight {
 // MixingHeightConfig holds the consensus and resolution rules.
 type MixingHeightConfig struct {
 	// Consensus lists the methods whose ok heights enter the consensus
-	// (their median) and the spread (max − min). Default: every method
-	// except MethodRichardsonAlt, so that the Richardson method is not
-	// counted twice (proposal, no source).
+	// (their median) and the spread (max − min). Default: the registered
+	// methods whose Consensus flag is set (every method except
+	// MethodRichardsonAlt, so that the Richardson method is not counted
+	// twice; proposal, no source).
 	Consensus []string
 	// Resolution rule: an ok height h is Unresolved when the spacing Δz of
 	// the sounding's levels around it (the levels that bracket it; when h
@@ -90,10 +84,19 @@ type MixingHeightConfig struct {
 // DefaultMixingHeightConfig returns the defaults documented on the fields.
 func DefaultMixingHeightConfig() MixingHeightConfig {
 	return MixingHeightConfig{
-		Consensus: []string{MethodParcel, MethodParcelVirtual, MethodHeffter, MethodRichardson,
-			MethodLiuLiang, MethodSBITop, MethodElevatedBase},
+		Consensus:          defaultConsensus(),
 		MaxSpacingFraction: 0.5, MaxSpacingM: 500,
 	}
+}
+
+func defaultConsensus() []string {
+	var names []string
+	for _, m := range methods {
+		if m.Consensus {
+			names = append(names, m.Name)
+		}
+	}
+	return names
 }
 
 // Consensus is the summary of the methods' mixing heights.
@@ -288,59 +291,14 @@ func RichardsonHeight(zAGLM, rib []float64, ric, ceilingAGLM float64) (heightAGL
 	return nan, MixingHeightUndefined, "no_crossing"
 }
 
-// mixingHeights fills MixingHeights, MixingHeightConsensus and
-// LiuLiangRegime from the profile's first n (searched) levels.
+// mixingHeights fills MixingHeights (one entry per registered method, in
+// registry order), MixingHeightConsensus and LiuLiangRegime from the
+// profile's first n (searched) levels.
 func (r *Result) mixingHeights(pr profile, n int, cfg Config) {
-	mh, zc, c := r.MixingHeights, r.CeilingAGLM, cfg.Constants
-	noteFor := func(status, ok string) string {
-		if status == MixingHeightUndefined {
-			return "no_crossing"
-		}
-		return ok
-	}
-	mh[0] = mhFrom(MethodParcel, r.Parcel.HeightAGLM, r.Parcel.Status, noteFor(r.Parcel.Status, ""))
-	if w0 := pr.w[0]; math.IsNaN(w0) {
-		mh[1] = undefinedMH(MethodParcelVirtual, "no_surface_humidity")
-	} else {
-		th0v := thermo.VirtualPotentialTemperature(r.Parcel.Theta0K, w0, c.Epsilon)
-		h, st := ParcelMixingHeight(pr.z, pr.thetav, th0v, zc)
-		mh[1] = mhFrom(MethodParcelVirtual, h, st, noteFor(st, ""))
-	}
-
-	g := pr.grid(n, cfg.Heffter.GridStepPa)
-	h, st, note := HeffterHeight(g.z, g.theta, cfg.Heffter)
-	mh[2] = mhFrom(MethodHeffter, h, st, note)
-
-	rib := make([]float64, n)
-	BulkRichardsonNumbers(rib, pr.z[:n], pr.thetav[:n], pr.u[:n], pr.v[:n], c.G0, cfg.Richardson)
-	rc := math.Min(cfg.Richardson.CeilingAGLM, zc)
-	h, st, note = RichardsonHeight(pr.z[:n], rib, cfg.Richardson.Critical, rc)
-	mh[3] = mhFrom(MethodRichardson, h, st, note)
-	h, st, note = RichardsonHeight(pr.z[:n], rib, cfg.Richardson.CriticalAlt, rc)
-	mh[4] = mhFrom(MethodRichardsonAlt, h, st, note)
-
-	if cfg.LiuLiang.GridStepPa != cfg.Heffter.GridStepPa {
-		g = pr.grid(n, cfg.LiuLiang.GridStepPa)
-	}
-	h, r.LiuLiangRegime, st, note = LiuLiangHeight(g.z, g.theta, g.speed, cfg.LiuLiang)
-	mh[5] = mhFrom(MethodLiuLiang, h, st, note)
-
-	if v := r.SBI; v.Present {
-		note = ""
-		if v.TopAtCeiling {
-			note = "top_at_ceiling"
-		}
-		mh[6] = mhFrom(MethodSBITop, v.TopAGLM, MixingHeightOK, note)
-	} else {
-		mh[6] = undefinedMH(MethodSBITop, "no_sbi")
-	}
-	if v := r.LowestElevated; v.Present {
-		mh[7] = mhFrom(MethodElevatedBase, v.BaseAGLM, MixingHeightOK, "")
-	} else {
-		mh[7] = undefinedMH(MethodElevatedBase, "no_elevated_inversion")
-	}
-
-	for i := range mh {
+	in := methodInput{r: r, pr: pr, n: n, cfg: cfg}
+	mh := r.MixingHeights
+	for i, m := range methods {
+		mh[i] = m.height(&in)
 		if mh[i].Status == MixingHeightOK {
 			mh[i].LevelSpacingM = pr.levelSpacing(mh[i].HeightAGLM, n)
 			mh[i].Unresolved = cfg.MixingHeight.resolve(mh[i].HeightAGLM, mh[i].LevelSpacingM)

@@ -120,13 +120,13 @@ func ribSounding() *sounding.Sounding {
 // are undefined; the consensus is the median of the ok methods.
 func TestAnalyzeMixingHeights(t *testing.T) {
 	r := Analyze(ribSounding(), DefaultConfig())
-	if r.Status != StatusOK || len(r.MixingHeights) != len(MixingHeightMethods) {
+	if r.Status != StatusOK || len(r.MixingHeights) != len(MethodNames()) {
 		t.Fatalf("status %q, %d heights", r.Status, len(r.MixingHeights))
 	}
 	by := map[string]MixingHeight{}
 	for i, m := range r.MixingHeights {
-		if m.Method != MixingHeightMethods[i] {
-			t.Errorf("method %d = %q, want %q", i, m.Method, MixingHeightMethods[i])
+		if want := MethodNames()[i]; m.Method != want {
+			t.Errorf("method %d = %q, want %q", i, m.Method, want)
 		}
 		by[m.Method] = m
 	}
@@ -172,7 +172,7 @@ func TestAnalyzeMixingHeights(t *testing.T) {
 		s.Levels[i].WindSpeedMS = nan
 	}
 	r = Analyze(s, DefaultConfig())
-	if m := r.MixingHeights[3]; m.Status != MixingHeightUndefined || m.Note != "missing_wind" {
+	if m, _ := r.MixingHeight(MethodRichardson); m.Status != MixingHeightUndefined || m.Note != "missing_wind" {
 		t.Errorf("no winds: %+v", m)
 	}
 	if !math.IsNaN(r.Ventilation.TransportWindMS) || !math.IsNaN(r.Ventilation.IndexM2S) {

@@ -132,10 +132,10 @@ func TestInversionAtTop(t *testing.T) {
 	}
 	near(t, "EI base", r.LowestElevated.BaseAGLM, 1000, 1e-9) // METHODS §9: EI 1000–1200 m
 	near(t, "EI strength", e.StrengthK, 1.0, 1e-9)
-	if m := r.MixingHeights[7]; m.Status != MixingHeightOK || m.HeightAGLM != 1000 {
+	if m, _ := r.MixingHeight(MethodElevatedBase); m.Status != MixingHeightOK || m.HeightAGLM != 1000 {
 		t.Errorf("elevated_inversion_base = %+v", m)
 	}
-	if m := r.MixingHeights[6]; m.Status != MixingHeightOK || m.HeightAGLM != 300 {
+	if m, _ := r.MixingHeight(MethodSBITop); m.Status != MixingHeightOK || m.HeightAGLM != 300 {
 		t.Errorf("sbi_top = %+v", m) // METHODS §9: SBI 0–300 m with the 100 m merge
 	}
 }
@@ -344,7 +344,7 @@ func TestAnalyzeOneLevel(t *testing.T) {
 	s.Levels = s.Levels[:1]
 	s.LatitudeDeg, s.LongitudeDeg, s.LaunchTime = 38.98, -77.49, time.Date(2016, 7, 1, 17, 0, 0, 0, time.UTC)
 	r := Analyze(s, DefaultConfig())
-	if r.Status != StatusTooFewLevels || len(r.MixingHeights) != len(MixingHeightMethods) || r.SunClass != sun.Day {
+	if r.Status != StatusTooFewLevels || len(r.MixingHeights) != len(MethodNames()) || r.SunClass != sun.Day {
 		t.Fatalf("%q %d %q", r.Status, len(r.MixingHeights), r.SunClass)
 	}
 	for _, m := range r.MixingHeights {

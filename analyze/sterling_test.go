@@ -146,7 +146,7 @@ func TestSterling2016(t *testing.T) {
 		if h != 0 || season == "" {
 			continue
 		}
-		if m := r.MixingHeights[3]; m.Status == MixingHeightOK {
+		if m, _ := r.MixingHeight(MethodRichardson); m.Status == MixingHeightOK {
 			rib[season] = append(rib[season], m.HeightAGLM)
 		}
 		if c := r.MixingHeightConsensus; c.Status != MixingHeightUndefined {

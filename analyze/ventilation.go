@@ -77,7 +77,7 @@ func NCVISTable() VentilationTable {
 // VentilationConfig selects the inputs of the ventilation index.
 type VentilationConfig struct {
 	// HeightMethod names the mixing height used: "consensus" (default) or
-	// one of MixingHeightMethods.
+	// the Name of a registered Method (Methods).
 	HeightMethod string
 	// TransportWind is TransportScalar (default) or TransportVector.
 	TransportWind string

@@ -395,7 +395,7 @@ func (r *run) buildPartition(key string, st *staged, prev *store.Partition) (_ *
 		return nil, stats, nil, err
 	}
 	rows := partRows{levels: levels,
-		heights: make([]schema.MixingHeightRow, 0, len(kept)*len(analyze.MixingHeightMethods))}
+		heights: make([]schema.MixingHeightRow, 0, len(kept)*len(analyze.Methods()))}
 	srows := make([]schema.SoundingRow, len(kept))
 	for i, d := range kept {
 		res := analyzeOne(d.s, reports[d.s], r.cfg, r.opt.UseSuspect, &rows)

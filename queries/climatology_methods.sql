@@ -8,10 +8,9 @@
 -- minimum values for p10/p90.
 --
 -- One row per cell and method (consensus first, then the methods in the
--- order of the mixing_heights documentation), over valid soundings only:
---   method                 consensus, parcel, parcel_virtual, heffter,
---                          bulk_richardson, bulk_richardson_alt, liu_liang,
---                          sbi_top, elevated_inversion_base
+-- order of the analyze method registry: the method_rank macro,
+-- queries/macros.go), over valid soundings only:
+--   method                 consensus, or a registered method
 --   n_valid                valid soundings of the cell with a row for the method
 --   n_ok, n_surface, n_undefined   by status; undefined is counted here and
 --                          left out of the percentiles
@@ -56,8 +55,5 @@ ORDER BY
     month,
     nominal_hour,
     CASE sun_class WHEN 'day' THEN 1 WHEN 'twilight' THEN 2 WHEN 'night' THEN 3 ELSE 4 END,
-    CASE method
-        WHEN 'consensus' THEN 0 WHEN 'parcel' THEN 1 WHEN 'parcel_virtual' THEN 2 WHEN 'heffter' THEN 3
-        WHEN 'bulk_richardson' THEN 4 WHEN 'bulk_richardson_alt' THEN 5 WHEN 'liu_liang' THEN 6
-        WHEN 'sbi_top' THEN 7 WHEN 'elevated_inversion_base' THEN 8 ELSE 9 END,
+    method_rank(method),
     method

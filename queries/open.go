@@ -36,7 +36,7 @@ var viewName = regexp.MustCompile(`^[a-z][a-z0-9_]*$`)
 // station directory is not read as a number, and the redundant `station`
 // path column is dropped because station_id is stored in the files. Every
 // connection uses the UTC time zone, so timestamp functions such as hour()
-// return UTC.
+// return UTC. The shared SQL macros (macros.go) are defined on it.
 //
 // A missing store, a store path containing glob characters (* ? [ ]), or a
 // store with no tables is an error naming the directory. The caller closes
@@ -76,6 +76,12 @@ func Open(ctx context.Context, storeDir string) (*sql.DB, error) {
 		return nil, fmt.Errorf("queries: open DuckDB: %w", err)
 	}
 	db := sql.OpenDB(conn)
+	for _, m := range macros() {
+		if _, err := db.ExecContext(ctx, m); err != nil {
+			db.Close()
+			return nil, fmt.Errorf("queries: create macro: %w", err)
+		}
+	}
 	for _, t := range tables {
 		if _, err := db.ExecContext(ctx, viewDDL(abs, t)); err != nil {
 			db.Close()

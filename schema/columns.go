@@ -140,7 +140,11 @@ func columnsOf(t reflect.Type) ([]Column, error) {
 		if !ok {
 			return nil, fmt.Errorf("schema: %s: unsupported Go type %v for column %q", where, f.Type, name)
 		}
-		c := Column{Name: name, Type: typ, Nullable: nullable, Doc: f.Tag.Get("doc"), field: i, offset: f.Offset, kind: kind}
+		doc, ok := expandDoc(f.Tag.Get("doc"), f.Tag.Get("values"))
+		if !ok {
+			return nil, fmt.Errorf("schema: %s: unknown vocabulary %q in values tag", where, f.Tag.Get("values"))
+		}
+		c := Column{Name: name, Type: typ, Nullable: nullable, Doc: doc, field: i, offset: f.Offset, kind: kind}
 		if values, ok := f.Tag.Lookup("enum"); ok {
 			if kind != kindString || values == "" {
 				return nil, fmt.Errorf("schema: %s: an enum tag needs a string field and at least one value", where)

@@ -145,7 +145,7 @@ type MixingHeightRow struct {
 	StationID     string    `col:"station_id" doc:"station identifier"`
 	LaunchTime    time.Time `col:"launch_time" doc:"UTC; launch time of the sounding"`
 	Year          int32     `col:"year" doc:"calendar year of the sounding's nominal time"`
-	Method        string    `col:"method" doc:"parcel, parcel_virtual, heffter, bulk_richardson (critical 0.25), bulk_richardson_alt (critical 0.5), liu_liang, sbi_top, elevated_inversion_base"`
+	Method        string    `col:"method" values:"mixing_height_method" doc:"{values}"`
 	HeightAGLM    float64   `col:"height_agl_m" doc:"m above ground; 0 for status surface, null for undefined"`
 	Status        string    `col:"status" doc:"ok, surface or undefined"`
 	Note          string    `col:"note" doc:"short reason for undefined results or detail of an ok one"`

@@ -33,10 +33,9 @@ Views (--table):
   summary      soundings attempted and valid, consensus mixing height
                p10/p25/p50/p75/p90, surface-based inversion (SBI) frequency
                and median strength, median ventilation index (text default)
-  mixing       one row per method (consensus, parcel, parcel_virtual,
-               heffter, bulk_richardson, bulk_richardson_alt, liu_liang,
-               sbi_top, elevated_inversion_base): ok/surface/undefined counts
-               and percentiles
+  mixing       one row per method (consensus, then every method of the
+               mixing_heights table, see sondeclim schema):
+               ok/surface/undefined counts and percentiles
   inversions   SBI frequency, median strength and depth where one occurs;
                elevated-inversion frequency, overall and by class
   mixed        well-mixed layer frequency, depth, mean θ and mixing ratio
