@@ -8,7 +8,6 @@ package input
 import (
 	"archive/zip"
 	"bufio"
-	"compress/gzip"
 	"errors"
 	"fmt"
 	"io"
@@ -17,6 +16,9 @@ import (
 	"path/filepath"
 	"slices"
 	"strings"
+
+	"github.com/klauspost/compress/flate"
+	"github.com/klauspost/compress/gzip"
 
 	"github.com/sondeclim/sondeclim/ingest"
 )
@@ -185,6 +187,7 @@ func eachZip(f *os.File, path string, limit int64, fn func(string, io.Reader) er
 	if err != nil {
 		return fmt.Errorf("read %s: %w", path, err)
 	}
+	zr.RegisterDecompressor(zip.Deflate, inflater)
 	for _, zf := range zr.File {
 		if !zf.Mode().IsRegular() || strings.HasSuffix(zf.Name, "/") {
 			continue
@@ -204,6 +207,12 @@ func eachZip(f *os.File, path string, limit int64, fn func(string, io.Reader) er
 	}
 	return nil
 }
+
+// inflater decompresses a zip member's deflate stream. It is the same
+// format as the standard library's (RFC 1951), decoded by a faster
+// implementation: on the real Sterling file, gzip and deflate were about a
+// seventh of all ingest CPU time with the standard library's decoder.
+func inflater(r io.Reader) io.ReadCloser { return flate.NewReader(r) }
 
 func tooLarge(path, member string, limit int64) error {
 	name := path
