@@ -85,6 +85,17 @@ type Result struct {
 
 	Ventilation Ventilation
 
+	// HeatDeficit is the heat deficit from the surface to the configured
+	// reference height (HeatDeficit; J m⁻², NaN when the profile does not
+	// reach the reference or it lies below ground).
+	HeatDeficit HeatDeficitResult
+	// StableFraction is the fraction of the lowest StableLayer.DepthM with
+	// a lapse rate ≤ StableLayer.MaxLapseKPerKm (Wolyn & McKee 1989), NaN
+	// when the profile does not reach that depth; DeepStable is
+	// StableFraction ≥ StableLayer.MinFraction.
+	StableFraction float64
+	DeepStable     bool
+
 	// Profile is the thermodynamic profile kept for the afternoon
 	// (Holzworth) mixing height; see AfternoonMixingHeight.
 	Profile ParcelProfile
@@ -113,7 +124,9 @@ func Analyze(s *sounding.Sounding, cfg Config) Result {
 		Ventilation: Ventilation{HeightMethod: cfg.Ventilation.HeightMethod, MixingHeightAGLM: nan,
 			TransportWind: cfg.Ventilation.TransportWind, TransportWindMS: nan, IndexM2S: nan, IndexKtFt: nan,
 			Table: cfg.Ventilation.Table.Name},
-		Profile: ParcelProfile{SurfacePressurePa: nan, SurfaceTemperatureK: nan, CeilingAGLM: nan},
+		Profile:        ParcelProfile{SurfacePressurePa: nan, SurfaceTemperatureK: nan, CeilingAGLM: nan},
+		HeatDeficit:    HeatDeficitResult{Reference: cfg.HeatDeficit.Label(), TopAGLM: nan, JPerM2: nan},
+		StableFraction: nan,
 	}
 	r.MixingHeights = make([]MixingHeight, len(methods))
 	for i, m := range methods {
@@ -164,6 +177,8 @@ func Analyze(s *sounding.Sounding, cfg Config) Result {
 	r.Profile = ParcelProfile{SurfacePressurePa: pr.p[0], SurfaceTemperatureK: pr.t[0], CeilingAGLM: zc,
 		Kappa: cfg.Constants.Kappa, P0Pa: cfg.Constants.P0Pa, HeightAGLM: pr.z, ThetaK: pr.theta}
 
+	r.bulkStability(pr, cfg)
+
 	spans := findInversions(pr.z, pr.t, n, cfg.Inversion)
 	mlBase := 0
 	if len(spans) > 0 && spans[0].base == 0 {
@@ -180,6 +195,20 @@ func Analyze(s *sounding.Sounding, cfg Config) Result {
 	r.mixingHeights(pr, n, cfg)
 	r.ventilation(wp, cfg)
 	return r
+}
+
+// bulkStability fills HeatDeficit, StableFraction and DeepStable from the
+// whole thermodynamic profile (not limited by the search ceiling).
+func (r *Result) bulkStability(pr profile, cfg Config) {
+	c := cfg.Constants
+	i := pr.idx[0]
+	ground := r.HeightM[i] - r.HeightAGLM[i]
+	top := cfg.HeatDeficit.TopAGL(pr.z, pr.p, ground)
+	r.HeatDeficit.TopAGLM = top
+	r.HeatDeficit.JPerM2 = HeatDeficit(pr.z, pr.p, pr.t, pr.theta, top, c.Cpd, c.Rd)
+	sl := cfg.StableLayer
+	r.StableFraction = StableLayerFraction(pr.z, pr.t, sl.DepthM, sl.MaxLapseKPerKm)
+	r.DeepStable = r.StableFraction >= sl.MinFraction
 }
 
 // classifyInversions fills Inversions, SBI and LowestElevated.

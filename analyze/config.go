@@ -49,6 +49,10 @@ type Config struct {
 	LiuLiang     LiuLiangConfig
 	MixingHeight MixingHeightConfig
 	Ventilation  VentilationConfig
+	// HeatDeficit sets the reference height of the heat deficit and
+	// StableLayer the deep-stable-layer test (heatdeficit.go).
+	HeatDeficit HeatDeficitConfig
+	StableLayer StableLayerConfig
 }
 
 // InversionConfig parameterises inversion detection (METHODS §3.2).
@@ -154,6 +158,8 @@ func DefaultConfig() Config {
 		LiuLiang:     LiuLiangLand(),
 		MixingHeight: DefaultMixingHeightConfig(),
 		Ventilation:  DefaultVentilationConfig(),
+		HeatDeficit:  DefaultHeatDeficitConfig(),
+		StableLayer:  DefaultStableLayerConfig(),
 	}
 }
 
