@@ -34,6 +34,8 @@ import (
 	"time"
 
 	"github.com/sondeclim/sondeclim/analyze"
+	"github.com/sondeclim/sondeclim/ingest"
+	"github.com/sondeclim/sondeclim/ingest/formats"
 	"github.com/sondeclim/sondeclim/ingest/input"
 	"github.com/sondeclim/sondeclim/qc"
 	"github.com/sondeclim/sondeclim/schema/store"
@@ -62,7 +64,7 @@ type Options struct {
 	SizeLimit int64
 	// Stations supplies station metadata (name, position, elevation) by
 	// station id, for formats that do not carry it. May be nil.
-	Stations map[string]StationInfo
+	Stations map[string]ingest.Station
 	// Shard restricts the run to the stations one shard owns.
 	Shard store.Shard
 	// Full ignores the manifest and rebuilds every partition the inputs
@@ -91,13 +93,6 @@ type Options struct {
 	// as inputs of formats other than archive-v2 do (tests compare the
 	// two paths).
 	decodeAll bool
-}
-
-// StationInfo is station metadata from a station list.
-type StationInfo struct {
-	Name                      string
-	LatitudeDeg, LongitudeDeg float64
-	ElevationM                float64 // m above mean sea level, NaN if unknown
 }
 
 // Skip is one item of input that was not ingested, or a remark about input
@@ -299,7 +294,9 @@ func Run(ctx context.Context, storeDir string, paths []string, opt Options) (*Su
 
 	// Station lists given among the inputs supply metadata, not soundings.
 	before := len(files)
-	files, r.opt.Stations = takeStationLists(files, opt.SizeLimit, opt.Stations, r.skip)
+	files, r.opt.Stations = formats.TakeStationLists(files, opt.SizeLimit, opt.Stations, func(path string, err error) {
+		r.skip(Skip{Where: path, Reason: "station_list_lines", Detail: err.Error()})
+	})
 	r.sum.StationLists = before - len(files)
 
 	r.staging = filepath.Join(storeDir, store.MetaDir, "staging-"+opt.Shard.Name())

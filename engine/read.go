@@ -22,6 +22,7 @@ import (
 
 	"github.com/sondeclim/sondeclim/ingest"
 	"github.com/sondeclim/sondeclim/ingest/archivev2"
+	"github.com/sondeclim/sondeclim/ingest/formats"
 	"github.com/sondeclim/sondeclim/ingest/input"
 	"github.com/sondeclim/sondeclim/schema/store"
 	"github.com/sondeclim/sondeclim/sounding"
@@ -340,7 +341,7 @@ func (r *run) readInPlace(buf []byte, path string, sg segment) ([]*sounding.Soun
 			break
 		}
 		if err != nil {
-			if err := r.rejected(name(path, sg.member), err); err != nil {
+			if err := r.rejected(ingest.Where(path, sg.member), err); err != nil {
 				return nil, err
 			}
 			continue
@@ -367,7 +368,7 @@ func (r *run) rejected(where string, err error) error {
 // and counts it as read.
 func (r *run) accepted(s *sounding.Sounding) {
 	if info, ok := r.opt.Stations[s.StationID]; ok {
-		applyStation(s, info)
+		info.Fill(s)
 	}
 	r.mu.Lock()
 	r.sum.SoundingsRead++
@@ -425,11 +426,6 @@ func (w *spillWriter) close() error {
 	return w.w.Flush()
 }
 
-// soundingReader is what every format's reader offers.
-type soundingReader interface {
-	Next() (*sounding.Sounding, error)
-}
-
 // readMember decodes one file or archive member and hands each sounding to
 // emit. Errors from the reader for single soundings or lines are reported
 // through skip and reading continues; a reader that keeps failing is
@@ -437,8 +433,9 @@ type soundingReader interface {
 func (r *run) readMember(ctx context.Context, path, member string, rd io.Reader, emit func(*sounding.Sounding) error) error {
 	br := bufio.NewReaderSize(rd, 1<<16)
 	prefix, _ := br.Peek(4096)
-	where := name(path, member)
-	fr, err := openReader(r.opt.Format, prefix, br, path, member, r.note, &r.opt)
+	where := ingest.Where(path, member)
+	fr, err := formats.Open(r.opt.Format, prefix, br, path, member,
+		formats.Options{Stations: r.opt.Stations, Note: func(n formats.Note) { r.note(Skip(n)) }})
 	if err != nil {
 		r.skip(Skip{Where: where, Reason: reasonOf(err), Detail: err.Error()})
 		return nil
@@ -490,22 +487,6 @@ func reasonOf(err error) string {
 		}
 	}
 	return "unreadable"
-}
-
-// applyStation fills metadata the source did not carry.
-func applyStation(s *sounding.Sounding, info StationInfo) {
-	if s.StationName == "" {
-		s.StationName = info.Name
-	}
-	if s.LatitudeDeg != s.LatitudeDeg { // NaN
-		s.LatitudeDeg = info.LatitudeDeg
-	}
-	if s.LongitudeDeg != s.LongitudeDeg {
-		s.LongitudeDeg = info.LongitudeDeg
-	}
-	if s.ElevationM != s.ElevationM {
-		s.ElevationM = info.ElevationM
-	}
 }
 
 // reportReading logs the reading progress every ProgressEvery until the

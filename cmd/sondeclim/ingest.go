@@ -15,7 +15,8 @@ import (
 
 	"github.com/sondeclim/sondeclim/analyze"
 	"github.com/sondeclim/sondeclim/engine"
-	"github.com/sondeclim/sondeclim/ingest/archivev2"
+	"github.com/sondeclim/sondeclim/ingest"
+	"github.com/sondeclim/sondeclim/ingest/formats"
 	"github.com/sondeclim/sondeclim/schema/store"
 )
 
@@ -68,7 +69,7 @@ skipped.`,
 		c.stderr)
 	storeDir := fs.String("store", "", "store `directory` to write (created if absent)")
 	workers := fs.Int("workers", runtime.NumCPU(), "files read, station-years analysed and station-years written at once (results do not depend on it)")
-	format := fs.String("format", "", "force the input `format` instead of detecting it ("+strings.Join(engine.FormatNames(), ", ")+")")
+	format := fs.String("format", "", "force the input `format` instead of detecting it ("+strings.Join(formats.Names(), ", ")+")")
 	stations := fs.String("stations", "", "station list `file` (archive-v2 layout) for names, positions and elevations")
 	quiet := fs.Bool("quiet", false, "print only warnings and the summary's last line (for schedulers)")
 	full := fs.Bool("full", false, "ignore what was ingested before and rebuild every partition from the inputs given")
@@ -229,23 +230,14 @@ func sortedKeys(m map[string]int) []string {
 }
 
 // loadStations reads a station list; lines it cannot parse are logged.
-func loadStations(path string, log *slog.Logger) (map[string]engine.StationInfo, error) {
-	f, err := os.Open(path)
+func loadStations(path string, log *slog.Logger) (map[string]ingest.Station, error) {
+	m, bad, err := formats.LoadStationList(path)
 	if err != nil {
-		return nil, fmt.Errorf("ingest: station list: %w", err)
+		return nil, fmt.Errorf("ingest: %w", err)
 	}
-	defer f.Close()
-	list, err := archivev2.ReadStations(f)
-	if err != nil {
-		if len(list) == 0 {
-			return nil, fmt.Errorf("ingest: station list %s: %w", path, err)
-		}
+	if bad != nil {
 		// Good lines are kept; each rejected line is named.
-		log.Warn("station list lines skipped", "file", path, "errors", err.Error())
-	}
-	m := make(map[string]engine.StationInfo, len(list))
-	for id, s := range list {
-		m[id] = engine.StationInfo{Name: s.Name, LatitudeDeg: s.LatitudeDeg, LongitudeDeg: s.LongitudeDeg, ElevationM: s.ElevationM}
+		log.Warn("station list lines skipped", "file", path, "errors", bad.Error())
 	}
 	log.Info("station list read", "file", path, "stations", len(m))
 	return m, nil

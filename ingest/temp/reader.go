@@ -26,13 +26,8 @@ var ErrNoDate = errors.New("TEMP gives only the day: set a reference time or put
 // exist in the reference month.
 var ErrBadDate = errors.New("day of month not valid in the reference month")
 
-// Station is what a station list knows about a station.
-type Station struct {
-	Name         string
-	LatitudeDeg  float64 // degrees north
-	LongitudeDeg float64 // degrees east
-	ElevationM   float64 // m above mean sea level
-}
+// Station is what a station list knows about a station (ingest.Station).
+type Station = ingest.Station
 
 // Options configure a Reader. The zero value is usable when the file name
 // carries a date.
