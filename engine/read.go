@@ -124,6 +124,10 @@ func (r *run) stageFile(ctx context.Context, path string, fi int, spill string, 
 		r.mu.Unlock()
 		io.WriteString(sum, member+"\x00")
 		return r.readMember(ctx, path, member, io.TeeReader(rd, sum), func(s *sounding.Sounding) error {
+			if err := store.CheckStationID(s.StationID); err != nil {
+				r.badStation(s, err)
+				return nil
+			}
 			if !r.opt.Shard.Owns(s.StationID) {
 				r.mu.Lock()
 				r.sum.OtherShards++
@@ -292,6 +296,10 @@ func (ix *indexer) member(rd io.Reader, member string, base int64) error {
 		if err := ix.ctx.Err(); err != nil {
 			return err
 		}
+		if store.CheckStationID(sg.StationID) != nil {
+			// The ordinary path rejects each such sounding with its line.
+			return errNotInPlace
+		}
 		if !ix.r.opt.Shard.Owns(sg.StationID) {
 			ix.otherShards += sg.Headers
 			return nil
@@ -373,6 +381,16 @@ func (r *run) accepted(s *sounding.Sounding) {
 	r.mu.Lock()
 	r.sum.SoundingsRead++
 	r.mu.Unlock()
+}
+
+// badStation rejects a decoded sounding whose station identifier cannot be
+// stored (store.CheckStationID), naming its source line; the rest of the
+// input goes on. It was counted as read, so the count is taken back.
+func (r *run) badStation(s *sounding.Sounding, err error) {
+	r.mu.Lock()
+	r.sum.SoundingsRead--
+	r.mu.Unlock()
+	r.skip(Skip{Where: s.Source.String(), Reason: "bad_station_id", Detail: s.Source.String() + ": " + err.Error()})
 }
 
 // writeError marks failures of the staging area (the store's disk), which

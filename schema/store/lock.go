@@ -94,8 +94,10 @@ func Clean(dir string, sh Shard, m *Manifest) ([]string, error) {
 				return err
 			}
 			if d.IsDir() {
-				if st, ok := strings.CutPrefix(d.Name(), "station="); ok && !sh.Owns(st) {
-					return fs.SkipDir
+				if v, ok := strings.CutPrefix(d.Name(), "station="); ok {
+					if st, err := UnescapeStation(v); err != nil || !sh.Owns(st) {
+						return fs.SkipDir // another shard's, or not the store's
+					}
 				}
 				return nil
 			}

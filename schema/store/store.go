@@ -4,7 +4,7 @@
 //
 // Layout of a store directory:
 //
-//	TABLE/station=ID/year=YYYY/part-HASH.parquet   table data (Hive partitions)
+//	TABLE/station=ID/year=YYYY/part-HASH.parquet   table data (Hive partitions; ID escaped, see EscapeStation)
 //	_sondeclim/manifest-SHARD.json                  committed state of one shard
 //	_sondeclim/lock-SHARD                           writer lock of one shard
 //
@@ -146,9 +146,10 @@ func SplitPartitionKey(k string) (station string, year int, err error) {
 }
 
 // PartitionDir returns the directory of a station-year of a table,
-// relative to the store.
+// relative to the store; the station is escaped (EscapeStation), so any
+// identifier CheckStationID accepts gives a directory inside the table's.
 func PartitionDir(table, station string, year int) string {
-	return filepath.Join(table, "station="+station, "year="+strconv.Itoa(year))
+	return filepath.Join(table, "station="+EscapeStation(station), "year="+strconv.Itoa(year))
 }
 
 func manifestPath(dir string, sh Shard) string {
