@@ -59,6 +59,7 @@ func ExampleMarkdown() {
 	//
 	// Each table is a directory of Parquet files (zstd-compressed for levels, Snappy for the other tables), one per station and year:
 	// `TABLE/station=ID/year=YYYY/part-HASH.parquet` (the files a store's manifest lists). Missing values are null.
+	// In the directory name, ID is the station identifier with every byte other than an ASCII letter, digit, `-` or `_` written as `%XX` (percent-encoding, RFC 3986 §2.1), so `A.B/1` is stored under `station=A%2EB%2F1`; every file also holds the identifier itself in `station_id`, which queries should use.
 	//
 	// ## ascents
 	//
