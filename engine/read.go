@@ -368,8 +368,22 @@ func (r *run) rejected(where string, err error) error {
 	if !errors.As(err, &pe) {
 		return fmt.Errorf("%s: %w", where, err)
 	}
-	r.skip(Skip{Where: where, Reason: reasonOf(err), Detail: err.Error()})
+	s := Skip{Where: where, Reason: reasonOf(err), Detail: err.Error()}
+	if isRemark(err) {
+		r.note(s)
+		return nil
+	}
+	r.skip(s)
 	return nil
+}
+
+// isRemark reports whether a reader's error loses no data: a report that
+// carries none (NIL parts are dropped by the readers themselves; parts
+// with only regional remarks come here), or a sounding read except for
+// groups the reader names. Remarks are counted in Summary.Notes and do
+// not make the run's exit code say that input was skipped.
+func isRemark(err error) bool {
+	return errors.Is(err, ingest.ErrNoData) || errors.Is(err, ingest.ErrPartlyDecoded)
 }
 
 // accepted completes a sounding's station metadata from the station list
@@ -499,6 +513,7 @@ func reasonOf(err error) string {
 		{ingest.ErrUnknownInput, "unknown_format"},
 		{ingest.ErrNoData, "no_data"},
 		{ingest.ErrUnsupported, "unsupported"},
+		{ingest.ErrPartlyDecoded, "read_in_part"},
 	} {
 		if errors.Is(err, k.e) {
 			return k.name

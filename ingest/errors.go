@@ -45,3 +45,9 @@ var (
 	ErrNoData       = errors.New("report carries no level data")
 	ErrUnsupported  = errors.New("recognised but not supported by this reader")
 )
+
+// ErrPartlyDecoded is wrapped in a ParseError that accompanies a sounding
+// which was read except for some groups the reader does not decode (named
+// in the message). The sounding itself is returned separately; callers
+// count this as a remark on the input, not as skipped input.
+var ErrPartlyDecoded = errors.New("report read in part")

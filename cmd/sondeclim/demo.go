@@ -37,6 +37,7 @@ run gives the same numbers); the station and its setting do not exist.`,
 	years := fs.Int("years", 5, "number of years to generate")
 	seed := fs.Uint64("seed", 1, "random seed of the invented weather")
 	workers := fs.Int("workers", runtime.NumCPU(), "soundings analysed at once")
+	logFormat := logFlag(fs)
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
@@ -55,7 +56,10 @@ run gives the same numbers); the station and its setting do not exist.`,
 	cfg := synth.DefaultConfig()
 	cfg.Seed, cfg.Years = *seed, *years
 	st := cfg.Station()
-	log := slog.New(slog.NewTextHandler(c.stderr, &slog.HandlerOptions{Level: slog.LevelInfo}))
+	log, err := newLogger(c.stderr, *logFormat, slog.LevelInfo)
+	if err != nil {
+		return err
+	}
 	path, n, err := synth.WriteFile(archive, cfg)
 	if err != nil {
 		return fmt.Errorf("demo: %w", err)

@@ -5,7 +5,10 @@ import (
 	"flag"
 	"fmt"
 	"io"
+	"log/slog"
 	"strings"
+
+	"github.com/sondeclim/sondeclim/internal/clilog"
 )
 
 // errHelp is returned when -h was asked for; the usage text was printed.
@@ -39,3 +42,18 @@ func parseFlags(fs *flag.FlagSet, args []string) error {
 
 // caution is printed under every report for people.
 const caution = "Caution: estimates from soundings; for regulatory, air-quality or burn decisions defer to local regulations and licensed meteorological practice."
+
+// logFlag adds --log, the format of the records written to stderr.
+func logFlag(fs *flag.FlagSet) *string {
+	return fs.String("log", clilog.Human, "`format` of log records on stderr: "+clilog.Human+" (one readable line each) or "+clilog.JSON+" (one JSON object each, for log collectors)")
+}
+
+// newLogger returns the logger of a command, or a usage error for an
+// unknown --log format.
+func newLogger(w io.Writer, format string, level slog.Level) (*slog.Logger, error) {
+	log, err := clilog.New(w, format, level)
+	if err != nil {
+		return nil, fmt.Errorf("--log: %v: %w", err, errUsage)
+	}
+	return log, nil
+}

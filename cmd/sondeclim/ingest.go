@@ -43,9 +43,12 @@ partitioned by station and year. A PATH may be a file, a directory (walked recur
 a glob; plain, .gz and .zip inputs are read as streams. The format is
 detected from the content (--format overrides).
 
+The run's summary goes to stdout; warnings and progress go to stderr.
 Input that cannot be read is reported on stderr as file:line: reason, and
 the rest of the file and the other files still go through. The exit code is
-3 when anything was skipped.
+3 when anything was skipped, that is when data was lost. Reports that carry
+no data (NIL parts, parts holding only regional remarks) and reports read
+except for named groups are remarks: counted as notes, exit code 0.
 
 Ingestion is incremental and safe to run from a scheduler: inputs with the
 same size and modification time as at the last run are not read again; a
@@ -57,8 +60,8 @@ last, so a run killed at any moment leaves the store as it was, and
 queries running meanwhile see a consistent store. A second ingest into the
 same store is refused (or waits, with --wait).
 
-Exit codes: 0 done; 1 could not run; 2 usage error; 3 done, some input
-skipped.`,
+Exit codes: 0 done (notes on input allowed); 1 could not run; 2 usage
+error; 3 done, but some input was skipped (data lost).`,
 		`  sondeclim ingest --store ./store USM00072403-data.txt.zip
   sondeclim ingest --store ./store --workers 2 archive/
   sondeclim ingest --store ./store --stations igra2-station-list.txt 'data/*-data.txt.gz'
@@ -79,6 +82,7 @@ skipped.`,
 	useSuspect := fs.Bool("use-suspect", false, "let the analysis use values quality control flags as suspect (bad values are never used)")
 	cpuProfile := fs.String("cpuprofile", "", "write a CPU profile to `file` (for performance work: go tool pprof FILE)")
 	summaryJSON := fs.String("summary-json", "", "write a machine-readable summary of the run to `file`")
+	logFormat := logFlag(fs)
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
@@ -95,7 +99,10 @@ skipped.`,
 	if *quiet {
 		level = slog.LevelWarn
 	}
-	log := slog.New(slog.NewTextHandler(c.stderr, &slog.HandlerOptions{Level: level}))
+	log, err := newLogger(c.stderr, *logFormat, level)
+	if err != nil {
+		return fmt.Errorf("ingest: %w", err)
+	}
 	sh, err := store.ParseShard(*shard)
 	if err != nil {
 		return fmt.Errorf("ingest: %v: %w", err, errUsage)
@@ -154,11 +161,12 @@ skipped.`,
 	return nil
 }
 
-// printSummary writes the run's summary to stderr (data goes to the store).
+// printSummary writes the run's summary to stdout (the store holds the
+// data; warnings went to stderr).
 func printSummary(c *ingestCmd, s *engine.Summary, store string, quiet bool) {
 	skipped := len(s.Skipped)
 	if !quiet {
-		tw := tabwriter.NewWriter(c.stderr, 0, 4, 2, ' ', 0)
+		tw := tabwriter.NewWriter(c.stdout, 0, 4, 2, ' ', 0)
 		row := func(k string, v any) { fmt.Fprintf(tw, "%s\t%v\n", k, v) }
 		row("input files", len(s.Inputs))
 		row("  unchanged since the last run", s.InputsUnchanged)
@@ -187,15 +195,22 @@ func printSummary(c *ingestCmd, s *engine.Summary, store string, quiet bool) {
 			row("  skipped: "+k, by[k])
 		}
 		if len(s.Notes) > 0 {
-			row("notes on input", len(s.Notes))
+			row("notes on input (no data lost)", len(s.Notes))
+			nb := map[string]int{}
+			for _, n := range s.Notes {
+				nb[n.Reason]++
+			}
+			for _, k := range sortedKeys(nb) {
+				row("  note: "+k, nb[k])
+			}
 		}
 		row("soundings in the store", s.Soundings)
 		row("store", store)
 		row("elapsed", fmt.Sprintf("%.1f s", s.Elapsed.Seconds()))
 		tw.Flush()
 	}
-	fmt.Fprintf(c.stderr, "ingest: %d soundings new, %d replaced; %d in the store; %d input items skipped\n",
-		s.SoundingsNew, s.SoundingsReplaced, s.Soundings, skipped)
+	fmt.Fprintf(c.stdout, "ingest: %d soundings new, %d replaced; %d in the store; %d input items skipped, %d notes\n",
+		s.SoundingsNew, s.SoundingsReplaced, s.Soundings, skipped, len(s.Notes))
 }
 
 // writeSummaryJSON writes the run summary (or the error that stopped the

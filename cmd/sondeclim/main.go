@@ -23,7 +23,7 @@ const (
 	exitOK      = 0 // everything asked was done
 	exitFailure = 1 // the command could not run (bad store, unwritable output, …)
 	exitUsage   = 2 // wrong flags or arguments
-	exitSkipped = 3 // done, but some input was skipped (see the summary)
+	exitSkipped = 3 // done, but some input was skipped: data was lost (see the summary)
 )
 
 // errUsage marks errors that are the caller's wording, answered with exit 2.
@@ -132,8 +132,12 @@ Start here:
   sondeclim ingest --store ./store data/*.txt.zip # your archive files
   sondeclim climatology --store ./store
 
-Exit codes: 0 done; 1 could not run; 2 usage error; 3 done, but some input
-was skipped (each skipped item is named with file and line on stderr).
+Results and run summaries go to stdout; warnings and progress to stderr
+(--log json on the commands that log, for log collectors).
+
+Exit codes: 0 done (remarks on input, such as NIL reports, allowed); 1 could
+not run; 2 usage error; 3 done, but some input was skipped and its data lost
+(each skipped item is named with file and line on stderr).
 
 Results are estimates from soundings. For regulatory, air-quality or burn
 decisions defer to local regulations and licensed meteorological practice.

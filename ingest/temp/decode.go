@@ -19,6 +19,9 @@ const (
 	partC              // TTCC
 	partD              // TTDD
 	pilotB             // PPBB
+	pilotA             // PPAA
+	pilotC             // PPCC
+	pilotD             // PPDD
 	numParts
 )
 
@@ -43,6 +46,10 @@ type report struct {
 	line    int // line of the part identifier
 	rank    int
 	order   int
+	// partial, when not nil, says which groups at the end of the report
+	// were left out (wrapping ingest.ErrPartlyDecoded); the levels before
+	// them are kept.
+	partial error
 }
 
 // level is a decoded level together with the part it came from.
@@ -52,7 +59,7 @@ type level struct {
 }
 
 // errSkip marks reports that are dropped without an error (NIL, unknown
-// or undecoded parts, no data).
+// parts).
 var errSkip = errors.New("report skipped")
 
 // partOf returns the part of an identifier group such as "TTAA".
@@ -74,10 +81,14 @@ func partOf(s string) (p part, known, decoded bool) {
 		}
 	case "PP":
 		switch s[2:] {
+		case "AA":
+			return pilotA, true, true
 		case "BB":
 			return pilotB, true, true
-		case "AA", "CC", "DD":
-			return 0, true, false
+		case "CC":
+			return pilotC, true, true
+		case "DD":
+			return pilotD, true, true
 		}
 	case "UU", "II", "XX":
 		// TEMP SHIP, MOBIL and DROP carry a position section instead of a
@@ -129,7 +140,9 @@ func decodeReport(raw rawReport, o *Options) (*report, error) {
 		err = rep.decodeStandard(body)
 	case partB, partD:
 		err = rep.decodeSignificant(body)
-	case pilotB:
+	case pilotA, pilotC:
+		err = rep.decodePilotStandard(body)
+	case pilotB, pilotD:
 		err = rep.decodePilot(body, o.pilotUnit())
 	}
 	if err != nil {

@@ -16,13 +16,20 @@
 //     winds by pressure (21212) and section 31313.
 //   - Part C (TTCC) and Part D (TTDD): the same above 100 hPa; Part D
 //     pressures are in tenths of hPa.
-//   - PILOT Part B (PPBB): winds at heights, stored as wind-only levels
-//     (see the assumption on units below). PILOT parts A, C and D (PPAA,
-//     PPCC, PPDD) are read but not decoded: they are skipped silently.
+//   - PILOT Parts A and C (PPAA, PPCC): winds at the standard isobaric
+//     surfaces (groups 44nP1P1 or 55nP1P1) and the maximum wind.
+//   - PILOT Parts B and D (PPBB, PPDD): winds at heights, stored as
+//     wind-only levels (see the assumption on units below); height groups
+//     9tnu1u2u3 (10·tn + u units) and 1tnu1u2u3 (100 + 10·tn + u units).
+//     Groups with indicator 8, which some stations send above 30 km, are
+//     not decoded: the levels below them are kept and the report is
+//     returned with a remark (ingest.ErrPartlyDecoded).
 //
 // Regional sections (51515 … 59595 and 61616 …) and the cloud group of
-// 41414 are skipped. Reports marked NIL and reports without any level are
-// dropped without an error.
+// 41414 are skipped. Reports marked NIL are dropped without an error;
+// reports without any level (only regional remarks) are returned as a
+// *ingest.ParseError wrapping ingest.ErrNoData, which callers count as a
+// remark: no data is lost with them.
 //
 // # Merging and corrections
 //
@@ -50,7 +57,7 @@
 //
 // # PILOT heights (assumption)
 //
-// In PPBB groups 9tnu1u2u3 the altitude is (10·tn + ui) units. This package
+// In PPBB and PPDD groups 9tnu1u2u3 the altitude is (10·tn + ui) units. This package
 // takes the unit to be 1000 ft (304.8 m) above mean sea level, as used by
 // the North American stations that send PILOT parts instead of 21212. The
 // evidence is in the data themselves: at high stations (Salt Lake City

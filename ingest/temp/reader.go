@@ -160,6 +160,11 @@ func (rd *Reader) decode(data []byte) []item {
 			return []item{{line: 0, err: &ingest.ParseError{File: rd.file, Offset: -1, Err: ErrNoDate}}}
 		}
 		for _, k := range keys {
+			for _, rep := range groups[k] {
+				if rep != nil && rep.partial != nil {
+					items = append(items, item{line: rep.line, err: rd.parseError(rep.line, rep.partial)})
+				}
+			}
 			s, line, err := rd.build(k, groups[k], ref)
 			if err != nil {
 				items = append(items, item{line: line, err: rd.parseError(line, err)})
