@@ -65,6 +65,13 @@ func TestFindInversions(t *testing.T) {
 		{"merge 100 m", InversionConfig{MergeGapM: 100}, []want{{0, 300, 7.0}, {1000, 1200, 1.0}}},
 		{"no merge", InversionConfig{}, []want{{0, 150, 5.0}, {220, 300, 2.5}, {1000, 1200, 1.0}}},
 		{"min 1.5 K", InversionConfig{MergeGapM: 100, MinStrengthK: 1.5}, []want{{0, 300, 7.0}}},
+		// The default significance rule (0.5 K, 10 m; these levels are
+		// coarse, so two levels suffice) keeps both layers of METHODS §9.
+		{"defaults", DefaultConfig().Inversion, []want{{0, 300, 7.0}, {1000, 1200, 1.0}}},
+		// Without merging, a 0.5 K minimum still keeps the 2.5 K layer;
+		// a 300 m minimum depth keeps only the merged SBI (300 m deep).
+		{"no merge, 0.5 K", InversionConfig{MinStrengthK: 0.5}, []want{{0, 150, 5.0}, {220, 300, 2.5}, {1000, 1200, 1.0}}},
+		{"min depth 300 m", InversionConfig{MergeGapM: 100, MinDepthM: 300}, []want{{0, 300, 7.0}}},
 	}
 	for _, tt := range tests {
 		got := findInversions(z, tk, len(z), tt.cfg)
@@ -78,6 +85,44 @@ func TestFindInversions(t *testing.T) {
 				t.Errorf("%s layer %d: %v–%v m ΔT %.2f, want %+v", tt.name, i, z[g.base], z[g.top], tk[g.top]-tk[g.base], w)
 			}
 		}
+	}
+	// Significance rule on a weak layer: +0.3 K over 40 m at 600–640 m is
+	// below the 0.5 K default (common practice, no source) and is dropped;
+	// with the minimum set to 0 it is an inversion.
+	zw := []float64{0, 200, 600, 640, 1000}
+	tw := []float64{280, 278, 274, 274.3, 271}
+	if got := findInversions(zw, tw, len(zw), DefaultConfig().Inversion); len(got) != 0 {
+		t.Errorf("0.3 K layer kept by the default rule: %v", got)
+	}
+	if got := findInversions(zw, tw, len(zw), InversionConfig{}); len(got) != 1 {
+		t.Errorf("0.3 K layer not found with the rule off: %v", got)
+	}
+	// Resolution: a 10 m-spaced (high-resolution) profile cooling 0.1 K
+	// per record, with a real 1 K inversion over 200–240 m (5 records) and
+	// a single record 0.9 K warm at 600 m. That record makes a two-level
+	// "layer" of +0.9 K over 10 m; in a fine profile the rule asks for 3
+	// levels and drops it, while the real layer stays.
+	var zf, tf []float64
+	for k := 0; k <= 100; k++ {
+		zf = append(zf, float64(10*k))
+		tf = append(tf, 285-0.01*float64(10*k))
+	}
+	for k := 21; k <= 100; k++ {
+		if k <= 24 {
+			tf[k] = tf[20] + 0.25*float64(k-20)
+		} else {
+			tf[k] = 285 - 0.01*float64(10*k) + 1.4
+		}
+	}
+	tf[60] = tf[59] + 0.9
+	got := findInversions(zf, tf, len(zf), DefaultConfig().Inversion)
+	if len(got) != 1 || zf[got[0].base] != 200 || zf[got[0].top] != 240 {
+		t.Errorf("fine profile: layers %v, want one 200–240 m", got)
+	}
+	fine := DefaultConfig().Inversion
+	fine.MinLevelsFine = 0
+	if got := findInversions(zf, tf, len(zf), fine); len(got) != 2 {
+		t.Errorf("fine profile with the level test off: %d layers, want 2 (the spike too)", len(got))
 	}
 	// Same profile through Analyze, as a sounding with pressures from the
 	// USSA76 pressure altitude (METHODS §1.7) and reported heights:

@@ -67,10 +67,34 @@ type InversionConfig struct {
 	// thinner than this are merged. Default 100 m (METHODS §3.2 step 4,
 	// the Kahl 1990 refinement; value from memory there). 0 disables.
 	MergeGapM float64
-	// MinStrengthK and MinDepthM: layers weaker or thinner are discarded
-	// after merging. Defaults 0 K and 0 m (METHODS §3.2 step 5, proposal).
+	// Significance rule (METHODS §3.2 step 5), applied after merging: a
+	// layer is an inversion only when it rises at least MinStrengthK over
+	// at least MinDepthM, and, in a finely resolved profile, spans at least
+	// MinLevelsFine levels. Layers below the rule are not inversions
+	// anywhere: not in sbi_*, ei_*, the inversions table, the frequencies
+	// or the elevated-inversion-base mixing height.
+	//
+	// MinStrengthK: default 0.5 K (common practice, no source; no published
+	// threshold was found). It is five times the 0.1 K to which archive and
+	// TEMP temperatures are reported, so a layer cannot pass on rounding
+	// alone; TEMP significant levels do not resolve much weaker inversions
+	// anyway (METHODS §3.2, §7.1).
 	MinStrengthK float64
-	MinDepthM    float64
+	// MinDepthM: default 10 m (common practice, no source): about what a
+	// sonde rising 5 m/s covers in the 2 s between high-resolution records,
+	// so a thinner layer is below the data's vertical resolution.
+	MinDepthM float64
+	// FineSpacingM and MinLevelsFine make the rule aware of the profile's
+	// resolution: when the median spacing of the searched levels is below
+	// FineSpacingM (a high-resolution profile, not significant levels), a
+	// layer must hold at least MinLevelsFine levels, base and top included,
+	// so that one noisy record cannot make an inversion. In coarse profiles
+	// two levels suffice: significant levels are placed at the base and top
+	// of every inversion by the reporting rules (WMO-No. 306, METHODS §7.1).
+	// Defaults 50 m and 3 levels (common practice, no source). MinLevelsFine
+	// ≤ 2 disables the test.
+	FineSpacingM  float64
+	MinLevelsFine int
 	// Classes holds the thresholds of the inversion class rules.
 	Classes InversionClassConfig
 }
@@ -140,11 +164,12 @@ func DefaultConfig() Config {
 		CoverageTopPa:     70000,
 		MaxSurfaceGapM:    100,
 		Sun:               sun.DefaultThresholds(),
-		Inversion: InversionConfig{MergeGapM: 100, Classes: InversionClassConfig{
-			RadiationMaxWindMS: 5, RadiationMorningBeforeH: 12,
-			SubsidenceMinDPDIncreaseK: 3, SubsidenceMaxRHChangePct: -20,
-			FrontalMaxDPDChangeK: 0, FrontalMinVeeringDeg: 30, CappingToleranceM: 100,
-		}},
+		Inversion: InversionConfig{MergeGapM: 100, MinStrengthK: 0.5, MinDepthM: 10,
+			FineSpacingM: 50, MinLevelsFine: 3, Classes: InversionClassConfig{
+				RadiationMaxWindMS: 5, RadiationMorningBeforeH: 12,
+				SubsidenceMinDPDIncreaseK: 3, SubsidenceMaxRHChangePct: -20,
+				FrontalMaxDPDChangeK: 0, FrontalMinVeeringDeg: 30, CappingToleranceM: 100,
+			}},
 		MixedLayer: MixedLayerConfig{
 			MaxThetaVRangeK:         1.0,
 			MaxMixingRatioRangeKgKg: 0.001,

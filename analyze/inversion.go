@@ -2,6 +2,7 @@ package analyze
 
 import (
 	"math"
+	"sort"
 
 	"github.com/sondeclim/sondeclim/physics/sun"
 	"github.com/sondeclim/sondeclim/physics/thermo"
@@ -82,8 +83,9 @@ type layerSpan struct{ base, top int }
 // t in K, sorted upward, only the first n levels searched) by the
 // Kahl-type algorithm of METHODS §3.2: mark inverted adjacent pairs, group
 // maximal runs, merge runs separated by a gap thinner than MergeGapM, then
-// discard layers weaker than MinStrengthK or thinner than MinDepthM. NaN
-// temperatures break runs.
+// keep only the layers that pass the significance rule (MinStrengthK,
+// MinDepthM, and MinLevelsFine in finely resolved profiles; see
+// InversionConfig). NaN temperatures break runs.
 func findInversions(z, t []float64, n int, cfg InversionConfig) []layerSpan {
 	var runs []layerSpan
 	for k := 0; k+1 < n; k++ {
@@ -106,13 +108,35 @@ func findInversions(z, t []float64, n int, cfg InversionConfig) []layerSpan {
 		}
 		merged = append(merged, r)
 	}
+	minLevels := 2
+	if cfg.MinLevelsFine > 2 && medianSpacing(z, n) < cfg.FineSpacingM {
+		minLevels = cfg.MinLevelsFine
+	}
 	kept := merged[:0]
 	for _, r := range merged {
-		if t[r.top]-t[r.base] >= cfg.MinStrengthK && z[r.top]-z[r.base] >= cfg.MinDepthM {
+		if t[r.top]-t[r.base] >= cfg.MinStrengthK && z[r.top]-z[r.base] >= cfg.MinDepthM && r.top-r.base+1 >= minLevels {
 			kept = append(kept, r)
 		}
 	}
 	return kept
+}
+
+// medianSpacing returns the median height difference in m between
+// consecutive levels among the first n of z (NaN for fewer than 2).
+func medianSpacing(z []float64, n int) float64 {
+	if n < 2 {
+		return math.NaN()
+	}
+	d := make([]float64, 0, n-1)
+	for k := 0; k+1 < n; k++ {
+		d = append(d, z[k+1]-z[k])
+	}
+	sort.Float64s(d)
+	m := len(d) / 2
+	if len(d)%2 == 0 {
+		return (d[m-1] + d[m]) / 2
+	}
+	return d[m]
 }
 
 // inversionFrom fills an Inversion from a profile span (searched levels

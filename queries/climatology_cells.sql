@@ -1,8 +1,7 @@
 -- Boundary-layer climatology per cell: station × period (season or month)
 -- × time of day (nominal hour or sun class).
 --
--- Source: the CTE `sample` (climatology_sample.sql, placed in front by Go)
--- and the inversions view (classes of elevated inversions).
+-- Source: the CTE `sample` (climatology_sample.sql, placed in front by Go).
 -- Parameters (the sample is built first, with its own, as a temporary
 -- table named sample):
 --   $1  'season' or 'month', as $1 of climatology_sample.sql
@@ -20,7 +19,15 @@
 --   sbi_median_strength_k          K; median strength where an SBI occurs
 --   sbi_median_depth_m             m; median depth (= top above ground) where an SBI occurs
 --   ei_frequency                   fraction of valid soundings with at least one elevated inversion
---   ei_<class>_frequency           the same for class subsidence, frontal, capping, unclassified
+--   ei_<class>_frequency           fraction whose lowest elevated inversion has class subsidence,
+--                                  frontal, capping or unclassified
+--
+-- Which frequencies may overlap: every inversion is one that passes the
+-- significance rule of the analysis (analyze.InversionConfig) and has
+-- exactly one class. The four ei_<class>_frequency are exclusive (one
+-- class per sounding, that of its lowest elevated inversion) and add up to
+-- ei_frequency. sbi_frequency and ei_frequency overlap: one sounding may
+-- hold a surface-based and an elevated inversion, so their sum may exceed 1.
 --   ml_frequency                   fraction of valid soundings with a well-mixed layer
 --   ml_depth_p25/p50/p75_m         m; depth of the lowest mixed layer where there is one
 --   ml_theta_median_k              K; median of its mass-weighted mean potential temperature
@@ -37,17 +44,7 @@
 -- Percentiles are quantile_cont: Hyndman & Fan type 7, h = (n-1)p on 0-based
 -- sorted x, linear interpolation. A statistic over no values is null;
 -- frequencies are null when n_valid = 0.
-, ei AS (
-    SELECT station_id, launch_time,
-        bool_or(class = 'subsidence') AS ei_subsidence,
-        bool_or(class = 'frontal') AS ei_frontal,
-        bool_or(class = 'capping') AS ei_capping,
-        bool_or(class = 'unclassified') AS ei_unclassified
-    FROM inversions
-    WHERE NOT surface_based
-    GROUP BY station_id, launch_time
-),
-a AS (
+, a AS (
     -- Percentiles of one quantity are computed together (a list), which
     -- keeps one copy of the values per cell instead of one per percentile.
     SELECT
@@ -61,11 +58,11 @@ a AS (
         count(*) FILTER (WHERE x.valid AND x.sbi_present)::DOUBLE / nullif(count(*) FILTER (WHERE x.valid), 0) AS sbi_frequency,
         quantile_cont(x.sbi_strength_k, 0.5) FILTER (WHERE x.valid AND x.sbi_present) AS sbi_median_strength_k,
         quantile_cont(x.sbi_top_agl_m, 0.5) FILTER (WHERE x.valid AND x.sbi_present) AS sbi_median_depth_m,
-        count(*) FILTER (WHERE x.valid AND ei.launch_time IS NOT NULL)::DOUBLE / nullif(count(*) FILTER (WHERE x.valid), 0) AS ei_frequency,
-        count(*) FILTER (WHERE x.valid AND ei.ei_subsidence)::DOUBLE / nullif(count(*) FILTER (WHERE x.valid), 0) AS ei_subsidence_frequency,
-        count(*) FILTER (WHERE x.valid AND ei.ei_frontal)::DOUBLE / nullif(count(*) FILTER (WHERE x.valid), 0) AS ei_frontal_frequency,
-        count(*) FILTER (WHERE x.valid AND ei.ei_capping)::DOUBLE / nullif(count(*) FILTER (WHERE x.valid), 0) AS ei_capping_frequency,
-        count(*) FILTER (WHERE x.valid AND ei.ei_unclassified)::DOUBLE / nullif(count(*) FILTER (WHERE x.valid), 0) AS ei_unclassified_frequency,
+        count(*) FILTER (WHERE x.valid AND coalesce(x.ei_class, '') <> '')::DOUBLE / nullif(count(*) FILTER (WHERE x.valid), 0) AS ei_frequency,
+        count(*) FILTER (WHERE x.valid AND x.ei_class = 'subsidence')::DOUBLE / nullif(count(*) FILTER (WHERE x.valid), 0) AS ei_subsidence_frequency,
+        count(*) FILTER (WHERE x.valid AND x.ei_class = 'frontal')::DOUBLE / nullif(count(*) FILTER (WHERE x.valid), 0) AS ei_frontal_frequency,
+        count(*) FILTER (WHERE x.valid AND x.ei_class = 'capping')::DOUBLE / nullif(count(*) FILTER (WHERE x.valid), 0) AS ei_capping_frequency,
+        count(*) FILTER (WHERE x.valid AND x.ei_class = 'unclassified')::DOUBLE / nullif(count(*) FILTER (WHERE x.valid), 0) AS ei_unclassified_frequency,
         count(*) FILTER (WHERE x.valid AND x.ml_present)::DOUBLE / nullif(count(*) FILTER (WHERE x.valid), 0) AS ml_frequency,
         quantile_cont(x.ml_depth_m, [0.25, 0.50, 0.75]) FILTER (WHERE x.valid AND x.ml_present) AS ml_depth_q,
         quantile_cont(x.mixed_layer_theta_k, 0.5) FILTER (WHERE x.valid AND x.ml_present) AS ml_theta_median_k,
@@ -79,7 +76,6 @@ a AS (
             count(*) FILTER (WHERE x.valid AND x.calendar_month % 3 = 1),
             count(*) FILTER (WHERE x.valid AND x.calendar_month % 3 = 2)) AS n_fewest_month
     FROM sample x
-    LEFT JOIN ei USING (station_id, launch_time)
     GROUP BY ALL
 ),
 c AS (

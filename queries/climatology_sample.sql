@@ -45,6 +45,7 @@ SELECT
     s.sbi_present,
     s.sbi_strength_k,
     s.sbi_top_agl_m,
+    s.ei_class,
     s.mixed_layer_levels > 0 AS ml_present,
     s.mixed_layer_top_agl_m - s.mixed_layer_base_agl_m AS ml_depth_m,
     s.mixed_layer_theta_k,

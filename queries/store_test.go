@@ -87,6 +87,11 @@ func writeStore(t testing.TB, dir string, rows []schema.SoundingRow) string {
 	for i := range rows {
 		rows[i].LaunchTime = rows[i].LaunchTime.Add(time.Duration(i) * time.Second)
 	}
+	if len(rows) > 0 {
+		// The soundings row names the class of its lowest elevated
+		// inversion, the one written to the inversions table below.
+		rows[0].EIBaseAGLM, rows[0].EITopAGLM, rows[0].EIStrengthK, rows[0].EIClass = 900, 1100, 2, "subsidence"
+	}
 	if _, err := schema.WriteTable(dir, schema.TableSoundings, rows); err != nil {
 		t.Fatal(err)
 	}
