@@ -364,7 +364,7 @@ func (r *run) buildPartition(key string, st *staged, prev *store.Partition) (_ *
 	p := &store.Partition{ContentHash: hash, Files: map[string]string{},
 		Inputs: slices.Sorted(maps.Keys(contributors))}
 	fileName := "part-" + hash[:16] + ".parquet"
-	for _, t := range tables {
+	for _, t := range schema.TableNames() {
 		p.Files[t] = filepath.Join(store.PartitionDir(t, station, year), fileName)
 	}
 	if prev != nil && prev.ContentHash == hash && filesExist(r.dir, prev.Files) {
@@ -404,54 +404,47 @@ func (r *run) buildPartition(key string, st *staged, prev *store.Partition) (_ *
 		res.sounding.DuplicateChoice = d.reason
 		results[i] = res
 		srows[i] = res.sounding
-		if res.status != "ok" {
+		if res.status != analyze.StatusOK {
 			stats.notAnalysable[res.status]++
 		}
 	}
-	lrows, irows, mrows, hrows, qrows := rows.levels, rows.inv, rows.mixed, rows.heights, rows.findings
-	arows := afternoonRows(results, r.opt.DailyMaxima, analyze.DefaultPairingConfig())
+	batch := map[string]schema.Writer{
+		schema.TableSoundings:     schema.Slice(srows),
+		schema.TableLevels:        rows.levels,
+		schema.TableInversions:    schema.Slice(rows.inv),
+		schema.TableMixedLayers:   schema.Slice(rows.mixed),
+		schema.TableMixingHeights: schema.Slice(rows.heights),
+		schema.TableAfternoon:     schema.Slice(afternoonRows(results, r.opt.DailyMaxima, analyze.DefaultPairingConfig())),
+		schema.TableQCFindings:    schema.Slice(rows.findings),
+	}
 	r.stage("analysis", t0)
 	if err := r.compareWithPrevious(prev, srows, stats); err != nil {
 		return nil, stats, nil, err
 	}
-	return p, stats, func() error { return r.writePartition(p, stats, srows, lrows, irows, mrows, hrows, arows, qrows) }, nil
+	return p, stats, func() error { return r.writePartition(p, stats, batch) }, nil
 }
 
-// writePartition writes the files of partition p and counts them in stats.
-func (r *run) writePartition(p *store.Partition, stats *buildStats, srows []schema.SoundingRow, lrows *schema.Rows[schema.LevelRow],
-	irows []schema.InversionRow, mrows []schema.MixedLayerRow, hrows []schema.MixingHeightRow, arows []schema.AfternoonRow,
-	qrows []schema.QCFindingRow) error {
+// writePartition writes the files of partition p, one per registered
+// table in registry order, and counts them in stats. The first error stops
+// it.
+func (r *run) writePartition(p *store.Partition, stats *buildStats, batch map[string]schema.Writer) error {
 	defer r.stage("write", time.Now())
 	stats.rows = map[string]int{}
-	write := func(table string, n int, w func(path string) error) error {
-		if err := w(filepath.Join(r.dir, p.Files[table])); err != nil {
+	for _, table := range schema.TableNames() {
+		rows, ok := batch[table]
+		if !ok {
+			return fmt.Errorf("no rows collected for table %s", table)
+		}
+		if err := rows.WriteFile(filepath.Join(r.dir, p.Files[table]), table, false); err != nil {
 			return err
 		}
-		stats.rows[table] += n
+		stats.rows[table] += rows.Len()
 		stats.files = append(stats.files, p.Files[table])
-		return nil
-	}
-	for _, err := range []error{
-		write(schema.TableSoundings, len(srows), func(f string) error { return schema.WriteFile(f, schema.TableSoundings, srows, false) }),
-		write(schema.TableLevels, lrows.Len(), func(f string) error { return schema.WriteRows(f, schema.TableLevels, lrows, false) }),
-		write(schema.TableInversions, len(irows), func(f string) error { return schema.WriteFile(f, schema.TableInversions, irows, false) }),
-		write(schema.TableMixedLayers, len(mrows), func(f string) error { return schema.WriteFile(f, schema.TableMixedLayers, mrows, false) }),
-		write(schema.TableMixingHeights, len(hrows), func(f string) error { return schema.WriteFile(f, schema.TableMixingHeights, hrows, false) }),
-		write(schema.TableAfternoon, len(arows), func(f string) error { return schema.WriteFile(f, schema.TableAfternoon, arows, false) }),
-		write(schema.TableQCFindings, len(qrows), func(f string) error { return schema.WriteFile(f, schema.TableQCFindings, qrows, false) }),
-	} {
-		if err != nil {
-			return err
-		}
 	}
 	stats.written = true
 	pauseAt("written")
 	return nil
 }
-
-// tables lists the store's tables; every partition has one file in each.
-var tables = []string{schema.TableSoundings, schema.TableLevels, schema.TableInversions,
-	schema.TableMixedLayers, schema.TableMixingHeights, schema.TableAfternoon, schema.TableQCFindings}
 
 // compareWithPrevious counts new, replaced, unchanged and removed
 // soundings against the partition's previous soundings file.

@@ -54,7 +54,7 @@ const (
 	kindPtrBool
 	kindPtrInt32
 	kindPtrString
-	kindEnum // a string field tagged enum:"a,b,…": written as a dictionary column
+	kindEnum // a string field tagged enum:"a,b,…" or naming a dictionary vocabulary: written as a dictionary column
 )
 
 var (
@@ -140,18 +140,26 @@ func columnsOf(t reflect.Type) ([]Column, error) {
 		if !ok {
 			return nil, fmt.Errorf("schema: %s: unsupported Go type %v for column %q", where, f.Type, name)
 		}
-		doc, ok := expandDoc(f.Tag.Get("doc"), f.Tag.Get("values"))
-		if !ok {
-			return nil, fmt.Errorf("schema: %s: unknown vocabulary %q in values tag", where, f.Tag.Get("values"))
+		c := Column{Name: name, Type: typ, Nullable: nullable, Doc: f.Tag.Get("doc"), field: i, offset: f.Offset, kind: kind}
+		values, isEnum := f.Tag.Lookup("enum")
+		var list []string
+		if isEnum {
+			list = strings.Split(values, ",")
 		}
-		c := Column{Name: name, Type: typ, Nullable: nullable, Doc: doc, field: i, offset: f.Offset, kind: kind}
-		if values, ok := f.Tag.Lookup("enum"); ok {
+		if vname, ok := f.Tag.Lookup("values"); ok {
+			v, ok := vocabOf(vname)
+			if !ok || isEnum {
+				return nil, fmt.Errorf("schema: %s: unknown vocabulary %q in values tag, or an enum tag beside it", where, vname)
+			}
+			c.Doc = strings.ReplaceAll(c.Doc, "{values}", v.doc)
+			isEnum, list, values = v.dict, v.values, strings.Join(v.values, ",")
+		}
+		if isEnum {
 			if kind != kindString || values == "" {
 				return nil, fmt.Errorf("schema: %s: an enum tag needs a string field and at least one value", where)
 			}
 			c.kind, c.Nullable, c.enum = kindEnum, true, map[string]int{}
 			c.Type = &arrow.DictionaryType{IndexType: arrow.PrimitiveTypes.Int16, ValueType: arrow.BinaryTypes.String}
-			list := strings.Split(values, ",")
 			for k, v := range list {
 				c.enum[v] = k
 			}

@@ -16,49 +16,6 @@ type TableDoc struct {
 	Columns     []Column // as returned by Columns
 }
 
-// Tables returns the documentation of the store's tables, in the order
-// soundings, levels, inversions, mixed_layers, mixing_heights,
-// afternoon_mixing, qc_findings.
-func Tables() ([]TableDoc, error) {
-	var out []TableDoc
-	add := func(name, desc string, cols []Column, err error) error {
-		if err != nil {
-			return err
-		}
-		out = append(out, TableDoc{Name: name, Description: desc, Columns: cols})
-		return nil
-	}
-	s, err := Columns[SoundingRow]()
-	if err := add(TableSoundings, "One row per radiosonde ascent (one per station and launch time: duplicates are merged): identity, source, surface values and boundary-layer diagnostics.", s, err); err != nil {
-		return nil, err
-	}
-	l, err := Columns[LevelRow]()
-	if err := add(TableLevels, "One row per level of an ascent: observed and derived values with their status.", l, err); err != nil {
-		return nil, err
-	}
-	i, err := Columns[InversionRow]()
-	if err := add(TableInversions, "One row per temperature inversion layer below the search ceiling, lowest first, with its class.", i, err); err != nil {
-		return nil, err
-	}
-	m, err := Columns[MixedLayerRow]()
-	if err := add(TableMixedLayers, "One row per well-mixed layer below the search ceiling, lowest first, with mass-weighted mean potential temperature and mixing ratio.", m, err); err != nil {
-		return nil, err
-	}
-	h, err := Columns[MixingHeightRow]()
-	if err := add(TableMixingHeights, "One row per ascent and mixing-height method, whatever the status, so failures are counted rather than hidden.", h, err); err != nil {
-		return nil, err
-	}
-	a, err := Columns[AfternoonRow]()
-	if err := add(TableAfternoon, "One row per station and local day with a morning ascent: the afternoon mixing height from the morning profile and the day's maximum temperature (Holzworth).", a, err); err != nil {
-		return nil, err
-	}
-	q, err := Columns[QCFindingRow]()
-	if err := add(TableQCFindings, "One row per quality-control finding: the check, the level and variable, the severity, the value and what was wrong. Soundings without findings have no rows.", q, err); err != nil {
-		return nil, err
-	}
-	return out, nil
-}
-
 // Markdown writes a Markdown document describing tables: a title with the
 // schema version and the file layout, then per table a section with its
 // description and a table of columns (name, SQL type as read by DuckDB,

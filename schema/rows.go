@@ -9,7 +9,11 @@ import "time"
 //   - float64 NaN is written as null;
 //   - a pointer field (*int32, *bool, *string) is null when nil;
 //   - time.Time is a UTC timestamp with microsecond precision;
-//   - string, bool, int32, int64 and float64 are written as they are.
+//   - string, bool, int32, int64 and float64 are written as they are;
+//   - a string field tagged `values:"NAME"` takes its allowed values from
+//     the Go type or registry that defines them (vocab.go): a closed set
+//     (level kinds, value statuses, QC flags) is written as a dictionary
+//     column, and "{values}" in its doc tag is replaced by the list.
 //
 // Display units (hPa, °C, g/kg) are used in the tables because the tables are
 // the pipeline's output edge; the column name always carries the unit.
@@ -175,7 +179,7 @@ type LevelRow struct {
 	LaunchTime time.Time `col:"launch_time" doc:"UTC; launch time of the sounding this level belongs to"`
 	Year       int32     `col:"year" doc:"calendar year of the sounding's nominal time"`
 	Index      int32     `col:"level_index" doc:"0-based position of the level in the source order"`
-	Kind       string    `col:"level_kind" enum:"significant,surface,standard,wind_only" doc:"surface, standard, significant or wind_only"`
+	Kind       string    `col:"level_kind" values:"level_kind" doc:"surface, standard, significant or wind_only"`
 	SourceLine int64     `col:"source_line" doc:"1-based line of the level in the source file (0 if not line-oriented)"`
 
 	ElapsedS       float64 `col:"elapsed_s" doc:"s since release"`
@@ -191,13 +195,31 @@ type LevelRow struct {
 	ThetaK         float64 `col:"theta_k" doc:"K; potential temperature, T (1000 hPa / p)^kappa"`
 	MixingRatioGKg float64 `col:"mixing_ratio_gkg" doc:"g/kg; water-vapour mixing ratio from dewpoint and pressure"`
 
-	TemperatureStatus string `col:"temperature_status" enum:"reported,missing,removed_upstream,derived" doc:"reported, missing, removed_upstream or derived"`
-	HeightStatus      string `col:"height_status" enum:"reported,missing,removed_upstream,derived" doc:"reported, missing, removed_upstream or derived"`
-	HumidityStatus    string `col:"humidity_status" enum:"reported,missing,removed_upstream,derived" doc:"status of the dewpoint depression (reported, missing, removed_upstream or derived)"`
+	TemperatureStatus string `col:"temperature_status" values:"value_status" doc:"reported, missing, removed_upstream or derived"`
+	HeightStatus      string `col:"height_status" values:"value_status" doc:"reported, missing, removed_upstream or derived"`
+	HumidityStatus    string `col:"humidity_status" values:"value_status" doc:"status of the dewpoint depression (reported, missing, removed_upstream or derived)"`
 
-	PressureQC    string `col:"pressure_qc" enum:"good,missing,suspect,bad,corrected" doc:"quality-control flag of the pressure: good, suspect, bad, missing or corrected"`
-	HeightQC      string `col:"height_qc" enum:"good,missing,suspect,bad,corrected" doc:"quality-control flag of the height"`
-	TemperatureQC string `col:"temperature_qc" enum:"good,missing,suspect,bad,corrected" doc:"quality-control flag of the temperature (derived values use the corrected value when corrected)"`
-	HumidityQC    string `col:"humidity_qc" enum:"good,missing,suspect,bad,corrected" doc:"quality-control flag of the humidity (dewpoint depression)"`
-	WindQC        string `col:"wind_qc" enum:"good,missing,suspect,bad,corrected" doc:"quality-control flag of the wind speed"`
+	PressureQC    string `col:"pressure_qc" values:"qc_flag" doc:"quality-control flag of the pressure: good, suspect, bad, missing or corrected"`
+	HeightQC      string `col:"height_qc" values:"qc_flag" doc:"quality-control flag of the height"`
+	TemperatureQC string `col:"temperature_qc" values:"qc_flag" doc:"quality-control flag of the temperature (derived values use the corrected value when corrected)"`
+	HumidityQC    string `col:"humidity_qc" values:"qc_flag" doc:"quality-control flag of the humidity (dewpoint depression)"`
+	WindQC        string `col:"wind_qc" values:"qc_flag" doc:"quality-control flag of the wind speed"`
+}
+
+// QCFindingRow is one row of the `qc_findings` table: one finding of the
+// quality control of one sounding (package qc), about one value, one level
+// or the whole sounding. Soundings without findings have no rows; their
+// status is in the soundings table.
+type QCFindingRow struct {
+	StationID   string    `col:"station_id" doc:"station identifier"`
+	LaunchTime  time.Time `col:"launch_time" doc:"UTC; launch time of the sounding the finding belongs to (joins soundings on station_id, launch_time)"`
+	Year        int32     `col:"year" doc:"calendar year of the sounding's nominal time"`
+	Index       int32     `col:"level_index" doc:"0-based position of the level in the source order (as in levels.level_index); -1 for a finding about the whole sounding"`
+	PressureHPa float64   `col:"pressure_hpa" doc:"hPa; pressure of the level as reported, null for wind-only levels and whole-sounding findings"`
+	Variable    string    `col:"variable" doc:"variable the finding is about: pressure, height, temperature, relative_humidity, dewpoint_depression, wind_direction, wind_speed, elapsed_time; level for the whole level, sounding for the whole sounding"`
+	Check       string    `col:"qc_check" doc:"check that produced the finding: structure, upstream_removed, gross_limit, dewpoint_above_temperature, near_surface_wind, pressure_order, hydrostatic, height_order, temperature_spike, superadiabatic, cold_humidity, surface_pressure or coverage"`
+	Severity    string    `col:"severity" doc:"suspect, bad or corrected (bad values are never used; suspect ones only on request; corrected ones are used with corrected_value)"`
+	Value       float64   `col:"value" doc:"the value as observed, in the display unit of its variable: hPa, gpm, degC, %, K (dewpoint depression), degrees, m/s or s; null when none"`
+	Corrected   float64   `col:"corrected_value" doc:"the corrected value in the same unit as value, for severity corrected; null otherwise"`
+	Message     string    `col:"message" doc:"what was wrong, for people, with the numbers the check used"`
 }

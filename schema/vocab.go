@@ -1,28 +1,67 @@
 package schema
 
 import (
+	"fmt"
 	"strings"
 
 	"github.com/sondeclim/sondeclim/analyze"
+	"github.com/sondeclim/sondeclim/qc"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
-// vocabularies are the fixed vocabularies whose values are defined by the
-// package that owns them, not written out in the row structs. A field
-// tagged `values:"NAME"` gets vocabularies[NAME]() in place of "{values}" in
-// its doc tag.
-var vocabularies = map[string]func() string{
-	"mixing_height_method": analyze.MethodsDoc,
+// vocabulary is a fixed set of values of a column, defined by the package
+// that owns the values (a typed enum's String, a registry), not written out
+// in the row structs.
+type vocabulary struct {
+	values []string // in the order of the Go constants
+	doc    string   // replaces "{values}" in the doc tag; default: values joined by ", "
+	// dict columns are written as dictionary indices into values (a value
+	// outside them is an error); the others as plain strings.
+	dict bool
 }
 
-// expandDoc returns the doc tag with its vocabulary filled in; ok is false
-// for an unknown vocabulary name.
-func expandDoc(doc, vocab string) (string, bool) {
-	if vocab == "" {
-		return doc, true
+// vocabularies are the vocabularies a field may name in a `values:"NAME"`
+// tag.
+var vocabularies = map[string]func() vocabulary{
+	"mixing_height_method": func() vocabulary {
+		return vocabulary{values: analyze.MethodNames(), doc: analyze.MethodsDoc()}
+	},
+	"level_kind": func() vocabulary {
+		return vocabulary{values: enumNames(sounding.KindSignificant, sounding.KindWindOnly), dict: true}
+	},
+	"value_status": func() vocabulary {
+		return vocabulary{values: enumNames(sounding.Reported, sounding.Derived), dict: true}
+	},
+	"qc_flag": func() vocabulary {
+		return vocabulary{values: enumNames(qc.Good, qc.Corrected), dict: true}
+	},
+}
+
+// enumNames returns the String of every value of an integer enum from
+// first to last.
+func enumNames[E interface {
+	~uint8
+	fmt.Stringer
+}](first, last E) []string {
+	var out []string
+	for v := first; ; v++ {
+		out = append(out, v.String())
+		if v >= last {
+			return out
+		}
 	}
-	f, ok := vocabularies[vocab]
+}
+
+// vocabOf returns the vocabulary a `values` tag names; ok is false for an
+// unknown name.
+func vocabOf(name string) (vocabulary, bool) {
+	f, ok := vocabularies[name]
 	if !ok {
-		return "", false
+		return vocabulary{}, false
 	}
-	return strings.ReplaceAll(doc, "{values}", f()), true
+	v := f()
+	if v.doc == "" {
+		v.doc = strings.Join(v.values, ", ")
+	}
+	return v, true
 }

@@ -18,15 +18,8 @@ import (
 	"github.com/apache/arrow-go/v18/parquet/pqarrow"
 )
 
-// Table names and partitioning of the store.
+// Partitioning of the store (the tables are in tables.go).
 const (
-	TableSoundings     = "soundings"        // rows of SoundingRow
-	TableLevels        = "levels"           // rows of LevelRow
-	TableInversions    = "inversions"       // rows of InversionRow
-	TableMixedLayers   = "mixed_layers"     // rows of MixedLayerRow
-	TableMixingHeights = "mixing_heights"   // rows of MixingHeightRow
-	TableAfternoon     = "afternoon_mixing" // rows of AfternoonRow
-
 	StationColumn  = "station_id" // column that selects the station partition
 	YearColumn     = "year"       // column that selects the year partition
 	StationKey     = "station"    // Hive key of the station directory level
@@ -67,7 +60,7 @@ type partition struct {
 // (int32 or int64) columns, which T must have (see Columns). Rows of one
 // partition keep their given order; sorting is the caller's job. Each file
 // is compressed (zstd for the levels table, Snappy for the others: see
-// compactTables), in row groups of up to 131 072 rows, written under a temporary name in its
+// Table.Compact), in row groups of up to 131 072 rows, written under a temporary name in its
 // directory, synced, and renamed into place, so a reader never sees a
 // partial file. An existing file of the same partition is replaced;
 // partitions absent from rows are left alone. The partition columns are also
@@ -166,6 +159,9 @@ func WriteFile[T any](path, table string, rows []T, sync bool) error {
 	if !tableName.MatchString(table) {
 		return fmt.Errorf("schema: table name %q is not a lower-case identifier", table)
 	}
+	if err := checkRowType(table, reflect.TypeFor[T]()); err != nil {
+		return err
+	}
 	idx := make([]int, len(rows))
 	for i := range idx {
 		idx[i] = i
@@ -184,6 +180,9 @@ func WriteFile[T any](path, table string, rows []T, sync bool) error {
 func WriteRows[T any](path, table string, rows *Rows[T], sync bool) error {
 	if !tableName.MatchString(table) {
 		return fmt.Errorf("schema: table name %q is not a lower-case identifier", table)
+	}
+	if err := checkRowType(table, reflect.TypeFor[T]()); err != nil {
+		return err
 	}
 	if _, err := writePartition(filepath.Dir(path), filepath.Base(path), arrowSchema(table, rows.cols), rows.cols, rows.arrays, sync); err != nil {
 		return fmt.Errorf("schema: table %s: %w", table, err)
@@ -314,24 +313,16 @@ func encode(w *bufio.Writer, sc *arrow.Schema, cols []Column, arrays func() ([]a
 	return fw.WriteBuffered(rec)
 }
 
-// compactTables are compressed with zstd; the others with Snappy.
-//
-// The levels table holds nine tenths of a store's bytes and is read a few
-// columns at a time, so the better compression pays. The other tables are
-// small and queries read them whole: a climatology over 600 station-years
-// reads some 25 columns of 600 soundings files, thousands of small column
-// chunks, and Snappy's cheaper decompression made it about 0.3 s faster
-// (of 1.9 s) for 1 % more store.
-var compactTables = map[string]bool{TableLevels: true}
-
 // codecOf returns the compression of the table whose schema is sc (the
 // table name is in its metadata, see arrowSchema).
 func codecOf(sc *arrow.Schema) compress.Compression {
 	md := sc.Metadata()
-	if i := md.FindKey(TableKey); i >= 0 && !compactTables[md.Values()[i]] {
-		return compress.Codecs.Snappy
+	if i := md.FindKey(TableKey); i >= 0 {
+		if t, ok := LookupTable(md.Values()[i]); ok && t.Compact {
+			return compress.Codecs.Zstd
+		}
 	}
-	return compress.Codecs.Zstd
+	return compress.Codecs.Snappy
 }
 
 // ReadVersion returns the schema version recorded in the key-value metadata
