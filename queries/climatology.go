@@ -16,7 +16,7 @@ var sqlFiles embed.FS
 func statement(name string) (string, error) {
 	b, err := sqlFiles.ReadFile(name)
 	if err != nil {
-		return "", fmt.Errorf("queries: embedded SQL %s: %w", name, err)
+		return "", fmt.Errorf("embedded SQL %s: %w", name, err)
 	}
 	return string(b), nil
 }
@@ -65,10 +65,10 @@ func (o ClimatologyOptions) normalized() (ClimatologyOptions, error) {
 		o.Time = ByHour
 	}
 	if o.By != BySeason && o.By != ByMonth {
-		return o, fmt.Errorf("climatology: period %q: want %s or %s", o.By, BySeason, ByMonth)
+		return o, fmt.Errorf("period %q: want %s or %s", o.By, BySeason, ByMonth)
 	}
 	if o.Time != ByHour && o.Time != BySun {
-		return o, fmt.Errorf("climatology: time of day %q: want %s or %s", o.Time, ByHour, BySun)
+		return o, fmt.Errorf("time of day %q: want %s or %s", o.Time, ByHour, BySun)
 	}
 	if o.MinSoundings == 0 {
 		o.MinSoundings = MinSeasonSoundings
@@ -80,10 +80,10 @@ func (o ClimatologyOptions) normalized() (ClimatologyOptions, error) {
 		o.MinTail = MinTailSoundings
 	}
 	if o.MinSoundings < 0 || o.MinTail < 0 {
-		return o, fmt.Errorf("climatology: minimum sample sizes must not be negative")
+		return o, fmt.Errorf("minimum sample sizes must not be negative")
 	}
 	if o.FirstYear != 0 && o.LastYear != 0 && o.FirstYear > o.LastYear {
-		return o, fmt.Errorf("climatology: first year %d is after last year %d", o.FirstYear, o.LastYear)
+		return o, fmt.Errorf("first year %d is after last year %d", o.FirstYear, o.LastYear)
 	}
 	return o, nil
 }
@@ -132,7 +132,7 @@ func ClimatologyOf(ctx context.Context, db *sql.DB, o ClimatologyOptions) (*Clim
 	// once), and each statement reads it.
 	conn, err := db.Conn(ctx)
 	if err != nil {
-		return nil, fmt.Errorf("climatology: %w", err)
+		return nil, fmt.Errorf("%w", err)
 	}
 	defer conn.Close()
 	sample, err := statement("climatology_sample.sql")
@@ -267,7 +267,7 @@ func (ct *ClimatologyTables) Table(name string) (*Table, error) {
 	case "all":
 		return ct.withCategories(ct.withMethods(ct.Cells)), nil
 	}
-	return nil, fmt.Errorf("climatology: unknown view %q (one of %s)", name, strings.Join(ClimatologyViews, ", "))
+	return nil, fmt.Errorf("unknown view %q (one of %s)", name, strings.Join(ClimatologyViews, ", "))
 }
 
 // keyOf returns the key of row r of t: the values of the columns keys

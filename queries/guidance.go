@@ -58,7 +58,7 @@ func (g *GuidanceTables) Table(name string) (*Table, error) {
 	case "ventilation":
 		return g.Ventilation, nil
 	}
-	return nil, fmt.Errorf("guidance: unknown table %q", name)
+	return nil, fmt.Errorf("unknown table %q", name)
 }
 
 // normalized fills defaults and checks o.
@@ -77,13 +77,13 @@ func (o GuidanceOptions) normalized() (GuidanceOptions, error) {
 	}
 	switch {
 	case len(o.SBIClassesK) == 0 || !slices.IsSorted(o.SBIClassesK) || hasDup(o.SBIClassesK):
-		return o, fmt.Errorf("guidance: SBI class limits must be ascending and distinct, got %v", o.SBIClassesK)
+		return o, fmt.Errorf("SBI class limits must be ascending and distinct, got %v", o.SBIClassesK)
 	case len(o.BelowM) == 0 || slices.ContainsFunc(o.BelowM, func(h float64) bool { return !(h > 0) }):
-		return o, fmt.Errorf("guidance: heights to stay below must be positive, got %v", o.BelowM)
+		return o, fmt.Errorf("heights to stay below must be positive, got %v", o.BelowM)
 	case !(o.TmaxStepC > 0):
-		return o, fmt.Errorf("guidance: the maximum-temperature step must be positive, got %v", o.TmaxStepC)
+		return o, fmt.Errorf("the maximum-temperature step must be positive, got %v", o.TmaxStepC)
 	case o.MinDays < 0:
-		return o, fmt.Errorf("guidance: minimum days must not be negative")
+		return o, fmt.Errorf("minimum days must not be negative")
 	}
 	o.BelowM = slices.Clone(o.BelowM)
 	slices.Sort(o.BelowM)

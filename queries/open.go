@@ -44,14 +44,14 @@ var viewName = regexp.MustCompile(`^[a-z][a-z0-9_]*$`)
 func Open(ctx context.Context, storeDir string) (*sql.DB, error) {
 	abs, err := filepath.Abs(storeDir)
 	if err != nil {
-		return nil, fmt.Errorf("queries: store %s: %w", storeDir, err)
+		return nil, fmt.Errorf("store %s: %w", storeDir, err)
 	}
 	if strings.ContainsAny(abs, "*?[]{}") {
-		return nil, fmt.Errorf("queries: store %s: path contains glob characters", abs)
+		return nil, fmt.Errorf("store %s: path contains glob characters", abs)
 	}
 	listed, haveManifest, err := store.TableFiles(abs)
 	if err != nil {
-		return nil, fmt.Errorf("queries: %w", err)
+		return nil, fmt.Errorf("%w", err)
 	}
 	var tables []table
 	if haveManifest {
@@ -73,19 +73,19 @@ func Open(ctx context.Context, storeDir string) (*sql.DB, error) {
 		return err
 	})
 	if err != nil {
-		return nil, fmt.Errorf("queries: open DuckDB: %w", err)
+		return nil, fmt.Errorf("open DuckDB: %w", err)
 	}
 	db := sql.OpenDB(conn)
 	for _, m := range macros() {
 		if _, err := db.ExecContext(ctx, m); err != nil {
 			db.Close()
-			return nil, fmt.Errorf("queries: create macro: %w", err)
+			return nil, fmt.Errorf("create macro: %w", err)
 		}
 	}
 	for _, t := range tables {
 		if _, err := db.ExecContext(ctx, viewDDL(abs, t)); err != nil {
 			db.Close()
-			return nil, fmt.Errorf("queries: create view %s over %s: %w", t.name, filepath.Join(abs, t.name), err)
+			return nil, fmt.Errorf("create view %s over %s: %w", t.name, filepath.Join(abs, t.name), err)
 		}
 	}
 	return db, nil
@@ -110,7 +110,7 @@ func manifestTables(store string, listed map[string][]string) ([]table, error) {
 		tables = append(tables, table{name: name, partitioned: true, files: files})
 	}
 	if len(tables) == 0 {
-		return nil, fmt.Errorf("queries: store %s has no tables (its manifest lists no files)", store)
+		return nil, fmt.Errorf("store %s has no tables (its manifest lists no files)", store)
 	}
 	sort.Slice(tables, func(i, j int) bool { return tables[i].name < tables[j].name })
 	return tables, nil
@@ -120,7 +120,7 @@ func manifestTables(store string, listed map[string][]string) ([]table, error) {
 func findTables(store string) ([]table, error) {
 	entries, err := os.ReadDir(store)
 	if err != nil {
-		return nil, fmt.Errorf("queries: store: %w", err)
+		return nil, fmt.Errorf("store: %w", err)
 	}
 	var tables []table
 	for _, e := range entries {
@@ -130,13 +130,13 @@ func findTables(store string) ([]table, error) {
 		dir := filepath.Join(store, e.Name())
 		first, err := firstParquet(dir)
 		if err != nil {
-			return nil, fmt.Errorf("queries: store: %w", err)
+			return nil, fmt.Errorf("store: %w", err)
 		}
 		if first == "" {
 			continue
 		}
 		if v, err := schema.ReadVersion(first); err == nil && v != schema.Version {
-			return nil, fmt.Errorf("queries: %s was written with table schema version %d; this sondeclim reads version %d: "+
+			return nil, fmt.Errorf("%s was written with table schema version %d; this sondeclim reads version %d: "+
 				"ingest the inputs into a new store directory with this version (sondeclim ingest --store NEWDIR PATH...)", first, v, schema.Version)
 		}
 		rel, _ := filepath.Rel(dir, first)
@@ -147,7 +147,7 @@ func findTables(store string) ([]table, error) {
 		tables = append(tables, table{name: e.Name(), partitioned: partitioned})
 	}
 	if len(tables) == 0 {
-		return nil, fmt.Errorf("queries: store %s has no tables (subdirectories holding *.parquet files)", store)
+		return nil, fmt.Errorf("store %s has no tables (subdirectories holding *.parquet files)", store)
 	}
 	sort.Slice(tables, func(i, j int) bool { return tables[i].name < tables[j].name })
 	return tables, nil

@@ -40,12 +40,12 @@ type queryer interface {
 func queryOn(ctx context.Context, db queryer, query string, args ...any) (*Table, error) {
 	rows, err := db.QueryContext(ctx, query, args...)
 	if err != nil {
-		return nil, fmt.Errorf("queries: %w", err)
+		return nil, fmt.Errorf("%w", err)
 	}
 	defer rows.Close()
 	cols, err := rows.Columns()
 	if err != nil {
-		return nil, fmt.Errorf("queries: %w", err)
+		return nil, fmt.Errorf("%w", err)
 	}
 	t := &Table{Columns: cols}
 	for rows.Next() {
@@ -55,7 +55,7 @@ func queryOn(ctx context.Context, db queryer, query string, args ...any) (*Table
 			ptrs[i] = &vals[i]
 		}
 		if err := rows.Scan(ptrs...); err != nil {
-			return nil, fmt.Errorf("queries: row %d: %w", len(t.Rows)+1, err)
+			return nil, fmt.Errorf("row %d: %w", len(t.Rows)+1, err)
 		}
 		for i, v := range vals {
 			vals[i] = normalize(v)
@@ -63,7 +63,7 @@ func queryOn(ctx context.Context, db queryer, query string, args ...any) (*Table
 		t.Rows = append(t.Rows, vals)
 	}
 	if err := rows.Err(); err != nil {
-		return nil, fmt.Errorf("queries: %w", err)
+		return nil, fmt.Errorf("%w", err)
 	}
 	return t, nil
 }
@@ -217,7 +217,7 @@ func WriteJSON(w io.Writer, t *Table) error {
 			}
 			b, err := json.Marshal(v)
 			if err != nil {
-				return fmt.Errorf("queries: column %s: %w", t.Columns[i], err)
+				return fmt.Errorf("column %s: %w", t.Columns[i], err)
 			}
 			bw.Write(keys[i])
 			bw.WriteString(":")

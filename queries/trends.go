@@ -81,7 +81,7 @@ func Trends(ctx context.Context, db *sql.DB, o TrendOptions) (*TrendTables, erro
 	}
 	unit, ok := TrendMetrics[o.Metric]
 	if !ok {
-		return nil, fmt.Errorf("trends: unknown metric %q", o.Metric)
+		return nil, fmt.Errorf("unknown metric %q", o.Metric)
 	}
 	if o.Coverage == 0 {
 		o.Coverage = DefaultTrendCoverage
@@ -90,7 +90,7 @@ func Trends(ctx context.Context, db *sql.DB, o TrendOptions) (*TrendTables, erro
 		o.MinYears = DefaultMinTrendYears
 	}
 	if !(o.Coverage > 0 && o.Coverage <= 1) || o.MinPerYear < 0 || o.MinYears < 0 {
-		return nil, fmt.Errorf("trends: coverage must be in (0, 1], minimum counts non-negative")
+		return nil, fmt.Errorf("coverage must be in (0, 1], minimum counts non-negative")
 	}
 	st := o.Stations
 	if st == nil {

@@ -110,6 +110,9 @@ behind p10/p90, or (by season) a month with fewer than 10 valid soundings.
 	if err != nil {
 		return fmt.Errorf("climatology: %w", err)
 	}
+	if sum, err := ct.Table("summary"); err == nil && len(sum.Rows) == 0 {
+		return noMatch(ctx, db, "climatology", stations, *years)
+	}
 	people := *format == "text" || *format == "markdown"
 	if *out != "" {
 		return writeViews(c.stdout, *out, "climatology", ext, queries.ClimatologyViews, ct.Table, write)

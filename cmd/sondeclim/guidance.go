@@ -102,6 +102,15 @@ Percentiles: Hyndman-Fan type 7; surface counts as 0 m.`,
 	if err != nil {
 		return fmt.Errorf("guidance: %v: %w", err, errUsage)
 	}
+	empty := true
+	for _, v := range queries.GuidanceViews {
+		if t, err := g.Table(v); err == nil && len(t.Rows) > 0 {
+			empty = false
+		}
+	}
+	if empty {
+		return noMatch(ctx, db, "guidance", stations, *years)
+	}
 	if *out != "" {
 		return writeViews(c.stdout, *out, "guidance", ext, queries.GuidanceViews, g.Table, write)
 	}

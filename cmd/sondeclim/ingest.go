@@ -170,7 +170,7 @@ func printSummary(c *ingestCmd, s *engine.Summary, store string, quiet bool) {
 		row := func(k string, v any) { fmt.Fprintf(tw, "%s\t%v\n", k, v) }
 		row("input files", len(s.Inputs))
 		row("  unchanged since the last run", s.InputsUnchanged)
-		row("  read (files and archive members)", fmt.Sprintf("%d (%d)", s.InputsRead, s.Members))
+		row("  read (files, members)", fmt.Sprintf("%d (%d)", s.InputsRead, s.Members))
 		if s.StationLists > 0 {
 			row("  station lists", s.StationLists)
 		}
@@ -178,11 +178,11 @@ func printSummary(c *ingestCmd, s *engine.Summary, store string, quiet bool) {
 		if s.OtherShards > 0 {
 			row("  belonging to other shards", s.OtherShards)
 		}
-		row("  duplicates merged (same station and launch time)", s.DuplicatesMerged)
-		row("soundings new / replaced / unchanged / removed",
+		row("  duplicates merged (station, launch)", s.DuplicatesMerged)
+		row("soundings new/replaced/unchanged/removed",
 			fmt.Sprintf("%d / %d / %d / %d", s.SoundingsNew, s.SoundingsReplaced, s.SoundingsUnchanged, s.SoundingsRemoved))
 		for _, k := range sortedKeys(s.NotAnalysable) {
-			row("  written but not analysable: "+k, s.NotAnalysable[k])
+			row("  not analysable: "+k, s.NotAnalysable[k])
 		}
 		row("partitions written / unchanged", fmt.Sprintf("%d / %d", s.PartitionsWritten, s.PartitionsUnchanged))
 		if s.PartitionsDropped > 0 {
@@ -205,9 +205,9 @@ func printSummary(c *ingestCmd, s *engine.Summary, store string, quiet bool) {
 			}
 		}
 		row("soundings in the store", s.Soundings)
-		row("store", store)
 		row("elapsed", fmt.Sprintf("%.1f s", s.Elapsed.Seconds()))
 		tw.Flush()
+		fmt.Fprintf(c.stdout, "store: %s\n", store)
 	}
 	fmt.Fprintf(c.stdout, "ingest: %d soundings new, %d replaced; %d in the store; %d input items skipped, %d notes\n",
 		s.SoundingsNew, s.SoundingsReplaced, s.Soundings, skipped, len(s.Notes))

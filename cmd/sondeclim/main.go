@@ -16,6 +16,10 @@ import (
 	"sort"
 	"strings"
 	"syscall"
+
+	"github.com/sondeclim/sondeclim/engine"
+	"github.com/sondeclim/sondeclim/internal/buildinfo"
+	"github.com/sondeclim/sondeclim/schema/store"
 )
 
 // Exit codes shared by every subcommand.
@@ -24,6 +28,7 @@ const (
 	exitFailure = 1 // the command could not run (bad store, unwritable output, …)
 	exitUsage   = 2 // wrong flags or arguments
 	exitSkipped = 3 // done, but some input was skipped: data was lost (see the summary)
+	exitNoMatch = 4 // a filter (--station, --years) matched nothing in the store
 )
 
 // errUsage marks errors that are the caller's wording, answered with exit 2.
@@ -81,6 +86,10 @@ func run(ctx context.Context, args []string, e env) int {
 		}
 		return exitOK
 	}
+	if args[0] == "--version" || args[0] == "-version" || args[0] == "version" {
+		fmt.Fprint(e.stdout, versionText())
+		return exitOK
+	}
 	c, ok := commands[args[0]]
 	if !ok {
 		fmt.Fprintf(e.stderr, "sondeclim: unknown command %q\n\n", args[0])
@@ -98,12 +107,24 @@ func exitCode(e env, err error) int {
 		return exitSkipped
 	case errors.Is(err, errHelp):
 		return exitOK
+	case errors.Is(err, errNoMatch):
+		fmt.Fprintf(e.stderr, "sondeclim: %v\n", err)
+		return exitNoMatch
 	case errors.Is(err, errUsage):
 		fmt.Fprintf(e.stderr, "sondeclim: %v\n", err)
 		return exitUsage
 	}
 	fmt.Fprintf(e.stderr, "sondeclim: %v\n", err)
 	return exitFailure
+}
+
+// versionText names the program's version and the versions of what it
+// writes: the store layout and table schema (a store of another schema
+// version is refused) and the derivation (a store of another derivation
+// version is rebuilt on the next ingest).
+func versionText() string {
+	return fmt.Sprintf("sondeclim %s\nstore schema version %d\nderivation version %d\n",
+		buildinfo.Version(), store.Version, engine.DerivationVersion)
 }
 
 func usage(w io.Writer) {
@@ -125,7 +146,9 @@ Commands:
 		fmt.Fprintf(&b, "  %-12s %s\n", n, commands[n].summary)
 	}
 	b.WriteString(`
-Run "sondeclim <command> -h" for a command's flags and examples.
+Run "sondeclim <command> -h" for a command's flags and examples, and
+"sondeclim --version" for the program, store schema and derivation versions.
+Flags may come before or after a command's arguments.
 
 Start here:
   sondeclim demo                                  # invented station, end to end
@@ -137,7 +160,8 @@ Results and run summaries go to stdout; warnings and progress to stderr
 
 Exit codes: 0 done (remarks on input, such as NIL reports, allowed); 1 could
 not run; 2 usage error; 3 done, but some input was skipped and its data lost
-(each skipped item is named with file and line on stderr).
+(each skipped item is named with file and line on stderr); 4 a filter such as
+--station or --years matched nothing (the message lists what the store holds).
 
 Results are estimates from soundings. For regulatory, air-quality or burn
 decisions defer to local regulations and licensed meteorological practice.

@@ -86,6 +86,9 @@ Metrics: `+strings.Join(metrics, ", ")+`.`,
 	if err != nil {
 		return fmt.Errorf("trends: %w", err)
 	}
+	if len(tt.Yearly.Rows) == 0 {
+		return noMatch(ctx, db, "trends", stations, *years)
+	}
 	t := tt.Trends
 	if *yearly {
 		t = tt.Yearly

@@ -24,7 +24,7 @@ var sqlFiles embed.FS
 func statement(name string) (string, error) {
 	b, err := sqlFiles.ReadFile(name)
 	if err != nil {
-		return "", fmt.Errorf("figures: embedded SQL %s: %w", name, err)
+		return "", fmt.Errorf("embedded SQL %s: %w", name, err)
 	}
 	return string(b), nil
 }
@@ -66,7 +66,7 @@ func LoadStations(ctx context.Context, db *sql.DB) ([]Station, error) {
 	}
 	rows, err := db.QueryContext(ctx, q)
 	if err != nil {
-		return nil, fmt.Errorf("figures: stations: %w", err)
+		return nil, fmt.Errorf("stations: %w", err)
 	}
 	defer rows.Close()
 	var out []Station
@@ -74,13 +74,13 @@ func LoadStations(ctx context.Context, db *sql.DB) ([]Station, error) {
 		var s Station
 		var first, last sql.NullTime
 		if err := rows.Scan(&s.ID, &s.Name, &first, &last, &s.Soundings); err != nil {
-			return nil, fmt.Errorf("figures: stations: %w", err)
+			return nil, fmt.Errorf("stations: %w", err)
 		}
 		s.First, s.Last = first.Time.UTC(), last.Time.UTC()
 		out = append(out, s)
 	}
 	if err := rows.Err(); err != nil {
-		return nil, fmt.Errorf("figures: stations: %w", err)
+		return nil, fmt.Errorf("stations: %w", err)
 	}
 	return out, nil
 }
@@ -99,7 +99,7 @@ func FindStation(ctx context.Context, db *sql.DB, id string) (Station, error) {
 		}
 		ids = append(ids, s.ID)
 	}
-	return Station{}, fmt.Errorf("figures: station %q is not in the store (stations: %s)", id, strings.Join(ids, ", "))
+	return Station{}, fmt.Errorf("station %q is not in the store (stations: %s)", id, strings.Join(ids, ", "))
 }
 
 // Methods returns the mixing-height methods of the store's mixing_heights
@@ -111,14 +111,14 @@ func Methods(ctx context.Context, db *sql.DB) ([]string, error) {
 	}
 	rows, err := db.QueryContext(ctx, q)
 	if err != nil {
-		return nil, fmt.Errorf("figures: methods: %w", err)
+		return nil, fmt.Errorf("methods: %w", err)
 	}
 	defer rows.Close()
 	out := []string{Consensus}
 	for rows.Next() {
 		var m string
 		if err := rows.Scan(&m); err != nil {
-			return nil, fmt.Errorf("figures: methods: %w", err)
+			return nil, fmt.Errorf("methods: %w", err)
 		}
 		out = append(out, m)
 	}
@@ -161,7 +161,7 @@ func LoadMonthlyHeights(ctx context.Context, db *sql.DB, st Station, method stri
 			return nil, err
 		}
 		if !contains(known, method) {
-			return nil, fmt.Errorf("figures: unknown mixing-height method %q (the store has: %s)", method, strings.Join(known, ", "))
+			return nil, fmt.Errorf("unknown mixing-height method %q (the store has: %s)", method, strings.Join(known, ", "))
 		}
 	}
 	q, err := statement("monthly_heights.sql")
@@ -170,7 +170,7 @@ func LoadMonthlyHeights(ctx context.Context, db *sql.DB, st Station, method stri
 	}
 	rows, err := db.QueryContext(ctx, q, st.ID, method)
 	if err != nil {
-		return nil, fmt.Errorf("figures: monthly mixing heights of %s: %w", st.ID, err)
+		return nil, fmt.Errorf("monthly mixing heights of %s: %w", st.ID, err)
 	}
 	defer rows.Close()
 	m := &MonthlyHeights{Station: st, Method: method}
@@ -178,7 +178,7 @@ func LoadMonthlyHeights(ctx context.Context, db *sql.DB, st Station, method stri
 		var b HeightBox
 		var p [5]sql.NullFloat64
 		if err := rows.Scan(&b.Month, &b.Hour, &b.N, &b.Undefined, &p[0], &p[1], &p[2], &p[3], &p[4]); err != nil {
-			return nil, fmt.Errorf("figures: monthly mixing heights of %s: %w", st.ID, err)
+			return nil, fmt.Errorf("monthly mixing heights of %s: %w", st.ID, err)
 		}
 		b.P10, b.P25, b.P50, b.P75, b.P90 = nullNaN(p[0]), nullNaN(p[1]), nullNaN(p[2]), nullNaN(p[3]), nullNaN(p[4])
 		m.Boxes = append(m.Boxes, b)
@@ -333,14 +333,14 @@ func LoadSBIFrequency(ctx context.Context, db *sql.DB, st Station) (*SBIFrequenc
 	}
 	rows, err := db.QueryContext(ctx, q, st.ID)
 	if err != nil {
-		return nil, fmt.Errorf("figures: inversion frequency of %s: %w", st.ID, err)
+		return nil, fmt.Errorf("inversion frequency of %s: %w", st.ID, err)
 	}
 	defer rows.Close()
 	f := &SBIFrequency{Station: st}
 	for rows.Next() {
 		var c FrequencyCell
 		if err := rows.Scan(&c.Month, &c.Hour, &c.Valid, &c.SBI); err != nil {
-			return nil, fmt.Errorf("figures: inversion frequency of %s: %w", st.ID, err)
+			return nil, fmt.Errorf("inversion frequency of %s: %w", st.ID, err)
 		}
 		f.Cells = append(f.Cells, c)
 	}
@@ -406,7 +406,7 @@ func LoadSBIStrength(ctx context.Context, db *sql.DB, st Station) (*SBIStrength,
 	}
 	rows, err := db.QueryContext(ctx, q, st.ID)
 	if err != nil {
-		return nil, fmt.Errorf("figures: inversion strengths of %s: %w", st.ID, err)
+		return nil, fmt.Errorf("inversion strengths of %s: %w", st.ID, err)
 	}
 	defer rows.Close()
 	s := &SBIStrength{Station: st, BySeason: map[string][]float64{}}
@@ -414,7 +414,7 @@ func LoadSBIStrength(ctx context.Context, db *sql.DB, st Station) (*SBIStrength,
 		var season string
 		var k float64
 		if err := rows.Scan(&season, &k); err != nil {
-			return nil, fmt.Errorf("figures: inversion strengths of %s: %w", st.ID, err)
+			return nil, fmt.Errorf("inversion strengths of %s: %w", st.ID, err)
 		}
 		s.BySeason[season] = append(s.BySeason[season], k)
 	}

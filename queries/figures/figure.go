@@ -47,7 +47,7 @@ func (f *Figure) Render(w io.Writer, format string) error {
 	case "svg":
 		cv = vgsvg.New(f.Width, f.Height)
 	default:
-		return fmt.Errorf("figures: unknown image format %q (png or svg)", format)
+		return fmt.Errorf("unknown image format %q (png or svg)", format)
 	}
 	dc := draw.New(cv)
 	if format == "svg" {
@@ -57,7 +57,7 @@ func (f *Figure) Render(w io.Writer, format string) error {
 	f.draw(dc)
 	var buf bytes.Buffer
 	if _, err := cv.WriteTo(&buf); err != nil {
-		return fmt.Errorf("figures: render %s as %s: %w", f.Name, format, err)
+		return fmt.Errorf("render %s as %s: %w", f.Name, format, err)
 	}
 	_, err := w.Write(buf.Bytes())
 	return err

@@ -145,10 +145,10 @@ func LoadProfile(ctx context.Context, db *sql.DB, station string, at time.Time, 
 	var launch time.Time
 	err = db.QueryRowContext(ctx, q, station, at.UTC(), within.Seconds()).Scan(&launch)
 	if errors.Is(err, sql.ErrNoRows) {
-		return nil, fmt.Errorf("figures: %w of station %s within %v of %s", ErrNoSounding, station, within, at.UTC().Format(time.RFC3339))
+		return nil, fmt.Errorf("%w of station %s within %v of %s", ErrNoSounding, station, within, at.UTC().Format(time.RFC3339))
 	}
 	if err != nil {
-		return nil, fmt.Errorf("figures: find sounding of %s: %w", station, err)
+		return nil, fmt.Errorf("find sounding of %s: %w", station, err)
 	}
 	p := &Profile{}
 	steps := []struct {
@@ -163,11 +163,11 @@ func LoadProfile(ctx context.Context, db *sql.DB, station string, at time.Time, 
 	}
 	for _, s := range steps {
 		if err := readRows(ctx, db, s.file, []any{station, launch.UTC()}, s.read); err != nil {
-			return nil, fmt.Errorf("figures: sounding %s %s: %w", station, launch.UTC().Format(time.RFC3339), err)
+			return nil, fmt.Errorf("sounding %s %s: %w", station, launch.UTC().Format(time.RFC3339), err)
 		}
 	}
 	if p.StationID == "" {
-		return nil, fmt.Errorf("figures: sounding %s %s: %w in the soundings table", station, launch.UTC().Format(time.RFC3339), ErrNoSounding)
+		return nil, fmt.Errorf("sounding %s %s: %w in the soundings table", station, launch.UTC().Format(time.RFC3339), ErrNoSounding)
 	}
 	return p, nil
 }

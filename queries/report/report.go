@@ -96,7 +96,7 @@ func Build(ctx context.Context, db *sql.DB, opt Options) (*Report, error) {
 		stations = []figures.Station{st}
 	}
 	if len(stations) == 0 {
-		return nil, fmt.Errorf("report: the store holds no soundings")
+		return nil, fmt.Errorf("the store holds no soundings")
 	}
 	r := &Report{Caution: Caution, Method: method}
 	if len(stations) == 1 {
@@ -106,12 +106,12 @@ func Build(ctx context.Context, db *sql.DB, opt Options) (*Report, error) {
 	}
 	cov, err := queries.Query(ctx, db, coverageSQL, opt.Station)
 	if err != nil {
-		return nil, fmt.Errorf("report: coverage: %w", err)
+		return nil, fmt.Errorf("coverage: %w", err)
 	}
 	r.Coverage = format(cov, "")
 	clim, err := queries.Climatology(ctx, db)
 	if err != nil {
-		return nil, fmt.Errorf("report: %w", err)
+		return nil, fmt.Errorf("%w", err)
 	}
 	r.Climatology = format(clim, opt.Station)
 	for _, st := range stations {
@@ -189,7 +189,7 @@ var page = template.Must(template.New("report").Parse(pageHTML))
 func (r *Report) WriteHTML(w io.Writer) error {
 	var buf bytes.Buffer
 	if err := page.Execute(&buf, r); err != nil {
-		return fmt.Errorf("report: %w", err)
+		return fmt.Errorf("%w", err)
 	}
 	_, err := w.Write(buf.Bytes())
 	return err
