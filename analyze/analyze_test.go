@@ -14,7 +14,7 @@ import (
 func TestAnalyzeTTBB(t *testing.T) {
 	s := ttbb()
 	r := Analyze(s, DefaultConfig())
-	if r.Status != StatusOK || r.SurfaceIndex != 0 || r.ConstantSet != "metpy-like.v1" {
+	if r.Status != StatusOK || r.SurfaceIndex != 0 || r.ConstantSet != "codata2018.v1" {
 		t.Fatalf("status %q surface %d set %q", r.Status, r.SurfaceIndex, r.ConstantSet)
 	}
 	sbi := r.SBI
@@ -221,7 +221,7 @@ func TestAnalyzeParcelTTAA(t *testing.T) {
 // range threshold widened to 5 K so the three levels form one layer, capped
 // by a much warmer 850 hPa level.
 func TestAnalyzeMixedLayer(t *testing.T) {
-	c := thermo.MetPyLike()
+	c := thermo.CODATA2018()
 	mk := func(thetas []float64, tdC float64) *sounding.Sounding {
 		s := &sounding.Sounding{StationID: "XQ0004", ElevationM: 100}
 		for i, ph := range []float64{1000, 950, 900, 850} {

@@ -9,7 +9,7 @@ import (
 // and change fields; a zero Config is refused with Status "invalid_config".
 type Config struct {
 	// Constants is the thermodynamic constant set; its ID is recorded in
-	// the Result. Default thermo.Default() (metpy-like).
+	// the Result. Default thermo.Default() (codata2018).
 	Constants thermo.Constants
 	// SatVap is the saturation vapour pressure formula used to turn
 	// dewpoints into vapour pressures. Default thermo.Bolton (METHODS §1.3;

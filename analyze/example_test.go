@@ -35,7 +35,7 @@ func ExampleAnalyze() {
 	fmt.Printf("SBI: %.1f-%.1f m AGL, %+.1f K, %.2f K/km\n", r.SBI.BaseAGLM, r.SBI.TopAGLM, r.SBI.StrengthK, r.SBI.GradientKPerKm())
 	fmt.Println("parcel mixing height:", r.Parcel.Status, r.Parcel.HeightAGLM)
 	// Output:
-	// status: ok constants: metpy-like.v1
+	// status: ok constants: codata2018.v1
 	// 1019 hPa    15.0 m derived=false theta=286.01 K
 	//  983 hPa   320.3 m derived=true theta=291.17 K
 	//  962 hPa   504.9 m derived=true theta=294.59 K

@@ -13,7 +13,7 @@ import (
 // trapezoid Tv), to ±0.05 m (§9 tolerance rule).
 func TestFillHeightsTTBB(t *testing.T) {
 	s := ttbb()
-	h := FillHeights(s.Levels, s.ElevationM, thermo.MetPyLike(), thermo.Bolton)
+	h := FillHeights(s.Levels, s.ElevationM, thermo.CODATA2018(), thermo.Bolton)
 	want := []float64{15, 320.3, 504.9, 1555.0}
 	for i, w := range want {
 		near(t, "height", h.HeightM[i], w, 0.05)
@@ -32,7 +32,7 @@ func TestFillHeightsTTBB(t *testing.T) {
 // residual must be ≤ 10 m", METHODS §9 hydrostatic check).
 func TestFillHeightsTTAAResiduals(t *testing.T) {
 	s := ttaa()
-	h := FillHeights(s.Levels, s.ElevationM, thermo.MetPyLike(), thermo.Bolton)
+	h := FillHeights(s.Levels, s.ElevationM, thermo.CODATA2018(), thermo.Bolton)
 	if len(h.Anchors) != len(s.Levels)-1 {
 		t.Fatalf("anchors = %d, want %d", len(h.Anchors), len(s.Levels)-1)
 	}
@@ -49,7 +49,7 @@ func TestFillHeightsTTAAResiduals(t *testing.T) {
 	// A wrong reported height shows up as a mismatch of the same size at
 	// that level (invented error of +100 m on 850 hPa).
 	s.Levels[3].HeightM += 100
-	h = FillHeights(s.Levels, s.ElevationM, thermo.MetPyLike(), thermo.Bolton)
+	h = FillHeights(s.Levels, s.ElevationM, thermo.CODATA2018(), thermo.Bolton)
 	if a := h.Anchors[2]; a.Index != 3 || math.Abs(a.MismatchM-100) > 10 {
 		t.Errorf("850 hPa anchor = %+v, want mismatch ≈ +100 m", a)
 	}
@@ -60,7 +60,7 @@ func TestFillHeightsTTAAResiduals(t *testing.T) {
 // pressure, levels shuffled out of pressure order, a level without
 // temperature, and a wind-only level by height.
 func TestFillHeightsAwkwardLevels(t *testing.T) {
-	c := thermo.MetPyLike()
+	c := thermo.CODATA2018()
 	windSfc := lvl(sounding.KindWindOnly, nan, 15, nan, nan)
 	windUp := lvl(sounding.KindWindOnly, nan, 900, nan, nan)
 	noT := lvl(sounding.KindSignificant, 900, nan, nan, nan)

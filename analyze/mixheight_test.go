@@ -94,7 +94,7 @@ func TestBulkRichardson(t *testing.T) {
 // west (270°) at the listed speeds.
 func ribSounding() *sounding.Sounding {
 	z, thv, u, _ := ribProfile()
-	c := thermo.MetPyLike()
+	c := thermo.CODATA2018()
 	s := &sounding.Sounding{StationID: "XQ0010", ElevationM: 0}
 	for i := range z {
 		p := thermo.StandardPressure(z[i])

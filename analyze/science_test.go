@@ -144,7 +144,7 @@ func TestInversionAtTop(t *testing.T) {
 // (kg/kg), with pressures at the USSA76 pressure altitude of each height
 // (METHODS §1.7) and θv from θ and w (METHODS §1.5).
 func profileOf(z, theta, w []float64) profile {
-	c := thermo.MetPyLike()
+	c := thermo.CODATA2018()
 	n := len(z)
 	pr := profile{idx: make([]int, n), p: make([]float64, n), t: make([]float64, n), z: z, theta: theta,
 		thetav: make([]float64, n), w: w, td: make([]float64, n), u: make([]float64, n), v: make([]float64, n)}

@@ -12,7 +12,7 @@ import "github.com/sondeclim/sondeclim/physics/thermo"
 // and the 33.5 m/s near-surface wind rule) are named where used.
 type Config struct {
 	// Constants is the thermodynamic constant set for the hydrostatic and
-	// lapse-rate computations. Default thermo.Default() (metpy-like,
+	// lapse-rate computations. Default thermo.Default() (codata2018,
 	// Rd = 287.04749 J kg⁻¹ K⁻¹, the set the project's check values use).
 	Constants thermo.Constants
 	// SatVap is the saturation vapour pressure formula used to turn

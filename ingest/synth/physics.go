@@ -7,7 +7,7 @@ const (
 	rdJPerKgK = 287.04749       // gas constant of dry air, J/(kg K) (METHODS §1.6)
 	g0MPerS2  = 9.80665         // standard gravity, m/s² (USSA76, METHODS §1.1)
 	kappa     = 2.0 / 7.0       // Rd/cp with cp = 3.5 Rd (METHODS §1.1)
-	epsilon   = 0.6219569100577 // Rd/Rv (METHODS §1.1, current MetPy value)
+	epsilon   = 0.6219569100577 // Rd/Rv = Mw/Md (METHODS §1.1; the thermo.CODATA2018 value)
 	p0Pa      = 100000.0        // reference pressure of θ, Pa (METHODS §1.2)
 	zeroCK    = 273.15          // 0 °C in K
 	// dryLapseKPerM is the dry-adiabatic lapse rate g0/cp ≈ 9.76 K/km

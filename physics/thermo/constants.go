@@ -40,34 +40,40 @@ func USSA76() Constants {
 	}
 }
 
-// MetPyLike returns the constant set that reproduces the published examples
-// of the MetPy library documentation: Rd = 287.04749 J kg⁻¹ K⁻¹,
-// cpd = 3.5 Rd (so κ = 2/7 exactly), ε = 0.6219569 (MetPy 1.x
-// molecular_weight_ratio), Rv = Rd/ε, g0 = 9.80665 m s⁻², p0 = 1000 hPa.
-func MetPyLike() Constants {
+// CODATA2018 returns the constant set built on the CODATA 2018 molar gas
+// constant R* = 8.314462618 J mol⁻¹ K⁻¹ (exact in the 2019 SI), the molar
+// mass of dry air Md = 28.96546 g mol⁻¹ (the CIPM-2007 air-density
+// equation) and of water Mw = 18.015268 g mol⁻¹ (all three from memory):
+// Rd = R*/Md = 287.04749 J kg⁻¹ K⁻¹ (rounded to 8 digits),
+// ε = Mw/Md = 0.6219569, Rv = Rd/ε, cpd = 3.5 Rd (so κ = 2/7 exactly, the
+// ideal diatomic gas), g0 = 9.80665 m s⁻² (USSA76, the geopotential metre)
+// and p0 = 1000 hPa (AMS Glossary, "Poisson equation"). The same values
+// are used by current general-purpose meteorological software, whose
+// documented examples the project's check values reproduce (METHODS §1.1).
+func CODATA2018() Constants {
 	const rd = 287.04749
 	const eps = 0.6219569100577033
 	return Constants{
-		Name: "metpy-like", Version: 1,
+		Name: "codata2018", Version: 1,
 		Rd: rd, Rv: rd / eps, Cpd: 3.5 * rd, Kappa: 2.0 / 7.0,
 		Epsilon: eps, G0: 9.80665, P0Pa: 100000,
 	}
 }
 
-// Default returns the default constant set, MetPyLike. It is the default
+// Default returns the default constant set, CODATA2018. It is the default
 // because the project's check values (thermodynamic examples and the
 // hydrostatic heights of the coded test messages) are computed with it; the
-// USSA76 set differs by about 0.005 % in Rd.
-func Default() Constants { return MetPyLike() }
+// USSA76 set differs by about 0.002 % in Rd.
+func Default() Constants { return CODATA2018() }
 
 // ConstantsByName returns the preset with the given name ("ussa76" or
-// "metpy-like") and whether it exists.
+// "codata2018") and whether it exists.
 func ConstantsByName(name string) (Constants, bool) {
 	switch name {
 	case "ussa76":
 		return USSA76(), true
-	case "metpy-like":
-		return MetPyLike(), true
+	case "codata2018":
+		return CODATA2018(), true
 	}
 	return Constants{}, false
 }

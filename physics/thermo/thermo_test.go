@@ -67,7 +67,7 @@ func fmtC(c float64) string { return fmt.Sprintf("(%gC)", c) }
 // TestCheckValues checks METHODS §9 items 1–16 and 18 (17 is in
 // TestMassWeightedMean), each with its source tag.
 func TestCheckValues(t *testing.T) {
-	mp := MetPyLike()
+	mp := CODATA2018()
 	eps, kap, p0 := mp.Epsilon, mp.Kappa, mp.P0Pa
 	tests := []struct {
 		name     string
@@ -138,7 +138,7 @@ func TestCheckValues(t *testing.T) {
 // TestCheckValue13 checks METHODS §9.13 [D]: 850 hPa, T = 10 °C, Td = 5 °C,
 // Bolton, κ = 2/7, ε = 0.6219569.
 func TestCheckValue13(t *testing.T) {
-	c := MetPyLike()
+	c := CODATA2018()
 	p, tk, td := 85000.0, cToK(10), cToK(5)
 	e := VapourPressureFromDewpoint(td, Bolton)
 	w := MixingRatio(e, p, c.Epsilon)
@@ -284,17 +284,17 @@ func TestConstants(t *testing.T) {
 	near(t, "ussa76 g0", u.G0, 9.80665, 5)
 	// METHODS §1.1: ε 0.62198 (older MetPy, = Mw/Md)
 	near(t, "ussa76 eps", u.Epsilon, 0.62198, 5)
-	m := MetPyLike()
+	m := CODATA2018()
 	// METHODS §1.1 / §9.7: ε = 0.6219569, cp = 3.5 Rd, Rd = 287.04749 (§9.15)
 	near(t, "metpy eps", m.Epsilon, 0.6219569, 7)
 	near(t, "metpy kappa", m.Kappa, m.Rd/m.Cpd, 12)
 	// METHODS §1.1: Rv ≈ 461.5 (from memory there)
 	near(t, "metpy Rv", m.Rv, 461.5, 0)
 	near(t, "ussa76 Rv", u.Rv, 461.5, 0)
-	if Default().ID() != "metpy-like.v1" || u.ID() != "ussa76.v1" {
+	if Default().ID() != "codata2018.v1" || u.ID() != "ussa76.v1" {
 		t.Errorf("IDs: %q %q", Default().ID(), u.ID())
 	}
-	for _, name := range []string{"ussa76", "metpy-like"} {
+	for _, name := range []string{"ussa76", "codata2018"} {
 		c, ok := ConstantsByName(name)
 		if !ok || c.Name != name || !c.Valid() {
 			t.Errorf("ConstantsByName(%q) = %+v, %v", name, c, ok)
