@@ -330,7 +330,7 @@ func (r *run) buildPartition(key string, st *staged, prev *store.Partition) (_ *
 		}
 		rest := buf
 		for range sg.count {
-			s, tail, err := decodeSounding(rest)
+			s, tail, err := sounding.DecodeBinary(rest)
 			if err != nil {
 				return nil, stats, nil, err
 			}
@@ -354,11 +354,11 @@ func (r *run) buildPartition(key string, st *staged, prev *store.Partition) (_ *
 	var enc []byte
 	observed := make(map[*sounding.Sounding]string, len(all))
 	for _, s := range all {
-		enc = appendSounding(enc[:0], s, false)
+		enc = sounding.AppendBinary(enc[:0], s, false)
 		sum := sha256.Sum256(enc)
 		observed[s] = hex.EncodeToString(sum[:8])
 		h.Write(sum[:])
-		h.Write(appendSource(enc[:0], s))
+		h.Write(sounding.AppendSourceBinary(enc[:0], s))
 	}
 	hash := hex.EncodeToString(h.Sum(nil))
 	p := &store.Partition{ContentHash: hash, Files: map[string]string{},
@@ -394,8 +394,8 @@ func (r *run) buildPartition(key string, st *staged, prev *store.Partition) (_ *
 	if err != nil {
 		return nil, stats, nil, err
 	}
-	rows := partRows{levels: levels,
-		heights: make([]schema.MixingHeightRow, 0, len(kept)*len(analyze.Methods()))}
+	rows := schema.PartRows{Levels: levels,
+		MixingHeights: make([]schema.MixingHeightRow, 0, len(kept)*len(analyze.Methods()))}
 	srows := make([]schema.SoundingRow, len(kept))
 	for i, d := range kept {
 		res := analyzeOne(d.s, reports[d.s], r.cfg, r.opt.UseSuspect, &rows)
@@ -410,12 +410,12 @@ func (r *run) buildPartition(key string, st *staged, prev *store.Partition) (_ *
 	}
 	batch := map[string]schema.Writer{
 		schema.TableSoundings:     schema.Slice(srows),
-		schema.TableLevels:        rows.levels,
-		schema.TableInversions:    schema.Slice(rows.inv),
-		schema.TableMixedLayers:   schema.Slice(rows.mixed),
-		schema.TableMixingHeights: schema.Slice(rows.heights),
+		schema.TableLevels:        rows.Levels,
+		schema.TableInversions:    schema.Slice(rows.Inversions),
+		schema.TableMixedLayers:   schema.Slice(rows.MixedLayers),
+		schema.TableMixingHeights: schema.Slice(rows.MixingHeights),
 		schema.TableAfternoon:     schema.Slice(afternoonRows(results, r.opt.DailyMaxima, analyze.DefaultPairingConfig())),
-		schema.TableQCFindings:    schema.Slice(rows.findings),
+		schema.TableQCFindings:    schema.Slice(rows.QCFindings),
 	}
 	r.stage("analysis", t0)
 	if err := r.compareWithPrevious(prev, srows, stats); err != nil {

@@ -54,11 +54,11 @@ func TestCodecRoundTrip(t *testing.T) {
 	}
 	var buf []byte
 	for _, s := range all {
-		buf = appendSounding(buf, s, true)
+		buf = sounding.AppendBinary(buf, s, true)
 	}
 	rest := buf
 	for i, want := range all {
-		got, tail, err := decodeSounding(rest)
+		got, tail, err := sounding.DecodeBinary(rest)
 		if err != nil {
 			t.Fatalf("sounding %d: %v", i, err)
 		}
@@ -71,9 +71,9 @@ func TestCodecRoundTrip(t *testing.T) {
 		t.Errorf("%d bytes left over", len(rest))
 	}
 	// A sounding cut anywhere is an error, not a panic.
-	one := appendSounding(nil, all[0], true)
+	one := sounding.AppendBinary(nil, all[0], true)
 	for _, n := range []int{0, 1, 10, len(one) / 2, len(one) - 1} {
-		if _, _, err := decodeSounding(one[:n]); err == nil {
+		if _, _, err := sounding.DecodeBinary(one[:n]); err == nil {
 			t.Errorf("decoding %d of %d bytes gave no error", n, len(one))
 		}
 	}

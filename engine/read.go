@@ -436,7 +436,7 @@ func (w *spillWriter) write(key string, s *sounding.Sounding) error {
 		w.flush()
 		w.cur, w.seg = key, segment{file: w.fi, off: w.off}
 	}
-	w.buf = appendSounding(w.buf[:0], s, true)
+	w.buf = sounding.AppendBinary(w.buf[:0], s, true)
 	n, err := w.w.Write(w.buf)
 	if err != nil {
 		return &writeError{err}

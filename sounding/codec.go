@@ -1,25 +1,26 @@
-package engine
+package sounding
 
 import (
 	"encoding/binary"
 	"errors"
 	"math"
 	"time"
-
-	"github.com/sondeclim/sondeclim/sounding"
 )
 
-// The codec turns a decoded sounding into bytes and back, exactly (float
-// bits, statuses and source position included). Decoded soundings are
-// staged on disk with it between reading and analysis, so that memory does
-// not grow with the archive, and hashed with it to recognise unchanged
-// partitions.
+// The binary codec turns a sounding into bytes and back, exactly (float
+// bits, statuses and source position included; numbers little-endian
+// whatever the platform). The ingestion engine stages decoded soundings on
+// disk with it between reading and analysis, so that memory does not grow
+// with the archive, and hashes it to recognise unchanged partitions: a
+// change of the encoding changes those hashes.
 
-var errCodec = errors.New("staged sounding is corrupt")
+// ErrCorrupt is returned by DecodeBinary for bytes that are not a whole
+// encoded sounding.
+var ErrCorrupt = errors.New("encoded sounding is corrupt")
 
-// appendSounding appends the encoding of s to b. With source false the
+// AppendBinary appends the encoding of s to b. With source false the
 // source position is left out (for a hash of the observation alone).
-func appendSounding(b []byte, s *sounding.Sounding, source bool) []byte {
+func AppendBinary(b []byte, s *Sounding, source bool) []byte {
 	b = appendString(b, s.StationID)
 	b = appendString(b, s.StationName)
 	b = appendFloat(b, s.LatitudeDeg)
@@ -60,7 +61,7 @@ func appendSounding(b []byte, s *sounding.Sounding, source bool) []byte {
 				b = appendFloat(b, v)
 			}
 		}
-		for v := range sounding.NumVars {
+		for v := range NumVars {
 			b = append(b, byte(l.Status[v]), l.UpstreamTier[v])
 		}
 		if source {
@@ -70,9 +71,9 @@ func appendSounding(b []byte, s *sounding.Sounding, source bool) []byte {
 	return b
 }
 
-// appendSource appends the source position of s and of its levels: what
-// appendSounding(b, s, true) holds beyond appendSounding(b, s, false).
-func appendSource(b []byte, s *sounding.Sounding) []byte {
+// AppendSourceBinary appends the source position of s and of its levels:
+// what AppendBinary(b, s, true) holds beyond AppendBinary(b, s, false).
+func AppendSourceBinary(b []byte, s *Sounding) []byte {
 	b = appendString(b, s.Source.File)
 	b = appendString(b, s.Source.Member)
 	b = binary.AppendVarint(b, int64(s.Source.Line))
@@ -106,13 +107,13 @@ func appendFloat(b []byte, v float64) []byte {
 	return binary.LittleEndian.AppendUint64(b, math.Float64bits(v))
 }
 
-// decoder reads what appendSounding wrote.
+// decoder reads what AppendBinary wrote.
 type decoder struct {
 	b   []byte
 	err error
 }
 
-func (d *decoder) fail() { d.err = errCodec; d.b = nil }
+func (d *decoder) fail() { d.err = ErrCorrupt; d.b = nil }
 
 func (d *decoder) uvarint() uint64 {
 	v, n := binary.Uvarint(d.b)
@@ -175,11 +176,11 @@ func (d *decoder) float() float64 {
 	return v
 }
 
-// decodeSounding decodes one sounding written with source = true and
-// returns the rest of b.
-func decodeSounding(b []byte) (*sounding.Sounding, []byte, error) {
+// DecodeBinary decodes one sounding written by AppendBinary with source
+// true and returns the rest of b.
+func DecodeBinary(b []byte) (*Sounding, []byte, error) {
 	d := &decoder{b: b}
-	s := &sounding.Sounding{}
+	s := &Sounding{}
 	s.StationID = d.string()
 	s.StationName = d.string()
 	s.LatitudeDeg, s.LongitudeDeg, s.ElevationM = d.float(), d.float(), d.float()
@@ -200,13 +201,13 @@ func decodeSounding(b []byte) (*sounding.Sounding, []byte, error) {
 	n := d.uvarint()
 	// Each level takes at least 2 + 2 + 2·NumVars bytes: bound n by the
 	// bytes left before allocating.
-	if n > uint64(len(d.b))/uint64(4+2*int(sounding.NumVars)) {
-		return nil, nil, errCodec
+	if n > uint64(len(d.b))/uint64(4+2*int(NumVars)) {
+		return nil, nil, ErrCorrupt
 	}
-	s.Levels = make([]sounding.Level, n)
+	s.Levels = make([]Level, n)
 	for i := range s.Levels {
 		l := &s.Levels[i]
-		l.Kind = sounding.LevelKind(d.byte())
+		l.Kind = LevelKind(d.byte())
 		l.Tropopause = d.byte()&1 != 0
 		present := d.uint16()
 		for k, p := range [...]*float64{&l.ElapsedS, &l.PressurePa, &l.HeightM, &l.TemperatureK, &l.DewpointK,
@@ -217,8 +218,8 @@ func decodeSounding(b []byte) (*sounding.Sounding, []byte, error) {
 				*p = math.NaN()
 			}
 		}
-		for v := range sounding.NumVars {
-			l.Status[v] = sounding.Status(d.byte())
+		for v := range NumVars {
+			l.Status[v] = Status(d.byte())
 			l.UpstreamTier[v] = d.byte()
 		}
 		if source {

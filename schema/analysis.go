@@ -1,0 +1,253 @@
+package schema
+
+import (
+	"math"
+	"time"
+
+	"github.com/sondeclim/sondeclim/analyze"
+	"github.com/sondeclim/sondeclim/physics/thermo"
+	"github.com/sondeclim/sondeclim/qc"
+	"github.com/sondeclim/sondeclim/sounding"
+)
+
+// This file maps a sounding, its quality-control report and its analysis
+// to the rows of the store's tables: the output edge, where SI values turn
+// into the tables' display units.
+
+// Display-unit conversions at the output edge.
+const (
+	paPerHPa = 100.0
+	gPerKg   = 1000.0
+)
+
+func hPa(pa float64) float64 { return pa / paPerHPa }
+func degC(k float64) float64 { return k - thermo.ZeroCelsiusK }
+
+// Season returns the meteorological season code (DJF, MAM, JJA, SON) of a
+// month and the year it belongs to: December counts with the following
+// year's DJF (METHODS §8, common convention).
+func Season(t time.Time) (code string, year int) {
+	y := t.Year()
+	switch t.Month() {
+	case time.December:
+		return "DJF", y + 1
+	case time.January, time.February:
+		return "DJF", y
+	case time.March, time.April, time.May:
+		return "MAM", y
+	case time.June, time.July, time.August:
+		return "JJA", y
+	}
+	return "SON", y
+}
+
+// PartRows collects the rows of one partition's tables other than
+// soundings and afternoon_mixing, appended sounding by sounding so that
+// nothing is copied again before writing.
+type PartRows struct {
+	Levels        *Rows[LevelRow]
+	Inversions    []InversionRow
+	MixedLayers   []MixedLayerRow
+	MixingHeights []MixingHeightRow
+	QCFindings    []QCFindingRow
+}
+
+// AppendSounding appends the rows of the levels, qc_findings, inversions,
+// mixed_layers and mixing_heights tables of sounding s (with its QC report
+// rep and its analysis res) to out and returns its soundings-table row
+// (without SoundingHash and the duplicate fields, which the caller knows).
+// The levels table keeps the values as observed, with their QC flags. res
+// is padded to one value per level when the analysis refused the sounding
+// early.
+func AppendSounding(out *PartRows, s *sounding.Sounding, rep qc.Report, res *analyze.Result) SoundingRow {
+	padPerLevel(res, len(s.Levels))
+	season, sy := Season(s.NominalTime)
+	row := SoundingRow{
+		StationID:      s.StationID,
+		StationName:    s.StationName,
+		LaunchTime:     s.LaunchTime.UTC(),
+		LaunchKnown:    s.LaunchTimeReported,
+		NominalTime:    s.NominalTime.UTC(),
+		NominalHour:    int32(s.NominalTime.Hour()),
+		HourInferred:   s.NominalHourInferred,
+		Year:           int32(s.NominalTime.Year()),
+		Month:          int32(s.NominalTime.Month()),
+		Season:         season,
+		SeasonYear:     int32(sy),
+		LatitudeDeg:    s.LatitudeDeg,
+		LongitudeDeg:   s.LongitudeDeg,
+		ElevationM:     s.ElevationM,
+		SourceFile:     s.Source.File,
+		SourceMember:   s.Source.Member,
+		SourceLine:     int64(s.Source.Line),
+		SourceFormat:   s.Source.Format,
+		DeclaredLevels: int32(s.DeclaredLevels),
+		LevelCount:     int32(len(s.Levels)),
+		AnalysisStatus: res.Status,
+		QCStatus:       rep.Status,
+		ConstantSet:    res.ConstantSet,
+
+		SurfacePressureHPa: math.NaN(), SurfaceTemperatureC: math.NaN(), SurfaceDewpointC: math.NaN(),
+		SurfaceThetaK: math.NaN(), SurfaceWindSpeedMS: res.SurfaceWindMS,
+
+		SunElevationDeg: res.SunElevationDeg,
+		LocalSolarTimeH: res.LocalSolarTimeH,
+		SunClass:        res.SunClass,
+
+		SBITopAGLM: math.NaN(), SBITopPressHPa: math.NaN(), SBIStrengthK: math.NaN(), SBIGradient: math.NaN(),
+		InversionCount: int32(len(res.Inversions)),
+		EIBaseAGLM:     math.NaN(), EITopAGLM: math.NaN(), EIStrengthK: math.NaN(),
+
+		MixedBaseAGLM: res.MixedLayer.BaseAGLM, MixedTopAGLM: res.MixedLayer.TopAGLM,
+		MixedThetaK: res.MixedLayer.ThetaK, MixedMixingRatio: res.MixedLayer.MixingRatioKgKg * gPerKg,
+		MixedLevels:    int32(res.MixedLayer.Levels),
+		ParcelMHM:      res.Parcel.HeightAGLM,
+		ParcelMHStatus: res.Parcel.Status,
+
+		ConsensusMHM:     res.MixingHeightConsensus.HeightAGLM,
+		ConsensusStatus:  res.MixingHeightConsensus.Status,
+		ConsensusSpreadM: res.MixingHeightConsensus.SpreadM,
+		ConsensusMethods: int32(res.MixingHeightConsensus.OK),
+		Unresolved:       res.MixingHeightConsensus.Unresolved,
+		LiuLiangRegime:   res.LiuLiangRegime,
+
+		TransportWindMS:  res.Ventilation.TransportWindMS,
+		TransportWindDef: res.Ventilation.TransportWind,
+		VentilationM2S:   res.Ventilation.IndexM2S,
+		VentilationKtFt:  res.Ventilation.IndexKtFt,
+		VentilationCat:   res.Ventilation.Category,
+		VentilationTable: res.Ventilation.Table,
+		VentilationMH:    res.Ventilation.HeightMethod,
+	}
+	if i := res.SurfaceIndex; i >= 0 {
+		l := s.Levels[i]
+		row.SurfacePressureHPa = hPa(l.PressurePa)
+		row.SurfaceTemperatureC = degC(l.TemperatureK)
+		row.SurfaceDewpointC = degC(l.DewpointK)
+		row.SurfaceThetaK = res.ThetaK[i]
+	}
+	if res.Status == analyze.StatusOK {
+		present := res.SBI.Present
+		row.SBIPresent = &present
+		if present {
+			row.SBITopAGLM = res.SBI.TopAGLM
+			row.SBITopPressHPa = hPa(res.SBI.TopPressurePa)
+			row.SBIStrengthK = res.SBI.StrengthK
+			row.SBIGradient = res.SBI.GradientKPerKm()
+			row.SBIClass = res.SBI.Class
+		}
+		if ei := res.LowestElevated; ei.Present {
+			row.EIBaseAGLM, row.EITopAGLM, row.EIStrengthK, row.EIClass = ei.BaseAGLM, ei.TopAGLM, ei.StrengthK, ei.Class
+		}
+	}
+
+	bad, suspect, corrected := rep.Counts()
+	row.QCBad, row.QCSuspect, row.QCCorrected = int32(bad), int32(suspect), int32(corrected)
+	flag := func(i int, v sounding.Var) string {
+		if i < len(rep.Flags) {
+			return rep.Flags[i][v].String()
+		}
+		return ""
+	}
+	for i, l := range s.Levels {
+		out.Levels.Append(LevelRow{
+			StationID:         s.StationID,
+			LaunchTime:        row.LaunchTime,
+			Year:              row.Year,
+			Index:             int32(i),
+			Kind:              l.Kind.String(),
+			SourceLine:        int64(l.Line),
+			ElapsedS:          l.ElapsedS,
+			PressureHPa:       hPa(l.PressurePa),
+			HeightM:           res.HeightM[i],
+			HeightDerived:     res.HeightDerived[i],
+			HeightAGLM:        res.HeightAGLM[i],
+			TemperatureC:      degC(l.TemperatureK),
+			DewpointC:         degC(l.DewpointK),
+			RelHumidityPct:    l.RelHumidityPct,
+			WindDirDeg:        l.WindDirectionDeg,
+			WindSpeedMS:       l.WindSpeedMS,
+			ThetaK:            res.ThetaK[i],
+			MixingRatioGKg:    res.MixingRatioKgKg[i] * gPerKg,
+			TemperatureStatus: l.Status[sounding.VarTemperature].String(),
+			HeightStatus:      heightStatus(l, res.HeightDerived[i]),
+			HumidityStatus:    l.Status[sounding.VarDewpointDepression].String(),
+			PressureQC:        flag(i, sounding.VarPressure),
+			HeightQC:          flag(i, sounding.VarHeight),
+			TemperatureQC:     flag(i, sounding.VarTemperature),
+			HumidityQC:        flag(i, sounding.VarDewpointDepression),
+			WindQC:            flag(i, sounding.VarWindSpeed),
+		})
+	}
+	for _, f := range rep.Findings {
+		p := math.NaN()
+		if f.Level >= 0 && f.Level < len(s.Levels) {
+			p = hPa(s.Levels[f.Level].PressurePa)
+		}
+		out.QCFindings = append(out.QCFindings, QCFindingRow{
+			StationID: s.StationID, LaunchTime: row.LaunchTime, Year: row.Year, Index: int32(f.Level),
+			PressureHPa: p, Variable: f.VariableName(), Check: f.Check, Severity: f.Severity.String(),
+			Value: qc.DisplayValue(f.Var, f.Value), Corrected: qc.DisplayValue(f.Var, f.NewValue), Message: f.Message,
+		})
+	}
+	for i, v := range res.Inversions {
+		out.Inversions = append(out.Inversions, InversionRow{
+			StationID: s.StationID, LaunchTime: row.LaunchTime, Year: row.Year, Index: int32(i),
+			SurfaceBased: v.SurfaceBased, BaseAGLM: v.BaseAGLM, TopAGLM: v.TopAGLM,
+			BasePressHPa: hPa(v.BasePressurePa), TopPressHPa: hPa(v.TopPressurePa),
+			DepthM: v.DepthM(), StrengthK: v.StrengthK, GradientKPerKm: v.GradientKPerKm(),
+			ThetaDeltaK: v.ThetaDeltaK, DPDDeltaK: v.DewpointDepressionDeltaK, RHDeltaPct: v.RelHumidityDeltaPct,
+			WDeltaGKg: v.MixingRatioDeltaKgKg * gPerKg, TurningDeg: v.WindTurningDeg, Levels: int32(v.Levels),
+			TopAtCeiling: v.TopAtCeiling, Class: v.Class,
+		})
+	}
+	for i, m := range res.MixedLayers {
+		out.MixedLayers = append(out.MixedLayers, MixedLayerRow{
+			StationID: s.StationID, LaunchTime: row.LaunchTime, Year: row.Year, Index: int32(i),
+			BaseAGLM: m.BaseAGLM, TopAGLM: m.TopAGLM, BasePress: hPa(m.BasePressurePa), TopPress: hPa(m.TopPressurePa),
+			ThetaK: m.ThetaK, MixingRatio: m.MixingRatioKgKg * gPerKg, ThetaRange: m.ThetaRangeK,
+			ThetaVRange: m.ThetaVRangeK, WRange: m.MixingRatioRangeKgKg * gPerKg, Levels: int32(m.Levels),
+			SuperadTop: m.SuperadiabaticTopAGLM,
+		})
+	}
+	for _, h := range res.MixingHeights {
+		out.MixingHeights = append(out.MixingHeights, MixingHeightRow{
+			StationID: s.StationID, LaunchTime: row.LaunchTime, Year: row.Year, Method: h.Method,
+			HeightAGLM: h.HeightAGLM, Status: h.Status, Note: h.Note, LevelSpacingM: h.LevelSpacingM, Unresolved: h.Unresolved,
+		})
+	}
+	return row
+}
+
+// AfternoonRowOf returns the afternoon_mixing row of estimate e, whose
+// morning sounding has the soundings-table row m.
+func AfternoonRowOf(m SoundingRow, e analyze.AfternoonEstimate) AfternoonRow {
+	return AfternoonRow{
+		StationID: m.StationID, Year: m.Year, LocalDate: e.LocalDate, MorningLaunch: m.LaunchTime,
+		TmaxC: degC(e.TmaxK), TmaxSource: e.TmaxSource, HeightAGLM: e.MixingHeight.HeightAGLM,
+		Status: e.MixingHeight.Status, Note: e.MixingHeight.Note,
+	}
+}
+
+func heightStatus(l sounding.Level, derived bool) string {
+	if derived {
+		return sounding.Derived.String()
+	}
+	return l.Status[sounding.VarHeight].String()
+}
+
+// padPerLevel makes the per-level slices as long as the sounding's levels
+// (the analysis leaves them empty when it refuses a sounding early).
+func padPerLevel(r *analyze.Result, n int) {
+	pad := func(x []float64) []float64 {
+		for len(x) < n {
+			x = append(x, math.NaN())
+		}
+		return x
+	}
+	r.HeightM, r.HeightAGLM, r.ThetaK = pad(r.HeightM), pad(r.HeightAGLM), pad(r.ThetaK)
+	r.ThetaVK, r.MixingRatioKgKg = pad(r.ThetaVK), pad(r.MixingRatioKgKg)
+	for len(r.HeightDerived) < n {
+		r.HeightDerived = append(r.HeightDerived, false)
+	}
+}
