@@ -237,6 +237,9 @@ func Run(ctx context.Context, storeDir string, paths []string, opt Options) (*Su
 		return nil, err
 	}
 	defer lock.Release()
+	if err := store.CheckLayout(storeDir, opt.Shard); err != nil {
+		return nil, err
+	}
 
 	old, err := store.ReadManifest(storeDir, opt.Shard)
 	if err != nil {

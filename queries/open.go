@@ -38,16 +38,14 @@ var viewName = regexp.MustCompile(`^[a-z][a-z0-9_]*$`)
 // connection uses the UTC time zone, so timestamp functions such as hour()
 // return UTC. The shared SQL macros (macros.go) are defined on it.
 //
-// A missing store, a store path containing glob characters (* ? [ ]), or a
-// store with no tables is an error naming the directory. The caller closes
+// A missing store, a store without a manifest whose path contains glob
+// characters (* ? [ ] { }), or a store with no tables is an error naming
+// the directory. The caller closes
 // the returned database.
 func Open(ctx context.Context, storeDir string) (*sql.DB, error) {
 	abs, err := filepath.Abs(storeDir)
 	if err != nil {
 		return nil, fmt.Errorf("store %s: %w", storeDir, err)
-	}
-	if strings.ContainsAny(abs, "*?[]{}") {
-		return nil, fmt.Errorf("store %s: path contains glob characters", abs)
 	}
 	listed, haveManifest, err := store.TableFiles(abs)
 	if err != nil {
@@ -55,22 +53,33 @@ func Open(ctx context.Context, storeDir string) (*sql.DB, error) {
 	}
 	var tables []table
 	if haveManifest {
+		// The views name each file, so glob characters in the path are
+		// harmless (DuckDB opens a listed file that exists as it is).
 		tables, err = manifestTables(abs, listed)
+	} else if strings.ContainsAny(abs, "*?[]{}") {
+		return nil, fmt.Errorf("store %s has no manifest, so its files would be found with a glob pattern, "+
+			"but its path contains glob characters (* ? [ ] { }); move or rename it", abs)
 	} else {
 		tables, err = findTables(abs)
 	}
 	if err != nil {
 		return nil, err
 	}
+	var locked bool
 	conn, err := duckdb.NewConnector("", func(ex driver.ExecerContext) error {
-		if _, err := ex.ExecContext(context.Background(), "SET TimeZone = 'UTC'", nil); err != nil {
-			return err
+		if locked {
+			return nil // the settings are the database's, made by the first connection
 		}
 		// Statements of one command often read the same files more than
 		// once (a climatology reads the soundings files twice); the store's
 		// files never change under a name, so their footers can be kept.
-		_, err := ex.ExecContext(context.Background(), "SET parquet_metadata_cache = true", nil)
-		return err
+		for _, set := range append([]string{"SET TimeZone = 'UTC'", "SET parquet_metadata_cache = true"}, offline...) {
+			if _, err := ex.ExecContext(context.Background(), set, nil); err != nil {
+				return fmt.Errorf("%s: %w", set, err)
+			}
+		}
+		locked = true
+		return nil
 	})
 	if err != nil {
 		return nil, fmt.Errorf("open DuckDB: %w", err)
@@ -211,4 +220,27 @@ func viewDDL(store string, t table) string {
 	}
 	return fmt.Sprintf(`CREATE VIEW "%s" AS SELECT %s FROM read_parquet(%s, hive_partitioning = true%s)`,
 		t.name, sel, lit, opts)
+}
+
+// offline are the settings that keep a database of Open on this machine.
+// Queries are the user's own SQL, run with the user's own file access
+// (they may read and write any file the user can); what they must not do
+// is reach the network behind the user's back. DuckDB installs and loads
+// extensions on demand (an https:// path, a spatial function) and INSTALL
+// downloads them; here automatic installing and loading is off, community
+// extensions are refused, the default repositories are a directory that
+// does not exist, and every HTTP request DuckDB makes goes to a proxy at a
+// closed local port (the discard port 9 of 127.0.0.1), so an explicit
+// INSTALL ... FROM 'http://…' fails without leaving the machine. The
+// configuration is then locked, so SQL cannot turn any of this back on
+// (DuckDB's documented settings of these names; the proxy route was
+// checked with a local listener while writing this).
+var offline = []string{
+	"SET autoinstall_known_extensions = false",
+	"SET autoload_known_extensions = false",
+	"SET allow_community_extensions = false",
+	"SET custom_extension_repository = '/nonexistent/sondeclim-offline'",
+	"SET autoinstall_extension_repository = '/nonexistent/sondeclim-offline'",
+	"SET http_proxy = '127.0.0.1:9'",
+	"SET lock_configuration = true",
 }

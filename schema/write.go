@@ -2,6 +2,8 @@ package schema
 
 import (
 	"bufio"
+	"crypto/rand"
+	"encoding/hex"
 	"fmt"
 	"os"
 	"path/filepath"
@@ -196,7 +198,7 @@ func writePartition(dir, name string, sc *arrow.Schema, cols []Column, arrays fu
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return "", err
 	}
-	tmp, err := os.CreateTemp(dir, tempFilePrefix+"*")
+	tmp, err := CreateTemp(dir, tempFilePrefix)
 	if err != nil {
 		return "", err
 	}
@@ -344,4 +346,22 @@ func ReadVersion(path string) (int, error) {
 		return 0, fmt.Errorf("schema: %s: %s %q is not an integer", path, VersionKey, *s)
 	}
 	return v, nil
+}
+
+// CreateTemp creates a new file named dir/prefix+random for writing, like
+// os.CreateTemp, but with mode 0666 before the umask (os.CreateTemp uses
+// 0600): a store's files are renamed into place from such files, and must
+// be readable by other users and engines as the umask allows (0644 under
+// the usual 022).
+func CreateTemp(dir, prefix string) (*os.File, error) {
+	for try := 0; ; try++ {
+		var b [8]byte
+		rand.Read(b[:])
+		name := filepath.Join(dir, prefix+hex.EncodeToString(b[:]))
+		f, err := os.OpenFile(name, os.O_RDWR|os.O_CREATE|os.O_EXCL, 0o666)
+		if os.IsExist(err) && try < 100 {
+			continue
+		}
+		return f, err
+	}
 }

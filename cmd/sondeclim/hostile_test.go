@@ -8,6 +8,7 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+	"syscall"
 	"testing"
 
 	"github.com/sondeclim/sondeclim/ingest/synth"
@@ -190,6 +191,14 @@ func TestHostileStationIDs(t *testing.T) {
 	if got[synth.StationAt(0).ID] != goodAV2 {
 		t.Errorf("good station: %d soundings, want %d", got[synth.StationAt(0).ID], goodAV2)
 	}
+	// DuckDB's Hive partitioning decodes the escaped directory back to the id.
+	glob := strings.ReplaceAll(filepath.Join(st, "soundings"), "'", "''") + "/**/*.parquet"
+	code, out, errs = runCmd(t, "query", "--store", st, "--format", "csv",
+		"select count(*) filter (where station <> station_id) as differ, count(*) as n from read_parquet('"+glob+
+			"', hive_partitioning = true, hive_types = {'station': VARCHAR})")
+	if code != exitOK || out != fmt.Sprintf("differ,n\n0,%d\n", wantStored) {
+		t.Errorf("Hive station values against station_id: exit %d, %q, want 0 of %d differ\n%s", code, out, wantStored, errs)
+	}
 	// Every partition directory is a direct, escaped child of its table.
 	ms, err := store.ReadAll(st)
 	if err != nil || len(ms) != 1 {
@@ -214,5 +223,148 @@ func writeFile(t *testing.T, path, content string) {
 	t.Helper()
 	if err := os.WriteFile(path, []byte(content), 0o644); err != nil {
 		t.Fatal(err)
+	}
+}
+
+// twoStations writes the invented archives of two stations (one year each)
+// to dir and returns dir.
+func twoStations(t *testing.T, dir string) string {
+	t.Helper()
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	for i := range 2 {
+		if _, _, err := synth.WriteFile(dir, synth.Config{Seed: 3, StartYear: 2003, Years: 1, StationIndex: i}); err != nil {
+			t.Fatal(err)
+		}
+	}
+	return dir
+}
+
+// TestLayoutsCannotMix: a store records its shard layout; an unsharded
+// run into a sharded store, a run with another N, and a sharded run into
+// an unsharded store are refused with a message naming the layout (exit
+// 1), and leave the store as it was; a store holding manifests of two
+// layouts (written before the record existed) is refused too.
+func TestLayoutsCannotMix(t *testing.T) {
+	root := t.TempDir()
+	in := twoStations(t, filepath.Join(root, "in"))
+	sharded, plain := filepath.Join(root, "sharded"), filepath.Join(root, "plain")
+	mustIngest(t, "--store", sharded, "--shard", "1/2", in)
+	mustIngest(t, "--store", plain, in)
+	for _, tc := range []struct {
+		store string
+		args  []string
+		want  string
+	}{
+		{sharded, nil, "is 2 shards"},
+		{sharded, []string{"--shard", "1/3"}, "is 2 shards"},
+		{sharded, []string{"--shard", "2/3", "--full"}, "is 2 shards"},
+		{plain, []string{"--shard", "1/2"}, "is unsharded"},
+	} {
+		before := snapshot(t, tc.store)
+		code, _, errs := runCmd(t, append(append([]string{"ingest", "--quiet", "--store", tc.store}, tc.args...), in)...)
+		if code != exitFailure || !strings.Contains(errs, tc.want) || !strings.Contains(errs, "new store directory") {
+			t.Errorf("ingest %v into %s: exit %d, want %d with %q\n%s", tc.args, filepath.Base(tc.store), code, exitFailure, tc.want, errs)
+		}
+		after := snapshot(t, tc.store)
+		for f, h := range before {
+			if after[f] != h && !strings.HasPrefix(f, "_sondeclim/lock") {
+				t.Errorf("refused run changed %s", f)
+			}
+		}
+	}
+	mustIngest(t, "--store", sharded, "--shard", "2/2", in) // the same layout is fine
+	// A store mixed before the record existed: both manifests, no record.
+	mixed := filepath.Join(root, "mixed")
+	mustIngest(t, "--store", mixed, in)
+	b, err := os.ReadFile(filepath.Join(sharded, "_sondeclim", "manifest-1-of-2.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	writeFile(t, filepath.Join(mixed, "_sondeclim", "manifest-1-of-2.json"), string(b))
+	os.Remove(filepath.Join(mixed, "_sondeclim", "layout.json"))
+	code, _, errs := runCmd(t, "ingest", "--quiet", "--store", mixed, in)
+	if code != exitFailure || !strings.Contains(errs, "different layouts") {
+		t.Errorf("mixed store: exit %d, want %d naming the mixed layouts\n%s", code, exitFailure, errs)
+	}
+}
+
+// TestLayoutRace: an unsharded run that is still running (paused after
+// staging) holds the store's layout; a sharded run started meanwhile is
+// refused at once instead of writing the same stations a second time.
+func TestLayoutRace(t *testing.T) {
+	root := t.TempDir()
+	in := twoStations(t, filepath.Join(root, "in"))
+	st := filepath.Join(root, "store")
+	first := startSub(t, "staged", "ingest", "--quiet", "--store", st, in)
+	code, _, errs := runCmd(t, "ingest", "--quiet", "--store", st, "--shard", "1/2", in)
+	if code != exitFailure || !strings.Contains(errs, "is unsharded") {
+		t.Errorf("sharded run during an unsharded one: exit %d, want %d\n%s", code, exitFailure, errs)
+	}
+	first.Process.Signal(os.Interrupt)
+	first.Process.Kill()
+	first.Wait()
+}
+
+// TestStoreIsShareable: files of a store follow the umask (0644 under 022,
+// 0640 under 027), and a store directory whose name holds glob characters
+// works for ingest, a second (incremental) ingest and query.
+func TestStoreIsShareable(t *testing.T) {
+	root := t.TempDir()
+	in := twoStations(t, filepath.Join(root, "in"))
+	st := filepath.Join(root, "st*re [x]?")
+	old := syscall.Umask(0o022)
+	mustIngest(t, "--store", st, in)
+	syscall.Umask(0o027)
+	mustIngest(t, "--store", st, "--full", in)
+	syscall.Umask(old)
+	n := 0
+	filepath.WalkDir(st, func(p string, d fs.DirEntry, err error) error {
+		if err != nil || d.IsDir() || strings.HasPrefix(d.Name(), "lock-") {
+			return err
+		}
+		fi, _ := d.Info()
+		rel, _ := filepath.Rel(st, p)
+		if m := fi.Mode().Perm(); m != 0o640 && m != 0o644 {
+			t.Errorf("%s has mode %o, want 0644 or 0640 (the umask at its writing)", rel, m)
+		}
+		n++
+		return nil
+	})
+	if n < 7 {
+		t.Fatalf("only %d files in the store", n)
+	}
+	code, out, errs := runCmd(t, "query", "--store", st, "--format", "csv", "select count(*) as n from soundings")
+	if code != exitOK || out != "n\n1460\n" {
+		t.Errorf("query of a store named with glob characters: exit %d, %q\n%s", code, out, errs)
+	}
+	code, _, errs = runCmd(t, "ingest", "--quiet", "--store", st, in)
+	if code != exitOK {
+		t.Errorf("incremental ingest: exit %d\n%s", code, errs)
+	}
+}
+
+// TestDeletedManifest: with its manifest deleted, a store is refused by
+// ingest and by query (exit 1) with a message that says the manifest is
+// missing and what to do, instead of serving every file it finds.
+func TestDeletedManifest(t *testing.T) {
+	root := t.TempDir()
+	in := twoStations(t, filepath.Join(root, "in"))
+	st := filepath.Join(root, "store")
+	mustIngest(t, "--store", st, in)
+	if err := os.Remove(filepath.Join(st, "_sondeclim", "manifest-all.json")); err != nil {
+		t.Fatal(err)
+	}
+	for _, args := range [][]string{
+		{"ingest", "--quiet", "--store", st, in},
+		{"query", "--store", st, "select count(*) from soundings"},
+	} {
+		code, _, errs := runCmd(t, args...)
+		if code != exitFailure || !strings.Contains(errs, "no manifest") || !strings.Contains(errs, "deleted") ||
+			!strings.Contains(errs, "NEWDIR") {
+			t.Errorf("%s with the manifest deleted: exit %d, want %d and a message saying what happened and what to do\n%s",
+				args[0], code, exitFailure, errs)
+		}
 	}
 }

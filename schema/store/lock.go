@@ -116,7 +116,7 @@ func Clean(dir string, sh Shard, m *Manifest) ([]string, error) {
 		}
 	}
 	// Stray temporary manifests.
-	tmps, _ := filepath.Glob(filepath.Join(dir, MetaDir, ".manifest-*"))
+	tmps, _ := filepath.Glob(filepath.Join(escapeGlob(dir), MetaDir, ".manifest-*"))
 	for _, t := range tmps {
 		if os.Remove(t) == nil {
 			removed = append(removed, filepath.Join(MetaDir, filepath.Base(t)))

@@ -200,7 +200,7 @@ func Commit(dir string, sh Shard, m *Manifest) error {
 	if err != nil {
 		return fmt.Errorf("store: encode manifest: %w", err)
 	}
-	f, err := os.CreateTemp(meta, ".manifest-*")
+	f, err := createTemp(meta, ".manifest-")
 	if err != nil {
 		return fmt.Errorf("store: %w", err)
 	}
@@ -254,7 +254,7 @@ func (m *Manifest) Live() map[string]bool {
 // ReadAll reads the manifests of every shard in the store, sorted by
 // shard name. A store without manifests gives none and no error.
 func ReadAll(dir string) ([]*Manifest, error) {
-	paths, err := filepath.Glob(filepath.Join(dir, MetaDir, "manifest-*.json"))
+	paths, err := filepath.Glob(filepath.Join(escapeGlob(dir), MetaDir, "manifest-*.json"))
 	if err != nil {
 		return nil, err
 	}
@@ -278,6 +278,9 @@ func ReadAll(dir string) ([]*Manifest, error) {
 // back to every Parquet file in the table directories.
 func TableFiles(dir string) (files map[string][]string, ok bool, err error) {
 	ms, err := ReadAll(dir)
+	if err == nil && len(ms) == 0 {
+		err = checkManifestLost(dir)
+	}
 	if err != nil || len(ms) == 0 {
 		return nil, false, err
 	}
@@ -319,6 +322,9 @@ func CheckUnmanaged(dir string) error {
 	if found == "" {
 		return nil
 	}
+	if err := checkManifestLost(dir); err != nil {
+		return err
+	}
 	v, err := schema.ReadVersion(found)
 	what := fmt.Sprintf("schema version %d", v)
 	if err != nil {
@@ -327,4 +333,23 @@ func CheckUnmanaged(dir string) error {
 	return fmt.Errorf("%w: %s holds table files (%s has %s) but no manifest; this sondeclim writes version %d. "+
 		"Ingest into a new directory (or delete this one) and run `sondeclim ingest --store NEWDIR PATH...`",
 		ErrVersion, dir, found, what, Version)
+}
+
+// ErrManifestLost is returned for a store whose layout record says a
+// sondeclim of this kind wrote it but whose manifests are gone.
+var ErrManifestLost = errors.New("store manifest missing")
+
+// checkManifestLost refuses a store that was written with a layout record
+// (so by a sondeclim that keeps manifests) but has no manifest any more:
+// the manifest says which files are in force, and without it stale and
+// partly written files cannot be told from live ones.
+func checkManifestLost(dir string) error {
+	l, err := readLayout(dir)
+	if err != nil || l == nil {
+		return err
+	}
+	return fmt.Errorf("%w: %s has a layout record (%s) but no manifest (%s): it was deleted or never committed. "+
+		"The manifest lists the files in force, so the store cannot be read or extended safely without it: restore it "+
+		"from a backup, or rebuild the store with `sondeclim ingest --store NEWDIR PATH...` (or delete %s and ingest again)",
+		ErrManifestLost, dir, layoutPath(dir), filepath.Join(dir, MetaDir, "manifest-*.json"), dir)
 }
