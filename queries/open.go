@@ -12,6 +12,7 @@ import (
 	"regexp"
 	"sort"
 	"strings"
+	"sync"
 
 	"github.com/duckdb/duckdb-go/v2"
 
@@ -65,15 +66,22 @@ func Open(ctx context.Context, storeDir string) (*sql.DB, error) {
 	if err != nil {
 		return nil, err
 	}
-	var locked bool
+	var (
+		mu     sync.Mutex
+		locked bool
+	)
 	conn, err := duckdb.NewConnector("", func(ex driver.ExecerContext) error {
+		mu.Lock()
+		defer mu.Unlock()
 		if locked {
 			return nil // the settings are the database's, made by the first connection
 		}
 		// Statements of one command often read the same files more than
 		// once (a climatology reads the soundings files twice); the store's
 		// files never change under a name, so their footers can be kept.
-		for _, set := range append([]string{"SET TimeZone = 'UTC'", "SET parquet_metadata_cache = true"}, offline...) {
+		// The time zone is set globally, for every connection, before the
+		// configuration is locked.
+		for _, set := range append([]string{"SET GLOBAL TimeZone = 'UTC'", "SET parquet_metadata_cache = true"}, offline...) {
 			if _, err := ex.ExecContext(context.Background(), set, nil); err != nil {
 				return fmt.Errorf("%s: %w", set, err)
 			}
