@@ -51,8 +51,8 @@ type Result struct {
 	Parcel     Parcel     // parcel mixing height from the surface temperature
 
 	// Sun at launch (package sun): geometric solar elevation in degrees,
-	// local apparent solar time in hours, and the class sun.Day,
-	// sun.Night, sun.Twilight or sun.Unknown (NaN position or no launch
+	// local apparent solar time in hours, and the class (one of
+	// sun.Classes; sun.Unknown for a NaN position or no launch
 	// time). Set for every sounding, analysable or not.
 	SunElevationDeg float64
 	LocalSolarTimeH float64

@@ -36,9 +36,10 @@ type Config struct {
 	// station elevation is unknown.
 	MaxSurfaceGapM float64
 
-	// Sun holds the solar-elevation thresholds of the day/night/twilight
-	// class. Default day above 10°, night below 0° (METHODS §8, from
-	// memory there).
+	// Sun holds the solar-elevation thresholds of the sun class: day above
+	// 10°, low sun 0–10°, civil twilight 0 to −6°, night below (package
+	// sun: the Astronomical Almanac's civil twilight; the 10° split from
+	// METHODS §8, from memory there).
 	Sun sun.Thresholds
 
 	Inversion    InversionConfig
@@ -104,9 +105,11 @@ type InversionConfig struct {
 // synoptic guidance; the thresholds are proposals there). The rules are
 // evaluated in this order and the first that holds gives the class:
 //
-//  1. radiation: surface-based; the launch is at night, or in twilight
-//     before RadiationMorningBeforeH local apparent solar time (early
-//     morning); surface wind speed ≤ RadiationMaxWindMS.
+//  1. radiation: surface-based; the sun is below the horizon at launch
+//     (civil twilight or night), or low (sun class low_sun) before
+//     RadiationMorningBeforeH local apparent solar time (early morning, when
+//     the night's inversion has not yet been mixed out); surface wind speed
+//     ≤ RadiationMaxWindMS.
 //  2. subsidence: elevated; drying upward, ΔDPD ≥ SubsidenceMinDPDIncreaseK
 //     or ΔRH ≤ SubsidenceMaxRHChangePct; and Δw ≤ SubsidenceMaxMixingRatioChangeKgKg.
 //  3. frontal: elevated; moistening upward, ΔDPD ≤ FrontalMaxDPDChangeK,

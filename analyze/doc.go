@@ -1,7 +1,7 @@
 // Package analyze derives boundary-layer diagnostics from one canonical
 // sounding: hypsometric heights for levels that lack them, per-level
 // potential temperature, virtual potential temperature and mixing ratio,
-// the sun's elevation and a day/night/twilight class at launch (sub-package
+// the sun's elevation and a day/low-sun/civil-twilight/night class at launch (sub-package
 // sun), every temperature inversion below the ceiling with its humidity
 // and wind changes and a documented class, every well-mixed layer, the
 // mixing height by several methods (parcel, virtual parcel, Heffter, bulk

@@ -168,7 +168,7 @@ type classContext struct {
 
 // ClassifyInversion returns the class of inversion v by the rules of
 // InversionClassConfig, evaluated in the documented order, given the sun
-// class of the launch (sun.Day, sun.Night, sun.Twilight or sun.Unknown),
+// class of the launch (one of sun.Classes),
 // the local apparent solar time in hours, the surface wind speed in m/s
 // and the tops of the sounding's well-mixed layers in m AGL. Missing
 // inputs (NaN, unknown sun class) never satisfy a rule. An absent
@@ -182,7 +182,7 @@ func classify(v Inversion, c classContext, cfg InversionClassConfig) string {
 		return ""
 	}
 	if v.SurfaceBased {
-		night := c.sunClass == sun.Night || (c.sunClass == sun.Twilight && c.solarTimeH < cfg.RadiationMorningBeforeH)
+		night := sun.Below(c.sunClass) || (c.sunClass == sun.LowSun && c.solarTimeH < cfg.RadiationMorningBeforeH)
 		if night && c.surfaceWindMS <= cfg.RadiationMaxWindMS {
 			return ClassRadiation
 		}

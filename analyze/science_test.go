@@ -68,8 +68,9 @@ func TestClassifyInversion(t *testing.T) {
 		want     string
 	}{
 		{"radiation at night", sbi, sun.Night, 3, 3, ClassRadiation},
-		{"radiation at dawn twilight", sbi, sun.Twilight, 6.5, 5, ClassRadiation},
-		{"evening twilight", sbi, sun.Twilight, 18, 3, ClassUnclassified},
+		{"radiation at low morning sun", sbi, sun.LowSun, 6.5, 5, ClassRadiation},
+		{"low evening sun", sbi, sun.LowSun, 18, 3, ClassUnclassified},
+		{"radiation in evening civil twilight", sbi, sun.CivilTwilight, 18.3, 3, ClassRadiation},
 		{"windy night", sbi, sun.Night, 3, 5.1, ClassUnclassified},
 		{"missing surface wind", sbi, sun.Night, 3, nan, ClassUnclassified},
 		{"day SBI", sbi, sun.Day, 12, 1, ClassUnclassified},

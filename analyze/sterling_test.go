@@ -164,8 +164,8 @@ func TestSterling2016(t *testing.T) {
 		t.Errorf("SBI frequency 12 UTC %.2f not much above 00 UTC %.2f", f12, f00)
 	}
 	// 12 UTC at 77.49 W is before or near sunrise in winter and after it in
-	// summer: both night/twilight and day classes occur.
-	if class[sun.Day] == 0 || class[sun.Night]+class[sun.Twilight] == 0 || class[sun.Unknown] != 0 {
+	// summer: both sun-below-horizon and day classes occur.
+	if class[sun.Day] == 0 || class[sun.Night]+class[sun.CivilTwilight] == 0 || class[sun.Unknown] != 0 {
 		t.Errorf("12 UTC sun classes %v", class)
 	}
 	if !(median(rib["JJA"]) > median(rib["DJF"])) || !(median(cons["JJA"]) > median(cons["DJF"])) {

@@ -26,7 +26,7 @@ const (
 	BySeason = "season" // DJF, MAM, JJA, SON
 	ByMonth  = "month"  // 1-12
 	ByHour   = "hour"   // nominal hour UTC
-	BySun    = "sun"    // sun class at launch: day, twilight, night, unknown
+	BySun    = "sun"    // sun class at launch: day, low_sun, civil_twilight, night, unknown
 )
 
 // Minimum sample sizes of METHODS §8 (proposals there, configurable here).

@@ -45,6 +45,6 @@ ORDER BY
     CASE k.season WHEN 'DJF' THEN 1 WHEN 'MAM' THEN 2 WHEN 'JJA' THEN 3 WHEN 'SON' THEN 4 ELSE 5 END,
     k.month,
     k.nominal_hour,
-    CASE k.sun_class WHEN 'day' THEN 1 WHEN 'twilight' THEN 2 WHEN 'night' THEN 3 ELSE 4 END,
+    CASE k.sun_class WHEN 'day' THEN 1 WHEN 'low_sun' THEN 2 WHEN 'civil_twilight' THEN 3 WHEN 'night' THEN 4 ELSE 5 END,
     k.ventilation_table,
     r.rank

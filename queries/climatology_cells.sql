@@ -117,4 +117,4 @@ ORDER BY
     CASE season WHEN 'DJF' THEN 1 WHEN 'MAM' THEN 2 WHEN 'JJA' THEN 3 WHEN 'SON' THEN 4 ELSE 5 END,
     month,
     nominal_hour,
-    CASE sun_class WHEN 'day' THEN 1 WHEN 'twilight' THEN 2 WHEN 'night' THEN 3 ELSE 4 END
+    CASE sun_class WHEN 'day' THEN 1 WHEN 'low_sun' THEN 2 WHEN 'civil_twilight' THEN 3 WHEN 'night' THEN 4 ELSE 5 END

@@ -9,7 +9,7 @@
 -- Parameters (bound, never pasted):
 --   $1  'season' or 'month': the period of a cell
 --   $2  'hour' or 'sun': the time of day of a cell (nominal hour UTC, or
---       the sun class day/night/twilight/unknown at launch)
+--       the sun class day/low_sun/civil_twilight/night/unknown at launch)
 --   $3  VARCHAR[] station ids to keep; an empty list keeps every station
 --   $4  first year kept, $5 last year kept (inclusive): season_year when
 --       $1 = 'season' (December counts with the following year's DJF,

@@ -62,7 +62,7 @@ type SoundingRow struct {
 
 	SunElevationDeg float64 `col:"sun_elevation_deg" doc:"degrees; geometric solar elevation at launch (Astronomical Almanac low-precision formulas)"`
 	LocalSolarTimeH float64 `col:"local_solar_time_h" doc:"h, 0-24; local apparent solar time at launch"`
-	SunClass        string  `col:"sun_class" doc:"day (sun above 10 deg), night (below 0 deg), twilight, or unknown (no position)"`
+	SunClass        string  `col:"sun_class" doc:"sun at launch: day (above 10 deg), low_sun (0 to 10 deg), civil_twilight (0 to -6 deg), night (below -6 deg), or unknown (no position)"`
 
 	SBIPresent       *bool   `col:"sbi_present" doc:"true when a surface-based temperature inversion is present; null when not analysable"`
 	SBITopAGLM       float64 `col:"sbi_top_agl_m" doc:"m above ground; top of the surface-based inversion"`

@@ -27,7 +27,7 @@ func (c *climatologyCmd) Run(ctx context.Context, args []string) error {
 Boundary-layer climatology of a store, one row per cell: station × period
 (--by season: DJF, MAM, JJA, SON, named winter/spring/summer/autumn, the
 names flipped south of the equator; --by month: 1-12) × time of day (--time
-hour: nominal hour UTC; --time sun: day, twilight or night at launch).
+hour: nominal hour UTC; --time sun: day, low_sun, civil_twilight or night at launch).
 
 Views (--table):
   summary      soundings attempted and valid, consensus mixing height

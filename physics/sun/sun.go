@@ -1,7 +1,7 @@
 // Package sun computes the sun's position for a radiosonde launch: solar
 // declination, equation of time, local apparent solar time and the solar
-// elevation angle, and classifies a launch as day, night or twilight
-// (transition) from that elevation.
+// elevation angle, and classifies a launch as day, low sun, civil twilight
+// or night from that elevation.
 //
 // The position uses the low-precision formulas of the Astronomical Almanac
 // (1996 edition, page C24): mean elements of the Earth's orbit with a
@@ -142,35 +142,67 @@ func ElevationDeg(t time.Time, latDeg, lonDeg float64) float64 {
 	return math.Asin(math.Max(-1, math.Min(1, s))) / deg
 }
 
-// Classes of a launch by solar elevation.
+// Classes of a launch by solar elevation, in the trade's words: twilight
+// is the sun below the horizon, civil twilight down to 6° below
+// (Astronomical Almanac definitions, as restated by glossaries and
+// observatory pages, e.g. metaglossary.com "civil twilight"); the sun low
+// above the horizon is not twilight.
 const (
-	Day      = "day"
-	Night    = "night"
-	Twilight = "twilight" // between the night and day thresholds (transition)
-	Unknown  = "unknown"  // position or time unknown
+	Day           = "day"            // sun higher than the low-sun band
+	LowSun        = "low_sun"        // sun above the horizon but low (default 0° to 10°)
+	CivilTwilight = "civil_twilight" // sun below the horizon, at most 6° (default)
+	Night         = "night"          // sun lower than civil twilight
+	Unknown       = "unknown"        // position or time unknown
 )
 
-// Thresholds bound the day/night classes in degrees of solar elevation.
-// The defaults (DefaultThresholds) are day above 10°, night below 0°,
-// twilight (transition) between (METHODS §8, from memory there).
+// Classes lists the sun classes from the highest sun to the lowest, then
+// Unknown: the order tables use.
+var Classes = []string{Day, LowSun, CivilTwilight, Night, Unknown}
+
+// Thresholds bound the sun classes in degrees of geometric solar
+// elevation (DefaultThresholds):
+//
+//   - day above DayAboveDeg (10°: the low-sun split of METHODS §8, from
+//     memory there; a sun this low heats the ground little, so morning
+//     surface inversions often persist);
+//   - low sun from HorizonDeg (0°) to DayAboveDeg;
+//   - civil twilight from NightBelowDeg (−6°, the Astronomical Almanac's
+//     civil twilight) to HorizonDeg;
+//   - night below NightBelowDeg.
+//
+// The elevation is geometric, without refraction: the almanac's sunrise
+// and sunset (upper limb on the refracted horizon) come at about −0.83°
+// geometric, so the 0° boundary falls a few minutes after sunrise and
+// before sunset at mid-latitudes.
 type Thresholds struct {
 	DayAboveDeg   float64
+	HorizonDeg    float64
 	NightBelowDeg float64
 }
 
-// DefaultThresholds returns day above 10°, night below 0°.
-func DefaultThresholds() Thresholds { return Thresholds{DayAboveDeg: 10, NightBelowDeg: 0} }
+// DefaultThresholds returns day above 10°, low sun 0° to 10°, civil
+// twilight −6° to 0°, night below −6°.
+func DefaultThresholds() Thresholds {
+	return Thresholds{DayAboveDeg: 10, HorizonDeg: 0, NightBelowDeg: -6}
+}
 
-// Classify returns Day when elevationDeg > DayAboveDeg, Night when it is
-// < NightBelowDeg, Twilight otherwise, and Unknown for NaN.
+// Classify returns Day when elevationDeg > DayAboveDeg, LowSun when it is
+// ≥ HorizonDeg, CivilTwilight when it is ≥ NightBelowDeg, Night below, and
+// Unknown for NaN.
 func (th Thresholds) Classify(elevationDeg float64) string {
 	switch {
 	case math.IsNaN(elevationDeg):
 		return Unknown
 	case elevationDeg > th.DayAboveDeg:
 		return Day
-	case elevationDeg < th.NightBelowDeg:
-		return Night
+	case elevationDeg >= th.HorizonDeg:
+		return LowSun
+	case elevationDeg >= th.NightBelowDeg:
+		return CivilTwilight
 	}
-	return Twilight
+	return Night
 }
+
+// Below reports whether a class is one of the sun below the horizon
+// (civil twilight or night).
+func Below(class string) bool { return class == CivilTwilight || class == Night }

@@ -111,14 +111,15 @@ func TestElevation(t *testing.T) {
 	tests := []struct {
 		h    float64
 		want string
-	}{{45, Day}, {10.5, Day}, {10, Twilight}, {0, Twilight}, {-0.1, Night}, {math.NaN(), Unknown}}
+	}{{45, Day}, {10.5, Day}, {10, LowSun}, {0, LowSun}, {-0.1, CivilTwilight}, {-6, CivilTwilight},
+		{-6.1, Night}, {math.NaN(), Unknown}}
 	for _, tt := range tests {
 		if got := th.Classify(tt.h); got != tt.want {
 			t.Errorf("Classify(%v) = %q, want %q", tt.h, got, tt.want)
 		}
 	}
-	// A US east-coast 12 UTC launch in January is before dawn (about
-	// 06:50 local mean time): night. Position unknown → NaN → unknown.
+	// A US east-coast 11 UTC launch in January is before dawn (about
+	// 05:50 local mean time): night. Position unknown → NaN → unknown.
 	jan := time.Date(2016, 1, 15, 11, 0, 0, 0, time.UTC)
 	if c := th.Classify(ElevationDeg(jan, lat, lon)); c != Night {
 		t.Errorf("January 11 UTC at Sterling: %q", c)
@@ -149,9 +150,10 @@ func TestLocalSolarDate(t *testing.T) {
 }
 
 // The class of a 12 UTC launch at an invented station at 38.98 N,
-// 77.49 W in January (before dawn: sunrise there is about 07:25 local
-// standard time in mid-January, from memory) and in July (about two hours
-// after sunrise).
+// 77.49 W in January (07:00 local standard time, before sunrise at about
+// 07:25 in mid-January and after the start of civil twilight about half an
+// hour earlier, both from memory) and in July (about two hours after
+// sunrise).
 func ExampleThresholds_Classify() {
 	th := DefaultThresholds()
 	for _, t := range []time.Time{
@@ -162,6 +164,6 @@ func ExampleThresholds_Classify() {
 		fmt.Printf("%s %.1f° %s\n", t.Format("2006-01-02 15:04"), h, th.Classify(h))
 	}
 	// Output:
-	// 2016-01-15 12:00 -5.7° night
+	// 2016-01-15 12:00 -5.7° civil_twilight
 	// 2016-07-15 12:00 21.6° day
 }
