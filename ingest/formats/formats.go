@@ -21,6 +21,7 @@ import (
 
 	"github.com/sondeclim/sondeclim/ingest"
 	"github.com/sondeclim/sondeclim/ingest/archivev2"
+	"github.com/sondeclim/sondeclim/ingest/bufr"
 	"github.com/sondeclim/sondeclim/ingest/netcdf"
 	"github.com/sondeclim/sondeclim/ingest/temp"
 	"github.com/sondeclim/sondeclim/ingest/tidycsv"
@@ -80,6 +81,11 @@ var registry = []Format{
 	}},
 	{tidycsv.Format, tidycsv.Sniff, func(r io.Reader, f, m string, _ Options) Reader {
 		return tidycsv.NewReader(r, ingest.Where(f, m))
+	}},
+	// BUFR before TEMP: a GTS bulletin of BUFR messages has heading
+	// lines too, and its content is binary.
+	{bufr.Format, bufr.Sniff, func(r io.Reader, f, m string, _ Options) Reader {
+		return bufr.NewReader(r, f, m)
 	}},
 	{temp.Format, temp.Sniff, func(r io.Reader, f, m string, opt Options) Reader {
 		return temp.NewReader(r, ingest.Where(f, m), temp.Options{Station: WMOLookup(opt.Stations)})
