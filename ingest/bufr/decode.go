@@ -331,7 +331,11 @@ func (d *decoder) replicate(group []uint16, count int, repeat bool) {
 // every subset the same factor.
 func (d *decoder) count(f uint16) int {
 	first, n := d.subsets()
+	before := len(d.out[first].Values)
 	d.element(f)
+	if len(d.out[first].Values) == before {
+		d.fail(ErrBadOperator, "replication factor %s gives no value (inside a 2 03 definition or after 2 21)", DescriptorString(f))
+	}
 	c := -1.0
 	for s := first; s < first+n; s++ {
 		vs := d.out[s].Values

@@ -310,7 +310,7 @@ func TestAgainstReferenceDecoder(t *testing.T) {
 				{"elevation", s.ElevationM, elev, 0.5},
 			} {
 				values++
-				if !close(c.got, c.want, c.tol) {
+				if !near(c.got, c.want, c.tol) {
 					fail("message %d: %s %v, reference %v", k+1, c.what, c.got, c.want)
 				}
 			}
@@ -378,7 +378,7 @@ func TestAgainstReferenceDecoder(t *testing.T) {
 					{"time since launch", l.ElapsedS, r.at("E", i), 0.5},       // 0 04 086: 1 s
 				} {
 					values++
-					if !close(c.got, c.want, c.tol) {
+					if !near(c.got, c.want, c.tol) {
 						fail("message %d level %d: %s %v, reference %v", k+1, j+1, c.what, c.got, c.want)
 					}
 				}
@@ -388,8 +388,8 @@ func TestAgainstReferenceDecoder(t *testing.T) {
 	}
 }
 
-// close compares two values that are both missing or within tol.
-func close(a, b, tol float64) bool {
+// near compares two values that are both missing or within tol.
+func near(a, b, tol float64) bool {
 	if math.IsNaN(a) || math.IsNaN(b) {
 		return math.IsNaN(a) && math.IsNaN(b)
 	}
