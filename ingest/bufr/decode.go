@@ -65,14 +65,49 @@ func (d *decoder) fail(reason error, format string, a ...any) {
 // (0 31 000/001/002) and delayed repetition (0 31 011/012), the operators
 // of Table C listed in the package documentation, and compression
 // (Regulation 94.6.3).
-func (m *Message) Decode() (subs []Subset, err error) {
+func (m *Message) Decode() ([]Subset, error) {
+	var dec Decoder
+	return dec.Decode(m)
+}
+
+// Decoder decodes messages reusing its buffers: the subsets one Decode
+// returns are valid until the next call. The zero value is ready to use.
+type Decoder struct {
+	d decoder
+}
+
+// Decode is Message.Decode with the decoder's buffers.
+func (dec *Decoder) Decode(m *Message) (subs []Subset, err error) {
 	t, err := wmoTables()
 	if err != nil {
 		return nil, err
 	}
-	d := &decoder{t: t, data: m.Data, end: len(m.Data) * 8, nsub: m.Subsets, comp: m.Compressed}
+	d := &dec.d
+	d.t, d.data, d.pos, d.end, d.nsub, d.comp = t, m.Data, 0, len(m.Data)*8, m.Subsets, m.Compressed
+	d.steps, d.nvals, d.cur = 0, 0, 0
 	d.maxSteps = 4*d.end + 1<<16
-	d.out = make([]Subset, m.Subsets)
+	if cap(d.out) < m.Subsets {
+		d.out = make([]Subset, m.Subsets)
+	}
+	d.out = d.out[:m.Subsets]
+	// Room for the values: an element takes at least one bit and
+	// radiosonde elements take 10 on average; in a compressed message each
+	// element's data are shared by all subsets.
+	per := d.end/10 + 64
+	if d.comp {
+		per = d.end/(10+6) + 64
+	}
+	per = min(per, maxValues)
+	for i := range d.out {
+		if cap(d.out[i].Values) < per || d.nsub > 1 {
+			d.out[i].Values = make([]Value, 0, min(per, 1<<12))
+			if d.nsub == 1 {
+				d.out[i].Values = make([]Value, 0, per)
+			}
+		}
+		d.out[i].Values = d.out[i].Values[:0]
+		d.out[i].Strings = d.out[i].Strings[:0]
+	}
 	defer func() {
 		if r := recover(); r != nil {
 			de, ok := r.(decodeError)
@@ -140,7 +175,7 @@ func (d *decoder) reset() {
 	d.skipLocal, d.notPresent = 0, 0
 	d.elems, d.elemBase, d.frozen = d.elems[:0], 0, false
 	d.collecting, d.bm, d.defineNext = false, d.bm[:0], false
-	d.defined, d.present, d.next = nil, nil, 0
+	d.defined, d.present, d.next = nil, d.present[:0], 0
 	d.nest, d.depth = 0, 0
 }
 
@@ -219,7 +254,8 @@ func (d *decoder) emit(s int, v Value) {
 		d.fail(ErrTooComplex, "more than %d values", maxValues)
 	}
 	v.Depth = uint8(d.depth)
-	d.out[s].Values = append(d.out[s].Values, v)
+	vs := &d.out[s].Values
+	*vs = append(*vs, v)
 }
 
 // subsets gives the range of subsets one element's data fills.
@@ -453,16 +489,14 @@ func (d *decoder) read(w, scale int, ref int64, missingOK bool, desc uint16, mar
 	if w == 64 {
 		ones = math.MaxUint64
 	}
-	conv := func(raw uint64) float64 {
-		if missingOK && w > 1 && raw == ones {
-			return math.NaN()
-		}
-		return scaled(int64(raw)+ref, scale)
-	}
 	if !d.comp {
 		raw := d.bits(w)
 		if !discard {
-			d.emit(d.cur, Value{V: conv(raw), Desc: desc, Mark: mark, Str: -1})
+			v := math.NaN()
+			if !missingOK || w == 1 || raw != ones {
+				v = scaled(int64(raw)+ref, scale)
+			}
+			d.emit(d.cur, Value{V: v, Desc: desc, Mark: mark, Str: -1})
 		}
 		return
 	}
@@ -472,7 +506,10 @@ func (d *decoder) read(w, scale int, ref int64, missingOK bool, desc uint16, mar
 		d.fail(ErrBadData, "increment width %d bits", nb)
 	}
 	if nb == 0 {
-		v := conv(r0)
+		v := math.NaN()
+		if !missingOK || w == 1 || r0 != ones {
+			v = scaled(int64(r0)+ref, scale)
+		}
 		for s := range d.nsub {
 			if !discard {
 				d.emit(s, Value{V: v, Desc: desc, Mark: mark, Str: -1})
@@ -599,19 +636,19 @@ func (d *decoder) quality(x, y int) {
 	switch {
 	case x == 35 && y == 0:
 		d.elemBase, d.frozen = len(d.elems), false
-		d.present, d.defined, d.next = nil, nil, 0
+		d.present, d.defined, d.next = d.present[:0], nil, 0
 	case x == 36 && y == 0:
 		d.defineNext = true
 	case x == 37 && y == 0:
 		if d.defined == nil {
 			d.fail(ErrBitmap, "2 37 000 reuses a bitmap none was defined")
 		}
-		d.present, d.next, d.collecting = d.defined, 0, false
+		d.present, d.next, d.collecting = append(d.present[:0], d.defined...), 0, false
 	case x == 37 && y == 255:
 		d.defined = nil
 	case y == 0:
 		d.collecting, d.bm, d.bmOp, d.frozen = true, d.bm[:0], len(d.elems), true
-		d.present, d.next = nil, 0
+		d.present, d.next = d.present[:0], 0
 	case y == 255 && x != 22:
 		d.statistic(x)
 	default:

@@ -23,6 +23,7 @@ type Reader struct {
 	file, member string
 	queue        []*sounding.Sounding
 	errs         []error
+	dec          Decoder
 }
 
 // NewReader returns a reader of r; file (and member, for a zip member)
@@ -64,7 +65,7 @@ func (r *Reader) Next() (*sounding.Sounding, error) {
 		if err != nil {
 			return nil, r.errAt(off, err)
 		}
-		subs, err := m.Decode()
+		subs, err := r.dec.Decode(m)
 		if err != nil {
 			return nil, r.errAt(off, err)
 		}
@@ -153,6 +154,7 @@ func toSounding(m *Message, sub *Subset) (*sounding.Sounding, error) {
 	elevGround, elevStn := math.NaN(), math.NaN()
 
 	var cur *level
+	var buf level
 	flush := func() {
 		if cur == nil {
 			return
@@ -194,6 +196,16 @@ func toSounding(m *Message, sub *Subset) (*sounding.Sounding, error) {
 		l.Status[v] = sounding.Reported
 	}
 	vs := sub.Values
+	n := 0
+	for i := range vs {
+		if vs[i].Mark == MarkOperator {
+			break
+		}
+		if vs[i].Mark == MarkIteration && vs[i].Depth == 1 {
+			n++
+		}
+	}
+	s.Levels = make([]sounding.Level, 0, n)
 	for i := range vs {
 		v := &vs[i]
 		if v.Mark == MarkOperator {
@@ -202,7 +214,8 @@ func toSounding(m *Message, sub *Subset) (*sounding.Sounding, error) {
 		if v.Mark == MarkIteration {
 			if v.Depth == 1 {
 				flush()
-				cur = &level{l: sounding.NewLevel(), sig: math.NaN()}
+				buf = level{l: sounding.NewLevel(), sig: math.NaN()}
+				cur = &buf
 			}
 			continue
 		}

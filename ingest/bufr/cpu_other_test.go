@@ -1,0 +1,5 @@
+//go:build !unix
+
+package bufr
+
+func cpuSeconds() float64 { return 0 }
