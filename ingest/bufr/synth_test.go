@@ -332,3 +332,22 @@ func TestStream(t *testing.T) {
 }
 
 func itoa(i int) string { return strconv.Itoa(i) }
+
+// TestSniff: a bare message, one behind a GTS heading, and text that
+// mentions BUFR without being a message.
+func TestSniff(t *testing.T) {
+	msg := edition4([]uint16{FXY(0, 1, 1)}, 1, false, []byte{0x50, 0})
+	for _, c := range []struct {
+		in   []byte
+		want bool
+	}{
+		{msg, true},
+		{append([]byte("\x01\r\r\n123\r\r\nIUSD01 EDZW 020000\r\r\n"), msg...), true},
+		{[]byte("station_id,launch_time_utc\nBUFR,2024-01-01T00:00:00Z\n"), false},
+		{[]byte("TTAA 52001 72403"), false},
+	} {
+		if got := Sniff(c.in); got != c.want {
+			t.Errorf("Sniff(%q…) = %v, want %v", c.in[:min(len(c.in), 20)], got, c.want)
+		}
+	}
+}

@@ -24,6 +24,8 @@ func TestDetectRealFiles(t *testing.T) {
 		{[]string{"archive-v2", "USM00074794-data-1950-portion.txt"}, "archive-v2"},
 		{[]string{"netcdf", "sgpsondewnpnC1.b1.20190101.053200.cdf"}, "netcdf-sonde"},
 		{[]string{"temp", "83746-2023-02-23-00Z.txt"}, "wmo-temp"},
+		{[]string{"bufr", "uegabe.bufr"}, "bufr"},
+		{[]string{"bufr", "pdbufr-temp-420.bufr"}, "bufr"},
 	} {
 		b := realdata.Text(t, c.path...)
 		prefix := b[:min(len(b), 4096)]
