@@ -373,6 +373,37 @@ func (r *run) buildPartition(key string, st *staged, prev *store.Partition) (_ *
 		return prev, stats, nil, nil
 	}
 
+	nLevels := 0
+	for _, s := range all {
+		nLevels += len(s.Levels)
+	}
+	levels, err := schema.NewRows[schema.LevelRow](nLevels)
+	if err != nil {
+		return nil, stats, nil, err
+	}
+	srows, rows, arows := r.analysePart(all, observed, levels, stats)
+	p.Soundings = len(srows)
+	batch := map[string]schema.Writer{
+		schema.TableSoundings:     schema.Slice(srows),
+		schema.TableLevels:        levels,
+		schema.TableInversions:    schema.Slice(rows.Inversions),
+		schema.TableMixedLayers:   schema.Slice(rows.MixedLayers),
+		schema.TableMixingHeights: schema.Slice(rows.MixingHeights),
+		schema.TableAfternoon:     schema.Slice(arows),
+		schema.TableQCFindings:    schema.Slice(rows.QCFindings),
+	}
+	if err := r.compareWithPrevious(prev, srows, stats); err != nil {
+		return nil, stats, nil, err
+	}
+	return p, stats, func() error { return r.writePartition(p, stats, batch) }, nil
+}
+
+// analysePart checks, deduplicates and analyses the copies all of one
+// station-year (in sortCopies order; observed holds each copy's
+// observation hash) and returns the rows of its tables, the level rows
+// appended to levels.
+func (r *run) analysePart(all []*sounding.Sounding, observed map[*sounding.Sounding]string, levels schema.LevelAppender,
+	stats *buildStats) (srows []schema.SoundingRow, rows schema.PartRows, arows []schema.AfternoonRow) {
 	t0 := time.Now()
 	reports := make(map[*sounding.Sounding]qc.Report, len(all))
 	for _, s := range all {
@@ -381,22 +412,13 @@ func (r *run) buildPartition(key string, st *staged, prev *store.Partition) (_ *
 	r.stage("qc", t0)
 	kept, dups := deduplicate(all, reports)
 	stats.duplicates = dups
-	p.Soundings = len(kept)
 
 	t0 = time.Now()
 	results := make([]result, len(kept))
 	stats.notAnalysable = map[string]int{}
-	nLevels := 0
-	for _, d := range kept {
-		nLevels += len(d.s.Levels)
-	}
-	levels, err := schema.NewRows[schema.LevelRow](nLevels)
-	if err != nil {
-		return nil, stats, nil, err
-	}
-	rows := schema.PartRows{Levels: levels,
+	rows = schema.PartRows{Levels: levels,
 		MixingHeights: make([]schema.MixingHeightRow, 0, len(kept)*len(analyze.Methods()))}
-	srows := make([]schema.SoundingRow, len(kept))
+	srows = make([]schema.SoundingRow, len(kept))
 	for i, d := range kept {
 		res := analyzeOne(d.s, reports[d.s], r.cfg, r.opt.UseSuspect, &rows)
 		res.sounding.SoundingHash = observed[d.s]
@@ -408,20 +430,9 @@ func (r *run) buildPartition(key string, st *staged, prev *store.Partition) (_ *
 			stats.notAnalysable[res.status]++
 		}
 	}
-	batch := map[string]schema.Writer{
-		schema.TableSoundings:     schema.Slice(srows),
-		schema.TableLevels:        rows.Levels,
-		schema.TableInversions:    schema.Slice(rows.Inversions),
-		schema.TableMixedLayers:   schema.Slice(rows.MixedLayers),
-		schema.TableMixingHeights: schema.Slice(rows.MixingHeights),
-		schema.TableAfternoon:     schema.Slice(afternoonRows(results, r.opt.DailyMaxima, analyze.DefaultPairingConfig())),
-		schema.TableQCFindings:    schema.Slice(rows.QCFindings),
-	}
+	arows = afternoonRows(results, r.opt.DailyMaxima, analyze.DefaultPairingConfig())
 	r.stage("analysis", t0)
-	if err := r.compareWithPrevious(prev, srows, stats); err != nil {
-		return nil, stats, nil, err
-	}
-	return p, stats, func() error { return r.writePartition(p, stats, batch) }, nil
+	return srows, rows, arows
 }
 
 // writePartition writes the files of partition p, one per registered

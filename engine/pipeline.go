@@ -189,16 +189,9 @@ func (r *run) note(s Skip) {
 	r.log.Info("note on input", "where", s.Where, "reason", s.Reason, "detail", s.Detail)
 }
 
-// Run ingests paths into the store at storeDir and returns a summary. It
-// returns an error only when the run could not be carried out (bad paths,
-// a locked or incompatible store, an unwritable directory); unreadable
-// input is reported in Summary.Skipped and does not stop the run.
-func Run(ctx context.Context, storeDir string, paths []string, opt Options) (*Summary, error) {
-	start := time.Now()
-	files, err := input.Expand(paths)
-	if err != nil {
-		return nil, err
-	}
+// newRun sets up the state of a run over files with the options' defaults
+// filled in.
+func newRun(ctx context.Context, storeDir string, files []string, opt Options) *run {
 	r := &run{ctx: ctx, dir: storeDir, opt: opt, workers: opt.Workers,
 		sum: &Summary{Inputs: files, NotAnalysable: map[string]int{}, Rows: map[string]int{}, StageSeconds: map[string]float64{}}}
 	if r.workers <= 0 {
@@ -216,6 +209,20 @@ func Run(ctx context.Context, storeDir string, paths []string, opt Options) (*Su
 	if r.log == nil {
 		r.log = slog.New(slog.DiscardHandler)
 	}
+	return r
+}
+
+// Run ingests paths into the store at storeDir and returns a summary. It
+// returns an error only when the run could not be carried out (bad paths,
+// a locked or incompatible store, an unwritable directory); unreadable
+// input is reported in Summary.Skipped and does not stop the run.
+func Run(ctx context.Context, storeDir string, paths []string, opt Options) (*Summary, error) {
+	start := time.Now()
+	files, err := input.Expand(paths)
+	if err != nil {
+		return nil, err
+	}
+	r := newRun(ctx, storeDir, files, opt)
 	paramsText, err := json.Marshal(struct {
 		Store, Derivation int
 		Analysis          analyze.Config

@@ -45,12 +45,22 @@ func Season(t time.Time) (code string, year int) {
 // soundings and afternoon_mixing, appended sounding by sounding so that
 // nothing is copied again before writing.
 type PartRows struct {
-	Levels        *Rows[LevelRow]
+	Levels        LevelAppender
 	Inversions    []InversionRow
 	MixedLayers   []MixedLayerRow
 	MixingHeights []MixingHeightRow
 	QCFindings    []QCFindingRow
 }
+
+// LevelAppender receives level rows: a *Rows[LevelRow] collects them for
+// writing, a *RowSlice[LevelRow] as structs.
+type LevelAppender interface{ Append(LevelRow) }
+
+// RowSlice collects rows as a slice of structs.
+type RowSlice[T any] []T
+
+// Append adds one row.
+func (s *RowSlice[T]) Append(row T) { *s = append(*s, row) }
 
 // AppendSounding appends the rows of the levels, qc_findings, inversions,
 // mixed_layers and mixing_heights tables of sounding s (with its QC report
@@ -250,4 +260,16 @@ func padPerLevel(r *analyze.Result, n int) {
 	for len(r.HeightDerived) < n {
 		r.HeightDerived = append(r.HeightDerived, false)
 	}
+}
+
+// RowSet holds rows of the store's tables in memory: what an ingest of the
+// same inputs writes, without the store (engine.Analyse).
+type RowSet struct {
+	Soundings     []SoundingRow
+	Levels        []LevelRow
+	Inversions    []InversionRow
+	MixedLayers   []MixedLayerRow
+	MixingHeights []MixingHeightRow
+	Afternoon     []AfternoonRow
+	QCFindings    []QCFindingRow
 }

@@ -2,7 +2,6 @@ package main
 
 import (
 	"context"
-	"database/sql"
 	"encoding/json"
 	"fmt"
 	"io"
@@ -18,6 +17,7 @@ import (
 	"github.com/sondeclim/sondeclim/engine"
 	"github.com/sondeclim/sondeclim/queries"
 	"github.com/sondeclim/sondeclim/queries/figures"
+	"github.com/sondeclim/sondeclim/schema"
 )
 
 func init() {
@@ -38,8 +38,8 @@ potential temperature and mixing ratio and the flags of quality control.
 
 The sounding is the one whose launch or nominal time is nearest to --time
 (UTC) within --within. With --file the sounding files are read through the
-same readers and analysis as "sondeclim ingest" (into a temporary store), so
-the values are identical to those a store would hold; --station and --time
+same readers and analysis as "sondeclim ingest" (in memory, without a
+store), so the values are identical to those a store would hold; --station and --time
 may be left out when the file holds one station or one sounding.
 
 Level flags: "z derived" is a height filled by hypsometric integration;
@@ -89,16 +89,10 @@ Level flags: "z derived" is a height filled by hypsometric integration;
 		return fmt.Errorf("profile: --station is required with --store: %w", errUsage)
 	}
 
+	var p *figures.Profile
 	skipped := false
-	dir := *store
 	if *file != "" {
-		tmp, err := os.MkdirTemp("", "sondeclim-profile-")
-		if err != nil {
-			return fmt.Errorf("profile: %w", err)
-		}
-		defer os.RemoveAll(tmp)
-		dir = filepath.Join(tmp, "store")
-		sum, err := engine.Run(ctx, dir, []string{*file}, engine.Options{Workers: 1})
+		rs, sum, err := engine.Analyse(ctx, []string{*file}, engine.Options{Workers: 1})
 		if err != nil {
 			return fmt.Errorf("profile: %w", err)
 		}
@@ -109,21 +103,25 @@ Level flags: "z derived" is a height filled by hypsometric integration;
 		if sum.Soundings == 0 {
 			return fmt.Errorf("profile: %s holds no sounding that could be read", *file)
 		}
-	}
-	db, err := queries.Open(ctx, dir)
-	if err != nil {
-		return fmt.Errorf("profile: %w", err)
-	}
-	defer db.Close()
-	if *file != "" && (*station == "" || *at == "") {
-		if err := c.pickOnly(ctx, db, *file, station, &when, within); err != nil {
-			return err
+		if *station == "" || *at == "" {
+			if err := pickOnly(rs.Soundings, *file, station, &when, within); err != nil {
+				return err
+			}
+		}
+		if p, err = figures.ProfileFromRows(rs, *station, when, *within); err != nil {
+			return fmt.Errorf("profile: %w", err)
+		}
+	} else {
+		db, err := queries.Open(ctx, *store)
+		if err != nil {
+			return fmt.Errorf("profile: %w", err)
+		}
+		defer db.Close()
+		if p, err = figures.LoadProfile(ctx, db, *station, when, *within); err != nil {
+			return fmt.Errorf("profile: %w", err)
 		}
 	}
-	p, err := figures.LoadProfile(ctx, db, *station, when, *within)
-	if err != nil {
-		return fmt.Errorf("profile: %w", err)
-	}
+	var err error
 	if *format == "json" {
 		err = writeProfileJSON(c.stdout, p)
 	} else {
@@ -143,17 +141,14 @@ Level flags: "z derived" is a height filled by hypsometric integration;
 	return nil
 }
 
-// pickOnly fills in the station and time when the file holds a single
-// station or a single sounding, and explains the choice otherwise.
-func (c *profileCmd) pickOnly(ctx context.Context, db *sql.DB, file string, station *string, when *time.Time, within *time.Duration) error {
-	t, err := queries.Query(ctx, db, "select station_id, launch_time from soundings order by station_id, launch_time")
-	if err != nil {
-		return fmt.Errorf("profile: %w", err)
-	}
+// pickOnly fills in the station and time when the file's soundings are
+// of a single station or are a single sounding, and explains the choice
+// otherwise.
+func pickOnly(rows []schema.SoundingRow, file string, station *string, when *time.Time, within *time.Duration) error {
 	stations := map[string]int{}
-	for _, r := range t.Rows {
-		if id, ok := r[0].(string); ok && (*station == "" || id == *station) {
-			stations[id]++
+	for _, r := range rows {
+		if *station == "" || r.StationID == *station {
+			stations[r.StationID]++
 		}
 	}
 	if *station == "" {
@@ -174,11 +169,9 @@ func (c *profileCmd) pickOnly(ctx context.Context, db *sql.DB, file string, stat
 		if n != 1 {
 			return fmt.Errorf("profile: %s holds %d soundings of %s; choose one with --time: %w", file, n, *station, errUsage)
 		}
-		for _, r := range t.Rows {
-			if r[0] == *station {
-				if lt, ok := r[1].(time.Time); ok {
-					*when, *within = lt, 0
-				}
+		for _, r := range rows {
+			if r.StationID == *station {
+				*when, *within = r.LaunchTime.UTC(), 0
 			}
 		}
 	}

@@ -39,7 +39,8 @@ func TestProfileSterling(t *testing.T) {
 	}
 
 	// From a store, the same sounding prints the same (the --file route
-	// goes through the same pipeline); 13 UTC is within 3 h of it.
+	// runs the same readers, checks and analysis, in memory); 13 UTC is
+	// within 3 h of it.
 	store := t.TempDir()
 	if code, _, errs := runCmd(t, "ingest", "--quiet", "--store", store, zip); code != exitOK {
 		t.Fatalf("ingest: exit %d\n%s", code, errs)
@@ -57,6 +58,12 @@ func TestProfileSterling(t *testing.T) {
 	code, js, errs := runCmd(t, "profile", "--store", store, "--station", "USM00072403", "--time", "2016-07-01T11:03", "--format", "json")
 	if code != exitOK {
 		t.Fatalf("profile --format json: exit %d\n%s", code, errs)
+	}
+	// The file read in memory gives the same JSON, value for value (every
+	// float, null and flag of the stored rows).
+	code, jsFile, errs := runCmd(t, "profile", "--file", zip, "--time", "2016-07-01T11:03", "--format", "json")
+	if code != exitOK || jsFile != js {
+		t.Errorf("profile --file --format json: exit %d, same as the store's: %v\n%s", code, jsFile == js, errs)
 	}
 	var p struct {
 		StationID  string           `json:"station_id"`
