@@ -208,7 +208,8 @@ func writePartition(dir, name string, sc *arrow.Schema, cols []Column, arrays fu
 			os.Remove(tmp.Name())
 		}
 	}()
-	bw := bufio.NewWriterSize(tmp, 1<<20)
+	bw := getFileWriter(tmp)
+	defer putFileWriter(bw)
 	if err := encode(bw, sc, cols, arrays); err != nil {
 		return "", fmt.Errorf("write %s: %w", tmp.Name(), err)
 	}

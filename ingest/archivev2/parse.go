@@ -58,7 +58,9 @@ func atoi(b []byte) (v int, ok bool) {
 	return v, true
 }
 
-// parseHeader reads a header record into a sounding without levels.
+// parseHeader reads a header record into a sounding without levels (and
+// without room reserved for them: the reader reserves it, the indexer,
+// which only needs the station and year, does not).
 //
 // Columns (1-based): ID 2–12, YEAR 14–17, MONTH 19–20, DAY 22–23, HOUR
 // 25–26, RELTIME 28–31, NUMLEV 33–36, P_SRC 38–45, NP_SRC 47–54, LAT 56–62,
@@ -127,7 +129,6 @@ func parseHeader(line []byte) (*sounding.Sounding, error) {
 		DeclaredLevels: numlev,
 		PressureSource: strings.TrimSpace(string(field(line, 38, 45))),
 		HeightSource:   strings.TrimSpace(string(field(line, 47, 54))),
-		Levels:         make([]sounding.Level, 0, min(numlev, 256)),
 	}
 	s.NominalTime, s.LaunchTime, s.NominalHourInferred, s.LaunchTimeReported =
 		nominalAndLaunch(year, time.Month(month), day, hour, relMin)

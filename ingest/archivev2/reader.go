@@ -170,6 +170,7 @@ func (r *Reader) Next() (*sounding.Sounding, error) {
 	}
 	if s != nil {
 		s.Source = sounding.Source{File: r.file, Member: r.member, Line: hdrLine, Format: Format}
+		s.Levels = make([]sounding.Level, 0, min(s.DeclaredLevels, 256))
 	}
 
 	count, badLine := 0, 0
