@@ -128,6 +128,15 @@ func AppendSounding(out *PartRows, s *sounding.Sounding, rep qc.Report, res *ana
 		VentilationCat:   res.Ventilation.Category,
 		VentilationTable: res.Ventilation.Table,
 		VentilationMH:    res.Ventilation.HeightMethod,
+
+		HeatDeficitMJ:   res.HeatDeficit.JPerM2 / 1e6,
+		HeatDeficitRef:  res.HeatDeficit.Reference,
+		HeatDeficitTopM: res.HeatDeficit.TopAGLM,
+		StableFraction:  res.StableFraction,
+	}
+	if !math.IsNaN(res.StableFraction) {
+		deep := res.DeepStable
+		row.DeepStable = &deep
 	}
 	if i := res.SurfaceIndex; i >= 0 {
 		l := s.Levels[i]

@@ -151,7 +151,8 @@ func TestStoreRowTypes(t *testing.T) {
 		t.Fatal(err)
 	}
 	types := []reflect.Type{reflect.TypeFor[SoundingRow](), reflect.TypeFor[LevelRow](), reflect.TypeFor[InversionRow](),
-		reflect.TypeFor[MixedLayerRow](), reflect.TypeFor[MixingHeightRow](), reflect.TypeFor[AfternoonRow](), reflect.TypeFor[QCFindingRow]()}
+		reflect.TypeFor[MixedLayerRow](), reflect.TypeFor[MixingHeightRow](), reflect.TypeFor[AfternoonRow](), reflect.TypeFor[QCFindingRow](),
+		reflect.TypeFor[DayRow](), reflect.TypeFor[EpisodeRow](), reflect.TypeFor[EpisodeDayRow]()}
 	if len(tables) != len(types) {
 		t.Fatalf("%d tables documented, want %d", len(tables), len(types))
 	}

@@ -95,6 +95,12 @@ type SoundingRow struct {
 	VentilationCat   string  `col:"ventilation_category" doc:"category of ventilation_index_m2s in the table named by ventilation_table"`
 	VentilationTable string  `col:"ventilation_table" doc:"name of the category table used"`
 	VentilationMH    string  `col:"ventilation_height_method" doc:"mixing-height method whose height feeds the ventilation index"`
+
+	HeatDeficitMJ   float64 `col:"heat_deficit_mj_m2" doc:"MJ/m2; heat deficit from the surface to the reference height h, cp * integral of rho (theta(h) - theta) dz: the heat needed to mix the layer out to theta(h) (negative when the layer is superadiabatic)"`
+	HeatDeficitRef  string  `col:"heat_deficit_reference" doc:"reference height of heat_deficit_mj_m2: agl_<m>m (above ground), msl_<m>m (above sea level) or p_<hPa>hpa (pressure level)"`
+	HeatDeficitTopM float64 `col:"heat_deficit_top_agl_m" doc:"m above ground; the reference height placed on this sounding"`
+	StableFraction  float64 `col:"stable_layer_fraction" doc:"0-1; fraction of the lowest layer (default 1.5 km above ground) whose lapse rate is at most 2.5 K/km (Wolyn and McKee 1989)"`
+	DeepStable      *bool   `col:"deep_stable_layer" doc:"true when stable_layer_fraction is at least 0.65 (a deep stable layer, Wolyn and McKee 1989); null when not computable"`
 }
 
 // InversionRow is one row of the `inversions` table: one inversion layer of

@@ -50,6 +50,23 @@ var tables = []Table{
 		reflect.TypeFor[QCFindingRow](), false},
 }
 
+// derivedTables are documented like the store's tables but built when
+// queried (package queries, AttachEpisodes), never written by the engine:
+// see rows_episodes.go.
+var derivedTables = []Table{
+	{TableDays, "One row per station and local solar day with an analysable sounding: the morning and afternoon/evening values the episode rules use. Derived when queried, over each station's whole record.",
+		reflect.TypeFor[DayRow](), false},
+	{TableEpisodes, "One row per episode: a run of consecutive local days meeting a rule at one station, with its length, missing days and extremes. Derived when queried, over each station's whole record.",
+		reflect.TypeFor[EpisodeRow](), false},
+	{TableEpisodeDays, "One row per day inside an episode, met or missing. Derived when queried.",
+		reflect.TypeFor[EpisodeDayRow](), false},
+}
+
+// DerivedTables returns the tables built when queried, in order.
+func DerivedTables() []Table {
+	return append([]Table(nil), derivedTables...)
+}
+
 // AllTables returns the table registry, in order.
 func AllTables() []Table {
 	out := make([]Table, len(tables))
@@ -85,10 +102,11 @@ func checkRowType(table string, row reflect.Type) error {
 	return nil
 }
 
-// Tables returns the documentation of the registered tables, in order.
+// Tables returns the documentation of the registered tables, in order,
+// followed by the derived tables (DerivedTables).
 func Tables() ([]TableDoc, error) {
-	out := make([]TableDoc, 0, len(tables))
-	for _, t := range tables {
+	out := make([]TableDoc, 0, len(tables)+len(derivedTables))
+	for _, t := range append(AllTables(), derivedTables...) {
 		cols, err := columnsOf(t.Row)
 		if err != nil {
 			return nil, err

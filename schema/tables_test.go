@@ -30,6 +30,12 @@ func TestTableRegistry(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
+	for _, tb := range DerivedTables() {
+		names = append(names, tb.Name)
+	}
+	if len(docs) != len(names) {
+		t.Fatalf("%d tables documented, registry and derived tables %d", len(docs), len(names))
+	}
 	for i, d := range docs {
 		if d.Name != names[i] {
 			t.Errorf("schema document table %d is %s, registry has %s", i, d.Name, names[i])

@@ -22,7 +22,10 @@ func (c *queryCmd) Run(ctx context.Context, args []string) error {
 	fs := newFlags("query", "--store DIR [--format text|csv|json] \"SQL\"", `
 Run one SQL statement (DuckDB dialect) over a store. Each table of the store
 is visible as a view of the same name: soundings (one row per sounding) and
-levels (one row per level). Use "-" as the SQL to read it from stdin.
+levels (one row per level), and so on (sondeclim schema lists them). The
+tables days, episodes and episode_days are computed over each station's
+whole record when the SQL names them. Use "-" as the SQL to read it from
+stdin.
 
 The SQL is yours and runs with your own file access: like any DuckDB
 session it can read and write files you can (COPY ... TO, read_csv), so run
@@ -30,6 +33,7 @@ only SQL you trust. It stays offline: extensions are neither installed nor
 loaded automatically, INSTALL cannot download, and the settings that
 allow it are locked.`,
 		`  sondeclim query --store ./store "select count(*) from soundings"
+  sondeclim query --store ./store "select criterion, count(*), max(length_days) from episodes group by 1"
   sondeclim query --store ./store --format csv \
     "select station_id, launch_time, sbi_strength_k from soundings where sbi_present order by 3 desc limit 10"`,
 		c.stderr)
@@ -61,6 +65,11 @@ allow it are locked.`,
 		return fmt.Errorf("query: %w", err)
 	}
 	defer db.Close()
+	if queries.MentionsEpisodeTables(sql) {
+		if _, err := queries.AttachEpisodes(ctx, db, queries.DefaultEpisodeOptions()); err != nil {
+			return fmt.Errorf("query: %w", err)
+		}
+	}
 	t, err := queries.Query(ctx, db, strings.TrimSpace(sql))
 	if err != nil {
 		return fmt.Errorf("query: %w", err)

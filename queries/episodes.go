@@ -1,0 +1,233 @@
+package queries
+
+import (
+	"context"
+	"database/sql"
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"time"
+
+	"github.com/sondeclim/sondeclim/analyze"
+	"github.com/sondeclim/sondeclim/schema"
+)
+
+// EpisodeOptions sets how days are formed and which episode rules are
+// evaluated (AttachEpisodes).
+type EpisodeOptions struct {
+	Days analyze.DayConfig
+	// Criteria are evaluated in order; nil means analyze.BuiltinCriteria.
+	Criteria []analyze.Criterion
+}
+
+// DefaultEpisodeOptions returns the documented defaults of package analyze.
+func DefaultEpisodeOptions() EpisodeOptions {
+	return EpisodeOptions{Days: analyze.DefaultDayConfig()}
+}
+
+// EpisodeCounts summarises what AttachEpisodes built.
+type EpisodeCounts struct {
+	Soundings, Days, Episodes, EpisodeDays int
+}
+
+// AttachEpisodes builds the tables days, episodes and episode_days (package
+// schema: DayRow, EpisodeRow, EpisodeDayRow) in db from the soundings and
+// afternoon_mixing views, replacing earlier ones. Days and episodes are
+// computed per station over its whole record (analyze.BuildDays and
+// analyze.FindEpisodes), so an episode spanning a year boundary or an
+// append is one episode, and the result does not depend on how the store
+// was partitioned, on worker counts or on input order.
+//
+// A store written before the heat-deficit columns existed is an error
+// asking for a re-ingest.
+func AttachEpisodes(ctx context.Context, db *sql.DB, o EpisodeOptions) (EpisodeCounts, error) {
+	var n EpisodeCounts
+	criteria := o.Criteria
+	if criteria == nil {
+		criteria = analyze.BuiltinCriteria()
+	}
+	for _, c := range criteria {
+		if err := c.Validate(); err != nil {
+			return n, err
+		}
+	}
+	obs, err := readDayObs(ctx, db)
+	if err != nil {
+		return n, err
+	}
+	n.Soundings = len(obs)
+	holz, err := readHolzworth(ctx, db)
+	if err != nil {
+		return n, err
+	}
+	days := analyze.BuildDays(obs, holz, o.Days)
+	n.Days = len(days)
+	dayRows := make([]schema.DayRow, len(days))
+	for i, d := range days {
+		season, sy := seasonOf(d.Date)
+		dayRows[i] = schema.DayRow{StationID: d.StationID, LocalDate: d.Date, Year: int32(d.Date.Year()),
+			Month: int32(d.Date.Month()), Season: season, SeasonYear: int32(sy), Soundings: int32(d.Soundings),
+			HasMorning: d.Morning >= 0, HasAfternoon: d.Afternoon >= 0,
+			MorningSBI: d.MorningSBI.Bool(), MorningSBIK: d.MorningSBIStrengthK, AfternoonSBI: d.AfternoonSBI.Bool(),
+			SBIPersists: d.SBIPersists(0).Bool(), MorningHDMJ: d.MorningHeatDeficitJ / 1e6, MaxHDMJ: d.MaxHeatDeficitJ / 1e6,
+			StableFraction: d.StableFraction, DeepStable: d.DeepStable.Bool(), AfternoonMHM: d.AfternoonMHM,
+			AfternoonMHFrom: d.AfternoonMHSource, AfternoonWindMS: d.AfternoonWindMS, AfternoonVentM2S: d.VentilationM2S}
+	}
+	var epRows []schema.EpisodeRow
+	var edRows []schema.EpisodeDayRow
+	for _, c := range criteria {
+		eps, err := analyze.FindEpisodes(days, c)
+		if err != nil {
+			return n, err
+		}
+		for _, e := range eps {
+			season, sy := seasonOf(e.First)
+			epRows = append(epRows, schema.EpisodeRow{StationID: e.StationID, Criterion: e.Criterion,
+				FirstDay: e.First, LastDay: e.Last, Year: int32(e.First.Year()), Month: int32(e.First.Month()),
+				Season: season, SeasonYear: int32(sy), LengthDays: int32(e.LengthDays), DaysMet: int32(e.DaysMet),
+				DaysMissing: int32(e.DaysMissing), Soundings: int32(e.Soundings), OpenStart: e.OpenStart, OpenEnd: e.OpenEnd,
+				PeakHDMJ: e.PeakHeatDeficitJ / 1e6, LowestMHM: e.LowestAfternoonMHM, LowestVent: e.LowestVentilationM2S})
+			for _, d := range e.Days {
+				st := "met"
+				if d.Status != analyze.Yes {
+					st = "missing"
+				}
+				edRows = append(edRows, schema.EpisodeDayRow{StationID: e.StationID, Criterion: e.Criterion,
+					FirstDay: e.First, LocalDate: d.Date, Status: st})
+			}
+		}
+	}
+	n.Episodes, n.EpisodeDays = len(epRows), len(edRows)
+	dir, err := os.MkdirTemp("", "sondeclim-episodes-")
+	if err != nil {
+		return n, fmt.Errorf("queries: episodes: %w", err)
+	}
+	defer os.RemoveAll(dir)
+	if err := materialize(ctx, db, dir, schema.TableDays, dayRows); err != nil {
+		return n, err
+	}
+	if err := materialize(ctx, db, dir, schema.TableEpisodes, epRows); err != nil {
+		return n, err
+	}
+	return n, materialize(ctx, db, dir, schema.TableEpisodeDays, edRows)
+}
+
+// materialize writes rows as a Parquet file with the table's documented
+// columns and loads it into db as a table of that name.
+func materialize[T any](ctx context.Context, db *sql.DB, dir, table string, rows []T) error {
+	f := filepath.Join(dir, table+".parquet")
+	if err := schema.WriteFile(f, table, rows, false); err != nil {
+		return fmt.Errorf("queries: %s: %w", table, err)
+	}
+	lit := "'" + strings.ReplaceAll(filepath.ToSlash(f), "'", "''") + "'"
+	if _, err := db.ExecContext(ctx, fmt.Sprintf(`DROP VIEW IF EXISTS "%s"`, table)); err != nil {
+		return fmt.Errorf("queries: %s: %w", table, err)
+	}
+	if _, err := db.ExecContext(ctx, fmt.Sprintf(`CREATE OR REPLACE TABLE "%s" AS SELECT * FROM read_parquet(%s)`, table, lit)); err != nil {
+		return fmt.Errorf("queries: %s: %w", table, err)
+	}
+	return nil
+}
+
+// readDayObs reads the analysable soundings' per-day inputs.
+func readDayObs(ctx context.Context, db *sql.DB) ([]analyze.DayObs, error) {
+	rows, err := db.QueryContext(ctx, `SELECT station_id, launch_time, longitude_deg, coalesce(sbi_present, false),
+		sbi_strength_k, heat_deficit_mj_m2, stable_layer_fraction, mixing_height_parcel_m, transport_wind_ms
+		FROM soundings WHERE analysis_status = 'ok'`)
+	if err != nil {
+		if strings.Contains(err.Error(), "heat_deficit") || strings.Contains(err.Error(), "stable_layer") {
+			return nil, fmt.Errorf("queries: episodes: the store predates the heat-deficit columns; ingest the inputs again (sondeclim ingest --store DIR PATH...): %w", err)
+		}
+		return nil, fmt.Errorf("queries: episodes: %w", err)
+	}
+	defer rows.Close()
+	var out []analyze.DayObs
+	for rows.Next() {
+		var o analyze.DayObs
+		var lon, sbiK, hd, sf, mh, wind sql.NullFloat64
+		if err := rows.Scan(&o.StationID, &o.LaunchTime, &lon, &o.SBIPresent, &sbiK, &hd, &sf, &mh, &wind); err != nil {
+			return nil, fmt.Errorf("queries: episodes: %w", err)
+		}
+		o.LaunchTime = o.LaunchTime.UTC()
+		o.LongitudeDeg, o.SBIStrengthK, o.StableFraction = nullNaN(lon), nullNaN(sbiK), nullNaN(sf)
+		o.HeatDeficitJ, o.ParcelMHM, o.TransportWindMS = nullNaN(hd)*1e6, nullNaN(mh), nullNaN(wind)
+		out = append(out, o)
+	}
+	return out, rows.Err()
+}
+
+// readHolzworth reads the defined afternoon (Holzworth) mixing heights.
+func readHolzworth(ctx context.Context, db *sql.DB) (map[analyze.DayKey]float64, error) {
+	rows, err := db.QueryContext(ctx, `SELECT station_id, local_date,
+		CASE WHEN status = 'surface' THEN 0 ELSE height_agl_m END
+		FROM afternoon_mixing WHERE status IN ('ok', 'surface')`)
+	if err != nil {
+		return nil, fmt.Errorf("queries: episodes: afternoon mixing heights: %w", err)
+	}
+	defer rows.Close()
+	out := map[analyze.DayKey]float64{}
+	for rows.Next() {
+		var st string
+		var d time.Time
+		var h sql.NullFloat64
+		if err := rows.Scan(&st, &d, &h); err != nil {
+			return nil, fmt.Errorf("queries: episodes: %w", err)
+		}
+		if h.Valid {
+			out[analyze.DayKey{StationID: st, Date: d.UTC()}] = h.Float64
+		}
+	}
+	return out, rows.Err()
+}
+
+func nullNaN(v sql.NullFloat64) float64 {
+	if !v.Valid {
+		return math.NaN()
+	}
+	return v.Float64
+}
+
+// seasonOf returns the meteorological season of a date and the year it
+// belongs to (December with the following year's DJF; METHODS §8).
+func seasonOf(t time.Time) (string, int) {
+	y := t.Year()
+	switch t.Month() {
+	case time.December:
+		return "DJF", y + 1
+	case time.January, time.February:
+		return "DJF", y
+	case time.March, time.April, time.May:
+		return "MAM", y
+	case time.June, time.July, time.August:
+		return "JJA", y
+	}
+	return "SON", y
+}
+
+// MentionsEpisodeTables reports whether SQL text names one of the tables
+// AttachEpisodes builds, so that a command running user SQL builds them
+// only when they are used.
+func MentionsEpisodeTables(sqlText string) bool {
+	s := strings.ToLower(sqlText)
+	for _, t := range []string{schema.TableDays, schema.TableEpisodes, schema.TableEpisodeDays} {
+		for i := strings.Index(s, t); i >= 0; {
+			before := i == 0 || !identChar(s[i-1])
+			after := i+len(t) >= len(s) || !identChar(s[i+len(t)])
+			if before && after {
+				return true
+			}
+			j := strings.Index(s[i+1:], t)
+			if j < 0 {
+				break
+			}
+			i += 1 + j
+		}
+	}
+	return false
+}
+
+func identChar(c byte) bool {
+	return c == '_' || c >= 'a' && c <= 'z' || c >= '0' && c <= '9'
+}
