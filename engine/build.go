@@ -71,6 +71,24 @@ func (r *run) ingest(files []string, old *store.Manifest, full bool, paramsText 
 		}
 	}
 
+	// Partitions the inputs leave alone are checked for damage (a file
+	// missing, of another size than committed, or, with Verify, of
+	// another checksum) and rebuilt from their inputs when damaged.
+	r.damaged = map[string]bool{}
+	if !full {
+		for _, k := range slices.Sorted(maps.Keys(old.Partitions)) {
+			if affected[k] {
+				continue
+			}
+			for _, d := range old.Partitions[k].Damage(r.dir, k, r.opt.Verify) {
+				r.damaged[k], affected[k] = true, true
+				r.note(Skip{Where: d.File, Reason: "damaged_store_file",
+					Detail: fmt.Sprintf("%s: %s (%s); partition %s is rebuilt from its inputs", d.File, d.Problem, d.Detail, k)})
+			}
+		}
+		changed = changed || len(r.damaged) > 0
+	}
+
 	// Unchanged inputs that share an affected partition are read again,
 	// for that partition only, so the partition is rebuilt whole.
 	if !full {
@@ -367,7 +385,7 @@ func (r *run) buildPartition(key string, st *staged, prev *store.Partition) (_ *
 	for _, t := range schema.TableNames() {
 		p.Files[t] = filepath.Join(store.PartitionDir(t, station, year), fileName)
 	}
-	if prev != nil && prev.ContentHash == hash && filesExist(r.dir, prev.Files) {
+	if prev != nil && prev.ContentHash == hash && !r.damaged[key] && len(prev.Damage(r.dir, key, r.opt.Verify)) == 0 {
 		stats.unchanged = true
 		stats.duplicates = len(all) - prev.Soundings
 		return prev, stats, nil, nil
@@ -446,9 +464,18 @@ func (r *run) writePartition(p *store.Partition, stats *buildStats, batch map[st
 		if !ok {
 			return fmt.Errorf("no rows collected for table %s", table)
 		}
-		if err := rows.WriteFile(filepath.Join(r.dir, p.Files[table]), table, false); err != nil {
+		path := filepath.Join(r.dir, p.Files[table])
+		if err := rows.WriteFile(path, table, false); err != nil {
 			return err
 		}
+		sum, err := store.SumFile(path)
+		if err != nil {
+			return err
+		}
+		if p.Sums == nil {
+			p.Sums = map[string]store.FileSum{}
+		}
+		p.Sums[table] = sum
 		stats.rows[table] += rows.Len()
 		stats.files = append(stats.files, p.Files[table])
 	}
@@ -465,9 +492,13 @@ func (r *run) compareWithPrevious(prev *store.Partition, rows []schema.SoundingR
 		if f, ok := prev.Files[schema.TableSoundings]; ok {
 			k, err := schema.ReadSoundingKeys(filepath.Join(r.dir, f))
 			if err != nil {
-				return fmt.Errorf("previous partition file: %w", err)
+				// A damaged previous file is replaced; its soundings
+				// cannot be compared, so they count as new.
+				r.note(Skip{Where: f, Reason: "damaged_store_file",
+					Detail: fmt.Sprintf("%s: previous file unreadable (%v); rebuilt, its soundings counted as new", f, err)})
+			} else {
+				before = k
 			}
-			before = k
 		}
 	}
 	for _, row := range rows {
@@ -485,15 +516,6 @@ func (r *run) compareWithPrevious(prev *store.Partition, rows []schema.SoundingR
 	}
 	stats.removed = len(before)
 	return nil
-}
-
-func filesExist(dir string, files map[string]string) bool {
-	for _, f := range files {
-		if _, err := os.Stat(filepath.Join(dir, f)); err != nil {
-			return false
-		}
-	}
-	return true
 }
 
 // kept is a sounding chosen among copies of the same identity.

@@ -70,6 +70,10 @@ type Options struct {
 	// Full ignores the manifest and rebuilds every partition the inputs
 	// touch; partitions of this shard that no input touches are dropped.
 	Full bool
+	// Verify checks the SHA-256 of every committed file of the partitions
+	// the run would leave alone, not only that each exists with its
+	// recorded size; damaged partitions are rebuilt from their inputs.
+	Verify bool
 	// Wait waits for another writer's lock instead of failing.
 	Wait bool
 	// QC is the quality-control configuration; nil means qc.DefaultConfig().
@@ -162,6 +166,8 @@ type run struct {
 	workers int
 	sum     *Summary
 	staging string
+
+	damaged map[string]bool // partitions whose committed files are damaged: rebuilt, never kept
 
 	mu        sync.Mutex // guards sum.Skipped, sum.Notes, sum.Members, sum.SoundingsRead, filesRead
 	filesRead int        // input files staged so far, for progress

@@ -7,6 +7,7 @@ import (
 	"io/fs"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"syscall"
 	"testing"
@@ -368,3 +369,92 @@ func TestDeletedManifest(t *testing.T) {
 		}
 	}
 }
+
+// TestDamageDetected: a truncated soundings file, a levels file with one
+// flipped byte and a deleted file are each named by verify (exit 3, with
+// the problem); ingest rebuilds the missing and truncated ones on its own
+// and, with --verify, the altered one, after which the store verifies clean
+// and every table equals that of a store built once from the same inputs.
+func TestDamageDetected(t *testing.T) {
+	root := t.TempDir()
+	in := filepath.Join(root, "in")
+	if err := os.MkdirAll(in, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	for i := range 2 {
+		if _, _, err := synth.WriteFile(in, synth.Config{Seed: 5, StartYear: 2003, Years: 2, StationIndex: i}); err != nil {
+			t.Fatal(err)
+		}
+	}
+	st, clean := filepath.Join(root, "store"), filepath.Join(root, "clean")
+	mustIngest(t, "--store", st, in)
+	mustIngest(t, "--store", clean, in)
+	code, out, _ := runCmd(t, "verify", "--store", st)
+	if code != exitOK || !strings.HasPrefix(out, "28 files checked, 0 damaged") {
+		t.Fatalf("fresh store: exit %d\n%s", code, out)
+	}
+	ms, _ := store.ReadAll(st)
+	keys := []string{}
+	for k := range ms[0].Partitions {
+		keys = append(keys, k)
+	}
+	if len(keys) != 4 {
+		t.Fatalf("%d partitions, want 4", len(keys))
+	}
+	sortStrings(keys)
+	file := func(k, table string) string { return filepath.Join(st, ms[0].Partitions[k].Files[table]) }
+	truncated, flipped, deleted := file(keys[0], "soundings"), file(keys[1], "levels"), file(keys[2], "mixing_heights")
+	b, _ := os.ReadFile(truncated)
+	writeFile(t, truncated, string(b[:len(b)/2]))
+	b, _ = os.ReadFile(flipped)
+	b[len(b)/3] ^= 0x10
+	writeFile(t, flipped, string(b))
+	os.Remove(deleted)
+
+	code, out, _ = runCmd(t, "verify", "--store", st)
+	if code != exitSkipped {
+		t.Errorf("damaged store: exit %d, want %d", code, exitSkipped)
+	}
+	for f, problem := range map[string]string{truncated: "size", flipped: "checksum", deleted: "missing"} {
+		rel, _ := filepath.Rel(st, f)
+		found := false
+		for _, l := range strings.Split(out, "\n") {
+			found = found || strings.HasPrefix(l, "damaged: "+rel+" (partition ") && strings.Contains(l, "): "+problem+": ")
+		}
+		if !found {
+			t.Errorf("verify does not name %s as %s:\n%s", rel, problem, out)
+		}
+	}
+	if !strings.Contains(out, "28 files checked, 3 damaged") {
+		t.Errorf("verify summary:\n%s", out)
+	}
+	// Presence and size are checked by every ingest.
+	sum := filepath.Join(root, "sum.json")
+	code, _, errs := runCmd(t, "ingest", "--quiet", "--summary-json", sum, "--store", st, in)
+	if code != exitOK {
+		t.Fatalf("repairing ingest: exit %d\n%s", code, errs)
+	}
+	if s := readSummary(t, sum); s.PartitionsWritten != 2 {
+		t.Errorf("ingest rebuilt %d partitions, want 2 (truncated and missing files)", s.PartitionsWritten)
+	}
+	code, out, _ = runCmd(t, "verify", "--store", st)
+	if code != exitSkipped || !strings.Contains(out, "1 damaged") {
+		t.Errorf("after a plain ingest the altered file remains: exit %d\n%s", code, out)
+	}
+	code, _, errs = runCmd(t, "ingest", "--quiet", "--verify", "--summary-json", sum, "--store", st, in)
+	if code != exitOK {
+		t.Fatalf("ingest --verify: exit %d\n%s", code, errs)
+	}
+	if s := readSummary(t, sum); s.PartitionsWritten != 1 || len(s.Notes) == 0 || s.Notes[0].Reason != "damaged_store_file" {
+		t.Errorf("ingest --verify: %d partitions rebuilt, notes %+v; want 1 and a damaged_store_file note", s.PartitionsWritten, s.Notes)
+	}
+	code, out, _ = runCmd(t, "verify", "--store", st)
+	if code != exitOK || !strings.Contains(out, "0 damaged") {
+		t.Errorf("after repair: exit %d\n%s", code, out)
+	}
+	if dump(t, st) != dump(t, clean) {
+		t.Errorf("the repaired store differs from a clean one")
+	}
+}
+
+func sortStrings(s []string) { slices.Sort(s) }

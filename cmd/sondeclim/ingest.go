@@ -76,6 +76,7 @@ error; 3 done, but some input was skipped (data lost).`,
 	stations := fs.String("stations", "", "station list `file` (archive-v2 layout) for names, positions and elevations")
 	quiet := fs.Bool("quiet", false, "print only warnings and the summary's last line (for schedulers)")
 	full := fs.Bool("full", false, "ignore what was ingested before and rebuild every partition from the inputs given")
+	verify := fs.Bool("verify", false, "check the SHA-256 of every store file the run would leave alone (always: presence and size) and rebuild damaged partitions")
 	wait := fs.Bool("wait", false, "wait for another ingest into the same store to finish instead of failing")
 	shard := fs.String("shard", "", "write only the stations of shard `K/N` (stations are assigned by a hash of their id)")
 	dailyMax := fs.String("daily-max", "", "CSV `file` of daily maximum temperatures (station_id,date,tmax_c; date local YYYY-MM-DD) for the afternoon (Holzworth) mixing height; without it, the same day's afternoon sounding is used")
@@ -107,7 +108,7 @@ error; 3 done, but some input was skipped (data lost).`,
 	if err != nil {
 		return fmt.Errorf("ingest: %v: %w", err, errUsage)
 	}
-	opt := engine.Options{Workers: *workers, Format: *format, Log: log, Shard: sh, Full: *full, Wait: *wait, UseSuspect: *useSuspect}
+	opt := engine.Options{Workers: *workers, Format: *format, Log: log, Shard: sh, Full: *full, Verify: *verify, Wait: *wait, UseSuspect: *useSuspect}
 	if *dailyMax != "" {
 		f, err := os.Open(*dailyMax)
 		if err != nil {

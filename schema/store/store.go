@@ -110,6 +110,10 @@ type Partition struct {
 	Soundings int               `json:"soundings"`
 	// Inputs lists the input files whose soundings are in the partition.
 	Inputs []string `json:"inputs"`
+	// Sums maps a table name to the size and SHA-256 of its file, so
+	// that a truncated, altered or missing file is detected (Damage).
+	// Partitions written before sums were recorded have none.
+	Sums map[string]FileSum `json:"sums,omitempty"`
 }
 
 // Manifest is the committed state of one shard of a store.
