@@ -24,6 +24,7 @@ type Reader struct {
 	queue        []*sounding.Sounding
 	errs         []error
 	dec          Decoder
+	messages     int // messages found, good or bad
 }
 
 // NewReader returns a reader of r; file (and member, for a zip member)
@@ -52,8 +53,15 @@ func (r *Reader) Next() (*sounding.Sounding, error) {
 		}
 		b, off, err := r.sc.Next()
 		if err == io.EOF {
+			if r.messages == 0 {
+				// Never silent: an input forced to this format that holds
+				// no message at all is named once.
+				r.messages = -1
+				return nil, r.errAt(0, fmt.Errorf("%w: no BUFR message in the input", ingest.ErrUnknownInput))
+			}
 			return nil, io.EOF
 		}
+		r.messages++
 		if err != nil {
 			var fe *FrameError
 			if errors.As(err, &fe) {
@@ -71,6 +79,11 @@ func (r *Reader) Next() (*sounding.Sounding, error) {
 		}
 		for k := range subs {
 			s, err := toSounding(m, &subs[k])
+			if err != nil && m.Category != 2 && errors.Is(err, ingest.ErrNoData) {
+				// Table A category 2 is "vertical soundings (other than
+				// satellite)"; other messages are not for this reader.
+				err = fmt.Errorf("%w: %w: data category %d (Table A), not a vertical sounding", ingest.ErrUnsupported, ErrNotRadiosonde, m.Category)
+			}
 			if err != nil {
 				if len(subs) > 1 {
 					err = fmt.Errorf("subset %d of %d: %w", k+1, len(subs), err)

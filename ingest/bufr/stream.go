@@ -2,7 +2,6 @@ package bufr
 
 import (
 	"bytes"
-	"errors"
 	"fmt"
 	"io"
 )
@@ -143,5 +142,3 @@ func Sniff(prefix []byte) bool {
 		p = p[i+4:]
 	}
 }
-
-var errNoProfile = errors.New("no profile")

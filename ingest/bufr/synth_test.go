@@ -351,3 +351,25 @@ func TestSniff(t *testing.T) {
 		}
 	}
 }
+
+// TestNothingSilent: an input with no message at all, and a message of
+// another data category (Table A: 0 = surface data, land) without a
+// profile, are each reported, never dropped silently.
+func TestNothingSilent(t *testing.T) {
+	r := NewReader(strings.NewReader("no messages here"), "x.txt", "")
+	if _, err := r.Next(); !errors.Is(err, ingest.ErrUnknownInput) {
+		t.Errorf("input without messages: %v, want ErrUnknownInput", err)
+	}
+	if _, err := r.Next(); err != io.EOF {
+		t.Errorf("then %v, want io.EOF", err)
+	}
+	var w bitWriter
+	w.put(10, 7)
+	w.put(123, 10)
+	msg := edition4([]uint16{FXY(3, 1, 1)}, 1, false, w.b)
+	msg[8+10] = 0 // Section 1 octet 11: data category 0
+	r = NewReader(bytes.NewReader(msg), "synop.bufr", "")
+	if _, err := r.Next(); !errors.Is(err, ErrNotRadiosonde) || !errors.Is(err, ingest.ErrUnsupported) {
+		t.Errorf("surface message: %v, want ErrNotRadiosonde", err)
+	}
+}
