@@ -77,7 +77,10 @@
 //     (0 11 061/0 11 062, 3 03 051) are not levels.
 //   - Kind from 0 08 042 (or 0 08 001): bit 1 surface, bit 2 standard
 //     level, otherwise significant (temperature, humidity or wind); bit 3
-//     sets Tropopause. A level without pressure is wind-only.
+//     sets Tropopause. A level without pressure is wind-only. Standard
+//     levels with a pressure higher than the surface level's lie below the
+//     ground (the sender extrapolated them) and are dropped, as the TEMP
+//     reader does.
 //   - Missing values stay NaN with status Missing. The latitude and
 //     longitude displacement of each level (0 05 015, 0 06 015 in 3 09 057)
 //     are decoded but not kept: the sounding model has no per-level

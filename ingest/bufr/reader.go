@@ -328,6 +328,7 @@ func toSounding(m *Message, sub *Subset) (*sounding.Sounding, error) {
 		cur.any = true
 	}
 	flush()
+	dropBelowGround(s)
 
 	switch {
 	case !math.IsNaN(block) && !math.IsNaN(station) && block >= 0 && block < 100 && station >= 0 && station < 1000:
@@ -366,4 +367,28 @@ func mkTime(y, mo, d, h, mi, sec float64) (time.Time, bool) {
 	}
 	whole := math.Floor(sec)
 	return time.Date(int(y), time.Month(mo), int(d), int(h), int(mi), int(whole), int((sec-whole)*1e9), time.UTC), true
+}
+
+// dropBelowGround removes standard levels whose pressure is higher than
+// the surface level's: the sender extrapolated them below the ground (as
+// the TEMP reader does; WMO-No. 306 FM 35 reports them the same way).
+func dropBelowGround(s *sounding.Sounding) {
+	ps := math.NaN()
+	for _, l := range s.Levels {
+		if l.Kind == sounding.KindSurface && !math.IsNaN(l.PressurePa) {
+			ps = l.PressurePa
+			break
+		}
+	}
+	if math.IsNaN(ps) {
+		return
+	}
+	out := s.Levels[:0]
+	for _, l := range s.Levels {
+		if l.Kind == sounding.KindStandard && l.PressurePa > ps {
+			continue
+		}
+		out = append(out, l)
+	}
+	s.Levels = out
 }
