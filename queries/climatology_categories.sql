@@ -42,9 +42,9 @@ SELECT
 FROM k JOIN r USING (ventilation_table, category)
 ORDER BY
     k.station_id,
-    CASE k.season WHEN 'DJF' THEN 1 WHEN 'MAM' THEN 2 WHEN 'JJA' THEN 3 WHEN 'SON' THEN 4 ELSE 5 END,
+    season_rank(k.season),
     k.month,
     k.nominal_hour,
-    CASE k.sun_class WHEN 'day' THEN 1 WHEN 'low_sun' THEN 2 WHEN 'civil_twilight' THEN 3 WHEN 'night' THEN 4 ELSE 5 END,
+    sun_class_rank(k.sun_class),
     k.ventilation_table,
     r.rank

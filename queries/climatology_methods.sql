@@ -51,9 +51,9 @@ SELECT
 FROM c
 ORDER BY
     station_id,
-    CASE season WHEN 'DJF' THEN 1 WHEN 'MAM' THEN 2 WHEN 'JJA' THEN 3 WHEN 'SON' THEN 4 ELSE 5 END,
+    season_rank(season),
     month,
     nominal_hour,
-    CASE sun_class WHEN 'day' THEN 1 WHEN 'low_sun' THEN 2 WHEN 'civil_twilight' THEN 3 WHEN 'night' THEN 4 ELSE 5 END,
+    sun_class_rank(sun_class),
     method_rank(method),
     method

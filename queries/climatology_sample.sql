@@ -25,11 +25,7 @@ SELECT
     s.station_id,
     CASE WHEN $1 = 'season' THEN s.season END AS season,
     CASE WHEN $1 = 'season' THEN
-        CASE WHEN avg(s.latitude_deg) OVER (PARTITION BY s.station_id) < 0 THEN
-            CASE s.season WHEN 'DJF' THEN 'summer' WHEN 'MAM' THEN 'autumn' WHEN 'JJA' THEN 'winter' WHEN 'SON' THEN 'spring' END
-        ELSE
-            CASE s.season WHEN 'DJF' THEN 'winter' WHEN 'MAM' THEN 'spring' WHEN 'JJA' THEN 'summer' WHEN 'SON' THEN 'autumn' END
-        END
+        season_name(s.season, avg(s.latitude_deg) OVER (PARTITION BY s.station_id))
     END AS season_name,
     CASE WHEN $1 = 'month' THEN s.month END AS month,
     CASE WHEN $2 = 'hour' THEN s.nominal_hour END AS nominal_hour,

@@ -46,5 +46,5 @@ SELECT s.* EXCLUDE (q),
 FROM stats s
 JOIN below b USING (station_id, season, sbi_rank, source)
 ORDER BY station_id,
-    CASE season WHEN 'DJF' THEN 1 WHEN 'MAM' THEN 2 WHEN 'JJA' THEN 3 WHEN 'SON' THEN 4 ELSE 5 END,
+    season_rank(season),
     sbi_rank, source DESC, below_m

@@ -38,5 +38,5 @@ SELECT station_id, season, season_name, tmax_from_c, tmax_to_c, n_days, n, n_und
     q[1] AS p10_m, q[2] AS p25_m, q[3] AS p50_m, q[4] AS p75_m, q[5] AS p90_m, note
 FROM g
 ORDER BY station_id,
-    CASE season WHEN 'DJF' THEN 1 WHEN 'MAM' THEN 2 WHEN 'JJA' THEN 3 WHEN 'SON' THEN 4 ELSE 5 END,
+    season_rank(season),
     tmax_from_c

@@ -37,11 +37,7 @@ morning AS (
     SELECT
         a.station_id,
         m.season,
-        CASE WHEN m.station_lat < 0 THEN
-            CASE m.season WHEN 'DJF' THEN 'summer' WHEN 'MAM' THEN 'autumn' WHEN 'JJA' THEN 'winter' WHEN 'SON' THEN 'spring' END
-        ELSE
-            CASE m.season WHEN 'DJF' THEN 'winter' WHEN 'MAM' THEN 'spring' WHEN 'JJA' THEN 'summer' WHEN 'SON' THEN 'autumn' END
-        END AS season_name,
+        season_name(m.season, m.station_lat) AS season_name,
         m.season_year,
         CAST(a.local_date AS DATE) AS local_day,
         CASE WHEN m.sbi_present THEN len(list_filter($4::DOUBLE[], l -> l <= m.sbi_strength_k)) + 1 ELSE 0 END AS sbi_rank,

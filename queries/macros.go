@@ -5,24 +5,60 @@ import (
 	"strings"
 
 	"github.com/sondeclim/sondeclim/analyze"
+	"github.com/sondeclim/sondeclim/physics/sun"
+	"github.com/sondeclim/sondeclim/schema"
 )
 
 // macros returns the CREATE MACRO statements Open runs on every store: the
 // SQL fragments that several queries share, defined once here. Their
 // values come from the Go definitions they mirror.
 //
-//	method_rank(m)   sort key of a mixing-height method: 0 for 'consensus',
-//	                 then the analyze method registry's order; unknown
-//	                 names after every known one
+//	method_rank(m)          sort key of a mixing-height method: 0 for
+//	                        'consensus', then the analyze method registry's
+//	                        order; unknown names after every known one
+//	season_rank(s)          sort key of a season code: schema.Seasons order
+//	                        (DJF first), anything else last
+//	season_name(s, lat)     the season's common name (schema.SeasonName),
+//	                        flipped when lat (degrees north) is below 0
+//	sun_class_rank(c)       sort key of a sun class: sun.Classes order (day
+//	                        first), anything else last
 func macros() []string {
-	var b strings.Builder
-	b.WriteString("CREATE MACRO method_rank(m) AS CASE m WHEN 'consensus' THEN 0")
-	names := analyze.MethodNames()
-	for i, name := range names {
-		fmt.Fprintf(&b, " WHEN %s THEN %d", sqlString(name), i+1)
+	names := append([]string{analyze.HeightConsensus}, analyze.MethodNames()...)
+	north, south := map[string]string{}, map[string]string{}
+	for _, code := range schema.Seasons {
+		north[code], south[code] = schema.SeasonName(code, false), schema.SeasonName(code, true)
 	}
-	fmt.Fprintf(&b, " ELSE %d END", len(names)+1)
-	return []string{b.String()}
+	return []string{
+		"CREATE MACRO method_rank(m) AS " + rankCase("m", names, 0),
+		"CREATE MACRO season_rank(s) AS " + rankCase("s", schema.Seasons, 1),
+		"CREATE MACRO season_name(s, lat) AS CASE WHEN lat < 0 THEN " + mapCase("s", schema.Seasons, south) +
+			" ELSE " + mapCase("s", schema.Seasons, north) + " END",
+		"CREATE MACRO sun_class_rank(c) AS " + rankCase("c", sun.Classes, 1),
+	}
+}
+
+// rankCase is a CASE expression giving values[i] the rank first+i and any
+// other value first+len(values).
+func rankCase(arg string, values []string, first int) string {
+	var b strings.Builder
+	fmt.Fprintf(&b, "CASE %s", arg)
+	for i, v := range values {
+		fmt.Fprintf(&b, " WHEN %s THEN %d", sqlString(v), first+i)
+	}
+	fmt.Fprintf(&b, " ELSE %d END", first+len(values))
+	return b.String()
+}
+
+// mapCase is a CASE expression mapping each of keys to m[key] (NULL for
+// any other value).
+func mapCase(arg string, keys []string, m map[string]string) string {
+	var b strings.Builder
+	fmt.Fprintf(&b, "CASE %s", arg)
+	for _, k := range keys {
+		fmt.Fprintf(&b, " WHEN %s THEN %s", sqlString(k), sqlString(m[k]))
+	}
+	b.WriteString(" END")
+	return b.String()
 }
 
 // sqlString quotes s as a SQL string literal.

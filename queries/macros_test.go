@@ -40,3 +40,39 @@ func TestMethodRank(t *testing.T) {
 		prev = rank
 	}
 }
+
+// TestSeasonAndSunMacros checks the season and sun-class macros: DJF to
+// SON in calendar order, names flipped for lat < 0 (METHODS §8: "for
+// southern-hemisphere stations (lat < 0), label DJF summer and JJA winter"),
+// and the sun classes from day to night, unknown and anything else after.
+func TestSeasonAndSunMacros(t *testing.T) {
+	db, err := sql.Open("duckdb", "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer db.Close()
+	for _, m := range macros() {
+		if _, err := db.Exec(m); err != nil {
+			t.Fatalf("%s: %v", m, err)
+		}
+	}
+	var got string
+	err = db.QueryRow(`SELECT string_agg(s || ':' || season_name(s, 45.0) || '/' || season_name(s, -33.9), ' ' ORDER BY season_rank(s))
+		FROM (VALUES ('JJA'), ('XYZ'), ('SON'), ('DJF'), ('MAM')) t(s) WHERE s <> 'XYZ'`).Scan(&got)
+	if want := "DJF:winter/summer MAM:spring/autumn JJA:summer/winter SON:autumn/spring"; err != nil || got != want {
+		t.Errorf("seasons %q (%v), want %q", got, err, want)
+	}
+	var unknown, djf int
+	if err := db.QueryRow(`SELECT season_rank('XYZ'), season_rank('DJF')`).Scan(&unknown, &djf); err != nil || unknown <= djf+3 {
+		t.Errorf("season_rank: unknown %d, DJF %d (%v)", unknown, djf, err)
+	}
+	var null sql.NullString
+	if err := db.QueryRow(`SELECT season_name(NULL, 10)`).Scan(&null); err != nil || null.Valid {
+		t.Errorf("season_name(NULL) = %v (%v)", null, err)
+	}
+	err = db.QueryRow(`SELECT string_agg(c, ' ' ORDER BY sun_class_rank(c), c)
+		FROM (VALUES ('night'), ('zz'), ('unknown'), ('day'), ('civil_twilight'), ('low_sun')) t(c)`).Scan(&got)
+	if want := "day low_sun civil_twilight night unknown zz"; err != nil || got != want {
+		t.Errorf("sun classes %q (%v), want %q", got, err, want)
+	}
+}

@@ -53,5 +53,5 @@ SELECT s.station_id, s.season, s.nominal_hour, s.season_year,
 FROM s JOIN lv USING (station_id, season_year)
 GROUP BY s.station_id, s.season, s.nominal_hour, s.season_year
 ORDER BY s.station_id,
-    CASE s.season WHEN 'DJF' THEN 1 WHEN 'MAM' THEN 2 WHEN 'JJA' THEN 3 WHEN 'SON' THEN 4 ELSE 5 END,
+    season_rank(s.season),
     s.nominal_hour, s.season_year

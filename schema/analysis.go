@@ -23,6 +23,22 @@ const (
 func hPa(pa float64) float64 { return pa / paPerHPa }
 func degC(k float64) float64 { return k - thermo.ZeroCelsiusK }
 
+// Seasons are the meteorological season codes of the season column, in
+// calendar order from December (METHODS §8, common convention).
+var Seasons = []string{"DJF", "MAM", "JJA", "SON"}
+
+// SeasonName returns the common name of a season code in the northern
+// hemisphere (DJF winter, MAM spring, JJA summer, SON autumn), or in the
+// southern one, where the names are those of the opposite season; "" for
+// an unknown code.
+func SeasonName(code string, southern bool) string {
+	names := map[string]string{"DJF": "winter", "MAM": "spring", "JJA": "summer", "SON": "autumn"}
+	if southern {
+		names = map[string]string{"DJF": "summer", "MAM": "autumn", "JJA": "winter", "SON": "spring"}
+	}
+	return names[code]
+}
+
 // Season returns the meteorological season code (DJF, MAM, JJA, SON) of a
 // month and the year it belongs to: December counts with the following
 // year's DJF (METHODS §8, common convention).

@@ -15,6 +15,8 @@ import (
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
+
+	"github.com/sondeclim/sondeclim/schema"
 )
 
 //go:embed *.sql
@@ -464,8 +466,9 @@ func binIndex(v, w float64) int {
 	return int(math.Floor(v / w))
 }
 
-// Seasons lists the meteorological seasons in calendar order.
-var Seasons = []string{"DJF", "MAM", "JJA", "SON"}
+// Seasons lists the meteorological seasons in calendar order
+// (schema.Seasons).
+var Seasons = schema.Seasons
 
 // SBIStrengthFigure draws four histograms of surface-based inversion
 // strength, one per season, with bins of binK kelvin (binK ≤ 0 means 1 K)
