@@ -102,17 +102,18 @@ type DayRecord struct {
 	Morning   int       // index in the input of the morning sounding, −1 when none
 	Afternoon int       // index of the afternoon/evening sounding, −1 when none
 
-	MorningSBI          Tri     // SBI on the morning sounding
-	MorningSBIStrengthK float64 // K, NaN without one
-	AfternoonSBI        Tri     // SBI on the afternoon/evening sounding
-	MorningHeatDeficitJ float64 // J m⁻², morning sounding
-	MaxHeatDeficitJ     float64 // J m⁻², largest of the day's soundings
-	StableFraction      float64 // morning sounding, 0–1
-	DeepStable          Tri     // StableFraction ≥ MinStableFraction (Wolyn & McKee 1989)
-	AfternoonMHM        float64 // m AGL, NaN unknown
-	AfternoonMHSource   string  // AfternoonFromHolzworth, AfternoonFromSounding or ""
-	AfternoonWindMS     float64 // m/s, transport wind of the afternoon sounding
-	VentilationM2S      float64 // m² s⁻¹, AfternoonMHM × AfternoonWindMS
+	MorningSBI            Tri     // SBI on the morning sounding
+	MorningSBIStrengthK   float64 // K, NaN without one
+	AfternoonSBI          Tri     // SBI on the afternoon/evening sounding
+	MorningHeatDeficitJ   float64 // J m⁻², morning sounding
+	AfternoonHeatDeficitJ float64 // J m⁻², afternoon/evening sounding
+	MaxHeatDeficitJ       float64 // J m⁻², largest of the day's soundings
+	StableFraction        float64 // morning sounding, 0–1
+	DeepStable            Tri     // StableFraction ≥ MinStableFraction (Wolyn & McKee 1989)
+	AfternoonMHM          float64 // m AGL, NaN unknown
+	AfternoonMHSource     string  // AfternoonFromHolzworth, AfternoonFromSounding or ""
+	AfternoonWindMS       float64 // m/s, transport wind of the afternoon sounding
+	VentilationM2S        float64 // m² s⁻¹, AfternoonMHM × AfternoonWindMS
 }
 
 // SBIPersists reports whether a morning SBI of at least minStrengthK is
@@ -132,6 +133,13 @@ func (d DayRecord) SBIPersists(minStrengthK float64) Tri {
 		return No
 	}
 	return m.And(d.AfternoonSBI)
+}
+
+// DayHeatDeficitJ returns the smaller of the morning and afternoon heat
+// deficits (J m⁻²): what is left of the pool after the day's heating, NaN
+// unless both are known.
+func (d DayRecord) DayHeatDeficitJ() float64 {
+	return math.Min(d.MorningHeatDeficitJ, d.AfternoonHeatDeficitJ) // NaN if either is
 }
 
 // BuildDays groups soundings into local solar days (sun.LocalSolarDate)
@@ -166,7 +174,7 @@ func BuildDays(obs []DayObs, holzworth map[DayKey]float64, cfg DayConfig) []DayR
 	for _, k := range keys {
 		idx := byDay[k]
 		d := DayRecord{StationID: k.StationID, Date: k.Date, Soundings: len(idx), Morning: -1, Afternoon: -1,
-			MorningSBIStrengthK: math.NaN(), MorningHeatDeficitJ: math.NaN(), MaxHeatDeficitJ: math.NaN(),
+			MorningSBIStrengthK: math.NaN(), MorningHeatDeficitJ: math.NaN(), AfternoonHeatDeficitJ: math.NaN(), MaxHeatDeficitJ: math.NaN(),
 			StableFraction: math.NaN(), AfternoonMHM: math.NaN(), AfternoonWindMS: math.NaN(), VentilationM2S: math.NaN()}
 		best := func(cur, i int, target float64) int {
 			if cur < 0 {
@@ -211,6 +219,7 @@ func BuildDays(obs []DayObs, holzworth map[DayKey]float64, cfg DayConfig) []DayR
 		if d.Afternoon >= 0 {
 			a := obs[d.Afternoon]
 			d.AfternoonSBI = TriOf(a.SBIPresent)
+			d.AfternoonHeatDeficitJ = a.HeatDeficitJ
 			if math.IsNaN(d.AfternoonMHM) && !math.IsNaN(a.ParcelMHM) {
 				d.AfternoonMHM, d.AfternoonMHSource = a.ParcelMHM, AfternoonFromSounding
 			}

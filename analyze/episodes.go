@@ -21,10 +21,12 @@ type Criterion struct {
 	PersistentSBI          bool
 	MinMorningSBIStrengthK float64 // K; used with PersistentSBI (NaN or 0: any SBI)
 	DeepStable             bool    // the morning deep stable layer of Wolyn & McKee (1989)
-	MinHeatDeficitMJ       float64 // MJ m⁻², morning sounding
-	MaxAfternoonMHM        float64 // m AGL
-	MaxAfternoonWindMS     float64 // m/s
-	MaxVentilationM2S      float64 // m² s⁻¹
+	// MinHeatDeficitMJ: the smaller of the morning and afternoon heat
+	// deficits (DayRecord.DayHeatDeficitJ) is at least this, MJ m⁻².
+	MinHeatDeficitMJ   float64
+	MaxAfternoonMHM    float64 // m AGL
+	MaxAfternoonWindMS float64 // m/s
+	MaxVentilationM2S  float64 // m² s⁻¹
 
 	// MinDays is the least number of days meeting the rule in an episode
 	// (missing days inside do not count towards it). MaxGapDays is the
@@ -57,7 +59,9 @@ const (
 //   - deep_stable_layer_wolyn_mckee1989: at least 65 % of the lowest
 //     1.5 km of the morning sounding has a lapse rate ≤ 2.5 K/km (Wolyn &
 //     McKee 1989, Mon. Wea. Rev., abstract), on consecutive days.
-//   - heat_deficit_pool: the morning heat deficit is at least 4.04 MJ m⁻²
+//   - heat_deficit_pool: the heat deficit of both the morning and the
+//     afternoon/evening sounding is at least 4.04 MJ m⁻², so the pool
+//     outlasts the day's heating
 //     (the Salt Lake Valley threshold quoted in METHODS §3, from memory
 //     there; it belongs to a reference height near the valley's rim, so
 //     set HeatDeficitConfig and this threshold together for a basin).
@@ -117,7 +121,7 @@ func (c Criterion) Evaluate(d DayRecord) Tri {
 		r = r.And(d.DeepStable)
 	}
 	if t := c.MinHeatDeficitMJ; !math.IsNaN(t) {
-		r = r.And(cmp(d.MorningHeatDeficitJ/1e6, func(v float64) bool { return v >= t }))
+		r = r.And(cmp(d.DayHeatDeficitJ()/1e6, func(v float64) bool { return v >= t }))
 	}
 	if t := c.MaxAfternoonMHM; !math.IsNaN(t) {
 		r = r.And(cmp(d.AfternoonMHM, func(v float64) bool { return v <= t }))

@@ -71,7 +71,8 @@ func AttachEpisodes(ctx context.Context, db *sql.DB, o EpisodeOptions) (EpisodeC
 			Month: int32(d.Date.Month()), Season: season, SeasonYear: int32(sy), Soundings: int32(d.Soundings),
 			HasMorning: d.Morning >= 0, HasAfternoon: d.Afternoon >= 0,
 			MorningSBI: d.MorningSBI.Bool(), MorningSBIK: d.MorningSBIStrengthK, AfternoonSBI: d.AfternoonSBI.Bool(),
-			SBIPersists: d.SBIPersists(0).Bool(), MorningHDMJ: d.MorningHeatDeficitJ / 1e6, MaxHDMJ: d.MaxHeatDeficitJ / 1e6,
+			SBIPersists: d.SBIPersists(0).Bool(), MorningHDMJ: d.MorningHeatDeficitJ / 1e6,
+			AfternoonHDMJ: d.AfternoonHeatDeficitJ / 1e6, MaxHDMJ: d.MaxHeatDeficitJ / 1e6,
 			StableFraction: d.StableFraction, DeepStable: d.DeepStable.Bool(), AfternoonMHM: d.AfternoonMHM,
 			AfternoonMHFrom: d.AfternoonMHSource, AfternoonWindMS: d.AfternoonWindMS, AfternoonVentM2S: d.VentilationM2S}
 	}

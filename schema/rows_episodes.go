@@ -32,6 +32,7 @@ type DayRow struct {
 	AfternoonSBI     *bool   `col:"afternoon_sbi" doc:"surface-based inversion on the afternoon/evening sounding; null without one (in winter the evening launch can be after sunset)"`
 	SBIPersists      *bool   `col:"sbi_persists" doc:"true when the morning surface-based inversion is still present on the afternoon/evening sounding; null when either sounding is missing"`
 	MorningHDMJ      float64 `col:"morning_heat_deficit_mj_m2" doc:"MJ/m2; heat deficit of the morning sounding (see soundings.heat_deficit_reference)"`
+	AfternoonHDMJ    float64 `col:"afternoon_heat_deficit_mj_m2" doc:"MJ/m2; heat deficit of the afternoon/evening sounding"`
 	MaxHDMJ          float64 `col:"max_heat_deficit_mj_m2" doc:"MJ/m2; largest heat deficit of the day's soundings"`
 	StableFraction   float64 `col:"stable_layer_fraction" doc:"0-1; stable fraction of the lowest 1.5 km on the morning sounding (Wolyn and McKee 1989)"`
 	DeepStable       *bool   `col:"deep_stable_layer" doc:"true when stable_layer_fraction is at least 0.65 (Wolyn and McKee 1989); null when unknown"`

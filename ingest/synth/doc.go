@@ -36,6 +36,12 @@
 // 100 hPa. Winds strengthen with height and veer towards the west, up to a
 // jet near the tropopause that is stronger in winter.
 //
+// In the cold half of winter (about late November to late March), high
+// pressure can start a cold-air pool lasting 2–7 days: its mornings always
+// carry a surface-based inversion and its afternoons keep the lowest
+// 150–350 m inverted by 1.5–4 K under a shallow mixed layer, so the valley
+// has multi-day episodes in winter and none in summer.
+//
 // Day-to-day weather is an autoregressive temperature and pressure anomaly,
 // so consecutive soundings are correlated. The archive is clean by default:
 // no missing soundings, no values removed by quality control, no

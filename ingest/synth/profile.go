@@ -71,8 +71,15 @@ func uniform(r *rand.Rand, lo, hi float64) float64 { return lo + (hi-lo)*r.Float
 // afternoon designs a late-afternoon sounding: a well-mixed layer of depth
 // 300–3200 m (deeper in summer), a capping inversion with dry air above,
 // then the free troposphere. s is the season (0 mid-winter, 1 mid-summer).
-func (pr *profile) afternoon(r *rand.Rand, cl climate, s, anomK, pSfcPa, elevM, h float64) (tropAGLM float64) {
+// In a cold-air pool the lowest 150–350 m stay inverted by 1.5–4 K below
+// the mixed layer, which then starts at the pool's top.
+func (pr *profile) afternoon(r *rand.Rand, cl climate, s, anomK, pSfcPa, elevM, h float64, pool bool) (tropAGLM float64) {
 	tS := lerp(cl.tmaxWinter, cl.tmaxSummer, s) + anomK + zeroCK
+	poolTop, poolK := 0.0, 0.0
+	if pool {
+		poolTop, poolK = uniform(r, 150, 350), uniform(r, 1.5, 4)
+		h = max(h, poolTop+200)
+	}
 	w := lerp(cl.wWinter, cl.wSummer, s) * math.Exp(0.2*r.NormFloat64())
 	// Keep the lifting condensation level (about 122 m per kelvin of
 	// dewpoint depression; common practice, no source) above the mixed
@@ -82,10 +89,21 @@ func (pr *profile) afternoon(r *rand.Rand, cl climate, s, anomK, pSfcPa, elevM, 
 		td = tS - minDPD
 		w = mixingRatio(td, pSfcPa)
 	}
-	pr.reset(pSfcPa, tS, td)
 	theta := tS * math.Pow(p0Pa/pSfcPa, kappa)
+	if pool {
+		// The mixed layer's adiabat at the pool's top, and the colder
+		// surface below it.
+		tTop := tS - dryLapseKPerM*poolTop
+		tSfc := tTop - poolK
+		pr.reset(pSfcPa, tSfc, min(td, tSfc-1))
+		pr.addDPD(poolTop, tTop, tTop-min(td, tTop-1)+uniform(r, 0, 1))
+	} else {
+		pr.reset(pSfcPa, tS, td)
+	}
 	for _, f := range [...]float64{0.05, 0.3, 0.55, 0.8} {
-		pr.addThetaW(h*f-pr.last().zAGLM, theta+0.08*r.NormFloat64(), w*(1+0.01*r.NormFloat64()))
+		if z := h * f; !pool || z > pr.last().zAGLM+20 {
+			pr.addThetaW(z-pr.last().zAGLM, theta+0.08*r.NormFloat64(), w*(1+0.01*r.NormFloat64()))
+		}
 	}
 	pr.addThetaW(h-pr.last().zAGLM, theta, w)
 	top := pr.last()
@@ -97,7 +115,9 @@ func (pr *profile) afternoon(r *rand.Rand, cl climate, s, anomK, pSfcPa, elevM, 
 // (probability 85 % in mid-winter to 40 % in mid-summer) or a stable but
 // not inverted surface layer, the previous day's residual layer, a weak
 // inversion at its top, then the free troposphere.
-func (pr *profile) morning(r *rand.Rand, cl climate, s, anomK, pSfcPa, elevM, h float64) (tropAGLM float64) {
+//
+// In a cold-air pool the surface inversion is always present.
+func (pr *profile) morning(r *rand.Rand, cl climate, s, anomK, pSfcPa, elevM, h float64, pool bool) (tropAGLM float64) {
 	// Above the night's surface layer lies the residual layer: what is
 	// left of the mixed layer of the day's afternoon (depth h, drawn once
 	// per local day and shared with the afternoon sounding), cooled by
@@ -110,7 +130,7 @@ func (pr *profile) morning(r *rand.Rand, cl climate, s, anomK, pSfcPa, elevM, h 
 	thetaR := tAft*math.Pow(p0Pa/pSfcPa, kappa) - uniform(r, 1, 3)
 	tR := thetaR * math.Pow(pSfcPa/p0Pa, kappa) // at the surface pressure
 	dpd := uniform(r, 0.3, 3)
-	if r.Float64() < lerp(0.85, 0.40, s) {
+	if pool || r.Float64() < lerp(0.85, 0.40, s) {
 		depth := clamp(lerp(350, 150, s)*math.Exp(0.35*r.NormFloat64()), 60, 900)
 		dT := clamp(lerp(6, 2.5, s)*math.Exp(0.4*r.NormFloat64()), 0.8, 15)
 		tS := tR - dT - dryLapseKPerM*depth

@@ -139,6 +139,9 @@ type generator struct {
 	// agree; NaN when none is pending.
 	dayMixedM float64
 	started   bool // the anomalies have been drawn once
+	// poolDays is how many more local days (this one included) a winter
+	// cold-air pool lasts; 0 when none (see poolStart).
+	poolDays int
 }
 
 func newGenerator(cfg Config) *generator {
@@ -175,6 +178,10 @@ func (g *generator) sounding(t time.Time) {
 		g.started = true
 	}
 	s := g.season(t)
+	if t.Hour() == 12 {
+		g.poolStart(s)
+	}
+	pool := g.poolDays > 0
 	pSfc := math.Round(g.cl.surfacePa + g.anomPa)
 	var ztrop float64
 	if t.Hour() == 0 {
@@ -183,18 +190,36 @@ func (g *generator) sounding(t time.Time) {
 			h = mixedDepth(r, s)
 		}
 		g.dayMixedM = math.NaN()
-		ztrop = g.pr.afternoon(r, g.cl, s, g.anomK, pSfc, g.st.ElevationM, h)
+		ztrop = g.pr.afternoon(r, g.cl, s, g.anomK, pSfc, g.st.ElevationM, h, pool)
 		g.releaseHHMM = 2300 + r.IntN(41)
 	} else {
 		// 12 UTC is before dawn; 00 UTC next comes the same local day's
 		// late afternoon (package documentation).
 		g.dayMixedM = mixedDepth(r, s)
-		ztrop = g.pr.morning(r, g.cl, s, g.anomK, pSfc, g.st.ElevationM, g.dayMixedM)
+		ztrop = g.pr.morning(r, g.cl, s, g.anomK, pSfc, g.st.ElevationM, g.dayMixedM, pool)
 		g.releaseHHMM = 1100 + r.IntN(41)
 	}
 	g.assemble()
 	g.heights()
 	g.winds(s, ztrop, t.Hour() == 12)
+}
+
+// poolStart advances the winter cold-air pool by one local day (called
+// with the morning sounding): a running pool loses a day; otherwise, in
+// the cold half of winter (season below 0.25) under high pressure (surface
+// pressure anomaly above +300 Pa), one starts with probability 0.3 and
+// lasts 2–7 days. While it lasts, the valley keeps a surface-based
+// inversion through the day (the scenario's own choice, after the
+// multi-day persistent cold-air pools of western basins, Whiteman et al.
+// 2001 as summarised by Lareau et al. 2013; no summer pools).
+func (g *generator) poolStart(s float64) {
+	if g.poolDays > 0 {
+		g.poolDays--
+		return
+	}
+	if s < 0.25 && g.anomPa > 300 && g.rng.Float64() < 0.3 {
+		g.poolDays = 2 + g.rng.IntN(6)
+	}
 }
 
 // assemble turns the knots into records at reporting resolution and
