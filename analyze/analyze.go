@@ -43,6 +43,17 @@ type Result struct {
 	// SurfaceIndex is the index in Levels of the surface level of the
 	// thermodynamic profile (its lowest level), −1 when there is none.
 	SurfaceIndex int
+	// LowestLevelAGLM is the height of that level above ground, m: 0 when
+	// the sounding's own surface line starts the profile, more when the
+	// surface line carries no pressure or temperature (wind-only) and the
+	// profile starts at the lowest level above it. NaN when none.
+	LowestLevelAGLM float64
+	// SurfacePressurePa is the pressure at the ground, Pa: the surface
+	// level's own when it starts the profile; otherwise, when the station
+	// elevation is known, derived hypsometrically from the lowest level
+	// (SurfacePressureDerived, see surfacePressure). NaN when unknown.
+	SurfacePressurePa      float64
+	SurfacePressureDerived bool
 	// CeilingAGLM is the search ceiling actually used, m AGL.
 	CeilingAGLM float64
 
@@ -115,7 +126,7 @@ type Result struct {
 func Analyze(s *sounding.Sounding, cfg Config) Result {
 	nan := math.NaN()
 	r := Result{Status: StatusOK, ConstantSet: cfg.Constants.ID(), SatVap: cfg.SatVap.String(),
-		SurfaceIndex: -1, CeilingAGLM: nan,
+		SurfaceIndex: -1, CeilingAGLM: nan, LowestLevelAGLM: nan, SurfacePressurePa: nan,
 		SBI: noInversion(), MixedLayer: noMixedLayer(),
 		Parcel:          Parcel{Status: ParcelUndefined, HeightAGLM: nan, Theta0K: nan},
 		SunElevationDeg: nan, LocalSolarTimeH: nan, SunClass: sun.Unknown, SurfaceWindMS: nan,
@@ -158,6 +169,8 @@ func Analyze(s *sounding.Sounding, cfg Config) Result {
 		return r
 	}
 	r.SurfaceIndex = pr.idx[0]
+	r.LowestLevelAGLM = pr.z[0]
+	r.surfacePressure(s, pr, cfg)
 	if !math.IsNaN(s.ElevationM) && !r.StandardAnchor && pr.z[0] > cfg.MaxSurfaceGapM {
 		r.Status = StatusNoSurfaceLevel
 		return r
@@ -281,4 +294,34 @@ func finite(v float64) float64 {
 		return math.NaN()
 	}
 	return v
+}
+
+// surfacePressure fills SurfacePressurePa and SurfacePressureDerived. When
+// the profile starts at the sounding's surface line, or the ground is not
+// known (no station elevation, or heights placed on the standard
+// atmosphere), the pressure is the lowest level's own. Otherwise the
+// lowest level lies Δz = LowestLevelAGLM above the station and the ground
+// pressure follows from the hypsometric equation (METHODS §1.6) with the
+// lowest level's virtual temperature held over the gap:
+//
+//	p_sfc = p_1 exp(g0 Δz / (Rd Tv_1)).
+//
+// Holding Tv constant over at most MaxSurfaceGapM (150 m, about 18 hPa)
+// errs by about 0.02 hPa for a standard lapse rate and by under 0.15 hPa
+// even for a 30 K/km inversion over the gap (the layer-mean Tv is then off
+// by 2.3 K, 0.8 %). The result is flagged as derived; it is checked
+// against observed surface pressures of the real Sterling file in
+// TestSterlingSurfacePressure.
+func (r *Result) surfacePressure(s *sounding.Sounding, pr profile, cfg Config) {
+	r.SurfacePressurePa = pr.p[0]
+	gap := pr.z[0]
+	if s.Levels[pr.idx[0]].Kind == sounding.KindSurface || math.IsNaN(s.ElevationM) || r.StandardAnchor || !(gap > 0) {
+		return
+	}
+	tv := pr.t[0]
+	if w := pr.w[0]; !math.IsNaN(w) {
+		tv = thermo.VirtualTemperature(pr.t[0], w, cfg.Constants.Epsilon)
+	}
+	r.SurfacePressurePa = pr.p[0] * math.Exp(cfg.Constants.G0*gap/(cfg.Constants.Rd*tv))
+	r.SurfacePressureDerived = true
 }

@@ -17,7 +17,8 @@
 --
 -- Columns: the cell keys station_id, season (DJF/MAM/JJA/SON, null in month
 -- mode), season_name (winter/spring/summer/autumn by the station's mean
--- latitude: latitude < 0 flips the label, the code stays), month (1-12,
+-- latitude: latitude < 0 flips the label, the code stays; null when the
+-- station's latitude is unknown, since the hemisphere is then unknown), month (1-12,
 -- null in season mode), nominal_hour (null in sun mode), sun_class (null in
 -- hour mode); then per sounding: calendar_month, launch_time, valid
 -- (analysis_status = 'ok') and the per-sounding values the statistics use.
@@ -25,7 +26,7 @@ SELECT
     s.station_id,
     CASE WHEN $1 = 'season' THEN s.season END AS season,
     CASE WHEN $1 = 'season' THEN
-        season_name(s.season, avg(s.latitude_deg) OVER (PARTITION BY s.station_id))
+        season_name(s.season, avg(nullif(s.latitude_deg, 'NaN'::DOUBLE)) OVER (PARTITION BY s.station_id))
     END AS season_name,
     CASE WHEN $1 = 'month' THEN s.month END AS month,
     CASE WHEN $2 = 'hour' THEN s.nominal_hour END AS nominal_hour,

@@ -184,8 +184,13 @@ func TestClimatologyOptions(t *testing.T) {
 	rows := handRows()
 	south := sounding("XS009", "DJF", 2016, 0, "ok", "ok", 500, ptr(false), nan, nan)
 	south.LatitudeDeg, south.SunClass = -12.4, "day"
-	rows = append(rows, south)
-	for i := range rows[:len(rows)-1] {
+	// A station without position (a TEMP message read without a station
+	// list): no hemisphere, so no season name (METHODS §8 names seasons by
+	// hemisphere; the code DJF stays).
+	nowhere := sounding("XU010", "DJF", 2016, 0, "ok", "ok", 500, ptr(false), nan, nan)
+	nowhere.LatitudeDeg, nowhere.LongitudeDeg, nowhere.SunClass = nan, nan, "unknown"
+	rows = append(rows, nowhere, south)
+	for i := range rows[:len(rows)-2] {
 		rows[i].SunClass = "night"
 	}
 	db := openStore(t, writeStore(t, t.TempDir(), rows))
@@ -198,6 +203,14 @@ func TestClimatologyOptions(t *testing.T) {
 	if len(ct.Cells.Rows) != 1 || cell(ct.Cells, ct.Cells.Rows[0], "season") != "DJF" ||
 		cell(ct.Cells, ct.Cells.Rows[0], "season_name") != "summer" {
 		t.Errorf("southern station: %v %v", ct.Cells.Columns, ct.Cells.Rows)
+	}
+	ct, err = ClimatologyOf(ctx, db, ClimatologyOptions{Stations: []string{"XU010"}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(ct.Cells.Rows) != 1 || cell(ct.Cells, ct.Cells.Rows[0], "season") != "DJF" ||
+		cell(ct.Cells, ct.Cells.Rows[0], "season_name") != nil {
+		t.Errorf("station without position: season_name %v, want null", cell(ct.Cells, ct.Cells.Rows[0], "season_name"))
 	}
 
 	ct, err = ClimatologyOf(ctx, db, ClimatologyOptions{By: ByMonth, Time: BySun, Stations: []string{"XA001", "XB002"}})

@@ -27,7 +27,7 @@
 -- sounding), height_m (m above ground; 0 for surface, null otherwise).
 WITH snd AS (
     SELECT s.*,
-        avg(s.latitude_deg) OVER (PARTITION BY s.station_id) AS station_lat,
+        avg(nullif(s.latitude_deg, 'NaN'::DOUBLE)) OVER (PARTITION BY s.station_id) AS station_lat,
         CAST(s.launch_time + to_microseconds(CAST(round(s.longitude_deg / 15 * 3.6e9) AS BIGINT)) AS DATE) AS local_day,
         ((epoch(s.launch_time) / 3600 + s.longitude_deg / 15) % 24 + 24) % 24 AS lmst_h
     FROM soundings s

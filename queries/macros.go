@@ -19,7 +19,8 @@ import (
 //	season_rank(s)          sort key of a season code: schema.Seasons order
 //	                        (DJF first), anything else last
 //	season_name(s, lat)     the season's common name (schema.SeasonName),
-//	                        flipped when lat (degrees north) is below 0
+//	                        flipped when lat (degrees north) is below 0;
+//	                        null when lat is null or NaN (no hemisphere)
 //	sun_class_rank(c)       sort key of a sun class: sun.Classes order (day
 //	                        first), anything else last
 func macros() []string {
@@ -31,7 +32,7 @@ func macros() []string {
 	return []string{
 		"CREATE MACRO method_rank(m) AS " + rankCase("m", names, 0),
 		"CREATE MACRO season_rank(s) AS " + rankCase("s", schema.Seasons, 1),
-		"CREATE MACRO season_name(s, lat) AS CASE WHEN lat < 0 THEN " + mapCase("s", schema.Seasons, south) +
+		"CREATE MACRO season_name(s, lat) AS CASE WHEN lat IS NULL OR isnan(lat) THEN NULL WHEN lat < 0 THEN " + mapCase("s", schema.Seasons, south) +
 			" ELSE " + mapCase("s", schema.Seasons, north) + " END",
 		"CREATE MACRO sun_class_rank(c) AS " + rankCase("c", sun.Classes, 1),
 	}

@@ -114,6 +114,7 @@ func AppendSounding(out *PartRows, s *sounding.Sounding, rep qc.Report, res *ana
 		ConstantSet:    res.ConstantSet,
 
 		SurfacePressureHPa: math.NaN(), SurfaceTemperatureC: math.NaN(), SurfaceDewpointC: math.NaN(),
+		SurfaceDerived: res.SurfacePressureDerived, LowestLevelAGLM: res.LowestLevelAGLM,
 		SurfaceThetaK: math.NaN(), SurfaceWindSpeedMS: res.SurfaceWindMS,
 
 		SunElevationDeg: res.SunElevationDeg,
@@ -156,7 +157,7 @@ func AppendSounding(out *PartRows, s *sounding.Sounding, rep qc.Report, res *ana
 	}
 	if i := res.SurfaceIndex; i >= 0 {
 		l := s.Levels[i]
-		row.SurfacePressureHPa = hPa(l.PressurePa)
+		row.SurfacePressureHPa = hPa(res.SurfacePressurePa)
 		row.SurfaceTemperatureC = degC(l.TemperatureK)
 		row.SurfaceDewpointC = degC(l.DewpointK)
 		row.SurfaceThetaK = res.ThetaK[i]

@@ -47,10 +47,12 @@ type SoundingRow struct {
 	DeclaredLevels int32  `col:"declared_levels" doc:"count; levels the source header states (-1 when the format has no count)"`
 	LevelCount     int32  `col:"level_count" doc:"count; levels read"`
 
-	SurfacePressureHPa  float64 `col:"surface_pressure_hpa" doc:"hPa; pressure of the lowest level with a pressure"`
-	SurfaceTemperatureC float64 `col:"surface_temperature_c" doc:"degC; temperature at the surface level"`
-	SurfaceDewpointC    float64 `col:"surface_dewpoint_c" doc:"degC; dewpoint at the surface level"`
-	SurfaceThetaK       float64 `col:"surface_theta_k" doc:"K; potential temperature at the surface level"`
+	SurfacePressureHPa  float64 `col:"surface_pressure_hpa" doc:"hPa; pressure at the ground: the surface level's own, or derived hypsometrically from the station elevation and the lowest level (surface_pressure_derived)"`
+	SurfaceDerived      bool    `col:"surface_pressure_derived" doc:"true when the surface line carries no pressure and surface_pressure_hpa was derived hypsometrically"`
+	LowestLevelAGLM     float64 `col:"lowest_level_agl_m" doc:"m above ground of the level the analysed profile starts at: 0 at the surface line, more when the surface line has no pressure or temperature"`
+	SurfaceTemperatureC float64 `col:"surface_temperature_c" doc:"degC; temperature at the lowest level of the analysed profile (lowest_level_agl_m)"`
+	SurfaceDewpointC    float64 `col:"surface_dewpoint_c" doc:"degC; dewpoint at the lowest level of the analysed profile"`
+	SurfaceThetaK       float64 `col:"surface_theta_k" doc:"K; potential temperature at the lowest level of the analysed profile"`
 	SurfaceWindSpeedMS  float64 `col:"surface_wind_speed_ms" doc:"m/s; wind speed at the surface level"`
 
 	QCStatus       string `col:"qc_status" doc:"quality-control status: ok, suspect, insufficient:<reason> or rejected:<reason> (see qc_findings)"`
