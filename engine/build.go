@@ -10,6 +10,7 @@ import (
 	"path/filepath"
 	"slices"
 	"sort"
+	"strings"
 	"sync"
 	"sync/atomic"
 	"time"
@@ -36,7 +37,7 @@ func (r *run) ingest(files []string, old *store.Manifest, full bool, paramsText 
 	var toRead []string
 	for _, f := range files {
 		if in := old.Inputs[f]; !full && in != nil {
-			if fi, err := os.Stat(f); err == nil && fi.Size() == in.SizeBytes && fi.ModTime().UTC().Equal(in.ModTime) {
+			if fi, err := os.Stat(f); err == nil && fi.Size() == in.SizeBytes && fi.ModTime().UTC().Equal(in.ModTime) && len(in.Pending) == 0 {
 				r.sum.InputsUnchanged++
 				continue
 			}
@@ -52,13 +53,29 @@ func (r *run) ingest(files []string, old *store.Manifest, full bool, paramsText 
 	}
 	read := map[string]bool{}
 	affected := map[string]bool{}
+	named := map[string]bool{}
+	for _, f := range files {
+		named[f] = true
+	}
 	for _, res := range results {
 		read[res.path] = true
 		info := res.info
 		prev := old.Inputs[res.path]
+		if prev == nil && !full {
+			if from := movedFrom(old, named, res.path, &info); from != "" {
+				prev = old.Inputs[from]
+				renameInput(next, from, res.path)
+				read[from] = true
+				r.note(Skip{Where: res.path, Reason: "input_moved", Detail: fmt.Sprintf("%s: the same content as %s, ingested before and "+
+					"gone from there: taken as that input, moved (its soundings keep the old source_file until their partition is rebuilt)", res.path, from)})
+			}
+		}
 		next.Inputs[res.path] = &info
 		changed = true // at least its time or size changed
 		if !full && prev != nil && prev.SHA256 == info.SHA256 {
+			for _, k := range prev.Pending {
+				affected[k] = true // held back by an earlier run
+			}
 			continue // touched but identical content
 		}
 		for k := range res.parts {
@@ -68,6 +85,34 @@ func (r *run) ingest(files []string, old *store.Manifest, full bool, paramsText 
 			for _, k := range prev.Partitions {
 				affected[k] = true
 			}
+		}
+	}
+
+	// Inputs ingested before that are gone: with PruneMissing their
+	// soundings are removed (their partitions are rebuilt from the other
+	// inputs); otherwise they stay, with a note.
+	missing := map[string]bool{}
+	if !full {
+		for _, f := range slices.Sorted(maps.Keys(next.Inputs)) {
+			if read[f] {
+				continue
+			}
+			if _, err := os.Stat(f); err == nil {
+				continue
+			}
+			missing[f] = true
+			in := next.Inputs[f]
+			if r.opt.PruneMissing {
+				for _, k := range in.Partitions {
+					affected[k] = true
+				}
+				delete(next.Inputs, f)
+				changed = true
+				r.note(Skip{Where: f, Reason: "input_pruned", Detail: fmt.Sprintf("%s: ingested before, gone now: its %d soundings are removed (--prune-missing)", f, in.Soundings)})
+				continue
+			}
+			r.note(Skip{Where: f, Reason: "input_missing", Detail: fmt.Sprintf("%s: ingested before, gone now: its %d soundings stay in the store "+
+				"(--prune-missing removes them)", f, in.Soundings)})
 		}
 	}
 
@@ -90,26 +135,36 @@ func (r *run) ingest(files []string, old *store.Manifest, full bool, paramsText 
 	}
 
 	// Unchanged inputs that share an affected partition are read again,
-	// for that partition only, so the partition is rebuilt whole.
+	// for that partition only, so the partition is rebuilt whole. A
+	// partition that needs an input that is gone (and not pruned) is held:
+	// left as committed, with the soundings this run read for it held
+	// back, reported as skipped and read again by the next run.
 	if !full {
 		need := map[string]bool{}
-		for k := range affected {
-			if p := old.Partitions[k]; p != nil {
-				for _, in := range p.Inputs {
-					if !read[in] {
-						need[in] = true
-					}
+		for _, k := range slices.Sorted(maps.Keys(affected)) {
+			p := next.Partitions[k]
+			if p == nil {
+				continue
+			}
+			var gone []string
+			for _, in := range p.Inputs {
+				if missing[in] && !r.opt.PruneMissing {
+					gone = append(gone, in)
+				}
+			}
+			if len(gone) > 0 {
+				delete(affected, k)
+				r.hold(k, gone, results, next)
+				continue
+			}
+			for _, in := range p.Inputs {
+				if !read[in] && !missing[in] {
+					need[in] = true
 				}
 			}
 		}
 		if len(need) > 0 {
 			again := slices.Sorted(maps.Keys(need))
-			for _, f := range again {
-				if _, err := os.Stat(f); err != nil {
-					return nil, fmt.Errorf("partition rebuild needs input %s, which was ingested before but cannot be read now (%v); "+
-						"restore it, or rebuild the store with --full from the inputs you have", f, err)
-				}
-			}
 			r.log.Info("re-reading unchanged inputs that share a rebuilt partition", "files", len(again))
 			if _, err := r.stageInputs(again, st, affected); err != nil {
 				return nil, err
@@ -569,4 +624,70 @@ func sourceLess(a, b *sounding.Sounding) bool {
 		return a.Source.Member < b.Source.Member
 	}
 	return a.Source.Line < b.Source.Line
+}
+
+// movedFrom returns the input of the old manifest that path is, moved or
+// renamed: one not named by this run, gone from its place (or the same
+// file under another name, such as a relative path from before inputs
+// were made absolute), with the same size and content digest. "" when
+// there is none.
+func movedFrom(old *store.Manifest, named map[string]bool, path string, info *store.Input) string {
+	here, _ := os.Stat(path)
+	for _, f := range slices.Sorted(maps.Keys(old.Inputs)) {
+		in := old.Inputs[f]
+		if named[f] || in.SHA256 != info.SHA256 || in.SizeBytes != info.SizeBytes {
+			continue
+		}
+		there, err := os.Stat(f)
+		if err != nil || here != nil && os.SameFile(here, there) {
+			return f
+		}
+	}
+	return ""
+}
+
+// renameInput replaces input from by to in the manifest's partitions.
+// Partitions are copied before they change: next shares them with the
+// previous manifest.
+func renameInput(next *store.Manifest, from, to string) {
+	delete(next.Inputs, from)
+	for k, p := range next.Partitions {
+		i := slices.Index(p.Inputs, from)
+		if i < 0 {
+			continue
+		}
+		q := *p
+		q.Inputs = slices.Clone(p.Inputs)
+		q.Inputs[i] = to
+		slices.Sort(q.Inputs)
+		q.Inputs = slices.Compact(q.Inputs)
+		next.Partitions[k] = &q
+	}
+}
+
+// hold leaves partition k as committed because its rebuild needs inputs
+// that are gone. The inputs read this run with soundings for k remember
+// it as pending, so the next run reads them again; the skip says what is
+// held back and what to do.
+func (r *run) hold(k string, gone []string, results []readResult, next *store.Manifest) {
+	held := 0
+	var from []string
+	for _, res := range results {
+		if n := res.parts[k]; n > 0 {
+			held += n
+			from = append(from, res.path)
+			if in := next.Inputs[res.path]; in != nil && !slices.Contains(in.Pending, k) {
+				in.Pending = append(in.Pending, k)
+				slices.Sort(in.Pending)
+			}
+		}
+	}
+	if held == 0 {
+		r.note(Skip{Where: gone[0], Reason: "partition_held", Detail: fmt.Sprintf("partition %s is left as committed: rebuilding it needs %s, "+
+			"which is gone (restore it, or run with --prune-missing)", k, strings.Join(gone, ", "))})
+		return
+	}
+	r.skip(Skip{Where: from[0], Reason: "partition_held", Detail: fmt.Sprintf("partition %s is left as committed and %d sounding(s) read for it "+
+		"from %s are held back: rebuilding it needs %s, which is gone. Restore it, or run with --prune-missing; the next run reads them again",
+		k, held, strings.Join(from, ", "), strings.Join(gone, ", "))})
 }

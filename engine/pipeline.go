@@ -74,6 +74,10 @@ type Options struct {
 	// the run would leave alone, not only that each exists with its
 	// recorded size; damaged partitions are rebuilt from their inputs.
 	Verify bool
+	// PruneMissing removes the soundings of inputs ingested before that
+	// are gone now (deleted, or moved without being named again); without
+	// it they stay in the store, with a note.
+	PruneMissing bool
 	// Wait waits for another writer's lock instead of failing.
 	Wait bool
 	// QC is the quality-control configuration; nil means qc.DefaultConfig().
@@ -297,11 +301,15 @@ func Run(ctx context.Context, storeDir string, paths []string, opt Options) (*Su
 			}
 			files = append(files, f)
 		}
-		if len(missing) > 0 {
+		if len(missing) > 0 && !opt.PruneMissing {
 			sort.Strings(missing)
 			return nil, fmt.Errorf("analysis parameters or derivation version changed since the last commit, so every partition "+
-				"must be rebuilt, but %d input(s) ingested before cannot be read now (first: %s); restore them, or rebuild "+
-				"with --full from the inputs you have (partitions of missing inputs are then dropped)", len(missing), missing[0])
+				"must be rebuilt from its inputs, but %d input(s) ingested before cannot be read now (first: %s); restore them "+
+				"(or, if they moved, name them at their new place in this run as well as in the earlier ones' place), or run "+
+				"with --prune-missing to rebuild without them (their soundings are then removed)", len(missing), missing[0])
+		}
+		for _, f := range missing {
+			r.note(Skip{Where: f, Reason: "input_pruned", Detail: fmt.Sprintf("%s: ingested before, gone now: its %d soundings are removed (--prune-missing)", f, old.Inputs[f].Soundings)})
 		}
 		sort.Strings(files)
 		r.log.Info("analysis parameters or derivation version changed since the last commit: rebuilding every partition",

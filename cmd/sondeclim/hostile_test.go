@@ -12,6 +12,7 @@ import (
 	"syscall"
 	"testing"
 
+	"github.com/sondeclim/sondeclim/engine"
 	"github.com/sondeclim/sondeclim/ingest/synth"
 	"github.com/sondeclim/sondeclim/schema/store"
 )
@@ -31,8 +32,13 @@ func synthSoundings(t *testing.T, station int) []string {
 	if _, err := synth.Write(&b, synth.Config{Seed: 7, StartYear: 2003, Years: 1, StationIndex: station}); err != nil {
 		t.Fatal(err)
 	}
+	return splitSoundings(b.String())
+}
+
+// splitSoundings splits archive-v2 text into its soundings.
+func splitSoundings(text string) []string {
 	var out []string
-	for _, s := range strings.SplitAfter(b.String(), "\n#") {
+	for _, s := range strings.SplitAfter(text, "\n#") {
 		if !strings.HasPrefix(s, "#") {
 			s = "#" + s
 		}
@@ -458,3 +464,115 @@ func TestDamageDetected(t *testing.T) {
 }
 
 func sortStrings(s []string) { slices.Sort(s) }
+
+// TestInputIdentity: an input named by a relative and then an absolute
+// path, or from another working directory, is one input; an archive folder
+// that moved keeps its soundings without doubling them (a note says so); a
+// deleted input never makes a run fail: its soundings stay with a note
+// (exit 0), a partition whose rebuild needs it is held as committed with
+// the new soundings for it held back (reported, exit 3) until it is
+// restored, and --prune-missing removes its soundings.
+func TestInputIdentity(t *testing.T) {
+	root := t.TempDir()
+	in := twoStations(t, filepath.Join(root, "in"))
+	st := filepath.Join(root, "store")
+	sum := filepath.Join(root, "sum.json")
+	a := synth.StationAt(0).ID + "-data.txt"
+	b := synth.StationAt(1).ID + "-data.txt"
+	t.Chdir(root)
+	ingest := func(wantCode int, args ...string) engine.Summary {
+		t.Helper()
+		code, _, errs := runCmd(t, append([]string{"ingest", "--quiet", "--summary-json", sum, "--store", st}, args...)...)
+		if code != wantCode {
+			t.Fatalf("ingest %v: exit %d, want %d\n%s", args, code, wantCode, errs)
+		}
+		return readSummary(t, sum)
+	}
+	notes := func(s engine.Summary, reason string) int {
+		n := 0
+		for _, k := range append(s.Notes, s.Skipped...) {
+			if k.Reason == reason {
+				n++
+			}
+		}
+		return n
+	}
+	s := ingest(exitOK, filepath.Join("in", a), filepath.Join("in", b))
+	if s.Soundings != 1460 {
+		t.Fatalf("%d soundings, want 1460", s.Soundings)
+	}
+	for _, args := range [][]string{{filepath.Join(root, "in", a), filepath.Join(root, "in", b)}, {"./in/../in"}} {
+		s = ingest(exitOK, args...)
+		if s.InputsUnchanged != 2 || s.InputsRead != 0 || s.Soundings != 1460 || s.Committed {
+			t.Errorf("ingest %v: %d unchanged, %d read, %d soundings, committed %v; want 2, 0, 1460, false",
+				args, s.InputsUnchanged, s.InputsRead, s.Soundings, s.Committed)
+		}
+	}
+	t.Chdir(in)
+	if s = ingest(exitOK, a, b); s.InputsUnchanged != 2 {
+		t.Errorf("from another working directory: %d unchanged, want 2", s.InputsUnchanged)
+	}
+	t.Chdir(root)
+
+	// The archive folder moves.
+	if err := os.Rename(in, filepath.Join(root, "moved")); err != nil {
+		t.Fatal(err)
+	}
+	s = ingest(exitOK, "moved")
+	if s.Soundings != 1460 || s.DuplicatesMerged != 0 || notes(s, "input_moved") != 2 || notes(s, "input_missing") != 0 {
+		t.Errorf("moved folder: %d soundings, %d duplicates, notes %+v; want 1460, 0, two input_moved", s.Soundings, s.DuplicatesMerged, s.Notes)
+	}
+	ms, _ := store.ReadAll(st)
+	for f := range ms[0].Inputs {
+		if !strings.HasPrefix(f, filepath.Join(root, "moved")+string(filepath.Separator)) {
+			t.Errorf("manifest still names input %s", f)
+		}
+	}
+	if s = ingest(exitOK, "moved"); s.InputsUnchanged != 2 {
+		t.Errorf("after the move: %d unchanged, want 2", s.InputsUnchanged)
+	}
+
+	// Station B's file is deleted: its soundings stay, with a note.
+	bPath := filepath.Join(root, "moved", b)
+	bText, _ := os.ReadFile(bPath)
+	os.Remove(bPath)
+	s = ingest(exitOK, "moved")
+	if s.Soundings != 1460 || notes(s, "input_missing") != 1 {
+		t.Errorf("deleted input: %d soundings, notes %+v; want 1460 and an input_missing note", s.Soundings, s.Notes)
+	}
+	// A correction for station B's year arrives while B's file is gone:
+	// the partition cannot be rebuilt without it, so it is held.
+	snd := splitSoundings(string(bText))
+	corr := filepath.Join(root, "moved", "correction.txt")
+	lines := strings.SplitAfter(snd[5], "\n")
+	lv := []byte(strings.TrimRight(lines[1], "\n"))
+	lv[len(lv)-1] = '0' + (lv[len(lv)-1]-'0'+1)%10 // the first level's wind speed, by 0.1 m/s
+	lines[1] = string(lv) + "\n"
+	writeFile(t, corr, strings.Join(lines, ""))
+	s = ingest(exitSkipped, "moved")
+	if s.Soundings != 1460 || notes(s, "partition_held") != 1 {
+		t.Errorf("held partition: %d soundings, skips %+v; want 1460 and one partition_held", s.Soundings, s.Skipped)
+	}
+	ms, _ = store.ReadAll(st)
+	if p := ms[0].Inputs[corr]; p == nil || len(p.Pending) != 1 {
+		t.Errorf("the correction is not recorded as pending: %+v", p)
+	}
+	// B is restored: the held partition is rebuilt with the correction.
+	writeFile(t, bPath, string(bText))
+	s = ingest(exitOK, "moved")
+	if s.Soundings != 1460 || s.DuplicatesMerged != 1 || s.PartitionsWritten != 1 || len(s.Skipped) != 0 {
+		t.Errorf("after restoring: %d soundings, %d duplicates merged, %d partitions written, skips %+v; want 1460, 1 (the correction "+
+			"and its original), 1, none", s.Soundings, s.DuplicatesMerged, s.PartitionsWritten, s.Skipped)
+	}
+	ms, _ = store.ReadAll(st)
+	if p := ms[0].Inputs[corr]; p == nil || len(p.Pending) != 0 {
+		t.Errorf("the correction is still pending: %+v", p)
+	}
+	// --prune-missing removes a deleted input's soundings.
+	os.Remove(bPath)
+	os.Remove(corr)
+	s = ingest(exitOK, "--prune-missing", "moved")
+	if s.Soundings != 730 || notes(s, "input_pruned") != 2 {
+		t.Errorf("--prune-missing: %d soundings, notes %+v; want 730 (station A only) and two input_pruned", s.Soundings, s.Notes)
+	}
+}

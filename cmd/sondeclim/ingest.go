@@ -76,6 +76,7 @@ error; 3 done, but some input was skipped (data lost).`,
 	stations := fs.String("stations", "", "station list `file` (archive-v2 layout) for names, positions and elevations")
 	quiet := fs.Bool("quiet", false, "print only warnings and the summary's last line (for schedulers)")
 	full := fs.Bool("full", false, "ignore what was ingested before and rebuild every partition from the inputs given")
+	prune := fs.Bool("prune-missing", false, "remove the soundings of inputs ingested before that are gone now (without it they stay, with a note)")
 	verify := fs.Bool("verify", false, "check the SHA-256 of every store file the run would leave alone (always: presence and size) and rebuild damaged partitions")
 	wait := fs.Bool("wait", false, "wait for another ingest into the same store to finish instead of failing")
 	shard := fs.String("shard", "", "write only the stations of shard `K/N` (stations are assigned by a hash of their id)")
@@ -108,7 +109,7 @@ error; 3 done, but some input was skipped (data lost).`,
 	if err != nil {
 		return fmt.Errorf("ingest: %v: %w", err, errUsage)
 	}
-	opt := engine.Options{Workers: *workers, Format: *format, Log: log, Shard: sh, Full: *full, Verify: *verify, Wait: *wait, UseSuspect: *useSuspect}
+	opt := engine.Options{Workers: *workers, Format: *format, Log: log, Shard: sh, Full: *full, Verify: *verify, PruneMissing: *prune, Wait: *wait, UseSuspect: *useSuspect}
 	if *dailyMax != "" {
 		f, err := os.Open(*dailyMax)
 		if err != nil {

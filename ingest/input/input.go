@@ -16,6 +16,7 @@ import (
 	"path/filepath"
 	"slices"
 	"strings"
+	"syscall"
 
 	"github.com/klauspost/compress/flate"
 	"github.com/klauspost/compress/gzip"
@@ -32,8 +33,12 @@ const DefaultLimit int64 = 8 << 30
 // whose names begin with '.'; the directory named by the argument itself is
 // always walked) or a glob pattern in the syntax of path/filepath.Match
 // whose matches are treated the same way (hidden names are left out of the
-// matches unless the pattern's last element itself begins with '.'). The result holds cleaned paths,
-// each once, sorted, so it does not depend on the order of args.
+// matches unless the pattern's last element itself begins with '.'). The
+// result holds absolute, cleaned paths, each file once (a file reached
+// under two names, by a relative and an absolute path, a link or a hard
+// link, is listed under the first of them in order), sorted, so it depends
+// neither on the order of args nor on the working directory the paths
+// were given from: an input has one identity.
 //
 // A path that does not exist, a pattern that matches nothing or is
 // malformed, and a directory that cannot be walked are errors naming the
@@ -64,12 +69,39 @@ func Expand(args []string) ([]string, error) {
 			}
 		}
 	}
-	out := make([]string, 0, len(seen))
+	abs := make(map[string]bool, len(seen))
 	for p := range seen {
+		a, err := filepath.Abs(p)
+		if err != nil {
+			return nil, fmt.Errorf("input %q: %w", p, err)
+		}
+		abs[a] = true
+	}
+	out := make([]string, 0, len(abs))
+	for p := range abs {
 		out = append(out, p)
 	}
 	slices.Sort(out)
-	return out, nil
+	// One file under two names (a hard link, a link to a file) is one
+	// input: the first name in order stands for it.
+	type fileID struct{ dev, ino uint64 }
+	ids := make(map[fileID]bool, len(out))
+	return slices.DeleteFunc(out, func(p string) bool {
+		fi, err := os.Stat(p)
+		if err != nil {
+			return false
+		}
+		st, ok := fi.Sys().(*syscall.Stat_t)
+		if !ok {
+			return false
+		}
+		id := fileID{uint64(st.Dev), uint64(st.Ino)}
+		if ids[id] {
+			return true
+		}
+		ids[id] = true
+		return false
+	}), nil
 }
 
 // isHidden reports whether the last element of p begins with '.'.

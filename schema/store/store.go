@@ -98,6 +98,10 @@ type Input struct {
 	// contributed soundings to, sorted.
 	Partitions []string `json:"partitions"`
 	Soundings  int      `json:"soundings"`
+	// Pending lists partitions ("ID/YYYY") the input has soundings for
+	// that a run could not rebuild (another input they need was gone):
+	// the next run reads the input again for them.
+	Pending []string `json:"pending,omitempty"`
 }
 
 // Partition is one station-year of the store.
