@@ -28,7 +28,7 @@
 // After all soundings of a station are analysed, AfternoonMixingHeight and
 // PairAfternoon give the Holzworth afternoon mixing height from a morning
 // profile and a daily maximum temperature (from the same day's afternoon
-// sounding or from ReadDailyMaxima). Each method has its own configuration
+// sounding or from a daily-maxima file, package ingest/dailymax). Each method has its own configuration
 // block in Config with the source of every default beside it. The pure
 // formulas are in the sub-packages thermo (thermodynamics), sun (solar
 // position) and stats (quantiles and trend tests).

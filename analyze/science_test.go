@@ -2,7 +2,6 @@ package analyze
 
 import (
 	"math"
-	"strings"
 	"testing"
 	"time"
 
@@ -291,10 +290,7 @@ func TestAfternoon(t *testing.T) {
 		{StationID: "XQ0020", LaunchTime: time.Date(2016, 7, 2, 12, 0, 0, 0, time.UTC), LongitudeDeg: -77.49, Profile: prof},
 		{StationID: "XQ0021", LaunchTime: time.Date(2016, 7, 1, 12, 0, 0, 0, time.UTC), LongitudeDeg: nan, Profile: prof},
 	}
-	maxima, err := ReadDailyMaxima(strings.NewReader("station_id,date,tmax_c\nXQ0020,2016-07-02,30.0\nXQ0020,2016-07-03,\n"))
-	if err != nil {
-		t.Fatal(err)
-	}
+	maxima := DailyMaxima{{"XQ0020", time.Date(2016, 7, 2, 0, 0, 0, 0, time.UTC)}: 30 + 273.15}
 	got := PairAfternoon(ds, maxima, DefaultPairingConfig())
 	if len(got) != 2 {
 		t.Fatalf("estimates = %+v", got)
@@ -312,29 +308,6 @@ func TestAfternoon(t *testing.T) {
 	got = PairAfternoon(ds[2:3], nil, DefaultPairingConfig())
 	if len(got) != 1 || got[0].MixingHeight.Note != "no_tmax" || got[0].TmaxSource != "" {
 		t.Errorf("no maximum: %+v", got)
-	}
-}
-
-// TestReadDailyMaxima: the documented format and its errors.
-func TestReadDailyMaxima(t *testing.T) {
-	m, err := ReadDailyMaxima(strings.NewReader("\ufeffstation_id,date,tmax_c\r\nXQ1,2016-07-01,31.5\r\n\r\nXQ2,2016-07-01, -3\r\n"))
-	if err != nil || len(m) != 2 {
-		t.Fatalf("%v %v", m, err)
-	}
-	near(t, "XQ1", m[DayKey{"XQ1", time.Date(2016, 7, 1, 0, 0, 0, 0, time.UTC)}], 304.65, 1e-9)
-	near(t, "XQ2", m[DayKey{"XQ2", time.Date(2016, 7, 1, 0, 0, 0, 0, time.UTC)}], 270.15, 1e-9)
-	bad := []struct{ in, msg string }{
-		{"", "empty input"},
-		{"station,date,tmax\n", "line 1: header"},
-		{"station_id,date,tmax_c\nXQ1,01/07/2016,30\n", "line 2: date"},
-		{"station_id,date,tmax_c\nXQ1,2016-07-01,hot\n", "line 2: tmax_c"},
-		{"station_id,date,tmax_c\nXQ1,2016-07-01,30\nXQ1,2016-07-01,31\n", "line 3: repeated"},
-		{"station_id,date,tmax_c\nXQ1,2016-07-01\n", "wrong number of fields"},
-	}
-	for _, b := range bad {
-		if _, err := ReadDailyMaxima(strings.NewReader(b.in)); err == nil || !strings.Contains(err.Error(), b.msg) {
-			t.Errorf("%q: error %v, want %q", b.in, err, b.msg)
-		}
 	}
 }
 

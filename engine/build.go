@@ -4,6 +4,7 @@ import (
 	"context"
 	"crypto/sha256"
 	"encoding/hex"
+	"errors"
 	"fmt"
 	"maps"
 	"os"
@@ -295,7 +296,7 @@ func (r *run) buildAll(keys []string, st *staged, old *store.Manifest) ([]*store
 	// writers are waited for after the analysers.
 	errA := analysing.Wait()
 	errW := writing.Wait()
-	if err := context.Cause(ctx); err != nil && err != context.Canceled {
+	if err := context.Cause(ctx); err != nil && !errors.Is(err, context.Canceled) {
 		return nil, err
 	}
 	for _, err := range []error{errA, errW, r.ctx.Err()} {

@@ -330,7 +330,11 @@ func Run(ctx context.Context, storeDir string, paths []string, opt Options) (*Su
 	if err := os.MkdirAll(r.staging, 0o755); err != nil {
 		return nil, err
 	}
-	defer os.RemoveAll(r.staging)
+	defer func() {
+		if err := os.RemoveAll(r.staging); err != nil {
+			r.log.Warn("staging files could not be removed", "dir", r.staging, "error", err.Error())
+		}
+	}()
 
 	next, err := r.ingest(files, old, full, string(paramsText))
 	if err != nil {

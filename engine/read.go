@@ -10,6 +10,7 @@ import (
 	"fmt"
 	"hash"
 	"io"
+	"io/fs"
 	"maps"
 	"os"
 	"path/filepath"
@@ -251,7 +252,9 @@ func (r *run) indexInPlace(ctx context.Context, path string, fi int, st *staged,
 	if err != nil {
 		// Not for this path (errNotInPlace, ErrNoHeaders) or a problem
 		// the ordinary path reports with its usual reason.
-		os.Remove(copyPath)
+		if err := os.Remove(copyPath); err != nil && !errors.Is(err, fs.ErrNotExist) {
+			r.log.Warn("staging copy could not be removed", "file", copyPath, "error", err.Error())
+		}
 		return false, nil
 	}
 	cst, err := os.Stat(readFrom)

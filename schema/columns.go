@@ -518,8 +518,10 @@ func (v validity) data(t arrow.DataType, n int, bufs ...[]byte) arrow.ArrayData 
 
 func bitmapBytes(n int) int { return (n + 7) / 8 }
 
-// bytesOf views a slice of fixed-width numbers as its bytes (little-endian
-// on every platform Go and Arrow share here).
+// bytesOf views a slice of fixed-width numbers as its bytes, in the
+// machine's byte order. Arrow buffers are little-endian, so this is right
+// on little-endian machines (amd64, arm64, the platforms the project runs
+// on); a big-endian build would need a byte swap here.
 func bytesOf[E int16 | int32 | int64 | float64](s []E) []byte {
 	if len(s) == 0 {
 		return []byte{}

@@ -7,8 +7,11 @@
 // compressed Parquet (zstd for levels, Snappy for the smaller tables) in a
 // Hive-partitioned layout
 //
-//	STORE/TABLE/station=ID/year=YYYY/part-0.parquet
+//	STORE/TABLE/station=ID/year=YYYY/part-HASH.parquet
 //
+// (the ingestion engine names each file by a hash of its inputs and
+// parameters and writes it with WriteFile; WriteTable, for tools and
+// examples, writes part-0.parquet)
 // and Markdown renders the column documentation for people. Every file
 // carries the schema version (key "sondeclim.schema_version") and the table
 // name (key "sondeclim.table") in its key-value metadata, so that ReadVersion

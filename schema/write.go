@@ -4,7 +4,9 @@ import (
 	"bufio"
 	"crypto/rand"
 	"encoding/hex"
+	"errors"
 	"fmt"
+	"io/fs"
 	"os"
 	"path/filepath"
 	"reflect"
@@ -205,7 +207,9 @@ func writePartition(dir, name string, sc *arrow.Schema, cols []Column, arrays fu
 	defer func() {
 		if err != nil {
 			tmp.Close()
-			os.Remove(tmp.Name())
+			if rerr := os.Remove(tmp.Name()); rerr != nil && !errors.Is(rerr, fs.ErrNotExist) {
+				err = errors.Join(err, rerr)
+			}
 		}
 	}()
 	bw := getFileWriter(tmp)

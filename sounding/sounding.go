@@ -153,7 +153,7 @@ type Source struct {
 	Format string // reader name, e.g. "archive-v2"
 }
 
-// String formats the source as file[:member]:line for messages.
+// String formats the source as file[!member][:line] for messages.
 func (s Source) String() string {
 	name := s.File
 	if s.Member != "" {

@@ -16,6 +16,7 @@ import (
 	"github.com/sondeclim/sondeclim/analyze"
 	"github.com/sondeclim/sondeclim/engine"
 	"github.com/sondeclim/sondeclim/ingest"
+	"github.com/sondeclim/sondeclim/ingest/dailymax"
 	"github.com/sondeclim/sondeclim/ingest/formats"
 	"github.com/sondeclim/sondeclim/schema/store"
 )
@@ -115,12 +116,15 @@ error; 3 done, but some input was skipped (data lost).`,
 		if err != nil {
 			return fmt.Errorf("ingest: %w", err)
 		}
-		m, err := analyze.ReadDailyMaxima(f)
+		recs, err := dailymax.Read(f)
 		f.Close()
 		if err != nil {
 			return fmt.Errorf("ingest: daily maxima %s: %w", *dailyMax, err)
 		}
-		opt.DailyMaxima = m
+		opt.DailyMaxima = analyze.DailyMaxima{}
+		for _, r := range recs {
+			opt.DailyMaxima[analyze.DayKey{StationID: r.StationID, Date: r.Date}] = r.TmaxK
+		}
 	}
 	if !*quiet && isTerminal(c.stderr) {
 		opt.Progress = progressBar(c.stderr)
@@ -147,7 +151,9 @@ error; 3 done, but some input was skipped (data lost).`,
 	sum, err := engine.Run(ctx, *storeDir, fs.Args(), opt)
 	if err != nil {
 		if *summaryJSON != "" {
-			writeSummaryJSON(*summaryJSON, nil, err)
+			if werr := writeSummaryJSON(*summaryJSON, nil, err); werr != nil {
+				return fmt.Errorf("ingest: %w (and the summary could not be written: %v)", err, werr)
+			}
 		}
 		return fmt.Errorf("ingest: %w", err)
 	}
@@ -261,8 +267,9 @@ func loadStations(path string, log *slog.Logger) (map[string]ingest.Station, err
 }
 
 // ingestMemoryLimit is the Go heap size ingest lets garbage build up to
-// before collecting (unless GOGC or GOMEMLIMIT is set). A run holds one
-// station-year per worker, far below it; collecting rarely instead of
+// before collecting (unless GOGC or GOMEMLIMIT is set). A run holds at
+// most two station-years per worker (one analysed, one written), far below
+// it; collecting rarely instead of
 // every time the heap doubles cut ingest time by about a quarter in
 // measurements (README, Performance), with peak memory still under 1 GB.
 const ingestMemoryLimit = 768 << 20

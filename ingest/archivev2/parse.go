@@ -7,6 +7,7 @@ import (
 	"time"
 
 	"github.com/sondeclim/sondeclim/ingest"
+	"github.com/sondeclim/sondeclim/physics/thermo"
 	"github.com/sondeclim/sondeclim/sounding"
 )
 
@@ -256,7 +257,7 @@ func parseLevel(line []byte) (sounding.Level, error) {
 	specs := [...]spec{
 		{sounding.VarPressure, 10, 15, 16, 1, 0, &lv.PressurePa},
 		{sounding.VarHeight, 17, 21, 22, 1, 0, &lv.HeightM},
-		{sounding.VarTemperature, 23, 27, 28, 10, 273.15, &lv.TemperatureK},
+		{sounding.VarTemperature, 23, 27, 28, 10, thermo.ZeroCelsiusK, &lv.TemperatureK},
 		{sounding.VarRelHumidity, 29, 33, 0, 10, 0, &lv.RelHumidityPct},
 		{sounding.VarDewpointDepression, 35, 39, 0, 10, 0, &lv.DewpointDepressionK},
 		{sounding.VarWindDirection, 41, 45, 0, 1, 0, &lv.WindDirectionDeg},

@@ -10,6 +10,7 @@ import (
 	"time"
 
 	"github.com/sondeclim/sondeclim/ingest"
+	"github.com/sondeclim/sondeclim/physics/thermo"
 	"github.com/sondeclim/sondeclim/sounding"
 )
 
@@ -228,7 +229,7 @@ func (d *decoder) scale(name string, defFactor, defOffset float64, known map[str
 
 var (
 	pressureUnits = map[string][2]float64{"hPa": {100, 0}, "mb": {100, 0}, "mbar": {100, 0}, "millibar": {100, 0}, "Pa": {1, 0}, "kPa": {1000, 0}}
-	tempUnits     = map[string][2]float64{"C": {1, 273.15}, "degC": {1, 273.15}, "deg C": {1, 273.15}, "degree_Celsius": {1, 273.15}, "K": {1, 0}}
+	tempUnits     = map[string][2]float64{"C": {1, thermo.ZeroCelsiusK}, "degC": {1, thermo.ZeroCelsiusK}, "deg C": {1, thermo.ZeroCelsiusK}, "degree_Celsius": {1, thermo.ZeroCelsiusK}, "K": {1, 0}}
 )
 
 func (d *decoder) sounding() *sounding.Sounding {
@@ -238,9 +239,9 @@ func (d *decoder) sounding() *sounding.Sounding {
 	p := d.values(m.Pressure, true, true)
 	pf, _ := d.scale(m.Pressure, 100, 0, pressureUnits)
 	t := d.values(m.Temperature, false, true)
-	tf, to := d.scale(m.Temperature, 1, 273.15, tempUnits)
+	tf, to := d.scale(m.Temperature, 1, thermo.ZeroCelsiusK, tempUnits)
 	td := d.values(m.Dewpoint, false, true)
-	df, do := d.scale(m.Dewpoint, 1, 273.15, tempUnits)
+	df, do := d.scale(m.Dewpoint, 1, thermo.ZeroCelsiusK, tempUnits)
 	rh := d.values(m.RelHumidity, false, true)
 	ws := d.values(m.WindSpeed, false, true)
 	wd := d.values(m.WindDirection, false, true)

@@ -7,6 +7,7 @@ import (
 	"strconv"
 
 	"github.com/sondeclim/sondeclim/ingest"
+	"github.com/sondeclim/sondeclim/physics/thermo"
 	"github.com/sondeclim/sondeclim/sounding"
 )
 
@@ -30,7 +31,7 @@ const (
 const knotMS = 1852.0 / 3600.0
 
 // celsiusK is 0 °C in K.
-const celsiusK = 273.15
+const celsiusK = thermo.ZeroCelsiusK
 
 // report is one decoded part of one station's sounding.
 type report struct {

@@ -21,6 +21,7 @@ import (
 	"time"
 
 	"github.com/sondeclim/sondeclim/ingest"
+	"github.com/sondeclim/sondeclim/physics/thermo"
 	"github.com/sondeclim/sondeclim/sounding"
 )
 
@@ -352,8 +353,8 @@ func (r *Reader) addRow(s *sounding.Sounding, w *row) error {
 	}
 	set(&l, sounding.VarPressure, &l.PressurePa, v[colPressure]*100, sounding.Reported)
 	set(&l, sounding.VarHeight, &l.HeightM, v[colHeight], sounding.Reported)
-	set(&l, sounding.VarTemperature, &l.TemperatureK, v[colTemperature]+273.15, sounding.Reported)
-	l.DewpointK = v[colDewpoint] + 273.15
+	set(&l, sounding.VarTemperature, &l.TemperatureK, v[colTemperature]+thermo.ZeroCelsiusK, sounding.Reported)
+	l.DewpointK = v[colDewpoint] + thermo.ZeroCelsiusK
 	set(&l, sounding.VarDewpointDepression, &l.DewpointDepressionK, l.TemperatureK-l.DewpointK, sounding.Derived)
 	set(&l, sounding.VarRelHumidity, &l.RelHumidityPct, v[colRelHumidity], sounding.Reported)
 	set(&l, sounding.VarWindDirection, &l.WindDirectionDeg, v[colWindDirection], sounding.Reported)
@@ -422,8 +423,8 @@ func Write(w io.Writer, ss []*sounding.Sounding) error {
 			rec[colNominal] = nominal
 			rec[colPressure] = num(l.PressurePa / 100)
 			rec[colHeight] = num(l.HeightM)
-			rec[colTemperature] = num(l.TemperatureK - 273.15)
-			rec[colDewpoint] = num(l.DewpointK - 273.15)
+			rec[colTemperature] = num(l.TemperatureK - thermo.ZeroCelsiusK)
+			rec[colDewpoint] = num(l.DewpointK - thermo.ZeroCelsiusK)
 			rec[colRelHumidity] = num(l.RelHumidityPct)
 			rec[colWindDirection] = num(l.WindDirectionDeg)
 			rec[colWindSpeed] = num(l.WindSpeedMS)

@@ -64,7 +64,9 @@ func (l *Lock) Release() error {
 // written by a run that was killed before its commit, and files the
 // last commit replaced. Files any manifest references, and files in
 // partitions of stations another shard owns, are never touched. It returns
-// the paths removed. Writers call it after taking the lock, before writing.
+// the paths removed; a file that could not be removed is an error naming
+// it (after the others were removed). Writers call it after taking the
+// lock, before writing.
 func Clean(dir string, sh Shard, m *Manifest) ([]string, error) {
 	all, err := ReadAll(dir)
 	if err != nil {
@@ -80,6 +82,7 @@ func Clean(dir string, sh Shard, m *Manifest) ([]string, error) {
 		live[f] = true
 	}
 	var removed []string
+	var failed []error // removals that failed (the files stay, unreferenced)
 	entries, err := os.ReadDir(dir)
 	if err != nil {
 		return nil, fmt.Errorf("store: %w", err)
@@ -105,8 +108,11 @@ func Clean(dir string, sh Shard, m *Manifest) ([]string, error) {
 			name := d.Name()
 			stray := strings.HasPrefix(name, ".part") || (strings.HasSuffix(name, ".parquet") && !live[rel])
 			if stray {
-				if err := os.Remove(p); err == nil {
+				switch err := os.Remove(p); {
+				case err == nil:
 					removed = append(removed, rel)
+				case !errors.Is(err, fs.ErrNotExist):
+					failed = append(failed, err)
 				}
 			}
 			return nil
@@ -118,9 +124,15 @@ func Clean(dir string, sh Shard, m *Manifest) ([]string, error) {
 	// Stray temporary manifests.
 	tmps, _ := filepath.Glob(filepath.Join(escapeGlob(dir), MetaDir, ".manifest-*"))
 	for _, t := range tmps {
-		if os.Remove(t) == nil {
+		switch err := os.Remove(t); {
+		case err == nil:
 			removed = append(removed, filepath.Join(MetaDir, filepath.Base(t)))
+		case !errors.Is(err, fs.ErrNotExist):
+			failed = append(failed, err)
 		}
+	}
+	if len(failed) > 0 {
+		return removed, fmt.Errorf("store: clean: %d file(s) could not be removed: %w", len(failed), errors.Join(failed...))
 	}
 	return removed, nil
 }

@@ -23,6 +23,7 @@ import (
 	"errors"
 	"fmt"
 	"hash/fnv"
+	"io/fs"
 	"os"
 	"path/filepath"
 	"sort"
@@ -223,12 +224,23 @@ func Commit(dir string, sh Shard, m *Manifest) error {
 		err = os.Rename(f.Name(), manifestPath(dir, sh))
 	}
 	if err != nil {
-		os.Remove(f.Name())
+		if rerr := os.Remove(f.Name()); rerr != nil && !errors.Is(rerr, fs.ErrNotExist) {
+			err = errors.Join(err, rerr)
+		}
 		return fmt.Errorf("store: commit manifest: %w", err)
 	}
-	if d, err := os.Open(meta); err == nil {
-		d.Sync()
-		d.Close()
+	// The rename is durable only once the directory is synced: a commit
+	// whose directory sync fails is reported, not assumed.
+	d, err := os.Open(meta)
+	if err != nil {
+		return fmt.Errorf("store: commit manifest: %w", err)
+	}
+	err = d.Sync()
+	if cerr := d.Close(); err == nil {
+		err = cerr
+	}
+	if err != nil {
+		return fmt.Errorf("store: commit manifest: sync directory %s: %w", meta, err)
 	}
 	return nil
 }
