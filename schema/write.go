@@ -290,6 +290,19 @@ func encode(w *bufio.Writer, sc *arrow.Schema, cols []Column, arrays func() ([]a
 			opts = append(opts, parquet.WithEncodingFor(c.Name, parquet.Encodings.ByteStreamSplit))
 		}
 	}
+	// Integers and times are stored as deltas (DELTA_BINARY_PACKED): along
+	// a station-year they are constant (year), step by one (level_index,
+	// source_line) or repeat for every level of a sounding (launch_time),
+	// so the deltas pack into a few bits each and the compressor gets a
+	// quarter fewer bytes. On 20 copies of the real Sterling file
+	// (13,240 soundings) the levels table shrank from 48 to 46 MB and the
+	// ingest used about 4 % less CPU (three alternating runs; 1 % fewer
+	// instructions counted on two of the files).
+	for _, c := range cols {
+		if c.kind == kindInt32 || c.kind == kindInt64 || c.kind == kindTime {
+			opts = append(opts, parquet.WithEncodingFor(c.Name, parquet.Encodings.DeltaBinaryPacked))
+		}
+	}
 	props := parquet.NewWriterProperties(opts...)
 	// w is a *bufio.Writer, which has no Close, so fw.Close leaves the file
 	// open for the caller to flush and sync. WithStoreSchema embeds the Arrow schema (with each field's doc) in
