@@ -19,9 +19,9 @@ func ExampleWriteText() {
 	queries.WriteText(os.Stdout, t)
 	// Output:
 	// station_id  season  mixing_height_p50_m  sbi_frequency
-	// XQ001       DJF     150                  0.4
-	// XQ001       JJA     1212.346             -
-	// XQ002       SON     NaN                  0.333
+	// XQ001       DJF     150                  0.40
+	// XQ001       JJA     1212                 -
+	// XQ002       SON     NaN                  0.33
 }
 
 func ExampleWriteJSON() {

@@ -38,10 +38,11 @@ func WriteMarkdown(w io.Writer, t *Table) error {
 		}
 	}
 	bw.WriteString("\n")
+	prec := precision(t)
 	for _, r := range t.Rows {
 		bw.WriteString("|")
-		for _, v := range r {
-			bw.WriteString(" " + cell(formatText(v)) + " |")
+		for i, v := range r {
+			bw.WriteString(" " + cell(formatText(v, prec[i])) + " |")
 		}
 		bw.WriteString("\n")
 	}

@@ -14,6 +14,8 @@ import (
 	"text/tabwriter"
 	"time"
 	"unicode"
+
+	"github.com/sondeclim/sondeclim/schema"
 )
 
 // Table is the result of a query: column names and rows of values. A value
@@ -23,6 +25,10 @@ import (
 type Table struct {
 	Columns []string
 	Rows    [][]any
+	// Exact makes the writers give floats in full precision (the shortest
+	// form that reads back to the same float64) instead of rounding them
+	// to the precision of the column's unit.
+	Exact bool
 }
 
 // Query runs query on db with bound args and reads the whole result into a
@@ -96,26 +102,65 @@ func normalize(v any) any {
 	return v
 }
 
+// precision gives, per column, the decimals its floats are written with
+// (schema.OutputDecimals), or -1 where the name carries no known unit.
+func precision(t *Table) []int {
+	p := make([]int, len(t.Columns))
+	for i, c := range t.Columns {
+		p[i] = -1
+		if t.Exact {
+			p[i] = exact
+		} else if d, ok := schema.OutputDecimals(c); ok {
+			p[i] = d
+		}
+	}
+	return p
+}
+
+// exact is the precision of Table.Exact.
+const exact = -2
+
+// roundedFloat writes x with d decimals (d ≥ 0), with six significant
+// digits (d = −1), or exactly (d = exact); trim drops trailing zeros (for CSV and JSON; a table for
+// people keeps them, so columns align on the decimal point). Negative zero
+// is written as 0. NaN and ±Inf come out as strconv writes them.
+func roundedFloat(x float64, d int, trim bool) string {
+	var s string
+	if d == exact {
+		return strconv.FormatFloat(x, 'g', -1, 64)
+	}
+	if d >= 0 {
+		// Halves round away from zero (1.25 K → 1.3 K), as people round.
+		if p := math.Pow10(d); math.Abs(x*p) < 1e15 {
+			x = math.Round(x*p) / p
+		}
+		s = strconv.FormatFloat(x, 'f', d, 64)
+	} else {
+		s = strconv.FormatFloat(x, 'g', 6, 64)
+		if strings.ContainsAny(s, "e") {
+			// Keep the exponent form for very large or small values.
+			return s
+		}
+		trim = true
+	}
+	if trim && strings.Contains(s, ".") {
+		s = strings.TrimRight(strings.TrimRight(s, "0"), ".")
+	}
+	if strings.Trim(s, "-0.") == "" {
+		s = strings.TrimPrefix(s, "-")
+	}
+	return s
+}
+
 // formatText renders v for people: NULL as "-", control characters in text
-// as spaces, floats with at most three
-// decimals (trailing zeros dropped), tiny non-zero floats in three
-// significant digits, times in RFC 3339 UTC.
-func formatText(v any) string {
+// as spaces, floats at the column's precision d (roundedFloat), times in
+// RFC 3339 UTC.
+func formatText(v any, d int) string {
 	switch x := v.(type) {
 	case nil:
 		return "-"
 	case float64:
-		if a := math.Abs(x); a != 0 && a < 1e-3 && !math.IsInf(x, 0) {
-			return strconv.FormatFloat(x, 'g', 3, 64)
-		}
-		s := strconv.FormatFloat(x, 'f', 3, 64)
-		if strings.Contains(s, ".") {
-			s = strings.TrimRight(strings.TrimRight(s, "0"), ".")
-		}
-		if s == "-0" {
-			s = "0"
-		}
-		return s
+		return roundedFloat(x, d, false)
 	case time.Time:
 		return x.UTC().Format(time.RFC3339Nano)
 	case []byte:
@@ -137,14 +182,14 @@ func oneLine(s string) string {
 	}, s)
 }
 
-// formatCSV renders v for programs: NULL as empty, floats with the shortest
-// representation that reads back exactly, times in RFC 3339 UTC.
-func formatCSV(v any) string {
+// formatCSV renders v for programs: NULL as empty, floats at the column's
+// precision d without trailing zeros (roundedFloat), times in RFC 3339 UTC.
+func formatCSV(v any, d int) string {
 	switch x := v.(type) {
 	case nil:
 		return ""
 	case float64:
-		return strconv.FormatFloat(x, 'g', -1, 64)
+		return roundedFloat(x, d, true)
 	case time.Time:
 		return x.UTC().Format(time.RFC3339Nano)
 	case []byte:
@@ -155,14 +200,15 @@ func formatCSV(v any) string {
 
 // WriteText writes t as a table for people, columns aligned with
 // text/tabwriter: a header line, then one line per row. NULL is shown as
-// "-", floats with at most three decimals (see formatText).
+// "-", floats at the precision of the column's unit (schema.OutputDecimals).
 func WriteText(w io.Writer, t *Table) error {
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 	fmt.Fprintln(tw, strings.Join(t.Columns, "\t"))
 	cells := make([]string, len(t.Columns))
+	prec := precision(t)
 	for _, r := range t.Rows {
 		for i, v := range r {
-			cells[i] = formatText(v)
+			cells[i] = formatText(v, prec[i])
 		}
 		fmt.Fprintln(tw, strings.Join(cells, "\t"))
 	}
@@ -170,16 +216,18 @@ func WriteText(w io.Writer, t *Table) error {
 }
 
 // WriteCSV writes t as CSV (RFC 4180) with a header record. NULL is an empty
-// field; floats are written in full precision.
+// field; floats are written at the precision of the column's unit
+// (schema.OutputDecimals; six significant digits without a known unit).
 func WriteCSV(w io.Writer, t *Table) error {
 	cw := csv.NewWriter(w)
 	if err := cw.Write(t.Columns); err != nil {
 		return err
 	}
 	rec := make([]string, len(t.Columns))
+	prec := precision(t)
 	for _, r := range t.Rows {
 		for i, v := range r {
-			rec[i] = formatCSV(v)
+			rec[i] = formatCSV(v, prec[i])
 		}
 		if err := cw.Write(rec); err != nil {
 			return err
@@ -191,8 +239,10 @@ func WriteCSV(w io.Writer, t *Table) error {
 
 // WriteJSON writes t as a JSON array with one object per row, keys in
 // column order, one object per line. NULL, NaN and ±Inf are written as
-// null (JSON has no NaN).
+// null (JSON has no NaN); other floats are written at the precision of the
+// column's unit, as in WriteCSV.
 func WriteJSON(w io.Writer, t *Table) error {
+	prec := precision(t)
 	bw := bufio.NewWriter(w)
 	keys := make([][]byte, len(t.Columns))
 	for i, c := range t.Columns {
@@ -212,8 +262,15 @@ func WriteJSON(w io.Writer, t *Table) error {
 			if i > 0 {
 				bw.WriteString(",")
 			}
-			if f, ok := v.(float64); ok && (math.IsNaN(f) || math.IsInf(f, 0)) {
-				v = nil
+			if f, ok := v.(float64); ok {
+				bw.Write(keys[i])
+				bw.WriteString(":")
+				if math.IsNaN(f) || math.IsInf(f, 0) {
+					bw.WriteString("null")
+				} else {
+					bw.WriteString(roundedFloat(f, prec[i], true))
+				}
+				continue
 			}
 			b, err := json.Marshal(v)
 			if err != nil {

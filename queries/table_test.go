@@ -7,6 +7,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 	"time"
 )
@@ -116,5 +117,43 @@ func TestQueryBindsParameters(t *testing.T) {
 	}
 	if _, err := Query(context.Background(), db, `SELECT nothing FROM nowhere`); err == nil {
 		t.Error("bad SQL: no error")
+	}
+}
+
+// Values are written at the precision of the data (schema.OutputDecimals:
+// heights to 1 m, K to 0.1, g/kg to 0.01, frequencies to 0.01) in every
+// format, and in full with Exact. The raw values are machine noise of the
+// kind an interpolated percentile produces.
+func TestPrecisionByUnit(t *testing.T) {
+	tab := &Table{Columns: []string{"height_m", "theta_k", "mixing_ratio_gkg", "sbi_frequency", "wind_speed_ms", "other"},
+		Rows: [][]any{{148.183, 300.04999, 8.123456, 0.3333333333333333, 4.26, 18.899999999999977}}}
+	var b strings.Builder
+	if err := WriteCSV(&b, tab); err != nil {
+		t.Fatal(err)
+	}
+	if got, want := strings.Split(b.String(), "\n")[1], "148,300,8.12,0.33,4.3,18.9"; got != want {
+		t.Errorf("csv row %q, want %q", got, want)
+	}
+	b.Reset()
+	if err := WriteJSON(&b, tab); err != nil {
+		t.Fatal(err)
+	}
+	if want := `{"height_m":148,"theta_k":300,"mixing_ratio_gkg":8.12,"sbi_frequency":0.33,"wind_speed_ms":4.3,"other":18.9}`; !strings.Contains(b.String(), want) {
+		t.Errorf("json %q, want %q", b.String(), want)
+	}
+	b.Reset()
+	if err := WriteText(&b, tab); err != nil {
+		t.Fatal(err)
+	}
+	if f := strings.Fields(strings.Split(b.String(), "\n")[1]); strings.Join(f, " ") != "148 300.0 8.12 0.33 4.3 18.9" {
+		t.Errorf("text row %q", f)
+	}
+	tab.Exact = true
+	b.Reset()
+	if err := WriteCSV(&b, tab); err != nil {
+		t.Fatal(err)
+	}
+	if got := strings.Split(b.String(), "\n")[1]; got != "148.183,300.04999,8.123456,0.3333333333333333,4.26,18.899999999999977" {
+		t.Errorf("exact csv row %q", got)
 	}
 }

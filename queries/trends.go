@@ -25,6 +25,16 @@ var TrendMetrics = map[string]string{
 	"ventilation_index": "m2/s",
 }
 
+// trendDecimals is the precision of each metric unit in TrendMetrics
+// (schema.OutputDecimals gives the same for the column units).
+var trendDecimals = map[string]int{"m": 0, "fraction": 2, "K": 1, "m/s": 1, "m2/s": 0}
+
+// roundTo rounds x to d decimals, halves away from zero.
+func roundTo(x float64, d int) float64 {
+	p := math.Pow10(d)
+	return math.Round(x*p) / p
+}
+
 // Defaults of TrendOptions (METHODS §8: trends on yearly statistics with
 // ≥ 70 % coverage [M]; ≥ 10 years per multi-year cell [M]).
 const (
@@ -175,10 +185,15 @@ func trendRow(rows [][]any, iY, iVal, iKept int, o TrendOptions, unit string, ju
 		med := stats.Quantile(values, 0.5, stats.Type7)
 		slope := stats.TheilSenSlope(years, values) * 10
 		mk := stats.MannKendallTest(values)
-		row[8], row[9], row[11], row[12], row[13] = med, slope, mk.S, mk.Z, mk.P
 		if med != 0 {
 			row[10] = 100 * slope / med
 		}
+		// The median at the precision of the metric's unit, the slope
+		// with one decimal more (a decade's change is often smaller than
+		// the data's resolution); the column names cannot say the unit,
+		// which varies with the metric.
+		d := trendDecimals[unit]
+		row[8], row[9], row[11], row[12], row[13] = roundTo(med, d), roundTo(slope, d+1), mk.S, mk.Z, mk.P
 	} else {
 		notes = append(notes, "fewer than 3 years: no trend")
 	}
@@ -221,7 +236,7 @@ func levelJumps(byYear map[int64]float64) string {
 	for i := 1; i < len(ys); i++ {
 		a, b := byYear[ys[i-1]], byYear[ys[i]]
 		if a > 0 && math.Abs(b/a-1) > LevelJump {
-			out = append(out, fmt.Sprintf("levels per sounding %s -> %s in %d", formatText(a), formatText(b), ys[i]))
+			out = append(out, fmt.Sprintf("levels per sounding %s -> %s in %d", formatText(a, 0), formatText(b, 0), ys[i]))
 		}
 	}
 	if len(out) == 0 {

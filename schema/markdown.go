@@ -29,6 +29,7 @@ func Markdown(w io.Writer, tables ...TableDoc) error {
 	fmt.Fprintf(bw, "In the directory name, ID is the station identifier with every byte other than an ASCII letter, digit, `-` or `_` "+
 		"written as `%%XX` (percent-encoding, RFC 3986 §2.1), so `A.B/1` is stored under `%s=A%%2EB%%2F1`; "+
 		"every file also holds the identifier itself in `station_id`, which queries should use.\n", StationKey)
+	fmt.Fprintf(bw, "\n%s\n", PrecisionText())
 	for _, t := range tables {
 		fmt.Fprintf(bw, "\n## %s\n\n", mdText(t.Name))
 		if t.Description != "" {

@@ -192,7 +192,7 @@ func TestWorkersAndOrderDoNotMatter(t *testing.T) {
 			"select * exclude (source_file) from soundings",
 			"select * from levels",
 		} {
-			code, out, errs := runCmd(t, "query", "--store", store, "--format", "csv", q)
+			code, out, errs := runCmd(t, "query", "--store", store, "--format", "csv", "--exact", q)
 			if code != exitOK {
 				t.Fatalf("query: exit %d\n%s", code, errs)
 			}

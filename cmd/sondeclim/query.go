@@ -31,7 +31,12 @@ The SQL is yours and runs with your own file access: like any DuckDB
 session it can read and write files you can (COPY ... TO, read_csv), so run
 only SQL you trust. It stays offline: extensions are neither installed nor
 loaded automatically, INSTALL cannot download, and the settings that
-allow it are locked.`,
+allow it are locked.
+
+Numbers are written at the precision of the data, chosen by the unit at
+the end of the column name (heights in m to 1 m, K and °C to 0.1, g/kg
+to 0.01, frequencies to 0.01; sondeclim schema lists all); --exact
+writes them in full.`,
 		`  sondeclim query --store ./store "select count(*) from soundings"
   sondeclim query --store ./store "select criterion, count(*), max(length_days) from episodes group by 1"
   sondeclim query --store ./store --format csv \
@@ -39,6 +44,7 @@ allow it are locked.`,
 		c.stderr)
 	store := fs.String("store", "", "store `directory` written by sondeclim ingest")
 	format := fs.String("format", "text", "output `format`: text, csv or json")
+	exactOut := fs.Bool("exact", false, "write numbers in full float64 precision instead of at the precision of the column's unit (see sondeclim schema)")
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
@@ -74,6 +80,7 @@ allow it are locked.`,
 	if err != nil {
 		return fmt.Errorf("query: %w", err)
 	}
+	t.Exact = *exactOut
 	return write(c.stdout, t)
 }
 

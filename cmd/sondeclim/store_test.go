@@ -91,7 +91,7 @@ func dump(t *testing.T, storeDir string) string {
 		"select * from mixing_heights order by station_id, launch_time, method",
 		"select * from afternoon_mixing order by station_id, local_date",
 	} {
-		code, out, errs := runCmd(t, "query", "--store", storeDir, "--format", "csv", q)
+		code, out, errs := runCmd(t, "query", "--store", storeDir, "--format", "csv", "--exact", q)
 		if code != exitOK {
 			t.Fatalf("%s: exit %d\n%s", q, code, errs)
 		}

@@ -45,7 +45,7 @@ func TestTableHashes(t *testing.T) {
 		}
 		var b strings.Builder
 		for _, d := range docs {
-			code, out, errs := runCmd(t, "query", "--store", store, "--format", "csv",
+			code, out, errs := runCmd(t, "query", "--store", store, "--format", "csv", "--exact",
 				"select * from "+d.Name+" order by all")
 			if code != exitOK {
 				t.Fatalf("table %s: exit %d\n%s", d.Name, code, errs)
