@@ -124,7 +124,10 @@ func (r *run) stageFile(ctx context.Context, path string, fi int, spill string, 
 		r.sum.Members++
 		r.mu.Unlock()
 		io.WriteString(sum, member+"\x00")
-		return r.readMember(ctx, path, member, io.TeeReader(rd, sum), func(s *sounding.Sounding) error {
+		er := &readErr{r: rd}
+		memberParts := map[string]int{}
+		read := 0
+		err := r.readMember(ctx, path, member, io.TeeReader(er, sum), func(s *sounding.Sounding) error {
 			if err := store.CheckStationID(s.StationID); err != nil {
 				r.badStation(s, err)
 				return nil
@@ -139,9 +142,47 @@ func (r *run) stageFile(ctx context.Context, path string, fi int, spill string, 
 			if keep != nil && !keep[key] {
 				return nil
 			}
-			res.parts[key]++
+			memberParts[key]++
+			read++
 			return w.write(key, s)
 		})
+		if er.err != nil && ctx.Err() == nil && !isWriteError(err) {
+			// The container is damaged. A cut stream (gzip, or a zip
+			// member, ending early) holds a prefix of the data, in which
+			// every sounding but the last was followed by more data, so
+			// it is whole; the last may be cut and is dropped. Any other
+			// damage (a CRC mismatch, corrupt compressed data, over the
+			// size limit) may have altered any byte read: the member
+			// contributes nothing.
+			cut := errors.Is(er.err, io.ErrUnexpectedEOF)
+			n := read
+			if cut {
+				n = 1
+			}
+			for _, k := range w.drop(n) {
+				memberParts[k]--
+			}
+			r.mu.Lock()
+			r.sum.SoundingsRead -= min(n, read)
+			r.mu.Unlock()
+			where := ingest.Where(path, member)
+			kept := "none of its soundings are kept"
+			reason := "corrupt_member"
+			if cut {
+				reason = "truncated"
+				kept = fmt.Sprintf("the %d whole sounding(s) before the damage are kept, the last one read (which may be cut) is not", max(0, read-1))
+			}
+			w.commit()
+			res.parts = addCounts(res.parts, memberParts)
+			if errors.Is(er.err, ingest.ErrTooLarge) {
+				return er.err // Each reports it for the file
+			}
+			r.skip(Skip{Where: where, Reason: reason, Detail: fmt.Sprintf("%s: damaged container (%v): %s", where, er.err, kept)})
+			return nil // the next members go on
+		}
+		w.commit()
+		res.parts = addCounts(res.parts, memberParts)
+		return err
 	})
 	if err != nil {
 		if ctx.Err() != nil {
@@ -423,42 +464,89 @@ func isWriteError(err error) bool {
 }
 
 // spillWriter appends encoded soundings to one spill file, recording one
-// segment per run of consecutive soundings of the same station-year.
+// segment per run of consecutive soundings of the same station-year. The
+// soundings of the member being read are tentative until commit: a member
+// that turns out damaged (a zip CRC failure, a cut gzip stream) is taken
+// back whole or in part by drop, and its bytes in the spill file are then
+// referenced by no segment.
 type spillWriter struct {
-	w   *bufio.Writer
-	fi  int
-	st  *staged
-	off int64
-	cur string
-	seg segment
-	buf []byte
+	w       *bufio.Writer
+	fi      int
+	st      *staged
+	off     int64
+	pending []spilled // the current member's soundings, in order
+	buf     []byte
+}
+
+// spilled is one tentative sounding of a spill file.
+type spilled struct {
+	key       string
+	off, size int64
 }
 
 func (w *spillWriter) write(key string, s *sounding.Sounding) error {
-	if key != w.cur {
-		w.flush()
-		w.cur, w.seg = key, segment{file: w.fi, off: w.off}
-	}
 	w.buf = sounding.AppendBinary(w.buf[:0], s, true)
 	n, err := w.w.Write(w.buf)
 	if err != nil {
 		return &writeError{err}
 	}
+	w.pending = append(w.pending, spilled{key, w.off, int64(n)})
 	w.off += int64(n)
-	w.seg.size += int64(n)
-	w.seg.count++
 	return nil
 }
 
-func (w *spillWriter) flush() {
-	if w.cur != "" && w.seg.count > 0 {
-		w.st.add(w.cur, w.seg)
+// drop takes back the last n tentative soundings (all of them when n is
+// larger) and returns their keys.
+func (w *spillWriter) drop(n int) []string {
+	n = min(n, len(w.pending))
+	var keys []string
+	for _, p := range w.pending[len(w.pending)-n:] {
+		keys = append(keys, p.key)
 	}
+	w.pending = w.pending[:len(w.pending)-n]
+	return keys
+}
+
+// commit records the tentative soundings as segments.
+func (w *spillWriter) commit() {
+	var cur string
+	var seg segment
+	for _, p := range w.pending {
+		if p.key != cur || p.off != seg.off+seg.size {
+			if seg.count > 0 {
+				w.st.add(cur, seg)
+			}
+			cur, seg = p.key, segment{file: w.fi, off: p.off}
+		}
+		seg.size += p.size
+		seg.count++
+	}
+	if seg.count > 0 {
+		w.st.add(cur, seg)
+	}
+	w.pending = w.pending[:0]
 }
 
 func (w *spillWriter) close() error {
-	w.flush()
+	w.commit()
 	return w.w.Flush()
+}
+
+// readErr remembers the first error other than io.EOF that reading a
+// member's bytes gave: a damaged container (zip CRC, a cut or corrupt
+// gzip stream, the size limit), as opposed to what the reader made of the
+// bytes.
+type readErr struct {
+	r   io.Reader
+	err error
+}
+
+func (e *readErr) Read(p []byte) (int, error) {
+	n, err := e.r.Read(p)
+	if err != nil && err != io.EOF && e.err == nil {
+		e.err = err
+	}
+	return n, err
 }
 
 // readMember decodes one file or archive member and hands each sounding to
@@ -549,4 +637,15 @@ func (r *run) reportReading(total int) (stop func()) {
 		}
 	}()
 	return func() { close(done) }
+}
+
+// addCounts returns a with b's counts added (keys whose sum is 0 left out).
+func addCounts(a, b map[string]int) map[string]int {
+	out := maps.Clone(a)
+	for k, v := range b {
+		if out[k] += v; out[k] == 0 {
+			delete(out, k)
+		}
+	}
+	return out
 }

@@ -1,7 +1,9 @@
 package main
 
 import (
+	"archive/zip"
 	"bytes"
+	"compress/gzip"
 	"encoding/json"
 	"fmt"
 	"io/fs"
@@ -574,5 +576,112 @@ func TestInputIdentity(t *testing.T) {
 	s = ingest(exitOK, "--prune-missing", "moved")
 	if s.Soundings != 730 || notes(s, "input_pruned") != 2 {
 		t.Errorf("--prune-missing: %d soundings, notes %+v; want 730 (station A only) and two input_pruned", s.Soundings, s.Notes)
+	}
+}
+
+// TestCorruptContainers: a zip member that fails its CRC (one byte of a
+// stored member flipped) contributes no sounding while the members before
+// and after it are stored whole; a gzip stream cut in the middle keeps
+// only soundings identical to those of the intact file (the last one read
+// is dropped, as it may be cut). Both are reported skips (exit 3).
+func TestCorruptContainers(t *testing.T) {
+	root := t.TempDir()
+	in := twoStations(t, filepath.Join(root, "src"))
+	a, _ := os.ReadFile(filepath.Join(in, synth.StationAt(0).ID+"-data.txt"))
+	b, _ := os.ReadFile(filepath.Join(in, synth.StationAt(1).ID+"-data.txt"))
+	c, _ := os.ReadFile(filepath.Join(in, synth.StationAt(0).ID+"-data.txt")) // member 3: station A again
+	c = []byte(strings.ReplaceAll(string(c), "#"+synth.StationAt(0).ID, "#ZZXCOPY0003"))
+
+	var zb bytes.Buffer
+	zw := zip.NewWriter(&zb)
+	for i, m := range [][]byte{a, b, c} {
+		f, err := zw.CreateHeader(&zip.FileHeader{Name: fmt.Sprintf("m%d.txt", i+1), Method: zip.Store})
+		if err != nil {
+			t.Fatal(err)
+		}
+		f.Write(m)
+	}
+	zw.Close()
+	z := zb.Bytes()
+	flip := bytes.Index(z, b[1000:1040]) // a byte inside member 2's data
+	if flip < 0 {
+		t.Fatal("member 2 not found in the archive")
+	}
+	z[flip] ^= 0x01
+	dir := filepath.Join(root, "zip")
+	os.MkdirAll(dir, 0o755)
+	writeFile(t, filepath.Join(dir, "three.zip"), string(z))
+	st := filepath.Join(root, "zstore")
+	sum := filepath.Join(root, "sum.json")
+	code, _, errs := runCmd(t, "ingest", "--quiet", "--summary-json", sum, "--store", st, dir)
+	if code != exitSkipped {
+		t.Fatalf("zip with a bad CRC: exit %d, want %d\n%s", code, exitSkipped, errs)
+	}
+	s := readSummary(t, sum)
+	// The flipped byte may also make a line of m2.txt malformed before the
+	// CRC is checked at the member's end; every skip is in m2.txt.
+	corrupt := 0
+	for _, k := range s.Skipped {
+		if !strings.Contains(k.Where, "three.zip!m2.txt") {
+			t.Errorf("skip outside the damaged member: %+v", k)
+		}
+		if k.Reason == "corrupt_member" {
+			corrupt++
+		}
+	}
+	if s.Soundings != 1460 || corrupt != 1 {
+		t.Errorf("bad CRC: %d soundings (want 1460: members 1 and 3), skips %+v (want one corrupt_member for m2.txt)", s.Soundings, s.Skipped)
+	}
+	code, out, _ := runCmd(t, "query", "--store", st, "--format", "csv",
+		"select count(*) as n from soundings where station_id = '"+synth.StationAt(1).ID+"'")
+	if code != exitOK || out != "n\n0\n" {
+		t.Errorf("soundings of the member with the bad CRC stored: %q", out)
+	}
+
+	// A gzip stream cut in the middle.
+	var gb bytes.Buffer
+	gw := gzip.NewWriter(&gb)
+	gw.Write(a)
+	gw.Close()
+	gdir := filepath.Join(root, "gz")
+	os.MkdirAll(gdir, 0o755)
+	writeFile(t, filepath.Join(gdir, "cut.txt.gz"), string(gb.Bytes()[:gb.Len()/2]))
+	gst, clean := filepath.Join(root, "gstore"), filepath.Join(root, "clean")
+	code, _, errs = runCmd(t, "ingest", "--quiet", "--summary-json", sum, "--store", gst, gdir)
+	if code != exitSkipped {
+		t.Fatalf("cut gzip: exit %d, want %d\n%s", code, exitSkipped, errs)
+	}
+	s = readSummary(t, sum)
+	truncated := 0
+	for _, k := range s.Skipped {
+		if k.Reason == "truncated" {
+			truncated++
+		}
+	}
+	if truncated != 1 || s.Soundings < 100 || s.Soundings >= 730 {
+		t.Errorf("cut gzip: %d soundings, skips %+v; want some of 730 and a truncated skip", s.Soundings, s.Skipped)
+	}
+	mustIngest(t, "--store", clean, filepath.Join(in, synth.StationAt(0).ID+"-data.txt"))
+	hashes := func(store string) map[string]string {
+		code, out, errs := runCmd(t, "query", "--store", store, "--format", "csv",
+			"select launch_time, sounding_hash from soundings order by 1")
+		if code != exitOK {
+			t.Fatalf("query: %s", errs)
+		}
+		m := map[string]string{}
+		for _, l := range strings.Split(strings.TrimSpace(out), "\n")[1:] {
+			k, v, _ := strings.Cut(l, ",")
+			m[k] = v
+		}
+		return m
+	}
+	whole, kept := hashes(clean), hashes(gst)
+	if len(kept) != s.Soundings {
+		t.Fatalf("%d rows, summary says %d", len(kept), s.Soundings)
+	}
+	for k, h := range kept {
+		if whole[k] != h {
+			t.Errorf("sounding %s from the cut stream differs from the intact file's (hash %s, want %s)", k, h, whole[k])
+		}
 	}
 }
