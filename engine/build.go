@@ -504,7 +504,7 @@ func (r *run) analysePart(all []*sounding.Sounding, observed map[*sounding.Sound
 			stats.notAnalysable[res.status]++
 		}
 	}
-	arows = afternoonRows(results, r.opt.DailyMaxima, analyze.DefaultPairingConfig())
+	arows = afternoonRows(results, r.opt.DailyMaxima, r.pairing)
 	r.stage("analysis", t0)
 	return srows, rows, arows
 }

@@ -7,6 +7,7 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/sondeclim/sondeclim/analyze"
 	"github.com/sondeclim/sondeclim/internal/realdata"
 	"github.com/sondeclim/sondeclim/schema"
 )
@@ -58,5 +59,27 @@ func TestAnalyseMatchesRun(t *testing.T) {
 	}
 	if len(rs.Levels) != levels || sum.Rows[schema.TableLevels] != levels {
 		t.Errorf("levels: %d rows in memory, %d written, %d counted", len(rs.Levels), sum.Rows[schema.TableLevels], levels)
+	}
+}
+
+// TestPairingInParameters: the afternoon pairing windows are analysis
+// parameters, so changing them rebuilds the partitions of a store (they
+// used to be fixed and outside the parameter hash).
+func TestPairingInParameters(t *testing.T) {
+	dir := realdata.Dir(t, "archive-v2")
+	files := []string{filepath.Join(dir, "USM00074794-data-1950-portion.txt")}
+	storeDir := t.TempDir()
+	if _, err := Run(context.Background(), storeDir, files, Options{Workers: 1}); err != nil {
+		t.Fatal(err)
+	}
+	again, err := Run(context.Background(), storeDir, files, Options{Workers: 1})
+	if err != nil || again.PartitionsWritten != 0 {
+		t.Fatalf("same parameters: %d partitions written (%v), want 0", again.PartitionsWritten, err)
+	}
+	p := analyze.DefaultPairingConfig()
+	p.MorningToH = 11
+	changed, err := Run(context.Background(), storeDir, files, Options{Workers: 1, Pairing: &p})
+	if err != nil || changed.PartitionsWritten == 0 {
+		t.Fatalf("other pairing windows: %d partitions written (%v), want a rebuild", changed.PartitionsWritten, err)
 	}
 }

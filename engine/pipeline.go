@@ -44,7 +44,7 @@ import (
 // DerivationVersion names the version of the derivation code. Bump it when
 // a change alters what is written for the same input, so that existing
 // stores re-derive their partitions on the next run.
-const DerivationVersion = 5
+const DerivationVersion = 6
 
 // Options configures a run. The zero value is usable: one worker per CPU,
 // the default analysis configuration, no logging, incremental, unsharded.
@@ -89,6 +89,10 @@ type Options struct {
 	// (Holzworth) mixing height; nil uses the afternoon soundings' surface
 	// temperatures only.
 	DailyMaxima analyze.DailyMaxima
+	// Pairing sets the local-time windows of the afternoon pairing; nil
+	// means analyze.DefaultPairingConfig(). It is one of the analysis
+	// parameters: a change rebuilds every partition.
+	Pairing *analyze.PairingConfig
 	// Log receives progress (Info) and skipped input (Warn). Nil discards.
 	Log *slog.Logger
 	// Progress, when set, is called with the partitions done and the total
@@ -165,6 +169,7 @@ type run struct {
 	opt     Options
 	cfg     analyze.Config
 	qcCfg   qc.Config
+	pairing analyze.PairingConfig
 	params  string
 	log     *slog.Logger
 	workers int
@@ -215,6 +220,10 @@ func newRun(ctx context.Context, storeDir string, files []string, opt Options) *
 	if opt.QC != nil {
 		r.qcCfg = *opt.QC
 	}
+	r.pairing = analyze.DefaultPairingConfig()
+	if opt.Pairing != nil {
+		r.pairing = *opt.Pairing
+	}
 	r.log = opt.Log
 	if r.log == nil {
 		r.log = slog.New(slog.DiscardHandler)
@@ -239,7 +248,8 @@ func Run(ctx context.Context, storeDir string, paths []string, opt Options) (*Su
 		QC                qc.Config
 		UseSuspect        bool
 		DailyMaxima       string
-	}{store.Version, DerivationVersion, r.cfg, r.qcCfg, opt.UseSuspect, maximaDigest(opt.DailyMaxima)})
+		Pairing           analyze.PairingConfig
+	}{store.Version, DerivationVersion, r.cfg, r.qcCfg, opt.UseSuspect, maximaDigest(opt.DailyMaxima), r.pairing})
 	if err != nil {
 		return nil, fmt.Errorf("encode parameters: %w", err)
 	}
