@@ -7,7 +7,6 @@ import (
 	"io"
 	"sort"
 
-	"github.com/sondeclim/sondeclim/ingest/formats"
 	"github.com/sondeclim/sondeclim/ingest/input"
 	"github.com/sondeclim/sondeclim/schema"
 	"github.com/sondeclim/sondeclim/schema/store"
@@ -27,11 +26,7 @@ func Analyse(ctx context.Context, paths []string, opt Options) (*schema.RowSet, 
 		return nil, nil, err
 	}
 	r := newRun(ctx, "", files, opt)
-	before := len(files)
-	files, r.opt.Stations = formats.TakeStationLists(files, opt.SizeLimit, opt.Stations, func(path string, err error) {
-		r.skip(Skip{Where: path, Reason: "station_list_lines", Detail: err.Error()})
-	})
-	r.sum.StationLists = before - len(files)
+	files = r.takeStationLists(files)
 
 	parts := map[string][]*sounding.Sounding{}
 	for _, path := range files {
@@ -86,5 +81,6 @@ func Analyse(ctx context.Context, paths []string, opt Options) (*schema.RowSet, 
 	}
 	sortSkips(r.sum.Skipped)
 	sortSkips(r.sum.Notes)
+	r.warnMetadata()
 	return out, r.sum, nil
 }

@@ -35,7 +35,6 @@ import (
 
 	"github.com/sondeclim/sondeclim/analyze"
 	"github.com/sondeclim/sondeclim/ingest"
-	"github.com/sondeclim/sondeclim/ingest/formats"
 	"github.com/sondeclim/sondeclim/ingest/input"
 	"github.com/sondeclim/sondeclim/qc"
 	"github.com/sondeclim/sondeclim/schema/store"
@@ -65,6 +64,11 @@ type Options struct {
 	// Stations supplies station metadata (name, position, elevation) by
 	// station id, for formats that do not carry it. May be nil.
 	Stations map[string]ingest.Station
+	// NoBuiltinStations turns off the built-in station list
+	// (formats.BuiltinStations), which otherwise supplies the metadata of
+	// stations that neither Stations nor a station list among the inputs
+	// names.
+	NoBuiltinStations bool
 	// Shard restricts the run to the stations one shard owns.
 	Shard store.Shard
 	// Full ignores the manifest and rebuilds every partition the inputs
@@ -136,6 +140,12 @@ type Summary struct {
 	PartitionsUnchanged int `json:"partitions_unchanged"` // affected but identical; not rewritten
 	PartitionsDropped   int `json:"partitions_dropped"`   // --full: no input touches them any more
 
+	// NoPosition and NoElevation count the soundings read whose station
+	// position (latitude or longitude) or elevation stayed unknown after
+	// the station lists (see warnMetadata for what that affects).
+	NoPosition  int `json:"soundings_without_position"`
+	NoElevation int `json:"soundings_without_elevation"`
+
 	Soundings     int            `json:"soundings_in_store"`     // after the commit
 	NotAnalysable map[string]int `json:"not_analysable_written"` // among soundings written this run, by reason
 	Skipped       []Skip         `json:"skipped"`                // input that could not be read
@@ -180,6 +190,8 @@ type run struct {
 
 	mu        sync.Mutex // guards sum.Skipped, sum.Notes, sum.Members, sum.SoundingsRead, filesRead
 	filesRead int        // input files staged so far, for progress
+
+	noPosition, noElevation map[string]int // soundings per station lacking metadata; guarded by mu
 }
 
 // stage adds the time since start to a stage's total.
@@ -326,12 +338,7 @@ func Run(ctx context.Context, storeDir string, paths []string, opt Options) (*Su
 			"inputs", len(files))
 	}
 
-	// Station lists given among the inputs supply metadata, not soundings.
-	before := len(files)
-	files, r.opt.Stations = formats.TakeStationLists(files, opt.SizeLimit, opt.Stations, func(path string, err error) {
-		r.skip(Skip{Where: path, Reason: "station_list_lines", Detail: err.Error()})
-	})
-	r.sum.StationLists = before - len(files)
+	files = r.takeStationLists(files)
 
 	r.staging = filepath.Join(storeDir, store.MetaDir, "staging-"+opt.Shard.Name())
 	if err := os.RemoveAll(r.staging); err != nil {
@@ -353,6 +360,7 @@ func Run(ctx context.Context, storeDir string, paths []string, opt Options) (*Su
 	for _, p := range next.Partitions {
 		r.sum.Soundings += p.Soundings
 	}
+	r.warnMetadata()
 	sortSkips(r.sum.Skipped)
 	sortSkips(r.sum.Notes)
 	sort.Strings(r.sum.Files)

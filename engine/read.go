@@ -12,10 +12,12 @@ import (
 	"io"
 	"io/fs"
 	"maps"
+	"math"
 	"os"
 	"path/filepath"
 	"sort"
 	"strconv"
+	"strings"
 	"sync"
 	"time"
 
@@ -438,7 +440,68 @@ func (r *run) accepted(s *sounding.Sounding) {
 	}
 	r.mu.Lock()
 	r.sum.SoundingsRead++
+	if math.IsNaN(s.LatitudeDeg) || math.IsNaN(s.LongitudeDeg) {
+		if r.noPosition == nil {
+			r.noPosition = map[string]int{}
+		}
+		r.noPosition[s.StationID]++
+	}
+	if math.IsNaN(s.ElevationM) {
+		if r.noElevation == nil {
+			r.noElevation = map[string]int{}
+		}
+		r.noElevation[s.StationID]++
+	}
 	r.mu.Unlock()
+}
+
+// takeStationLists removes the station lists among files and merges them
+// into the run's station metadata (opt.Stations first, then the lists in
+// input order, then the built-in list unless opt.NoBuiltinStations), and
+// returns the other files.
+func (r *run) takeStationLists(files []string) []string {
+	before := len(files)
+	files, r.opt.Stations = formats.TakeStationLists(files, r.opt.SizeLimit, r.opt.Stations, func(path string, err error) {
+		r.skip(Skip{Where: path, Reason: "station_list_lines", Detail: err.Error()})
+	})
+	r.sum.StationLists = before - len(files)
+	if !r.opt.NoBuiltinStations {
+		r.opt.Stations = formats.WithBuiltin(r.opt.Stations)
+	}
+	return files
+}
+
+// warnMetadata logs, once per run, the soundings whose station position or
+// elevation is unknown, naming up to five stations and what is affected:
+// without a position there is no sun elevation or sun class (the radiation
+// inversion class and the day-only allowances need it), no hemisphere for
+// the season names and no local solar day for the afternoon pairing;
+// without an elevation heights above ground are measured from the lowest
+// level with a height, no surface pressure can be derived for a surface
+// line without one, and the surface-gap check is not made. The counts go
+// to the summary.
+func (r *run) warnMetadata() {
+	names := func(m map[string]int) (n int, ids []string) {
+		for id, c := range m {
+			n += c
+			ids = append(ids, id)
+		}
+		sort.Strings(ids)
+		if len(ids) > 5 {
+			ids = append(ids[:5], "…")
+		}
+		return n, ids
+	}
+	if n, ids := names(r.noPosition); n > 0 {
+		r.sum.NoPosition = n
+		r.log.Warn("soundings without a station position: no sun class, no hemisphere season names, no afternoon pairing; give a station list (--stations)",
+			"soundings", n, "stations", strings.Join(ids, ","))
+	}
+	if n, ids := names(r.noElevation); n > 0 {
+		r.sum.NoElevation = n
+		r.log.Warn("soundings without a station elevation: heights above ground start at the lowest level with a height, no surface pressure is derived; give a station list (--stations)",
+			"soundings", n, "stations", strings.Join(ids, ","))
+	}
 }
 
 // badStation rejects a decoded sounding whose station identifier cannot be

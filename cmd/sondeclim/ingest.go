@@ -74,7 +74,8 @@ error; 3 done, but some input was skipped (data lost).`,
 	storeDir := fs.String("store", "", "store `directory` to write (created if absent)")
 	workers := fs.Int("workers", runtime.NumCPU(), "files read, station-years analysed and station-years written at once (results do not depend on it)")
 	format := fs.String("format", "", "force the input `format` instead of detecting it ("+strings.Join(formats.Names(), ", ")+")")
-	stations := fs.String("stations", "", "station list `file` (archive-v2 layout) for names, positions and elevations")
+	stations := fs.String("stations", "", "station list `file` (archive-v2 layout) for names, positions and elevations; its entries take precedence over the built-in list")
+	noBuiltin := fs.Bool("no-builtin-stations", false, "do not complete station metadata from the built-in list (the archive's public station list, 2,879 stations)")
 	quiet := fs.Bool("quiet", false, "print only warnings and the summary's last line (for schedulers)")
 	full := fs.Bool("full", false, "ignore what was ingested before and rebuild every partition from the inputs given")
 	prune := fs.Bool("prune-missing", false, "remove the soundings of inputs ingested before that are gone now (without it they stay, with a note)")
@@ -129,6 +130,7 @@ error; 3 done, but some input was skipped (data lost).`,
 	if !*quiet && isTerminal(c.stderr) {
 		opt.Progress = progressBar(c.stderr)
 	}
+	opt.NoBuiltinStations = *noBuiltin
 	if *stations != "" {
 		m, err := loadStations(*stations, log)
 		if err != nil {
