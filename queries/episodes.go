@@ -232,3 +232,61 @@ func MentionsEpisodeTables(sqlText string) bool {
 func identChar(c byte) bool {
 	return c == '_' || c >= 'a' && c <= 'z' || c >= '0' && c <= '9'
 }
+
+// EpisodeClimatology returns the climatology of episodes of db (after
+// AttachEpisodes with the same criteria) per station, criterion and
+// period (o.By: season or month; o.Stations, o.FirstYear and o.LastYear
+// select as for ClimatologyOf): years and days with soundings, episodes
+// (counted in the period of their first day) and episodes per year, days
+// inside episodes meeting the rule and their share of the days, length
+// median, p90 and longest (calendar days), missing days inside and
+// episodes with an open start or end. The columns are documented in
+// climatology_episodes.sql; month or season, whichever o leaves empty, is
+// dropped.
+func EpisodeClimatology(ctx context.Context, db *sql.DB, o ClimatologyOptions, criteria []analyze.Criterion) (*Table, error) {
+	o, err := o.normalized()
+	if err != nil {
+		return nil, err
+	}
+	if criteria == nil {
+		criteria = analyze.BuiltinCriteria()
+	}
+	names := make([]string, len(criteria))
+	for i, c := range criteria {
+		names[i] = c.Name
+	}
+	args := o.sampleArgs() // by, time, stations, first, last
+	body, err := statement("climatology_episodes.sql")
+	if err != nil {
+		return nil, err
+	}
+	t, err := Query(ctx, db, body, args[0], args[2], args[3], args[4], names)
+	if err != nil {
+		return nil, fmt.Errorf("episode climatology: %w", err)
+	}
+	drop := "month"
+	if o.By == ByMonth {
+		drop = "season"
+	}
+	var keep []string
+	for _, c := range t.Columns {
+		if c != drop {
+			keep = append(keep, c)
+		}
+	}
+	return selectColumns(t, keep), nil
+}
+
+// ensureEpisodes runs AttachEpisodes with defaults unless db already has a
+// days table.
+func ensureEpisodes(ctx context.Context, db *sql.DB) error {
+	var n int
+	if err := db.QueryRowContext(ctx, "SELECT count(*) FROM duckdb_tables() WHERE table_name = ?", schema.TableDays).Scan(&n); err != nil {
+		return err
+	}
+	if n > 0 {
+		return nil
+	}
+	_, err := AttachEpisodes(ctx, db, DefaultEpisodeOptions())
+	return err
+}

@@ -43,10 +43,14 @@ type GuidanceTables struct {
 	// <category>_frequency for each ventilation category
 	// (guidance_ventilation.sql).
 	Ventilation *Table
+	// Persistence: probability that the morning SBI is still present on
+	// the afternoon/evening sounding, by season and morning SBI class
+	// (guidance_persistence.sql, over the days table of AttachEpisodes).
+	Persistence *Table
 }
 
 // GuidanceViews names the tables of GuidanceTables for Table.
-var GuidanceViews = []string{"afternoon", "holzworth", "ventilation"}
+var GuidanceViews = []string{"afternoon", "holzworth", "ventilation", "persistence"}
 
 // Table returns the table of GuidanceViews called name.
 func (g *GuidanceTables) Table(name string) (*Table, error) {
@@ -57,6 +61,8 @@ func (g *GuidanceTables) Table(name string) (*Table, error) {
 		return g.Holzworth, nil
 	case "ventilation":
 		return g.Ventilation, nil
+	case "persistence":
+		return g.Persistence, nil
 	}
 	return nil, fmt.Errorf("unknown table %q", name)
 }
@@ -113,7 +119,8 @@ func yearBounds(first, last int) (int64, int64) {
 }
 
 // GuidanceOf computes the forecasters' tables of db (see Open; it needs
-// the soundings and afternoon_mixing views). The columns are documented
+// the soundings and afternoon_mixing views, and builds the days tables of
+// AttachEpisodes with defaults unless they exist). The columns are documented
 // in guidance_afternoon.sql, guidance_holzworth.sql and
 // guidance_ventilation.sql.
 func GuidanceOf(ctx context.Context, db *sql.DB, o GuidanceOptions) (*GuidanceTables, error) {
@@ -155,6 +162,13 @@ func GuidanceOf(ctx context.Context, db *sql.DB, o GuidanceOptions) (*GuidanceTa
 	}
 	vent, err := runStatement(ctx, db, "guidance_ventilation.sql", "guidance (ventilation)", st, first, last)
 	if err != nil {
+		return nil, err
+	}
+	if err := ensureEpisodes(ctx, db); err != nil {
+		return nil, fmt.Errorf("guidance (persistence): %w", err)
+	}
+	if g.Persistence, err = runStatement(ctx, db, "guidance_persistence.sql", "guidance (persistence)",
+		st, first, last, o.SBIClassesK, int64(o.MinDays)); err != nil {
 		return nil, err
 	}
 	keys := []string{"station_id", "month", "nominal_hour"}

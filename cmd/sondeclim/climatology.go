@@ -2,6 +2,7 @@ package main
 
 import (
 	"context"
+	"database/sql"
 	"fmt"
 	"io"
 	"os"
@@ -42,6 +43,11 @@ Views (--table):
   ventilation  transport wind, ventilation index, category frequencies
   all          text/markdown: the four views above in turn; csv/json: every
                column in one wide row per cell (csv/json default)
+  episodes     per station × episode rule × period (no time of day):
+               episodes and episodes per year, days inside episodes and
+               their share of the days, length median/p90/longest in days,
+               missing days inside, open-ended episodes (sondeclim schema:
+               the episodes and days tables)
 
 Heights are m above ground. Percentiles are Hyndman-Fan type 7 (linear
 interpolation between order statistics); a "surface" mixing height counts
@@ -64,7 +70,7 @@ behind p10/p90, or (by season) a month with fewer than 10 valid soundings.
 	years := fs.String("years", "", "`range` of years to include, e.g. 1991-2020 or 2016 (by season: the season's year, December counting with the following DJF)")
 	minN := fs.Int("min-soundings", 0, "valid soundings below which a cell is noted (`N`; default 45 by season, 15 by month)")
 	minTail := fs.Int("min-tail", queries.MinTailSoundings, "values below which p10/p90 are noted (`N`)")
-	view := fs.String("table", "", "`view`: summary, mixing, inversions, mixed, ventilation or all (default summary for text and markdown, all for csv and json)")
+	view := fs.String("table", "", "`view`: summary, mixing, inversions, mixed, ventilation, all or episodes (default summary for text and markdown, all for csv and json)")
 	format := fs.String("format", "text", "output `format`: text, csv, json or markdown")
 	out := fs.String("out", "", "write every view to files in `directory` instead of stdout")
 	if err := parseFlags(fs, args); err != nil {
@@ -93,7 +99,7 @@ behind p10/p90, or (by season) a month with fewer than 10 valid soundings.
 			*view = "all"
 		}
 	}
-	if !contains(queries.ClimatologyViews, *view) {
+	if !contains(queries.ClimatologyViews, *view) && *view != "episodes" {
 		return fmt.Errorf("climatology: unknown --table %q (%s): %w", *view, strings.Join(queries.ClimatologyViews, ", "), errUsage)
 	}
 	opts := queries.ClimatologyOptions{By: *by, Time: *tod, Stations: stations, FirstYear: first, LastYear: last,
@@ -106,6 +112,9 @@ behind p10/p90, or (by season) a month with fewer than 10 valid soundings.
 		return fmt.Errorf("climatology: %w", err)
 	}
 	defer db.Close()
+	if *view == "episodes" {
+		return c.episodes(ctx, db, opts, stations, *years, *format, write)
+	}
 	ct, err := queries.ClimatologyOf(ctx, db, opts)
 	if err != nil {
 		return fmt.Errorf("climatology: %w", err)
@@ -141,6 +150,45 @@ behind p10/p90, or (by season) a month with fewer than 10 valid soundings.
 	}
 	return nil
 }
+
+// episodes prints the climatology of episodes.
+func (c *climatologyCmd) episodes(ctx context.Context, db *sql.DB, opts queries.ClimatologyOptions, stations stationList,
+	years, format string, write func(io.Writer, *queries.Table) error) error {
+	if _, err := queries.AttachEpisodes(ctx, db, queries.DefaultEpisodeOptions()); err != nil {
+		return fmt.Errorf("climatology: %w", err)
+	}
+	t, err := queries.EpisodeClimatology(ctx, db, opts, nil)
+	if err != nil {
+		return fmt.Errorf("climatology: %w", err)
+	}
+	if len(t.Rows) == 0 {
+		return noMatch(ctx, db, "climatology", stations, years)
+	}
+	people := format == "text" || format == "markdown"
+	if people {
+		fmt.Fprintf(c.stdout, "Episodes by station, rule and %s\n\n", opts.By)
+	}
+	if err := write(c.stdout, t); err != nil {
+		return err
+	}
+	if people {
+		fmt.Fprintf(c.stdout, "\n%s\n%s\n", episodeFootnote, caution)
+	}
+	return nil
+}
+
+// episodeFootnote states the definitions under the episodes climatology.
+const episodeFootnote = `Episodes: runs of at least 2 consecutive local solar days meeting a rule; one
+missing day inside neither ends nor counts (days_missing), two end the episode.
+An episode counts in the period of its first day, each day inside in its own.
+share_of_days = days meeting the rule inside episodes / days with a sounding.
+Rules: persistent_inversion_whiteman2001 (morning surface inversion still on
+the afternoon/evening sounding), deep_stable_layer_wolyn_mckee1989 (>= 65 % of
+the lowest 1.5 km with lapse rate <= 2.5 K/km in the morning),
+heat_deficit_pool (morning and afternoon heat deficit >= 4.04 MJ m-2, a
+threshold from one basin: set your own), pollution_potential_holzworth1972
+(afternoon mixing height <= 1500 m and transport wind <= 4 m/s; Holzworth also
+required no precipitation, which soundings do not observe).`
 
 // climatologyTitle is the heading of a view for people.
 func climatologyTitle(view string, o queries.ClimatologyOptions) string {

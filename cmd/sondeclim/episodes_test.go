@@ -183,3 +183,25 @@ func firstDiff(a, b string) string {
 	}
 	return "lengths differ"
 }
+
+// TestClimatologyEpisodesGolden records the demo's episode climatology
+// (regression record: the values are checked by TestDemoEpisodes and the
+// analyze tests).
+func TestClimatologyEpisodesGolden(t *testing.T) {
+	dir := t.TempDir()
+	path, _, err := synth.WriteFile(dir, synth.Config{Seed: 1, StartYear: 2001, Years: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	store := t.TempDir()
+	mustIngest(t, "--store", store, path)
+	code, out, errs := runCmd(t, "climatology", "--store", store, "--table", "episodes")
+	if code != exitOK {
+		t.Fatalf("exit %d\n%s", code, errs)
+	}
+	golden(t, "climatology-episodes.txt", out)
+	code, out, errs = runCmd(t, "climatology", "--store", store, "--table", "episodes", "--by", "month", "--format", "csv")
+	if code != exitOK || !strings.HasPrefix(out, "station_id,criterion,month,n_years,n_days,n_episodes") {
+		t.Fatalf("by month: exit %d\n%s\n%s", code, out, errs)
+	}
+}

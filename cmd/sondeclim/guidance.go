@@ -35,6 +35,11 @@ counts beside every probability:
                maximum temperature (--tmax-step °C), per season.
   ventilation  ventilation category counts and frequencies by month and
                nominal hour (UTC).
+  persistence  probability that a morning surface-based inversion is still
+               present on the same local day's afternoon/evening sounding,
+               by season and morning strength class (--sbi-classes), with
+               the median afternoon mixing height of those days and how
+               many lay inside persistent-inversion episodes.
 Read a row such as "winter, >=5 K, afternoon_sounding, n 104,
 n_below_600m 58, p_below_600m 0.558" as: on winter mornings with a surface
 inversion of at least 5 K, the afternoon mixing height stayed below 600 m
@@ -53,7 +58,7 @@ Percentiles: Hyndman-Fan type 7; surface counts as 0 m.`,
 	below := fs.String("below", "600,1000,1500", "`heights` in m above ground whose probability of not being reached is shown")
 	step := fs.Float64("tmax-step", 5, "maximum-temperature bin width in `degC` for the Holzworth lookup")
 	minDays := fs.Int("min-days", queries.MinTailSoundings, "days (`N`) below which a row is noted")
-	view := fs.String("table", "all", "`table`: all, afternoon, holzworth or ventilation (csv and json: one table, default afternoon)")
+	view := fs.String("table", "all", "`table`: all, afternoon, holzworth, ventilation or persistence (csv and json: one table, default afternoon)")
 	format := fs.String("format", "text", "output `format`: text, csv, json or markdown")
 	out := fs.String("out", "", "write every table to files in `directory` instead of stdout")
 	if err := parseFlags(fs, args); err != nil {
@@ -118,6 +123,7 @@ Percentiles: Hyndman-Fan type 7; surface counts as 0 m.`,
 		"afternoon":   "Afternoon mixing height by season and morning surface-inversion strength (m above ground)",
 		"holzworth":   "Holzworth afternoon mixing height by the day's maximum temperature (m above ground)",
 		"ventilation": "Ventilation categories by month and nominal hour (UTC)",
+		"persistence": "Morning surface-based inversion still present on the afternoon/evening sounding, by season and morning strength",
 	}
 	for i, v := range views {
 		t, err := g.Table(v)
