@@ -53,6 +53,11 @@ type ClimatologyOptions struct {
 	// MinTail is the number of values below which p10/p90 are marked;
 	// 0 means MinTailSoundings.
 	MinTail int
+	// AllHours gives every nominal hour its own cell. Otherwise (by hour)
+	// a station's special hours, those holding less than 10 % of its
+	// soundings, join the nearest regular hour within 3 h or an "other"
+	// cell with a null nominal_hour (climatology_sample.sql).
+	AllHours bool
 }
 
 // normalized returns o with defaults filled in, or an error for values
@@ -88,7 +93,7 @@ func (o ClimatologyOptions) normalized() (ClimatologyOptions, error) {
 	return o, nil
 }
 
-// sampleArgs returns the bound parameters $1-$5 of climatology_sample.sql.
+// sampleArgs returns the bound parameters $1-$6 of climatology_sample.sql.
 func (o ClimatologyOptions) sampleArgs() []any {
 	first, last := o.FirstYear, o.LastYear
 	if first == 0 {
@@ -101,7 +106,11 @@ func (o ClimatologyOptions) sampleArgs() []any {
 	if st == nil {
 		st = []string{}
 	}
-	return []any{o.By, o.Time, st, int64(first), int64(last)}
+	hours := "pooled"
+	if o.AllHours {
+		hours = "all"
+	}
+	return []any{o.By, o.Time, st, int64(first), int64(last), hours}
 }
 
 // ClimatologyTables holds one climatology run: the statistics per cell,

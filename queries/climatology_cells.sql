@@ -36,7 +36,10 @@
 --   transport_wind_p25/p50/p75_ms  m/s; transport wind
 --   ventilation_index_pNN_m2s      m2/s; percentiles 10/25/50/75/90 of the ventilation index
 --   ventilation_table              category table(s) of the store, comma-separated
---   note                           empty, or why the cell is thin: "n_valid<$2",
+--   note                           empty, or the special hours the cell holds
+--                                  ("with 06 UTC"; "other hours: 06,18 UTC" for
+--                                  the cell of hours near no regular hour), and
+--                                  why the cell is thin: "n_valid<$2",
 --                                  "p10/p90 n<$3" (consensus heights), "month n<10"
 --                                  (season mode: a month of the season has fewer than
 --                                  10 valid soundings; METHODS §8)
@@ -74,7 +77,9 @@
         least(
             count(*) FILTER (WHERE x.valid AND x.calendar_month % 3 = 0),
             count(*) FILTER (WHERE x.valid AND x.calendar_month % 3 = 1),
-            count(*) FILTER (WHERE x.valid AND x.calendar_month % 3 = 2)) AS n_fewest_month
+            count(*) FILTER (WHERE x.valid AND x.calendar_month % 3 = 2)) AS n_fewest_month,
+        string_agg(DISTINCT lpad(x.hour_given::VARCHAR, 2, '0'), ',' ORDER BY lpad(x.hour_given::VARCHAR, 2, '0'))
+            FILTER (WHERE x.nominal_hour IS DISTINCT FROM x.hour_given AND x.sun_class IS NULL) AS hours_pooled
     FROM sample x
     GROUP BY ALL
 ),
@@ -102,12 +107,14 @@ c AS (
         ventilation_index_q[3] AS ventilation_index_p50_m2s,
         ventilation_index_q[4] AS ventilation_index_p75_m2s,
         ventilation_index_q[5] AS ventilation_index_p90_m2s,
-        ventilation_table, n_fewest_month
+        ventilation_table, n_fewest_month, hours_pooled
     FROM a
 )
 SELECT
-    * EXCLUDE (n_fewest_month),
+    * EXCLUDE (n_fewest_month, hours_pooled),
     concat_ws('; ',
+        CASE WHEN hours_pooled IS NOT NULL AND nominal_hour IS NULL THEN 'other hours: ' || hours_pooled || ' UTC' END,
+        CASE WHEN hours_pooled IS NOT NULL AND nominal_hour IS NOT NULL THEN 'with ' || hours_pooled || ' UTC' END,
         CASE WHEN n_valid < $2 THEN 'n_valid<' || $2 END,
         CASE WHEN n_consensus_ok + n_consensus_surface < $3 THEN 'p10/p90 n<' || $3 END,
         CASE WHEN $1 = 'season' AND n_fewest_month < 10 THEN 'month n<10' END) AS note

@@ -14,14 +14,35 @@
 --   $4  first year kept, $5 last year kept (inclusive): season_year when
 --       $1 = 'season' (December counts with the following year's DJF,
 --       METHODS §8), the calendar year of the nominal time when 'month'
+--   $6  'pooled' or 'all': with 'pooled', a sounding at one of the
+--       station's special hours (an hour holding less than 10 % of the
+--       station's soundings) joins the nearest regular hour within 3 h,
+--       or the "other" cell (nominal_hour null) when none is that near;
+--       with 'all' every nominal hour is its own cell (common practice,
+--       no source: the 10 % and 3 h are this program's choice)
 --
 -- Columns: the cell keys station_id, season (DJF/MAM/JJA/SON, null in month
 -- mode), season_name (winter/spring/summer/autumn by the station's mean
 -- latitude: latitude < 0 flips the label, the code stays; null when the
 -- station's latitude is unknown, since the hemisphere is then unknown), month (1-12,
--- null in season mode), nominal_hour (null in sun mode), sun_class (null in
--- hour mode); then per sounding: calendar_month, launch_time, valid
+-- null in season mode), nominal_hour (null in sun mode, and for the "other"
+-- cell), sun_class (null in hour mode); then per sounding: hour_given (the
+-- sounding's own nominal hour), calendar_month, launch_time, valid
 -- (analysis_status = 'ok') and the per-sounding values the statistics use.
+WITH hours AS (
+    SELECT station_id, nominal_hour AS hour,
+        count(*)::DOUBLE / sum(count(*)) OVER (PARTITION BY station_id) AS share
+    FROM soundings
+    GROUP BY station_id, nominal_hour
+),
+pool AS (
+    SELECT h.station_id, h.hour,
+        arg_min(r.hour, least(abs(r.hour - h.hour), 24 - abs(r.hour - h.hour)) * 100 + r.hour) AS pooled
+    FROM hours h
+    LEFT JOIN hours r ON r.station_id = h.station_id AND r.share >= 0.1
+        AND least(abs(r.hour - h.hour), 24 - abs(r.hour - h.hour)) <= 3
+    GROUP BY h.station_id, h.hour
+)
 SELECT
     s.station_id,
     CASE WHEN $1 = 'season' THEN s.season END AS season,
@@ -29,8 +50,9 @@ SELECT
         season_name(s.season, avg(nullif(s.latitude_deg, 'NaN'::DOUBLE)) OVER (PARTITION BY s.station_id))
     END AS season_name,
     CASE WHEN $1 = 'month' THEN s.month END AS month,
-    CASE WHEN $2 = 'hour' THEN s.nominal_hour END AS nominal_hour,
+    CASE WHEN $2 = 'hour' THEN (CASE WHEN $6 = 'all' THEN s.nominal_hour ELSE p.pooled END) END AS nominal_hour,
     CASE WHEN $2 = 'sun' THEN s.sun_class END AS sun_class,
+    s.nominal_hour AS hour_given,
     s.month AS calendar_month,
     s.launch_time,
     s.analysis_status = 'ok' AS valid,
@@ -52,5 +74,6 @@ SELECT
     s.ventilation_category,
     s.ventilation_table
 FROM soundings s
+LEFT JOIN pool p ON p.station_id = s.station_id AND p.hour = s.nominal_hour
 WHERE (len($3::VARCHAR[]) = 0 OR list_contains($3::VARCHAR[], s.station_id))
     AND (CASE WHEN $1 = 'season' THEN s.season_year ELSE s.year END) BETWEEN $4 AND $5

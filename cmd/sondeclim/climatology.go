@@ -73,6 +73,7 @@ behind p10/p90, or (by season) a month with fewer than 10 valid soundings.
 	view := fs.String("table", "", "`view`: summary, mixing, inversions, mixed, ventilation, all or episodes (default summary for text and markdown, all for csv and json)")
 	format := fs.String("format", "text", "output `format`: text, csv, json or markdown")
 	out := fs.String("out", "", "write every view to files in `directory` instead of stdout")
+	allHours := fs.Bool("all-hours", false, "give every nominal hour its own row (default: a station's special hours, with under 10 % of its soundings, join the nearest regular hour within 3 h or an \"other\" row)")
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
@@ -103,7 +104,7 @@ behind p10/p90, or (by season) a month with fewer than 10 valid soundings.
 		return fmt.Errorf("climatology: unknown --table %q (%s): %w", *view, strings.Join(queries.ClimatologyViews, ", "), errUsage)
 	}
 	opts := queries.ClimatologyOptions{By: *by, Time: *tod, Stations: stations, FirstYear: first, LastYear: last,
-		MinSoundings: *minN, MinTail: *minTail}
+		MinSoundings: *minN, MinTail: *minTail, AllHours: *allHours}
 	if (opts.By != queries.BySeason && opts.By != queries.ByMonth) || (opts.Time != queries.ByHour && opts.Time != queries.BySun) {
 		return fmt.Errorf("climatology: --by is season or month, --time hour or sun: %w", errUsage)
 	}
@@ -209,9 +210,15 @@ func climatologyTitle(view string, o queries.ClimatologyOptions) string {
 
 // climatologyFootnote states the statistics' definitions under a table.
 func climatologyFootnote(o queries.ClimatologyOptions) string {
-	return fmt.Sprintf("Percentiles: Hyndman-Fan type 7. Heights in m above ground; surface = 0 m, undefined counted apart.\n"+
-		"Frequencies are fractions of the valid soundings. Notes mark cells with fewer than %d valid soundings\n"+
-		"or fewer than %d values behind p10/p90 (minimum samples: METHODS §8 proposals).", o.MinSoundings, o.MinTail)
+	hours := "Special launch hours are pooled into the nearest regular hour (note \"with HH UTC\") or an \"other\" row\n" +
+		"(hour \"-\"); --all-hours keeps every hour apart.\n"
+	if o.AllHours || o.Time == queries.BySun {
+		hours = ""
+	}
+	return fmt.Sprintf("Percentiles: Hyndman-Fan type 7 (linear between order statistics). Heights in m above ground;\n"+
+		"surface = 0 m, undefined counted apart. Frequencies are fractions of the valid soundings.\n%s"+
+		"Notes mark cells with fewer than %d valid soundings or fewer than %d values behind p10/p90\n"+
+		"(--min-soundings, --min-tail; \"sondeclim climatology -h\").", hours, o.MinSoundings, o.MinTail)
 }
 
 // reportWriter returns the writer and file extension of an output format.

@@ -286,6 +286,60 @@ func TestSterlingMonthlyMedians(t *testing.T) {
 	}
 }
 
+// Special launch hours: the Sterling file holds 662 soundings, 321 at 00
+// UTC, 321 at 12 UTC and 20 at other hours (PROVENANCE.md). Pooled (the
+// default), the seasonal table has rows for 00 and 12 UTC and an "other"
+// row (null hour) per season, and the 20 special soundings are all in
+// pooled or "other" cells; with --all-hours each hour has its own row.
+func TestSterlingSpecialHours(t *testing.T) {
+	v := sharedDir(t)
+	store := t.TempDir()
+	code, _, errs := runCmd(t, "ingest", "--quiet", "--store", store, "--workers", "2",
+		filepath.Join(v, "archive-v2", "USM00072403-data-beg2016.txt.zip"))
+	if code != exitOK {
+		t.Fatalf("ingest: exit %d\n%s", code, errs)
+	}
+	ctx := context.Background()
+	db, err := queries.Open(ctx, store)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer db.Close()
+	count := func(all bool) (total, special int64, hours map[any]bool) {
+		ct, err := queries.ClimatologyOf(ctx, db, queries.ClimatologyOptions{AllHours: all})
+		if err != nil {
+			t.Fatal(err)
+		}
+		tab, _ := ct.Table("summary")
+		ih, in, inote := slices.Index(tab.Columns, "nominal_hour"), slices.Index(tab.Columns, "n_soundings"), slices.Index(tab.Columns, "note")
+		hours = map[any]bool{}
+		for _, r := range tab.Rows {
+			n := r[in].(int64)
+			total += n
+			hours[r[ih]] = true
+			h, _ := r[ih].(int64)
+			if r[ih] == nil || (h != 0 && h != 12) {
+				special += n
+			}
+			if note, _ := r[inote].(string); r[ih] == nil && !strings.Contains(note, "other hours: ") {
+				t.Errorf("other row without its note: %v", r)
+			}
+		}
+		return total, special, hours
+	}
+	total, special, hours := count(false)
+	if total != 662 || len(hours) != 3 || !hours[int64(0)] || !hours[int64(12)] || !hours[nil] {
+		t.Errorf("pooled: %d soundings (want 662) in hours %v (want 0, 12 and other)", total, hours)
+	}
+	if special > 20 {
+		t.Errorf("pooled: %d soundings in the other rows, but only 20 are special", special)
+	}
+	total, special, hours = count(true)
+	if total != 662 || special != 20 || len(hours) <= 3 || hours[nil] {
+		t.Errorf("--all-hours: %d soundings, %d at special hours (want 662, 20), hours %v", total, special, hours)
+	}
+}
+
 func TestClimatologyUsage(t *testing.T) {
 	for _, args := range [][]string{
 		{"climatology", "--store", "x", "--by", "week"},
