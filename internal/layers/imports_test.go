@@ -1,0 +1,98 @@
+// Package layers holds the test that keeps the tree's import direction
+// (DEVELOPERS.md): ingest → qc → analyze → schema → engine → queries → cmd,
+// each importing only packages at or below its own layer, with the shared
+// model and physics importable from anywhere.
+package layers
+
+import (
+	"go/parser"
+	"go/token"
+	"io/fs"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"testing"
+)
+
+const module = "github.com/sondeclim/sondeclim"
+
+// layerOf returns the layer of a package directory (relative to the module
+// root, slash-separated): 0 for the shared pieces beside the path.
+func layerOf(dir string) (int, bool) {
+	for _, l := range []struct {
+		prefix string
+		layer  int
+	}{
+		{"sounding", 0}, {"physics", 0},
+		{"ingest", 1}, {"qc", 2}, {"analyze", 3}, {"schema", 4},
+		{"engine", 5}, {"queries", 6}, {"cmd", 7},
+	} {
+		if dir == l.prefix || strings.HasPrefix(dir, l.prefix+"/") {
+			return l.layer, true
+		}
+	}
+	return 0, false
+}
+
+// TestImportDirection parses the imports of every production (non-test)
+// Go file and checks that no package imports one above it on the path,
+// that queries does not import engine, that nothing imports cmd, and that
+// the test-only internal/realdata is imported by tests only.
+func TestImportDirection(t *testing.T) {
+	root, err := filepath.Abs(filepath.Join("..", ".."))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := os.Stat(filepath.Join(root, "go.mod")); err != nil {
+		t.Fatalf("module root not found: %v", err)
+	}
+	fset := token.NewFileSet()
+	checked := 0
+	err = filepath.WalkDir(root, func(path string, d fs.DirEntry, err error) error {
+		if err != nil {
+			return err
+		}
+		if d.IsDir() && (strings.HasPrefix(d.Name(), ".") || d.Name() == "testdata") && path != root {
+			return fs.SkipDir
+		}
+		if d.IsDir() || !strings.HasSuffix(path, ".go") || strings.HasSuffix(path, "_test.go") {
+			return nil
+		}
+		rel, _ := filepath.Rel(root, filepath.Dir(path))
+		dir := filepath.ToSlash(rel)
+		from, known := layerOf(dir)
+		f, err := parser.ParseFile(fset, path, nil, parser.ImportsOnly)
+		if err != nil {
+			return err
+		}
+		checked++
+		for _, im := range f.Imports {
+			p, _ := strconv.Unquote(im.Path.Value)
+			target, ok := strings.CutPrefix(p, module+"/")
+			if !ok {
+				continue
+			}
+			name := filepath.Base(path)
+			switch to, tknown := layerOf(target); {
+			case strings.HasPrefix(target, "cmd"):
+				t.Errorf("%s/%s imports %s: nothing imports cmd", dir, name, target)
+			case target == "internal/realdata":
+				t.Errorf("%s/%s imports %s, which is for tests only", dir, name, target)
+			case strings.HasPrefix(dir, "queries") && strings.HasPrefix(target, "engine"):
+				t.Errorf("%s/%s imports %s: queries reads stores and must not depend on the engine", dir, name, target)
+			case known && tknown && to > from:
+				t.Errorf("%s/%s (layer %d) imports %s (layer %d), above it", dir, name, from, target, to)
+			case known && tknown && from == 0 && to == 0 && strings.HasPrefix(dir, "physics") && strings.HasPrefix(target, "sounding"):
+				t.Errorf("%s/%s imports %s: the physics packages are leaves", dir, name, target)
+			}
+		}
+		return nil
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if checked < 50 {
+		t.Fatalf("only %d files checked: the walk missed the tree", checked)
+	}
+}
