@@ -53,9 +53,12 @@
 // # Soundings
 //
 // Reader turns every subset into one sounding (the radiosonde sequences
-// 3 09 052 TEMP, 3 09 056 descent, 3 09 057 high resolution, the older
-// 3 09 007 with its quality information, and other layouts with the same
-// elements):
+// 3 09 052 TEMP, 3 09 057 high resolution, the older 3 09 007 with its
+// quality information, and other layouts with the same elements). A
+// descent profile (3 09 056) is decoded but gives no sounding: it carries
+// the ascent's station and launch time, the sounding's identity, so it
+// would replace the ascent in the store; Reader.Note (or, without it, an
+// ErrUnsupported ParseError) says so. The mapping:
 //
 //   - StationID: WMO block and station number (0 01 001, 0 01 002) as
 //     five digits, else the ship or mobile station's call sign (0 01 011).

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 	"time"
 
 	"github.com/sondeclim/sondeclim/ingest"
@@ -25,7 +26,17 @@ type Reader struct {
 	errs         []error
 	dec          Decoder
 	messages     int // messages found, good or bad
+
+	// Note, when set, receives remarks about messages that were read but
+	// give no sounding on purpose (a descent profile); without it they are
+	// returned as *ingest.ParseError wrapping ingest.ErrUnsupported.
+	Note func(offset int64, reason, detail string)
 }
+
+// ErrDescent marks a descent profile (3 09 056), which is read but not
+// turned into a sounding: it carries the ascent's station and launch
+// time, so as a sounding it would replace the ascent in the store.
+var ErrDescent = errors.New("descent profile (3 09 056) not stored: it has the ascent's station and launch time")
 
 // NewReader returns a reader of r; file (and member, for a zip member)
 // name the input in messages and in sounding.Source.
@@ -76,6 +87,13 @@ func (r *Reader) Next() (*sounding.Sounding, error) {
 		subs, err := r.dec.Decode(m)
 		if err != nil {
 			return nil, r.errAt(off, err)
+		}
+		if slices.Contains(m.Descriptors, FXY(3, 9, 56)) {
+			if r.Note != nil {
+				r.Note(off, "bufr_descent_not_stored", ErrDescent.Error())
+				continue
+			}
+			return nil, r.errAt(off, fmt.Errorf("%w: %w", ingest.ErrUnsupported, ErrDescent))
 		}
 		for k := range subs {
 			s, err := toSounding(m, &subs[k])
