@@ -47,7 +47,7 @@ func (r *run) ingest(files []string, old *store.Manifest, full bool, paramsText 
 	}
 	r.log.Info("inputs", "files", len(files), "unchanged", r.sum.InputsUnchanged, "to_read", len(toRead))
 
-	st := &staged{byPart: map[string][]segment{}}
+	st := &staged{byPart: map[string][]segment{}, dropped: map[int]bool{}}
 	results, err := r.stageInputs(toRead, st, nil)
 	if err != nil {
 		return nil, err
@@ -59,6 +59,9 @@ func (r *run) ingest(files []string, old *store.Manifest, full bool, paramsText 
 		named[f] = true
 	}
 	for _, res := range results {
+		if res.deferred {
+			continue // the next run reads it
+		}
 		read[res.path] = true
 		info := res.info
 		prev := old.Inputs[res.path]
@@ -167,8 +170,57 @@ func (r *run) ingest(files []string, old *store.Manifest, full bool, paramsText 
 		if len(need) > 0 {
 			again := slices.Sorted(maps.Keys(need))
 			r.log.Info("re-reading unchanged inputs that share a rebuilt partition", "files", len(again))
-			if _, err := r.stageInputs(again, st, affected); err != nil {
+			againRes, err := r.stageInputs(again, st, affected)
+			if err != nil {
 				return nil, err
+			}
+			// An input the run's budget left unread cannot be part of a
+			// rebuild: its partitions are held as committed.
+			for _, res := range againRes {
+				if !res.deferred {
+					continue
+				}
+				for _, k := range slices.Sorted(maps.Keys(affected)) {
+					if p := next.Partitions[k]; p != nil && slices.Contains(p.Inputs, res.path) {
+						delete(affected, k)
+						r.hold(k, []string{res.path + " (not read: run budget used up)"}, results, next)
+					}
+				}
+			}
+		}
+	}
+	// A station-year is built in memory: its staged bytes are read whole
+	// and decoded. One larger than the bound is refused (held as
+	// committed, its soundings reported), so that no input can make a run
+	// exceed the memory the README promises.
+	limit := r.opt.MaxPartitionBytes
+	if limit <= 0 {
+		limit = DefaultMaxPartitionBytes
+	}
+	for _, k := range slices.Sorted(maps.Keys(affected)) {
+		var size int64
+		for _, sg := range st.byPart[k] {
+			if !st.dropped[sg.file] {
+				size += sg.size
+			}
+		}
+		if size <= limit {
+			continue
+		}
+		delete(affected, k)
+		where := k
+		if segs := st.byPart[k]; len(segs) > 0 {
+			where = st.inputs[segs[0].file]
+		}
+		r.skip(Skip{Where: where, Reason: "partition_too_large", Detail: fmt.Sprintf("station-year %s: %d bytes of staged soundings, over the "+
+			"bound of %d (--max-partition-bytes); it is built in memory, so it is left as committed and these soundings are not stored. "+
+			"A station-year of real soundings is far smaller; split the input or raise the bound if the machine has the memory", k, size, limit)})
+		for _, res := range results {
+			if res.parts[k] > 0 {
+				if in := next.Inputs[res.path]; in != nil && !slices.Contains(in.Pending, k) {
+					in.Pending = append(in.Pending, k)
+					slices.Sort(in.Pending)
+				}
 			}
 		}
 	}
@@ -390,6 +442,9 @@ func (r *run) buildPartition(key string, st *staged, prev *store.Partition) (_ *
 	contributors := map[string]bool{}
 	var buf []byte
 	for _, sg := range st.byPart[key] {
+		if st.dropped[sg.file] {
+			continue
+		}
 		if buf, err = readSegment(st, sg, buf); err != nil {
 			return nil, stats, nil, err
 		}
@@ -685,10 +740,10 @@ func (r *run) hold(k string, gone []string, results []readResult, next *store.Ma
 	}
 	if held == 0 {
 		r.note(Skip{Where: gone[0], Reason: "partition_held", Detail: fmt.Sprintf("partition %s is left as committed: rebuilding it needs %s, "+
-			"which is gone (restore it, or run with --prune-missing)", k, strings.Join(gone, ", "))})
+			"which cannot be read now (restore it, or run with --prune-missing)", k, strings.Join(gone, ", "))})
 		return
 	}
 	r.skip(Skip{Where: from[0], Reason: "partition_held", Detail: fmt.Sprintf("partition %s is left as committed and %d sounding(s) read for it "+
-		"from %s are held back: rebuilding it needs %s, which is gone. Restore it, or run with --prune-missing; the next run reads them again",
+		"from %s are held back: rebuilding it needs %s, which cannot be read now. Restore it (or run with --prune-missing if it is gone); the next run reads them again",
 		k, held, strings.Join(from, ", "), strings.Join(gone, ", "))})
 }

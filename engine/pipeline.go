@@ -61,6 +61,18 @@ type Options struct {
 	// SizeLimit bounds the decompressed size of one input or member, bytes;
 	// 0 means the input package's default.
 	SizeLimit int64
+	// InputBudget bounds the decompressed bytes of one compressed input,
+	// all its members together; 0 means DefaultInputBudget.
+	InputBudget int64
+	// MaxPartitionBytes bounds the staged bytes of one station-year (text
+	// of an input read in place, or encoded soundings), which are built in
+	// memory; a larger one is refused and reported. 0 means
+	// DefaultMaxPartitionBytes.
+	MaxPartitionBytes int64
+	// RunBudget bounds the decompressed bytes of all compressed inputs of
+	// the run; inputs left when it is used up are reported and read by
+	// the next run. 0 means DefaultRunBudget.
+	RunBudget int64
 	// Stations supplies station metadata (name, position, elevation) by
 	// station id, for formats that do not carry it. May be nil.
 	Stations map[string]ingest.Station
@@ -186,7 +198,8 @@ type run struct {
 	sum     *Summary
 	staging string
 
-	damaged map[string]bool // partitions whose committed files are damaged: rebuilt, never kept
+	runBudget *input.Budget
+	damaged   map[string]bool // partitions whose committed files are damaged: rebuilt, never kept
 
 	mu        sync.Mutex // guards sum.Skipped, sum.Notes, sum.Members, sum.SoundingsRead, filesRead
 	filesRead int        // input files staged so far, for progress
@@ -221,6 +234,10 @@ func (r *run) note(s Skip) {
 func newRun(ctx context.Context, storeDir string, files []string, opt Options) *run {
 	r := &run{ctx: ctx, dir: storeDir, opt: opt, workers: opt.Workers,
 		sum: &Summary{Inputs: files, NotAnalysable: map[string]int{}, Rows: map[string]int{}, StageSeconds: map[string]float64{}}}
+	r.runBudget = &input.Budget{Limit: opt.RunBudget, What: "per run (--max-run-bytes)"}
+	if r.runBudget.Limit <= 0 {
+		r.runBudget.Limit = DefaultRunBudget
+	}
 	if r.workers <= 0 {
 		r.workers = runtime.NumCPU()
 	}

@@ -50,6 +50,7 @@ type staged struct {
 	inPlace []bool        // the input is read in place (plain archive-v2 file)
 	stamp   []store.Input // in place: size and time of the input when indexed
 	byPart  map[string][]segment
+	dropped map[int]bool // files whose staged soundings do not count (an input deferred by the run budget)
 }
 
 func (st *staged) add(key string, seg segment) {
@@ -63,6 +64,9 @@ type readResult struct {
 	path  string
 	info  store.Input
 	parts map[string]int // station-year → soundings
+	// deferred: not read because the run's decompressed-size budget was
+	// used up; not recorded, so the next run reads it.
+	deferred bool
 }
 
 // stageInputs reads files on a bounded pool and stages their soundings.
@@ -121,7 +125,8 @@ func (r *run) stageFile(ctx context.Context, path string, fi int, spill string, 
 	defer out.Close()
 	w := &spillWriter{w: bufio.NewWriterSize(out, 1<<20), fi: fi, st: st}
 	sum := sha256.New()
-	err = input.Each(path, r.opt.SizeLimit, func(member string, rd io.Reader) error {
+	budget := r.inputBudget()
+	err = input.EachWithin(path, r.opt.SizeLimit, []*input.Budget{budget, r.runBudget}, func(member string, rd io.Reader) error {
 		r.mu.Lock()
 		r.sum.Members++
 		r.mu.Unlock()
@@ -186,6 +191,16 @@ func (r *run) stageFile(ctx context.Context, path string, fi int, spill string, 
 		res.parts = addCounts(res.parts, memberParts)
 		return err
 	})
+	var be *input.BudgetError
+	if errors.As(err, &be) && be.Budget == r.runBudget {
+		st.mu.Lock()
+		st.dropped[fi] = true
+		st.mu.Unlock()
+		res.deferred = true
+		r.skip(Skip{Where: path, Reason: "run_budget", Detail: fmt.Sprintf("%s: not ingested: this run has decompressed %d bytes, its budget "+
+			"(--max-run-bytes); the next run reads it", path, r.runBudget.Limit)})
+		return res, nil
+	}
 	if err != nil {
 		if ctx.Err() != nil {
 			return res, ctx.Err()
@@ -246,6 +261,7 @@ func (r *run) indexInPlace(ctx context.Context, path string, fi int, st *staged,
 	}
 
 	ix := &indexer{r: r, ctx: ctx, fi: fi, keep: keep, parts: map[string]int{}}
+	charged := r.runBudget.Used()
 	sum := sha256.New() // the same digest as the ordinary path: per member, its name, NUL, content
 	readFrom := path
 	copyPath := filepath.Join(r.staging, strconv.Itoa(fi)+".txt")
@@ -265,7 +281,7 @@ func (r *run) indexInPlace(ctx context.Context, path string, fi int, st *staged,
 			}
 			defer out.Close()
 			cw := &countingWriter{w: bufio.NewWriterSize(out, 1<<20)}
-			err = input.Each(path, r.opt.SizeLimit, func(member string, rd io.Reader) error {
+			err = input.EachWithin(path, r.opt.SizeLimit, []*input.Budget{r.inputBudget(), r.runBudget}, func(member string, rd io.Reader) error {
 				members++
 				io.WriteString(sum, member+"\x00")
 				br := bufio.NewReaderSize(io.TeeReader(rd, sum), 1<<16)
@@ -294,7 +310,12 @@ func (r *run) indexInPlace(ctx context.Context, path string, fi int, st *staged,
 	}
 	if err != nil {
 		// Not for this path (errNotInPlace, ErrNoHeaders) or a problem
-		// the ordinary path reports with its usual reason.
+		// the ordinary path reports with its usual reason. It reads the
+		// bytes again, so what they cost the run's budget is given back
+		// (concurrent charges by other inputs are counted with them).
+		if compressed {
+			r.runBudget.Refund(r.runBudget.Used() - charged)
+		}
 		if err := os.Remove(copyPath); err != nil && !errors.Is(err, fs.ErrNotExist) {
 			r.log.Warn("staging copy could not be removed", "file", copyPath, "error", err.Error())
 		}
@@ -711,4 +732,27 @@ func addCounts(a, b map[string]int) map[string]int {
 		}
 	}
 	return out
+}
+
+// Default decompressed-size budgets (bytes): 8 GiB per input (a zip of
+// many members counts them together), 256 GiB per run (the staging area
+// holds decompressed copies, so this bounds its disk use). A nightly run
+// over an archive larger than the run's budget ingests the rest on the
+// following runs.
+const (
+	DefaultInputBudget int64 = 8 << 30
+	DefaultRunBudget   int64 = 256 << 30
+	// DefaultMaxPartitionBytes is 128 MiB: about 2 000 high-resolution
+	// soundings of 5 000 levels; a year of real twice-daily soundings of
+	// one station takes a few MB. Building one costs several times its
+	// staged size in memory.
+	DefaultMaxPartitionBytes int64 = 128 << 20
+)
+
+func (r *run) inputBudget() *input.Budget {
+	n := r.opt.InputBudget
+	if n <= 0 {
+		n = DefaultInputBudget
+	}
+	return &input.Budget{Limit: n, What: "per input (--max-input-bytes)"}
 }

@@ -685,3 +685,91 @@ func TestCorruptContainers(t *testing.T) {
 		}
 	}
 }
+
+// TestDecompressionBudgets: the per-input budget counts all members of a
+// zip together (the second member of two is refused, the first stored);
+// the per-run budget defers the inputs left when it is used up to the next
+// run, which reads them (with one worker, so that which input is deferred
+// is fixed); a station-year over the partition bound is refused with a
+// reason, the other station stored; a TEMP input over the reader's bound
+// is refused, not decoded into gigabytes of groups. Each is a reported
+// skip (exit 3).
+func TestDecompressionBudgets(t *testing.T) {
+	root := t.TempDir()
+	src := twoStations(t, filepath.Join(root, "src"))
+	a, _ := os.ReadFile(filepath.Join(src, synth.StationAt(0).ID+"-data.txt"))
+	b, _ := os.ReadFile(filepath.Join(src, synth.StationAt(1).ID+"-data.txt"))
+	sum := filepath.Join(root, "sum.json")
+	ingest := func(wantCode int, args ...string) engine.Summary {
+		t.Helper()
+		code, _, errs := runCmd(t, append([]string{"ingest", "--quiet", "--workers", "1", "--summary-json", sum}, args...)...)
+		if code != wantCode {
+			t.Fatalf("ingest %v: exit %d, want %d\n%s", args, code, wantCode, errs)
+		}
+		return readSummary(t, sum)
+	}
+	reasons := func(s engine.Summary) map[string]int { return s.SkippedByReason() }
+
+	// Per input: two members of about 3 MB each under a 4 MB budget.
+	zdir := filepath.Join(root, "zip")
+	os.MkdirAll(zdir, 0o755)
+	var zb bytes.Buffer
+	zw := zip.NewWriter(&zb)
+	for i, m := range [][]byte{a, b} {
+		f, _ := zw.Create(fmt.Sprintf("m%d.txt", i+1))
+		f.Write(m)
+	}
+	zw.Close()
+	writeFile(t, filepath.Join(zdir, "two.zip"), zb.String())
+	s := ingest(exitSkipped, "--store", filepath.Join(root, "s1"), "--max-input-bytes", fmt.Sprint(len(a)+len(b)/2), zdir)
+	if s.Soundings != 730 || reasons(s)["too_large"] != 1 || !strings.Contains(s.Skipped[0].Detail, "per input") {
+		t.Errorf("per-input budget: %d soundings, skips %+v; want 730 (member 1) and one too_large naming the budget", s.Soundings, s.Skipped)
+	}
+
+	// Per run: three gzip inputs, a budget for two and a half.
+	gdir := filepath.Join(root, "gz")
+	os.MkdirAll(gdir, 0o755)
+	for i, text := range []string{string(a), string(b), strings.ReplaceAll(string(a), "#"+synth.StationAt(0).ID, "#ZZXCOPY0003")} {
+		var gb bytes.Buffer
+		gw := gzip.NewWriter(&gb)
+		gw.Write([]byte(text))
+		gw.Close()
+		writeFile(t, filepath.Join(gdir, fmt.Sprintf("f%d.txt.gz", i+1)), gb.String())
+	}
+	st := filepath.Join(root, "s2")
+	budget := fmt.Sprint(len(a) * 5 / 2)
+	s = ingest(exitSkipped, "--store", st, "--max-run-bytes", budget, gdir)
+	if s.Soundings != 1460 || reasons(s)["run_budget"] != 1 || !strings.HasSuffix(s.Skipped[0].Where, "f3.txt.gz") {
+		t.Errorf("run budget: %d soundings, skips %+v; want 1460 and f3.txt.gz deferred", s.Soundings, s.Skipped)
+	}
+	s = ingest(exitOK, "--store", st, "--max-run-bytes", budget, gdir)
+	if s.Soundings != 2190 || s.InputsUnchanged != 2 {
+		t.Errorf("the next run: %d soundings, %d inputs unchanged; want 2190 and 2 (it reads the deferred one)", s.Soundings, s.InputsUnchanged)
+	}
+
+	// A station-year over the partition bound.
+	s = ingest(exitSkipped, "--store", filepath.Join(root, "s3"), "--max-partition-bytes", fmt.Sprint(len(a)/2),
+		filepath.Join(src, synth.StationAt(0).ID+"-data.txt"), filepath.Join(gdir, "f2.txt.gz"))
+	if reasons(s)["partition_too_large"] != 2 {
+		t.Errorf("partition bound: skips %+v; want both station-years refused", s.Skipped)
+	}
+	s = ingest(exitOK, "--store", filepath.Join(root, "s4"), "--max-partition-bytes", fmt.Sprint(len(a)*2), src)
+	if s.Soundings != 1460 {
+		t.Errorf("under the partition bound: %d soundings, want 1460", s.Soundings)
+	}
+
+	// A TEMP input of 17 MB of groups in one report, 40 KB of gzip.
+	tdir := filepath.Join(root, "temp")
+	os.MkdirAll(tdir, 0o755)
+	var tb bytes.Buffer
+	tw := gzip.NewWriter(&tb)
+	tw.Write([]byte("TTAA 51121 72520 99001 "))
+	tw.Write(bytes.Repeat([]byte("00000 "), 3<<20))
+	tw.Write([]byte("=\n"))
+	tw.Close()
+	writeFile(t, filepath.Join(tdir, "temp-2024-01-01.txt.gz"), tb.String())
+	s = ingest(exitSkipped, "--store", filepath.Join(root, "s5"), "--format", "wmo-temp", tdir)
+	if reasons(s)["too_large"] != 1 || s.Soundings != 0 {
+		t.Errorf("TEMP bomb: %d soundings, skips %+v; want one too_large", s.Soundings, s.Skipped)
+	}
+}

@@ -78,6 +78,9 @@ error; 3 done, but some input was skipped (data lost).`,
 	noBuiltin := fs.Bool("no-builtin-stations", false, "do not complete station metadata from the built-in list (the archive's public station list, 2,879 stations)")
 	quiet := fs.Bool("quiet", false, "print only warnings and the summary's last line (for schedulers)")
 	full := fs.Bool("full", false, "ignore what was ingested before and rebuild every partition from the inputs given")
+	maxInput := fs.Int64("max-input-bytes", engine.DefaultInputBudget, "decompressed-size budget of one compressed input, all its members together, `bytes` (over it: skipped)")
+	maxRun := fs.Int64("max-run-bytes", engine.DefaultRunBudget, "decompressed-size budget of all compressed inputs of the run, `bytes` (inputs left over are reported and read by the next run)")
+	maxPart := fs.Int64("max-partition-bytes", engine.DefaultMaxPartitionBytes, "largest station-year to build, staged `bytes` (it is built in memory; larger ones are reported and left as committed)")
 	prune := fs.Bool("prune-missing", false, "remove the soundings of inputs ingested before that are gone now (without it they stay, with a note)")
 	verify := fs.Bool("verify", false, "check the SHA-256 of every store file the run would leave alone (always: presence and size) and rebuild damaged partitions")
 	wait := fs.Bool("wait", false, "wait for another ingest into the same store to finish instead of failing")
@@ -111,7 +114,7 @@ error; 3 done, but some input was skipped (data lost).`,
 	if err != nil {
 		return fmt.Errorf("ingest: %v: %w", err, errUsage)
 	}
-	opt := engine.Options{Workers: *workers, Format: *format, Log: log, Shard: sh, Full: *full, Verify: *verify, PruneMissing: *prune, Wait: *wait, UseSuspect: *useSuspect}
+	opt := engine.Options{Workers: *workers, Format: *format, Log: log, Shard: sh, Full: *full, Verify: *verify, PruneMissing: *prune, InputBudget: *maxInput, RunBudget: *maxRun, MaxPartitionBytes: *maxPart, Wait: *wait, UseSuspect: *useSuspect}
 	if *dailyMax != "" {
 		f, err := os.Open(*dailyMax)
 		if err != nil {

@@ -16,6 +16,7 @@ import (
 	"path/filepath"
 	"slices"
 	"strings"
+	"sync/atomic"
 	"syscall"
 
 	"github.com/klauspost/compress/flate"
@@ -161,6 +162,41 @@ func addPath(p string, seen map[string]bool) error {
 // passed the read error on. An error returned by fn stops Each and is
 // returned as it is. Other errors are wrapped with the path.
 func Each(path string, limit int64, fn func(member string, r io.Reader) error) error {
+	return EachWithin(path, limit, nil, fn)
+}
+
+// Budget bounds the decompressed bytes of many streams together: the
+// members of one input, or every compressed input of a run. It is safe
+// for concurrent use.
+type Budget struct {
+	Limit int64  // bytes
+	What  string // for messages: "per input", "per run"
+	used  atomic.Int64
+}
+
+// Used returns the bytes charged so far.
+func (b *Budget) Used() int64 { return b.used.Load() }
+
+// Refund gives back n bytes charged for data that is read again.
+func (b *Budget) Refund(n int64) { b.used.Add(-n) }
+
+// BudgetError is the error of a stream stopped by an exhausted Budget; it
+// wraps ingest.ErrTooLarge.
+type BudgetError struct {
+	Budget *Budget
+	Where  string // file[!member]
+}
+
+func (e *BudgetError) Error() string {
+	return fmt.Sprintf("%s: %v: the decompressed-size budget %s (%d bytes) is used up", e.Where, ingest.ErrTooLarge, e.Budget.What, e.Budget.Limit)
+}
+func (e *BudgetError) Unwrap() error { return ingest.ErrTooLarge }
+
+// EachWithin is Each with budgets: every decompressed byte of a gzip or
+// zip file is charged to each of them (plain files are not charged), and a
+// stream that would exceed one fails with a *BudgetError, as the
+// per-member limit does.
+func EachWithin(path string, limit int64, budgets []*Budget, fn func(member string, r io.Reader) error) error {
 	if limit <= 0 {
 		limit = DefaultLimit
 	}
@@ -181,11 +217,11 @@ func Each(path string, limit int64, fn func(member string, r io.Reader) error) e
 			return fmt.Errorf("read %s: %w", path, err)
 		}
 		defer zr.Close()
-		return call(path, "", zr, limit, fn)
+		return call(path, "", zr, limit, budgets, fn)
 	case Zip:
-		return eachZip(f, path, limit, fn)
+		return eachZip(f, path, limit, budgets, fn)
 	}
-	return call(path, "", br, limit, fn)
+	return call(path, "", br, limit, nil, fn)
 }
 
 // Kind is how a file holds its content.
@@ -210,7 +246,7 @@ func KindOf(magic []byte) Kind {
 	return Plain
 }
 
-func eachZip(f *os.File, path string, limit int64, fn func(string, io.Reader) error) error {
+func eachZip(f *os.File, path string, limit int64, budgets []*Budget, fn func(string, io.Reader) error) error {
 	info, err := f.Stat()
 	if err != nil {
 		return fmt.Errorf("read %s: %w", path, err)
@@ -231,7 +267,7 @@ func eachZip(f *os.File, path string, limit int64, fn func(string, io.Reader) er
 		if err != nil {
 			return fmt.Errorf("read %s!%s: %w", path, zf.Name, err)
 		}
-		err = call(path, zf.Name, rc, limit, fn)
+		err = call(path, zf.Name, rc, limit, budgets, fn)
 		rc.Close()
 		if err != nil {
 			return err
@@ -256,8 +292,11 @@ func tooLarge(path, member string, limit int64) error {
 
 // call runs fn on r capped at limit bytes, and reports a tripped cap even
 // when fn swallowed it.
-func call(path, member string, r io.Reader, limit int64, fn func(string, io.Reader) error) error {
-	c := &capReader{r: r, left: limit, tooLarge: tooLarge(path, member, limit)}
+func call(path, member string, r io.Reader, limit int64, budgets []*Budget, fn func(string, io.Reader) error) error {
+	c := &capReader{r: r, left: limit, tooLarge: tooLarge(path, member, limit), budgets: budgets, where: path}
+	if member != "" {
+		c.where += "!" + member
+	}
 	err := fn(member, c)
 	if c.tripped {
 		return c.tooLarge
@@ -272,6 +311,8 @@ type capReader struct {
 	left     int64
 	tooLarge error
 	tripped  bool
+	budgets  []*Budget
+	where    string
 }
 
 func (c *capReader) Read(p []byte) (int, error) {
@@ -299,5 +340,12 @@ func (c *capReader) Read(p []byte) (int, error) {
 	}
 	n, err := c.r.Read(p)
 	c.left -= int64(n)
+	for _, b := range c.budgets {
+		if b.used.Add(int64(n)) > b.Limit {
+			c.tripped = true
+			c.tooLarge = &BudgetError{Budget: b, Where: c.where}
+			return 0, c.tooLarge
+		}
+	}
 	return n, err
 }

@@ -72,6 +72,14 @@ type item struct {
 	err  error
 }
 
+// MaxInputBytes is the longest TEMP input (file or member) the reader
+// accepts, bytes. It decodes an input whole, holding every group of every
+// report, which takes many times the input's size; the bound keeps that
+// under a few hundred MB for any content. Bulletin files of TEMP reports
+// are far smaller (a day of a national collection is in the order of a
+// megabyte; from memory, no source).
+const MaxInputBytes = 16 << 20
+
 // NewReader returns a Reader of r; file names the input in messages and may
 // carry the date (YYYY-MM-DD) of the reports.
 func NewReader(r io.Reader, file string, opts Options) *Reader {
@@ -85,9 +93,14 @@ func NewReader(r io.Reader, file string, opts Options) *Reader {
 func (rd *Reader) Next() (*sounding.Sounding, error) {
 	if !rd.done {
 		rd.done = true
-		data, err := io.ReadAll(rd.r)
+		data, err := io.ReadAll(io.LimitReader(rd.r, MaxInputBytes+1))
 		if err != nil {
 			return nil, fmt.Errorf("read %s: %w", rd.file, err)
+		}
+		if len(data) > MaxInputBytes {
+			return nil, &ingest.ParseError{File: rd.file, Offset: -1, Err: fmt.Errorf("%w: TEMP input over %d bytes; "+
+				"the reader holds a whole input and its groups in memory, so longer inputs are refused: split it into smaller files",
+				ingest.ErrTooLarge, MaxInputBytes)}
 		}
 		rd.items = rd.decode(data)
 	}
