@@ -277,9 +277,9 @@ func EpisodeClimatology(ctx context.Context, db *sql.DB, o ClimatologyOptions, c
 	return selectColumns(t, keep), nil
 }
 
-// ensureEpisodes runs AttachEpisodes with defaults unless db already has a
-// days table.
-func ensureEpisodes(ctx context.Context, db *sql.DB) error {
+// EnsureEpisodes runs AttachEpisodes with defaults unless db already has
+// a days table.
+func EnsureEpisodes(ctx context.Context, db *sql.DB) error {
 	var n int
 	if err := db.QueryRowContext(ctx, "SELECT count(*) FROM duckdb_tables() WHERE table_name = ?", schema.TableDays).Scan(&n); err != nil {
 		return err

@@ -164,7 +164,7 @@ func GuidanceOf(ctx context.Context, db *sql.DB, o GuidanceOptions) (*GuidanceTa
 	if err != nil {
 		return nil, err
 	}
-	if err := ensureEpisodes(ctx, db); err != nil {
+	if err := EnsureEpisodes(ctx, db); err != nil {
 		return nil, fmt.Errorf("guidance (persistence): %w", err)
 	}
 	if g.Persistence, err = runStatement(ctx, db, "guidance_persistence.sql", "guidance (persistence)",

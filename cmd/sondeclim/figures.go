@@ -21,7 +21,7 @@ type figuresCmd struct {
 
 func (c *figuresCmd) Run(ctx context.Context, args []string) error {
 	fs := newFlags("figures", "--store DIR --out DIR [--station ID] [--method NAME] [--format png|svg|both]", `
-Draw, for every station of a store (or one with --station), three figures:
+Draw, for every station of a store (or one with --station), four figures:
   ID-mixing-height-monthly-METHOD  mixing height by month and launch hour:
                                    box 25th-75th, whiskers 10th-90th
                                    percentile, line at the median
@@ -29,6 +29,10 @@ Draw, for every station of a store (or one with --station), three figures:
                                    inversion by month and launch hour
   ID-sbi-strength-seasonal         histograms of surface-based inversion
                                    strength (K), one per season
+  ID-episode-calendar              days inside episodes (persistent
+                                   inversion, deep stable layer, heat
+                                   deficit, Holzworth pollution potential),
+                                   one band per year
 Only valid soundings count; a month and hour with fewer than 15 values is
 not drawn. --method picks the mixing height: consensus (the median of the
 methods whose status is ok, the default) or one method of the
@@ -79,6 +83,11 @@ The file names are printed, one per line.`,
 		if err != nil {
 			return fmt.Errorf("figures: %w", err)
 		}
+		cal, err := figures.LoadEpisodeCalendar(ctx, db, st)
+		if err != nil {
+			return fmt.Errorf("figures: %w", err)
+		}
+		figs = append(figs, figures.EpisodeCalendarFigure(cal))
 		for _, f := range figs {
 			for _, ext := range formats {
 				path := filepath.Join(*out, f.Name+"."+ext)

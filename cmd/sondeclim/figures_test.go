@@ -68,14 +68,15 @@ func TestFiguresReal(t *testing.T) {
 		t.Fatalf("figures: exit %d\n%s", code, errs)
 	}
 	files := strings.Fields(list)
-	// 5 stations × 3 figures × 2 formats.
-	if len(files) != 30 {
-		t.Errorf("%d files listed, want 30:\n%s", len(files), list)
+	// 5 stations × 4 figures × 2 formats.
+	if len(files) != 40 {
+		t.Errorf("%d files listed, want 40:\n%s", len(files), list)
 	}
 	for _, f := range files {
 		checkImageFile(t, f)
 	}
-	for _, want := range []string{"USM00072403-mixing-height-monthly-consensus.png", "USM00072403-sbi-frequency-monthly.svg", "AUM00011035-sbi-strength-seasonal.png"} {
+	for _, want := range []string{"USM00072403-mixing-height-monthly-consensus.png", "USM00072403-sbi-frequency-monthly.svg", "AUM00011035-sbi-strength-seasonal.png",
+		"USM00072403-episode-calendar.png"} {
 		if !strings.Contains(list, want) {
 			t.Errorf("no %s among\n%s", want, list)
 		}
@@ -94,7 +95,8 @@ func TestFiguresDemo(t *testing.T) {
 		t.Fatalf("figures: exit %d\n%s", code, errs)
 	}
 	files := strings.Fields(list)
-	if len(files) != 3 || !strings.HasSuffix(files[0], "ZZXSYN00001-mixing-height-monthly-heffter.svg") {
+	if len(files) != 4 || !strings.HasSuffix(files[0], "ZZXSYN00001-mixing-height-monthly-heffter.svg") ||
+		!strings.HasSuffix(files[3], "ZZXSYN00001-episode-calendar.svg") {
 		t.Errorf("files %v", files)
 	}
 	for _, f := range files {

@@ -412,3 +412,22 @@ func TestRenderAll(t *testing.T) {
 		t.Error("unknown format accepted")
 	}
 }
+
+// TestMonthPosition: days fill their month's slot of the month axis
+// without overlap or gap (calendar arithmetic, including a leap February).
+func TestMonthPosition(t *testing.T) {
+	for _, tc := range []struct {
+		d      time.Time
+		x0, x1 float64
+	}{
+		{time.Date(2016, 1, 1, 0, 0, 0, 0, time.UTC), 0.5, 0.5 + 1.0/31},
+		{time.Date(2016, 2, 29, 0, 0, 0, 0, time.UTC), 2.5 - 1.0/29, 2.5},
+		{time.Date(2015, 2, 28, 0, 0, 0, 0, time.UTC), 2.5 - 1.0/28, 2.5},
+		{time.Date(2016, 12, 31, 0, 0, 0, 0, time.UTC), 12.5 - 1.0/31, 12.5},
+	} {
+		x0, x1 := monthPosition(tc.d)
+		if math.Abs(x0-tc.x0) > 1e-12 || math.Abs(x1-tc.x1) > 1e-12 {
+			t.Errorf("%s: %g..%g, want %g..%g", tc.d.Format("2006-01-02"), x0, x1, tc.x0, tc.x1)
+		}
+	}
+}
