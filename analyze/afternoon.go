@@ -82,9 +82,19 @@ func DefaultPairingConfig() PairingConfig {
 }
 
 // Sources of the maximum temperature of an afternoon estimate.
+//
+// TmaxFromLaterSounding is not a daily maximum: it is the surface
+// temperature of the same local day's later sounding, in the afternoon
+// window of PairingConfig (12–20 h local mean solar time). For US stations
+// that is the 00 UTC launch at about 18–19 h, near sunset in summer and
+// one to two hours after it in winter, when the surface has cooled below
+// the day's maximum (the evening surface inversion in winter; a few K, not
+// measured here). The afternoon mixing height computed from it is
+// therefore biased low, most in winter; give daily maxima (--daily-max)
+// for the Holzworth construction proper (METHODS §4.1: Tmax of 12–16 LST).
 const (
-	TmaxFromDailyMaxima       = "daily_maxima"
-	TmaxFromAfternoonSounding = "afternoon_sounding"
+	TmaxFromDailyMaxima   = "daily_maxima"
+	TmaxFromLaterSounding = "later_sounding"
 )
 
 // AfternoonEstimate is the afternoon mixing height of one morning sounding.
@@ -94,7 +104,7 @@ type AfternoonEstimate struct {
 	StationID string    //
 	LocalDate time.Time // local solar date (midnight UTC)
 	TmaxK     float64   // K; NaN when no maximum was found
-	// TmaxSource is TmaxFromDailyMaxima, TmaxFromAfternoonSounding or ""
+	// TmaxSource is TmaxFromDailyMaxima, TmaxFromLaterSounding or ""
 	// (then MixingHeight is undefined with note "no_tmax").
 	TmaxSource   string
 	MixingHeight MixingHeight
@@ -139,7 +149,7 @@ func PairAfternoon(soundings []DaySounding, maxima DailyMaxima, cfg PairingConfi
 		if t, ok := maxima[m.key]; ok {
 			e.TmaxK, e.TmaxSource = t, TmaxFromDailyMaxima
 		} else if j, ok := best[m.key]; ok {
-			e.Afternoon, e.TmaxK, e.TmaxSource = j, soundings[j].Profile.SurfaceTemperatureK, TmaxFromAfternoonSounding
+			e.Afternoon, e.TmaxK, e.TmaxSource = j, soundings[j].Profile.SurfaceTemperatureK, TmaxFromLaterSounding
 		}
 		e.MixingHeight = AfternoonMixingHeight(soundings[m.i].Profile, e.TmaxK)
 		out = append(out, e)

@@ -296,7 +296,7 @@ func TestAfternoon(t *testing.T) {
 		t.Fatalf("estimates = %+v", got)
 	}
 	a, b := got[0], got[1]
-	if a.Morning != 0 || a.Afternoon != 1 || a.TmaxSource != TmaxFromAfternoonSounding || a.LocalDate != time.Date(2016, 7, 1, 0, 0, 0, 0, time.UTC) {
+	if a.Morning != 0 || a.Afternoon != 1 || a.TmaxSource != TmaxFromLaterSounding || a.LocalDate != time.Date(2016, 7, 1, 0, 0, 0, 0, time.UTC) {
 		t.Errorf("first %+v", a)
 	}
 	near(t, "paired MH", a.MixingHeight.HeightAGLM, 3211, 0.5) // same θ0 as above

@@ -11,8 +11,9 @@
 -- One row per station, season, SBI class, source and height of $5:
 --   source        holzworth: Holzworth afternoon height (morning profile +
 --                 the day's maximum temperature, afternoon_mixing);
---                 afternoon_sounding: consensus height of the same local
---                 day's afternoon sounding
+--                 later_sounding: consensus height of the same local
+--                 day's later sounding (12-20 h local mean solar time:
+--                 afternoon or, for US 00 UTC launches, early evening)
 --   n_days        days with a valid morning sounding in the class
 --   n             days with a height (status ok or surface = 0 m)
 --   n_undefined   days without one (undefined, or no afternoon sounding)
@@ -47,4 +48,4 @@ FROM stats s
 JOIN below b USING (station_id, season, sbi_rank, source)
 ORDER BY station_id,
     season_rank(season),
-    sbi_rank, source DESC, below_m
+    sbi_rank, source = 'later_sounding', below_m

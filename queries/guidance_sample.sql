@@ -22,7 +22,7 @@
 --
 -- Columns: station_id, season, season_name (flipped south of the equator),
 -- season_year, local_day, sbi_rank (0 none, 1… by strength), sbi_class,
--- tmax_c, source ('holzworth' or 'afternoon_sounding'), status (ok,
+-- tmax_c, source ('holzworth' or 'later_sounding'), status (ok,
 -- surface, undefined, or no_sounding when the day had no afternoon
 -- sounding), height_m (m above ground; 0 for surface, null otherwise).
 WITH snd AS (
@@ -70,6 +70,6 @@ SELECT station_id, season, season_name, season_year, local_day, sbi_rank, sbi_cl
 FROM labelled
 UNION ALL
 SELECT l.station_id, l.season, l.season_name, l.season_year, l.local_day, l.sbi_rank, l.sbi_class, l.tmax_c,
-    'afternoon_sounding', coalesce(a.status, 'no_sounding'), a.height_m
+    'later_sounding', coalesce(a.status, 'no_sounding'), a.height_m
 FROM labelled l
 LEFT JOIN afternoon a USING (station_id, local_day)

@@ -14,7 +14,7 @@ import (
 // heights 600 m. Worked by hand: every class holds one day; the 3 K day
 // (700 m) is not below 600 m, the others with a height are; the 6 K day
 // has no height (n 0, counted undefined). No afternoon sounding exists,
-// so the afternoon_sounding rows count every day as undefined.
+// so the later_sounding rows count every day as undefined.
 func TestGuidanceByHand(t *testing.T) {
 	yes, no := ptr(true), ptr(false)
 	rows := []schema.SoundingRow{
@@ -50,13 +50,13 @@ func TestGuidanceByHand(t *testing.T) {
 		p             float64
 	}{
 		{"none", "holzworth", 1, 0, 1, 1},
-		{"none", "afternoon_sounding", 0, 1, 0, nan},
+		{"none", "later_sounding", 0, 1, 0, nan},
 		{"0-2 K", "holzworth", 1, 0, 1, 1},
-		{"0-2 K", "afternoon_sounding", 0, 1, 0, nan},
+		{"0-2 K", "later_sounding", 0, 1, 0, nan},
 		{"2-5 K", "holzworth", 1, 0, 0, 0},
-		{"2-5 K", "afternoon_sounding", 0, 1, 0, nan},
+		{"2-5 K", "later_sounding", 0, 1, 0, nan},
 		{">=5 K", "holzworth", 0, 1, 0, nan},
-		{">=5 K", "afternoon_sounding", 0, 1, 0, nan},
+		{">=5 K", "later_sounding", 0, 1, 0, nan},
 	}
 	if len(a.Rows) != len(want) {
 		t.Fatalf("%d rows, want %d: %v", len(a.Rows), len(want), a.Rows)

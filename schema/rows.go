@@ -174,7 +174,7 @@ type AfternoonRow struct {
 	LocalDate     time.Time `col:"local_date" doc:"local solar date (midnight UTC of that date)"`
 	MorningLaunch time.Time `col:"morning_launch_time" doc:"UTC; launch time of the morning sounding"`
 	TmaxC         float64   `col:"tmax_c" doc:"degC; maximum surface temperature of the day"`
-	TmaxSource    string    `col:"tmax_source" doc:"daily_maxima (user file) or afternoon_sounding (surface temperature of the same day's afternoon sounding)"`
+	TmaxSource    string    `col:"tmax_source" doc:"daily_maxima (user file), or later_sounding: not a maximum but the surface temperature of the same local day's later sounding (12-20 h local mean solar time; US 00 UTC launches are near or after sunset), which biases the height low, most in winter"`
 	HeightAGLM    float64   `col:"height_agl_m" doc:"m above ground; afternoon mixing height"`
 	Status        string    `col:"status" doc:"ok, surface or undefined"`
 	Note          string    `col:"note" doc:"reason when undefined"`

@@ -29,8 +29,10 @@ counts beside every probability:
                height of --below, the days staying below it (n_below_Hm)
                and their share (p_below_Hm). Two sources, one row each:
                holzworth (morning profile lifted from the day's maximum
-               temperature) and afternoon_sounding (consensus height of the
-               same local day's afternoon sounding).
+               temperature) and later_sounding (consensus height of the
+               same local day's later sounding, 12-20 h local mean solar
+               time: for US 00 UTC launches early evening, so below the
+               afternoon maximum).
   holzworth    afternoon mixing height (Holzworth) by bins of the day's
                maximum temperature (--tmax-step °C), per season.
   ventilation  ventilation category counts and frequencies by month and
@@ -40,7 +42,7 @@ counts beside every probability:
                by season and morning strength class (--sbi-classes), with
                the median afternoon mixing height of those days and how
                many lay inside persistent-inversion episodes.
-Read a row such as "winter, >=5 K, afternoon_sounding, n 104,
+Read a row such as "winter, >=5 K, later_sounding, n 104,
 n_below_600m 58, p_below_600m 0.558" as: on winter mornings with a surface
 inversion of at least 5 K, the afternoon mixing height stayed below 600 m
 on 58 of 104 days (56 %). Rows with fewer days than --min-days are noted.
