@@ -5,6 +5,7 @@
 package layers
 
 import (
+	"bytes"
 	"go/parser"
 	"go/token"
 	"io/fs"
@@ -24,7 +25,7 @@ func layerOf(dir string) (int, bool) {
 		prefix string
 		layer  int
 	}{
-		{"sounding", 0}, {"physics", 0},
+		{"sounding", 0}, {"physics", 0}, {"internal/clilog", 0}, {"internal/buildinfo", 0},
 		{"ingest", 1}, {"qc", 2}, {"analyze", 3}, {"schema", 4},
 		{"engine", 5}, {"queries", 6}, {"cmd", 7},
 	} {
@@ -37,8 +38,11 @@ func layerOf(dir string) (int, bool) {
 
 // TestImportDirection parses the imports of every production (non-test)
 // Go file and checks that no package imports one above it on the path,
-// that queries does not import engine, that nothing imports cmd, and that
-// the test-only internal/realdata is imported by tests only.
+// that queries does not import engine, that nothing imports cmd, that the
+// test-only internal/realdata is imported by tests only, and that cmd
+// holds less than maxCmdShare of the production lines (issue 13: cmd only
+// parses flags, calls packages and prints; it held 23 % before the engine
+// moved out of it).
 func TestImportDirection(t *testing.T) {
 	root, err := filepath.Abs(filepath.Join("..", ".."))
 	if err != nil {
@@ -49,6 +53,7 @@ func TestImportDirection(t *testing.T) {
 	}
 	fset := token.NewFileSet()
 	checked := 0
+	lines := map[bool]int{} // under cmd/ → production lines
 	err = filepath.WalkDir(root, func(path string, d fs.DirEntry, err error) error {
 		if err != nil {
 			return err
@@ -67,6 +72,11 @@ func TestImportDirection(t *testing.T) {
 			return err
 		}
 		checked++
+		src, err := os.ReadFile(path)
+		if err != nil {
+			return err
+		}
+		lines[dir == "cmd" || strings.HasPrefix(dir, "cmd/")] += bytes.Count(src, []byte("\n"))
 		for _, im := range f.Imports {
 			p, _ := strconv.Unquote(im.Path.Value)
 			target, ok := strings.CutPrefix(p, module+"/")
@@ -95,4 +105,15 @@ func TestImportDirection(t *testing.T) {
 	if checked < 50 {
 		t.Fatalf("only %d files checked: the walk missed the tree", checked)
 	}
+	total := lines[true] + lines[false]
+	if share := float64(lines[true]) / float64(total); share >= maxCmdShare {
+		t.Errorf("cmd holds %d of %d production lines (%.1f %%, limit %.0f %%): move logic out of the command into the packages it calls",
+			lines[true], total, 100*share, 100*maxCmdShare)
+	} else {
+		t.Logf("cmd holds %d of %d production lines (%.1f %%)", lines[true], total, 100*share)
+	}
 }
+
+// maxCmdShare is the largest share of the production (non-test) Go lines
+// that cmd/ may hold (issue 13).
+const maxCmdShare = 0.15
