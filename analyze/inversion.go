@@ -4,6 +4,7 @@ import (
 	"math"
 	"sort"
 
+	"github.com/sondeclim/sondeclim/analyze/stats"
 	"github.com/sondeclim/sondeclim/physics/sun"
 	"github.com/sondeclim/sondeclim/physics/thermo"
 )
@@ -132,11 +133,7 @@ func medianSpacing(z []float64, n int) float64 {
 		d = append(d, z[k+1]-z[k])
 	}
 	sort.Float64s(d)
-	m := len(d) / 2
-	if len(d)%2 == 0 {
-		return (d[m-1] + d[m]) / 2
-	}
-	return d[m]
+	return stats.MedianSorted(d)
 }
 
 // inversionFrom fills an Inversion from a profile span (searched levels

@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 	"sort"
+
+	"github.com/sondeclim/sondeclim/analyze/stats"
 )
 
 // Mixing-height statuses (METHODS §4): every method reports one.
@@ -140,11 +142,7 @@ func ConsensusOf(mh []MixingHeight, methods []string) Consensus {
 	switch {
 	case len(hs) > 0:
 		sort.Float64s(hs)
-		k := len(hs) / 2
-		c.HeightAGLM = hs[k]
-		if len(hs)%2 == 0 {
-			c.HeightAGLM = (hs[k-1] + hs[k]) / 2
-		}
+		c.HeightAGLM = stats.MedianSorted(hs)
 		c.Status, c.SpreadM = MixingHeightOK, hs[len(hs)-1]-hs[0]
 	case c.Surface > 0:
 		c.HeightAGLM, c.Status = 0, MixingHeightSurface

@@ -65,6 +65,23 @@ func Quantile(x []float64, p float64, typ QuantileType) float64 {
 	return s[k] + (h-float64(k))*(s[k+1]-s[k])
 }
 
+// MedianSorted returns the median of values sorted in ascending order:
+// the middle value, or the mean of the middle two for an even count (the
+// type-7 quantile at p = 0.5, computed as (a+b)/2); NaN when empty. It is
+// the one median of the project (consensus mixing height, level spacing,
+// Theil–Sen slope, figure captions); callers sort, so a caller on a hot
+// path can sort a buffer of its own in place.
+func MedianSorted(sorted []float64) float64 {
+	n := len(sorted)
+	if n == 0 {
+		return math.NaN()
+	}
+	if n%2 == 1 {
+		return sorted[n/2]
+	}
+	return (sorted[n/2-1] + sorted[n/2]) / 2
+}
+
 // MannKendall is the result of the Mann–Kendall trend test.
 type MannKendall struct {
 	S    float64 // Σ_{i<j} sign(y_j − y_i)
@@ -156,11 +173,7 @@ func TheilSenSlope(t, y []float64) float64 {
 		return math.NaN()
 	}
 	sort.Float64s(sl)
-	m := len(sl) / 2
-	if len(sl)%2 == 1 {
-		return sl[m]
-	}
-	return (sl[m-1] + sl[m]) / 2
+	return MedianSorted(sl)
 }
 
 func dropNaN(y []float64) []float64 {

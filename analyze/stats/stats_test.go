@@ -44,6 +44,20 @@ func TestQuantile(t *testing.T) {
 	near(t, "single value", Quantile([]float64{4}, 0.3, Type7), 4, 0)
 }
 
+// TestMedianSorted checks the median against METHODS §9 "Statistics" [D]
+// (type-7 p50 of 1..10 is 5.5) and the odd-count case by the definition
+// of the median (middle order statistic; from memory).
+func TestMedianSorted(t *testing.T) {
+	near(t, "median of 1..10", MedianSorted([]float64{1, 2, 3, 4, 5, 6, 7, 8, 9, 10}), 5.5, 0)
+	near(t, "median of 1..10 = type-7 p50", MedianSorted([]float64{1, 2, 3, 4, 5, 6, 7, 8, 9, 10}),
+		Quantile([]float64{10, 1, 9, 2, 8, 3, 7, 4, 6, 5}, 0.5, Type7), 1e-12)
+	near(t, "median of 1..9", MedianSorted([]float64{1, 2, 3, 4, 5, 6, 7, 8, 9}), 5, 0)
+	near(t, "single value", MedianSorted([]float64{-3.5}), -3.5, 0)
+	if !math.IsNaN(MedianSorted(nil)) {
+		t.Error("median of nothing is not NaN")
+	}
+}
+
 // TestMannKendall checks METHODS §9 "Statistics" [D]: [1..5] → S = 10,
 // Var = 16.667, Z = 2.2045, p = 0.0275, Sen slope 1.0; [2,1,4,3,6,5,8,7,10,9]
 // → S = 35, Var = 125, Z = 3.0411, p = 0.00236, Sen slope 1.0.

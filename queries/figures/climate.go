@@ -16,6 +16,7 @@ import (
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 
+	"github.com/sondeclim/sondeclim/analyze/stats"
 	"github.com/sondeclim/sondeclim/schema"
 )
 
@@ -494,7 +495,7 @@ func SBIStrengthFigure(s *SBIStrength, binK float64) *Figure {
 		v := s.BySeason[season]
 		head := fmt.Sprintf("%s: no surface-based inversions", season)
 		if len(v) > 0 {
-			head = fmt.Sprintf("%s: %d inversions, median %.1f K", season, len(v), median(v))
+			head = fmt.Sprintf("%s: %d inversions, median %.1f K", season, len(v), stats.MedianSorted(v))
 		}
 		p := newPlot(head, "strength (K, top minus surface temperature)", "soundings")
 		p.Title.TextStyle.Font.Size = vg.Points(10)
@@ -531,18 +532,6 @@ func SBIStrengthFigure(s *SBIStrength, binK float64) *Figure {
 			}
 		},
 	}
-}
-
-// median returns the type-7 median of sorted values (NaN when empty).
-func median(sorted []float64) float64 {
-	n := len(sorted)
-	if n == 0 {
-		return math.NaN()
-	}
-	if n%2 == 1 {
-		return sorted[n/2]
-	}
-	return (sorted[n/2-1] + sorted[n/2]) / 2
 }
 
 func centred(s draw.TextStyle) draw.TextStyle {
