@@ -641,8 +641,9 @@ func (r *run) readMember(ctx context.Context, path, member string, rd io.Reader,
 	br := bufio.NewReaderSize(rd, 1<<16)
 	prefix, _ := br.Peek(4096)
 	where := ingest.Where(path, member)
+	said := 0 // soundings, errors and notes the reader gave
 	fr, err := formats.Open(r.opt.Format, prefix, br, path, member,
-		formats.Options{Stations: r.opt.Stations, Note: func(n formats.Note) { r.note(Skip(n)) }})
+		formats.Options{Stations: r.opt.Stations, Note: func(n formats.Note) { said++; r.note(Skip(n)) }})
 	if err != nil {
 		r.skip(Skip{Where: where, Reason: reasonOf(err), Detail: err.Error()})
 		return nil
@@ -655,8 +656,12 @@ func (r *run) readMember(ctx context.Context, path, member string, rd io.Reader,
 		}
 		s, err := fr.Next()
 		if err == io.EOF {
+			if said == 0 {
+				r.yieldsNothing(where, prefix)
+			}
 			return nil
 		}
+		said++
 		if err != nil {
 			if err := r.rejected(where, err); err != nil {
 				return err
@@ -674,6 +679,26 @@ func (r *run) readMember(ctx context.Context, path, member string, rd io.Reader,
 	}
 }
 
+// yieldsNothing reports an input that its reader read to the end without
+// a sounding, an error or a note. Under a format forced by --format that
+// is a skip (the input is most likely another format, and its data would
+// be lost without a word); under the detected format a note (a header-only
+// table, a bulletin of NIL reports).
+func (r *run) yieldsNothing(where string, prefix []byte) {
+	if r.opt.Format == "" {
+		r.note(Skip{Where: where, Reason: "no_soundings", Detail: where + ": " + ingest.ErrNoSoundings.Error() +
+			" (read to the end without an error)"})
+		return
+	}
+	detected := "no known format"
+	if f, ok := formats.Detect(prefix); ok {
+		detected = f.Name
+	}
+	err := &ingest.ParseError{File: where, Offset: -1, Err: fmt.Errorf("%w: read as %s (--format) to the end without a sounding or an error; "+
+		"its content looks like %s", ingest.ErrNoSoundings, r.opt.Format, detected)}
+	r.skip(Skip{Where: where, Reason: reasonOf(err), Detail: err.Error()})
+}
+
 // reasonOf gives a short reason for an error, for counting skips.
 func reasonOf(err error) string {
 	for _, k := range []struct {
@@ -689,6 +714,8 @@ func reasonOf(err error) string {
 		{ingest.ErrNoData, "no_data"},
 		{ingest.ErrUnsupported, "unsupported"},
 		{ingest.ErrPartlyDecoded, "read_in_part"},
+		{ingest.ErrJunk, "junk"},
+		{ingest.ErrNoSoundings, "no_soundings"},
 	} {
 		if errors.Is(err, k.e) {
 			return k.name

@@ -44,6 +44,13 @@ var (
 	ErrUnknownInput = errors.New("input format not recognised")
 	ErrNoData       = errors.New("report carries no level data")
 	ErrUnsupported  = errors.New("recognised but not supported by this reader")
+	// ErrJunk: text where the format has none (lines before a CSV header,
+	// words between TEMP reports); reported, and the rest of the input is
+	// read.
+	ErrJunk = errors.New("text that is not part of the format")
+	// ErrNoSoundings: an input read without error that yields no sounding
+	// (as a format forced by --format that is not the input's).
+	ErrNoSoundings = errors.New("input yields no sounding")
 )
 
 // ErrPartlyDecoded is wrapped in a ParseError that accompanies a sounding

@@ -4,6 +4,8 @@ import (
 	"bufio"
 	"errors"
 	"io"
+
+	"github.com/sondeclim/sondeclim/ingest"
 )
 
 // Segment is a byte range of a station data file that holds consecutive
@@ -38,7 +40,7 @@ var ErrNoHeaders = errors.New("archive-v2: no readable header record")
 // speed of splitting lines; it exists so that callers can find a file's
 // station-years first and decode each one later, from the file itself.
 func Index(r io.Reader, fn func(Segment) error) error {
-	br := bufio.NewReaderSize(r, 1<<20)
+	br := bufio.NewReaderSize(ingest.LineEnds(r), 1<<20)
 	var (
 		off, lineNo int64
 		cur         Segment
@@ -65,7 +67,7 @@ func Index(r io.Reader, fn func(Segment) error) error {
 		}
 		off += n
 		lineNo++
-		if len(line) > 0 && line[0] == '#' {
+		if line = ingest.TrimBOM(line); len(line) > 0 && line[0] == '#' {
 			header := trimEOL(line)
 			var id string
 			year, ok := 0, false

@@ -22,11 +22,15 @@ const maxLine = 4096
 // Reader reads soundings from one station data file.
 //
 // Records are read line by line with a fixed-size buffer, so memory use does
-// not grow with the file. Blank lines are skipped wherever they occur.
+// not grow with the file. Blank lines are skipped wherever they occur. A
+// line ends at LF, CR LF or a CR of its own (ingest.LineEnds); a UTF-8
+// byte-order mark at the start of a line (of the file, or of a file
+// concatenated to another) is ignored.
 // Rejections, each returned once as an *ingest.ParseError before the reader
 // moves on:
 //
-//   - ingest.ErrOrphanLevel: data records before the first header; a run of
+//   - ingest.ErrOrphanLevel: data records (or any other text, such as a
+//     note put before the first header) before the first header; a run of
 //     them is reported once, at the line of its first record.
 //   - ingest.ErrBadHeader: a header that cannot be read; the records after
 //     it up to the next header are skipped with it. Line = the header's.
@@ -79,7 +83,7 @@ type Reader struct {
 // member names are used only in error messages and sounding.Source.
 func NewReader(r io.Reader, file, member string) *Reader {
 	return &Reader{
-		br:      bufio.NewReaderSize(r, maxLine),
+		br:      bufio.NewReaderSize(ingest.LineEnds(r), maxLine),
 		file:    file,
 		member:  member,
 		pending: make([]byte, 0, 128),
@@ -113,7 +117,7 @@ func (r *Reader) readLine() (line []byte, tooLong bool, err error) {
 	for len(line) > 0 && (line[len(line)-1] == '\n' || line[len(line)-1] == '\r') {
 		line = line[:len(line)-1]
 	}
-	return line, tooLong, nil
+	return ingest.TrimBOM(line), tooLong, nil
 }
 
 // stop records a terminal condition from readLine.

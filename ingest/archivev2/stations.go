@@ -55,12 +55,12 @@ func ReadStations(r io.Reader) (map[string]Station, error) {
 	}
 	out := make(map[string]Station)
 	var errs []error
-	sc := bufio.NewScanner(r)
+	sc := bufio.NewScanner(ingest.LineEnds(r)) // a CR of its own ends a line too
 	sc.Buffer(make([]byte, 0, 4096), 1<<20)
 	lineNo := 0
 	for sc.Scan() {
 		lineNo++
-		line := strings.TrimRight(sc.Text(), "\r")
+		line := strings.TrimRight(string(ingest.TrimBOM(sc.Bytes())), "\r")
 		if strings.TrimSpace(line) == "" {
 			continue
 		}
@@ -84,7 +84,7 @@ func ReadStations(r io.Reader) (map[string]Station, error) {
 
 func parseStation(line string) (Station, error) {
 	bad := func(what, v string) error {
-		return fmt.Errorf("%w: station list %s %q", ingest.ErrBadLevel, what, v)
+		return fmt.Errorf("%w: station list %s %s", ingest.ErrBadLevel, what, ingest.Quote(v))
 	}
 	col := func(from, to int) string {
 		if from > len(line) {

@@ -12,6 +12,7 @@ import (
 	"strings"
 	"time"
 
+	"github.com/sondeclim/sondeclim/ingest"
 	"github.com/sondeclim/sondeclim/physics/thermo"
 )
 
@@ -34,7 +35,7 @@ type Record struct {
 // reading with an error "line N: reason"; a repeated station and date is
 // an error too. Records are returned in file order.
 func Read(r io.Reader) ([]Record, error) {
-	cr := csv.NewReader(r)
+	cr := csv.NewReader(ingest.LineEnds(r)) // a CR of its own ends a line too
 	cr.FieldsPerRecord = 3
 	cr.TrimLeadingSpace = true
 	var out []Record
@@ -54,7 +55,7 @@ func Read(r io.Reader) ([]Record, error) {
 		line, _ := cr.FieldPos(0)
 		if header {
 			if strings.TrimPrefix(rec[0], "\ufeff") != "station_id" || rec[1] != "date" || rec[2] != "tmax_c" {
-				return nil, fmt.Errorf("daily maxima: line %d: header %q, want station_id,date,tmax_c", line, strings.Join(rec, ","))
+				return nil, fmt.Errorf("daily maxima: line %d: header %s, want station_id,date,tmax_c", line, ingest.Quote(strings.Join(rec, ",")))
 			}
 			header = false
 			continue
@@ -64,14 +65,14 @@ func Read(r io.Reader) ([]Record, error) {
 		}
 		d, err := time.Parse("2006-01-02", rec[1])
 		if err != nil {
-			return nil, fmt.Errorf("daily maxima: line %d: date %q is not YYYY-MM-DD", line, rec[1])
+			return nil, fmt.Errorf("daily maxima: line %d: date %s is not YYYY-MM-DD", line, ingest.Quote(rec[1]))
 		}
 		if strings.TrimSpace(rec[2]) == "" {
 			continue
 		}
 		tc, err := strconv.ParseFloat(strings.TrimSpace(rec[2]), 64)
 		if err != nil || !(tc > -100 && tc < 70) {
-			return nil, fmt.Errorf("daily maxima: line %d: tmax_c %q is not a temperature in °C", line, rec[2])
+			return nil, fmt.Errorf("daily maxima: line %d: tmax_c %s is not a temperature in °C", line, ingest.Quote(rec[2]))
 		}
 		k := [2]string{rec[0], rec[1]}
 		if seen[k] {

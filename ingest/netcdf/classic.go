@@ -6,6 +6,8 @@ import (
 	"fmt"
 	"io"
 	"math"
+
+	"github.com/sondeclim/sondeclim/ingest"
 )
 
 // Type is a netCDF classic external data type (nc_type).
@@ -272,7 +274,7 @@ func (c *cursor) attrs() []Attr {
 		a := Attr{Name: c.name(), Type: Type(c.u32())}
 		sz := a.Type.Size()
 		if c.err == nil && sz == 0 {
-			c.fail(fmt.Errorf("%w: attribute %q has type %d", ErrMalformed, a.Name, uint32(a.Type)))
+			c.fail(fmt.Errorf("%w: attribute %s has type %d", ErrMalformed, ingest.Quote(a.Name), uint32(a.Type)))
 		}
 		k := c.count(max(sz, 1))
 		raw := c.bytes(pad4(k * sz))
@@ -371,18 +373,18 @@ func (c *cursor) variable(f *File, recDim int) Var {
 	for j := int64(0); j < n && c.err == nil; j++ {
 		id := c.u32()
 		if int64(id) >= int64(len(f.Dims)) {
-			c.fail(fmt.Errorf("%w: variable %q uses dimension %d of %d", ErrMalformed, v.Name, id, len(f.Dims)))
+			c.fail(fmt.Errorf("%w: variable %s uses dimension %d of %d", ErrMalformed, ingest.Quote(v.Name), id, len(f.Dims)))
 			break
 		}
 		if int(id) == recDim && j != 0 {
-			c.fail(fmt.Errorf("%w: variable %q has the record dimension in position %d", ErrMalformed, v.Name, j))
+			c.fail(fmt.Errorf("%w: variable %s has the record dimension in position %d", ErrMalformed, ingest.Quote(v.Name), j))
 		}
 		v.Dims = append(v.Dims, int(id))
 	}
 	v.Attrs = c.attrs()
 	v.Type = Type(c.u32())
 	if c.err == nil && v.Type.Size() == 0 {
-		c.fail(fmt.Errorf("%w: variable %q has type %d", ErrMalformed, v.Name, uint32(v.Type)))
+		c.fail(fmt.Errorf("%w: variable %s has type %d", ErrMalformed, ingest.Quote(v.Name), uint32(v.Type)))
 	}
 	c.u32() // vsize: recomputed from the dimensions, as it may be clipped for large variables
 	if f.Version == 2 {
@@ -392,7 +394,7 @@ func (c *cursor) variable(f *File, recDim int) Var {
 		v.Begin = int64(c.u32())
 	}
 	if c.err == nil && (v.Begin < c.off || v.Begin < 0) {
-		c.fail(fmt.Errorf("%w: variable %q begins at %d, inside the header", ErrMalformed, v.Name, v.Begin))
+		c.fail(fmt.Errorf("%w: variable %s begins at %d, inside the header", ErrMalformed, ingest.Quote(v.Name), v.Begin))
 	}
 	v.Record = len(v.Dims) > 0 && v.Dims[0] == recDim
 	return v
@@ -413,7 +415,7 @@ func (f *File) layout(nrec uint32, nrecOff int64) error {
 			}
 			l := f.Dims[d].Len
 			if l != 0 && v.slab > f.size/l {
-				return bad(v.Begin, fmt.Errorf("%w: variable %q is larger than the file", ErrTruncated, v.Name))
+				return bad(v.Begin, fmt.Errorf("%w: variable %s is larger than the file", ErrTruncated, ingest.Quote(v.Name)))
 			}
 			v.slab *= l
 		}
@@ -424,7 +426,7 @@ func (f *File) layout(nrec uint32, nrecOff int64) error {
 			}
 			f.recSize += pad4(v.slab * v.Type.Size())
 		} else if end := v.Begin + v.slab*v.Type.Size(); v.slab*v.Type.Size() > f.size-v.Begin {
-			return bad(v.Begin, fmt.Errorf("%w: variable %q ends at %d, file size %d", ErrTruncated, v.Name, end, f.size))
+			return bad(v.Begin, fmt.Errorf("%w: variable %s ends at %d, file size %d", ErrTruncated, ingest.Quote(v.Name), end, f.size))
 		}
 	}
 	if nRecVars == 1 {
@@ -461,7 +463,7 @@ func (f *File) layout(nrec uint32, nrecOff int64) error {
 		}
 		last := v.Begin + (f.NumRecs-1)*f.recSize
 		if v.slab*v.Type.Size() > f.size-last {
-			return bad(nrecOff, fmt.Errorf("%w: record variable %q runs past the end of the file", ErrTruncated, v.Name))
+			return bad(nrecOff, fmt.Errorf("%w: record variable %s runs past the end of the file", ErrTruncated, ingest.Quote(v.Name)))
 		}
 	}
 	return nil
@@ -475,13 +477,13 @@ func (f *File) layout(nrec uint32, nrecOff int64) error {
 func (f *File) Float64s(v *Var) ([]float64, error) {
 	sz := v.Type.Size()
 	if sz == 0 {
-		return nil, fmt.Errorf("variable %q: %w: type %d", v.Name, ErrMalformed, uint32(v.Type))
+		return nil, fmt.Errorf("variable %s: %w: type %d", ingest.Quote(v.Name), ErrMalformed, uint32(v.Type))
 	}
 	out := make([]float64, v.Len(f))
 	if !v.Record {
 		raw := make([]byte, v.slab*sz)
 		if _, err := f.r.ReadAt(raw, v.Begin); err != nil && !(err == io.EOF && len(raw) == 0) {
-			return nil, &FormatError{Offset: v.Begin, Err: fmt.Errorf("read variable %q: %w", v.Name, err)}
+			return nil, &FormatError{Offset: v.Begin, Err: fmt.Errorf("read variable %s: %w", ingest.Quote(v.Name), err)}
 		}
 		decode(out, raw, v.Type)
 		return out, nil
@@ -502,7 +504,7 @@ func (f *File) Float64s(v *Var) ([]float64, error) {
 		span := (n-1)*f.recSize + slabBytes
 		chunk := buf[:span]
 		if _, err := f.r.ReadAt(chunk, start); err != nil && !(err == io.EOF) {
-			return nil, &FormatError{Offset: start, Err: fmt.Errorf("read variable %q: %w", v.Name, err)}
+			return nil, &FormatError{Offset: start, Err: fmt.Errorf("read variable %s: %w", ingest.Quote(v.Name), err)}
 		}
 		for k := int64(0); k < n; k++ {
 			i := (r0 + k) * v.slab

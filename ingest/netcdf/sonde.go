@@ -178,12 +178,12 @@ func (d *decoder) values(name string, required bool, perRecord bool) []float64 {
 	v := d.f.Var(name)
 	if name == "" || v == nil {
 		if required {
-			d.err = &ingest.ParseError{File: d.file, Offset: -1, Err: fmt.Errorf("%w: required variable %q not found", ingest.ErrBadHeader, name)}
+			d.err = &ingest.ParseError{File: d.file, Offset: -1, Err: fmt.Errorf("%w: required variable %s not found", ingest.ErrBadHeader, ingest.Quote(name))}
 		}
 		return nil
 	}
 	if perRecord && v.Len(d.f) != d.f.NumRecs {
-		d.err = &ingest.ParseError{File: d.file, Offset: v.Begin, Err: fmt.Errorf("%w: variable %q has %d values for %d records", ingest.ErrBadHeader, name, v.Len(d.f), d.f.NumRecs)}
+		d.err = &ingest.ParseError{File: d.file, Offset: v.Begin, Err: fmt.Errorf("%w: variable %s has %d values for %d records", ingest.ErrBadHeader, ingest.Quote(name), v.Len(d.f), d.f.NumRecs)}
 		return nil
 	}
 	x, err := d.f.Float64s(v)
@@ -223,7 +223,7 @@ func (d *decoder) scale(name string, defFactor, defOffset float64, known map[str
 	if c, ok := known[u]; ok {
 		return c[0], c[1]
 	}
-	d.err = &ingest.ParseError{File: d.file, Offset: -1, Err: fmt.Errorf("%w: variable %q has unknown units %q", ingest.ErrBadHeader, name, u)}
+	d.err = &ingest.ParseError{File: d.file, Offset: -1, Err: fmt.Errorf("%w: variable %s has unknown units %s", ingest.ErrBadHeader, ingest.Quote(name), ingest.Quote(u))}
 	return defFactor, defOffset
 }
 

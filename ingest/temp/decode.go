@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"strconv"
+	"strings"
 
 	"github.com/sondeclim/sondeclim/ingest"
 	"github.com/sondeclim/sondeclim/physics/thermo"
@@ -122,7 +123,10 @@ func decodeReport(raw rawReport, o *Options) (*report, error) {
 		}
 	}
 	if k < 0 {
-		return nil, errSkip
+		if framing(toks) {
+			return nil, errSkip
+		}
+		return nil, &lineError{toks[0].line, fmt.Errorf("%w: no TEMP or PILOT part identifier in %s", ingest.ErrJunk, quoteTokens(toks))}
 	}
 	if isNil(toks[k:]) {
 		return nil, errSkip
@@ -155,6 +159,35 @@ func decodeReport(raw rawReport, o *Options) (*report, error) {
 	return rep, nil
 }
 
+// framing reports whether the tokens of a text without a part identifier
+// are only what frames bulletins on the GTS: channel sequence numbers (up
+// to 5 digits, as the "221" after each SOH of the real US stream,
+// PROVENANCE.md) and the ZCZC/NNNN start and end of message lines (WMO
+// Manual on the GTS, WMO-No. 386, from memory).
+func framing(toks []token) bool {
+	for _, t := range toks {
+		if !(isDigits(t.s) && len(t.s) <= 5 || t.s == "ZCZC" || t.s == "NNNN") {
+			return false
+		}
+	}
+	return true
+}
+
+// quoteTokens quotes the start of a token list (ingest.Quote).
+func quoteTokens(toks []token) string {
+	var b strings.Builder
+	for _, t := range toks {
+		if b.Len() > ingest.QuoteLimit {
+			break
+		}
+		if b.Len() > 0 {
+			b.WriteByte(' ')
+		}
+		b.WriteString(t.s)
+	}
+	return ingest.Quote(b.String())
+}
+
 // lineError is a decoding error at a line of the input.
 type lineError struct {
 	line int
@@ -165,14 +198,14 @@ func (e *lineError) Error() string { return fmt.Sprintf("line %d: %v", e.line, e
 func (e *lineError) Unwrap() error { return e.err }
 
 func badGroup(t token, what string) error {
-	return &lineError{t.line, fmt.Errorf("%w: %s group %q", ingest.ErrBadLevel, what, t.s)}
+	return &lineError{t.line, fmt.Errorf("%w: %s group %s", ingest.ErrBadLevel, what, ingest.Quote(t.s))}
 }
 
 // section1 decodes YYGGId (YYGGa4) and IIiii.
 func (r *report) section1(yg, st token) error {
 	g := yg.s
 	if len(g) != 5 || !isDigits(g[:4]) || !(isDigits(g[4:]) || g[4] == '/') {
-		return &lineError{yg.line, fmt.Errorf("%w: day/hour group %q", ingest.ErrBadHeader, g)}
+		return &lineError{yg.line, fmt.Errorf("%w: day/hour group %s", ingest.ErrBadHeader, ingest.Quote(g))}
 	}
 	yy, _ := strconv.Atoi(g[:2])
 	gg, _ := strconv.Atoi(g[2:4])
@@ -181,10 +214,10 @@ func (r *report) section1(yg, st token) error {
 		r.knots = true
 	}
 	if yy < 1 || yy > 31 || gg > 23 {
-		return &lineError{yg.line, fmt.Errorf("%w: day/hour group %q out of range", ingest.ErrBadHeader, g)}
+		return &lineError{yg.line, fmt.Errorf("%w: day/hour group %s out of range", ingest.ErrBadHeader, ingest.Quote(g))}
 	}
 	if len(st.s) != 5 || !isDigits(st.s) {
-		return &lineError{st.line, fmt.Errorf("%w: station group %q", ingest.ErrBadHeader, st.s)}
+		return &lineError{st.line, fmt.Errorf("%w: station group %s", ingest.ErrBadHeader, ingest.Quote(st.s))}
 	}
 	r.day, r.hour, r.ind, r.station = yy, gg, g[4], st.s
 	return nil

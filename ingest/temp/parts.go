@@ -330,8 +330,8 @@ func (r *report) decodePilot(body []token, unitM float64) error {
 		}
 		base, ok := pilotHeight(g)
 		if !ok && r.part == pilotD && pilotOtherHeight(g) {
-			r.partial = &lineError{t.line, fmt.Errorf("%w: %s %s: levels from group %q on (indicator 8, unit unknown, above 30 km) left out; %d levels below kept",
-				ingest.ErrPartlyDecoded, "PPDD", r.station, g, len(r.levels))}
+			r.partial = &lineError{t.line, fmt.Errorf("%w: %s %s: levels from group %s on (indicator 8, unit unknown, above 30 km) left out; %d levels below kept",
+				ingest.ErrPartlyDecoded, "PPDD", r.station, ingest.Quote(g), len(r.levels))}
 			return nil
 		}
 		if !ok {

@@ -146,11 +146,28 @@ func (rd *Reader) decode(data []byte) []item {
 	var items []item
 	groups := map[stationKey]*[numParts]*report{}
 	var keys []stationKey
+	// Consecutive pieces of text that are not reports are reported once.
+	var junk *junkRun
+	flushJunk := func() {
+		if junk != nil {
+			items = append(items, item{line: junk.first, err: rd.parseError(junk.first, junk.err())})
+			junk = nil
+		}
+	}
 	for _, raw := range splitStream(data) {
 		rep, err := decodeReport(raw, &rd.opts)
 		if errors.Is(err, errSkip) {
 			continue
 		}
+		if errors.Is(err, ingest.ErrJunk) {
+			if junk == nil {
+				junk = &junkRun{first: raw.toks[0].line, what: err}
+			}
+			junk.n++
+			junk.last = raw.toks[len(raw.toks)-1].line
+			continue
+		}
+		flushJunk()
 		if err != nil {
 			items = append(items, item{line: raw.toks[0].line, err: rd.parseError(raw.toks[0].line, err)})
 			continue
@@ -167,6 +184,7 @@ func (rd *Reader) decode(data []byte) []item {
 			g[rep.part] = rep
 		}
 	}
+	flushJunk()
 	if len(keys) > 0 {
 		ref, ok := rd.reference()
 		if !ok {
@@ -188,6 +206,25 @@ func (rd *Reader) decode(data []byte) []item {
 	}
 	sort.SliceStable(items, func(i, j int) bool { return items[i].line < items[j].line })
 	return items
+}
+
+// junkRun is a run of consecutive pieces of text without a part
+// identifier (ingest.ErrJunk), reported as one error.
+type junkRun struct {
+	first, last, n int
+	what           error // the first piece's error
+}
+
+func (j *junkRun) err() error {
+	var le *lineError
+	first := j.what
+	if errors.As(first, &le) {
+		first = le.err
+	}
+	if j.n == 1 {
+		return first
+	}
+	return fmt.Errorf("%w (lines %d-%d: %d pieces of text up to the next report; the first shown)", first, j.first, j.last, j.n)
 }
 
 // date returns the nominal time of day/hour in the reference month (or the

@@ -3,6 +3,8 @@ package temp
 import (
 	"bytes"
 	"strings"
+
+	"github.com/sondeclim/sondeclim/ingest"
 )
 
 // token is one whitespace-separated group with the 1-based line it is on.
@@ -21,8 +23,9 @@ type rawReport struct {
 
 // splitStream cuts a bulletin stream into reports. SOH (0x01) and ETX
 // (0x03) end a bulletin, abbreviated heading lines set the correction rank
-// of the reports that follow, and "=" ends a report. CR characters are
-// ignored, so CR CR LF line ends count as one line end.
+// of the reports that follow, and "=" ends a report. A line ends at LF, at
+// CRs followed by LF (so CR CR LF counts as one line end) and at a CR of
+// its own; a UTF-8 byte-order mark at the start of a line is ignored.
 func splitStream(data []byte) []rawReport {
 	var (
 		out  []rawReport
@@ -38,11 +41,26 @@ func splitStream(data []byte) []rawReport {
 	line := 1
 	for len(data) > 0 {
 		var ln []byte
-		if i := bytes.IndexByte(data, '\n'); i >= 0 {
-			ln, data = data[:i], data[i+1:]
+		if i := bytes.IndexAny(data, "\r\n"); i >= 0 {
+			// CR* LF is one line end (WMO bulletins end lines CR CR LF);
+			// a CR of its own is one too (old Macintosh text).
+			j := i
+			for j < len(data) && data[j] == '\r' {
+				j++
+			}
+			switch {
+			case j < len(data) && data[j] == '\n':
+				j++
+			case j > i:
+				j = i + 1
+			default:
+				j = i + 1 // LF
+			}
+			ln, data = data[:i], data[j:]
 		} else {
 			ln, data = data, nil
 		}
+		ln = bytes.TrimPrefix(ln, []byte(ingest.BOM))
 		// Framing characters end the current bulletin.
 		if bytes.IndexByte(ln, 0x01) >= 0 || bytes.IndexByte(ln, 0x03) >= 0 {
 			flush()

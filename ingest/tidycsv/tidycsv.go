@@ -79,14 +79,42 @@ var (
 	ErrReappears     = errors.New("sounding reappears after other rows; the rows of a sounding must be contiguous")
 )
 
+// junkLines is how many lines before the header the reader (and Sniff)
+// look through for it; junkBytes bounds their bytes.
+const (
+	junkLines = 20
+	junkBytes = 64 << 10
+)
+
 // Sniff reports whether prefix looks like the start of a tidy CSV file:
-// its first line (after an optional UTF-8 byte-order mark) is a header
-// naming at least station_id and launch_time_utc.
+// one of its first lines (ending at LF or CR, after an optional UTF-8
+// byte-order mark), normally the first, is a header naming at least
+// station_id and launch_time_utc; lines of text before it are reported by
+// the Reader.
 func Sniff(prefix []byte) bool {
-	prefix = bytes.TrimPrefix(prefix, []byte("\xef\xbb\xbf"))
-	line, _, _ := bytes.Cut(prefix, []byte("\n"))
+	for range junkLines {
+		i := bytes.IndexAny(prefix, "\r\n")
+		line := prefix
+		if i >= 0 {
+			line, prefix = prefix[:i], prefix[i+1:]
+		} else {
+			prefix = nil
+		}
+		if isHeader(line) {
+			return true
+		}
+		if prefix == nil {
+			return false
+		}
+	}
+	return false
+}
+
+// isHeader reports whether line names station_id and launch_time_utc.
+func isHeader(line []byte) bool {
+	line = ingest.TrimBOM(bytes.TrimRight(line, "\r\n"))
 	var st, lt bool
-	for _, f := range bytes.Split(bytes.TrimRight(line, "\r"), []byte(",")) {
+	for _, f := range bytes.Split(line, []byte(",")) {
 		switch string(bytes.Trim(bytes.TrimSpace(f), `"`)) {
 		case "station_id":
 			st = true
@@ -107,7 +135,10 @@ type row struct {
 
 // Reader reads soundings from a tidy CSV stream.
 type Reader struct {
+	src     *bufio.Reader
 	cr      *csv.Reader
+	base    int   // lines before the header (junk), added to csv line numbers
+	junk    error // the report of those lines, returned after the header
 	file    string
 	idx     [numColumns]int // field index of each column, −1 if absent
 	ncols   int
@@ -119,20 +150,60 @@ type Reader struct {
 
 // NewReader returns a reader of r; file names the input in messages and
 // in sounding.Source.
+//
+// A line ends at LF, CR LF or a CR of its own (ingest.LineEnds). Lines of
+// text before the header (up to 20 lines, 64 KB) are reported once as
+// ingest.ErrJunk and the file is read from the header on.
 func NewReader(r io.Reader, file string) *Reader {
-	cr := csv.NewReader(bufio.NewReader(r))
-	cr.FieldsPerRecord = -1
-	cr.ReuseRecord = false
-	return &Reader{cr: cr, file: file, seen: map[sounding.Key]int{}}
+	return &Reader{src: bufio.NewReaderSize(ingest.LineEnds(r), junkBytes), file: file, seen: map[sounding.Key]int{}}
+}
+
+// findHeader looks for the header among the first lines and sets up the
+// CSV reader from it. When none of them is a header, the CSV reader starts
+// at the first line, whose header errors are then reported.
+func (r *Reader) findHeader() {
+	var consumed []byte
+	var first string
+	start := func(rest io.Reader) {
+		r.cr = csv.NewReader(rest)
+		r.cr.FieldsPerRecord = -1
+		r.cr.ReuseRecord = false
+	}
+	for n := 0; n < junkLines; n++ {
+		line, err := r.src.ReadSlice('\n')
+		if isHeader(line) {
+			if n > 0 {
+				r.base = n
+				r.junk = r.errorf(1, ingest.ErrJunk, "lines 1-%d before the header are not part of the table (the first: %s)", n, ingest.Quote(first))
+			}
+			start(io.MultiReader(bytes.NewReader(append([]byte(nil), line...)), r.src))
+			return
+		}
+		if n == 0 {
+			first = strings.TrimRight(string(line), "\r\n")
+		}
+		consumed = append(consumed, line...)
+		if err != nil || len(consumed) > junkBytes {
+			break
+		}
+	}
+	start(io.MultiReader(bytes.NewReader(consumed), r.src))
 }
 
 func (r *Reader) errorf(line int, reason error, format string, a ...any) error {
 	return &ingest.ParseError{File: r.file, Line: line, Offset: -1, Err: fmt.Errorf("%w: "+format, append([]any{reason}, a...)...)}
 }
 
+// errorAt is errorf for a line of the CSV reader (after the header's own
+// line base).
+func (r *Reader) errorAt(line int, reason error, format string, a ...any) error {
+	return r.errorf(r.base+line, reason, format, a...)
+}
+
 // header reads and checks the header row. Any header error is final.
 func (r *Reader) header() error {
 	r.started = true
+	r.findHeader()
 	rec, err := r.cr.Read()
 	if err == io.EOF {
 		r.done = true
@@ -140,7 +211,7 @@ func (r *Reader) header() error {
 	}
 	if err != nil {
 		r.done = true
-		return &ingest.ParseError{File: r.file, Line: 1, Offset: -1, Err: fmt.Errorf("%w: %v", ingest.ErrBadHeader, err)}
+		return &ingest.ParseError{File: r.file, Line: r.base + 1, Offset: -1, Err: fmt.Errorf("%w: %v", ingest.ErrBadHeader, err)}
 	}
 	for i := range r.idx {
 		r.idx[i] = -1
@@ -153,18 +224,18 @@ func (r *Reader) header() error {
 		c := lookup(name)
 		if c < 0 {
 			r.done = true
-			return r.errorf(1, ingest.ErrBadHeader, "%v %q (column %d); units are part of the name, see FORMAT.md", ErrUnknownColumn, name, i+1)
+			return r.errorAt(1, ingest.ErrBadHeader, "%v %s (column %d); units are part of the name, see FORMAT.md", ErrUnknownColumn, ingest.Quote(name), i+1)
 		}
 		if r.idx[c] >= 0 {
 			r.done = true
-			return r.errorf(1, ingest.ErrBadHeader, "column %q appears twice", name)
+			return r.errorAt(1, ingest.ErrBadHeader, "column %s appears twice", ingest.Quote(name))
 		}
 		r.idx[c] = i
 	}
 	for c, col := range columns {
 		if col.required && r.idx[c] < 0 {
 			r.done = true
-			return r.errorf(1, ingest.ErrBadHeader, "%v: %q", ErrMissingColumn, col.name)
+			return r.errorAt(1, ingest.ErrBadHeader, "%v: %q", ErrMissingColumn, col.name)
 		}
 	}
 	r.ncols = len(rec)
@@ -198,9 +269,10 @@ func (r *Reader) next() (*row, error) {
 		if errors.As(err, &pe) {
 			line, err = pe.Line, pe.Err
 		}
-		return &row{rec: rec, line: line, err: err}, nil
+		return &row{rec: rec, line: r.base + line, err: err}, nil
 	}
 	line, _ := r.cr.FieldPos(0)
+	line += r.base
 	if len(rec) != r.ncols {
 		return &row{rec: rec, line: line, err: fmt.Errorf("%d fields, header has %d", len(rec), r.ncols)}, nil
 	}
@@ -235,7 +307,7 @@ func (r *Reader) key(w *row) (sounding.Key, error) {
 func parseTime(s string) (time.Time, error) {
 	t, err := time.Parse(time.RFC3339Nano, s)
 	if err != nil {
-		return time.Time{}, fmt.Errorf("%q is not an RFC 3339 time", s)
+		return time.Time{}, fmt.Errorf("%s is not an RFC 3339 time", ingest.Quote(s))
 	}
 	return t.UTC(), nil
 }
@@ -270,6 +342,9 @@ func (r *Reader) Next() (*sounding.Sounding, error) {
 		if err := r.header(); err != nil {
 			return nil, err
 		}
+		if r.junk != nil {
+			return nil, r.junk
+		}
 	}
 	first, err := r.next()
 	if err != nil {
@@ -278,6 +353,7 @@ func (r *Reader) Next() (*sounding.Sounding, error) {
 	}
 	k, err := r.key(first)
 	if err != nil {
+		r.skipSame(first)
 		return nil, err
 	}
 	raw := [2]string{r.field(first, colStation), r.field(first, colLaunch)}
@@ -316,6 +392,28 @@ func (r *Reader) Next() (*sounding.Sounding, error) {
 	return s, nil
 }
 
+// skipSame reads past the rows after first that have the same station and
+// launch fields, as written, so that a sounding whose key cannot be read
+// (an unreadable launch time, an empty station) is reported once, not
+// once per level.
+func (r *Reader) skipSame(first *row) {
+	if len(first.rec) == 0 {
+		return
+	}
+	st, lt := r.field(first, colStation), r.field(first, colLaunch)
+	for {
+		w, err := r.next()
+		if err != nil {
+			r.done = true
+			return
+		}
+		if len(w.rec) == 0 || r.field(w, colStation) != st || r.field(w, colLaunch) != lt {
+			r.pending = w
+			return
+		}
+	}
+}
+
 // addRow appends the level of row w to s, or returns the row's error.
 func (r *Reader) addRow(s *sounding.Sounding, w *row) error {
 	if w.err != nil {
@@ -349,7 +447,7 @@ func (r *Reader) addRow(s *sounding.Sounding, w *row) error {
 	case "wind_only":
 		l.Kind = sounding.KindWindOnly
 	default:
-		return r.errorf(w.line, ingest.ErrBadLevel, "level_kind %q is not surface, standard, significant or wind_only", k)
+		return r.errorf(w.line, ingest.ErrBadLevel, "level_kind %s is not surface, standard, significant or wind_only", ingest.Quote(k))
 	}
 	set(&l, sounding.VarPressure, &l.PressurePa, v[colPressure]*100, sounding.Reported)
 	set(&l, sounding.VarHeight, &l.HeightM, v[colHeight], sounding.Reported)
@@ -370,17 +468,59 @@ func (r *Reader) addRow(s *sounding.Sounding, w *row) error {
 	return nil
 }
 
-// number parses a decimal number; "" is missing (NaN). NaN and infinite
-// spellings are rejected: an empty field is the only missing marker.
+// number parses a decimal number as FORMAT.md defines it; "" is missing
+// (NaN). Only [+-]digits[.digits][(e|E)[+-]digits] (digits on at least one
+// side of the point) is a number: NaN and infinite spellings, hexadecimal
+// and underscores, which strconv.ParseFloat would accept, are rejected,
+// and so is a value too large for float64. An empty field is the only
+// missing marker.
 func number(f string) (float64, error) {
 	if f == "" {
 		return math.NaN(), nil
 	}
+	if !isDecimal(f) {
+		return 0, fmt.Errorf("%s is not a decimal number (see FORMAT.md)", ingest.Quote(f))
+	}
 	x, err := strconv.ParseFloat(f, 64)
 	if err != nil || math.IsNaN(x) || math.IsInf(x, 0) {
-		return 0, fmt.Errorf("%q is not a finite number", f)
+		return 0, fmt.Errorf("%s is not a finite number", ingest.Quote(f))
 	}
 	return x, nil
+}
+
+// isDecimal reports whether f is [+-]digits[.digits][(e|E)[+-]digits],
+// with at least one digit before or after the point.
+func isDecimal(f string) bool {
+	i := 0
+	if i < len(f) && (f[i] == '+' || f[i] == '-') {
+		i++
+	}
+	digits := func() int {
+		n := 0
+		for i < len(f) && f[i] >= '0' && f[i] <= '9' {
+			i++
+			n++
+		}
+		return n
+	}
+	n := digits()
+	if i < len(f) && f[i] == '.' {
+		i++
+		n += digits()
+	}
+	if n == 0 {
+		return false
+	}
+	if i < len(f) && (f[i] == 'e' || f[i] == 'E') {
+		i++
+		if i < len(f) && (f[i] == '+' || f[i] == '-') {
+			i++
+		}
+		if digits() == 0 {
+			return false
+		}
+	}
+	return i == len(f)
 }
 
 func set(l *sounding.Level, v sounding.Var, dst *float64, x float64, st sounding.Status) {

@@ -95,8 +95,29 @@ func TestReadErrors(t *testing.T) {
 			"A,2024-01-01T00:00:00Z,1000,0,1\nA,2024-01-01T00:00:00Z,9x0,100,0\n" +
 			"B,2024-01-01T00:00:00Z,1000,0,1\n",
 			[]string{"9x0", "n=1"}, []int{3, 0}},
-		{"NaN is not missing", hdr + "A,2024-01-01T00:00:00Z,NaN,0,1\n", []string{"not a finite number"}, []int{2}},
+		{"NaN is not missing", hdr + "A,2024-01-01T00:00:00Z,NaN,0,1\n", []string{"not a decimal number"}, []int{2}},
+		// FORMAT.md: numbers are decimal with optional exponent; what
+		// strconv.ParseFloat accepts besides (Go spec of float literals
+		// and ParseFloat's documentation) is refused.
+		{"only FORMAT.md decimals", hdr +
+			"A,2024-01-01T00:00:00Z,1000,0,Inf\nB,2024-01-01T00:00:00Z,0x3E8,0,1\nC,2024-01-01T00:00:00Z,1_000,0,1\n" +
+			"D,2024-01-01T00:00:00Z,1000,0,-infinity\nE,2024-01-01T00:00:00Z,1e400,0,1\nF,2024-01-01T00:00:00Z,1000,0,1e\n" +
+			"G,2024-01-01T00:00:00Z,0x1p-2,0,1\nH,2024-01-01T00:00:00Z,.,0,1\nI,2024-01-01T00:00:00Z,+-1,0,1\n" +
+			"J,2024-01-01T00:00:00Z,+1000.,-.5,-4.5e1\nK,2024-01-01T00:00:00Z,1.0E+3,0,1\n",
+			[]string{"\"Inf\" is not", "0x3E8", "1_000", "-infinity", "\"1e400\" is not a finite", "\"1e\"", "0x1p-2", "\".\"", "+-1", "n=1", "n=1"},
+			[]int{2, 3, 4, 5, 6, 7, 8, 9, 10, 0, 0}},
 		{"bad time", hdr + "A,2024-13-01T00:00:00Z,1000,0,1\nB,2024-01-01T00:00:00Z,1000,0,1\n", []string{"RFC 3339", "n=1"}, []int{2, 0}},
+		{"bad time once per sounding", hdr + "A,2024-01-01 00:00,1000,0,1\nA,2024-01-01 00:00,900,900,1\nA,2024-01-01 00:00,800,1900,1\n" +
+			"A,2024-01-02 00:00,1000,0,1\nB,2024-01-01T00:00:00Z,1000,0,1\n",
+			[]string{"RFC 3339", "RFC 3339", "n=1"}, []int{2, 5, 0}},
+		{"empty station once", hdr + ",2024-01-01T00:00:00Z,1000,0,1\n,2024-01-01T00:00:00Z,900,900,1\nB,2024-01-01T00:00:00Z,1000,0,1\n",
+			[]string{"empty station_id", "n=1"}, []int{2, 0}},
+		{"junk before the header", "exported by a logger\r\nsite 7\r\n" + strings.ReplaceAll(hdr, "\n", "\r\n") +
+			"A,2024-01-01T00:00:00Z,1000,0,1\r\nA,2024-01-01T00:00:00Z,9x0,100,0\r\n",
+			[]string{"lines 1-2 before the header", "9x0"}, []int{1, 5}},
+		{"CR-only line ends", "\ufeff" + strings.ReplaceAll(hdr+"A,2024-01-01T00:00:00Z,1000,0,1\nA,2024-01-01T00:00:00Z,900,900,1\n"+
+			"B,2024-01-01T00:00:00Z,1000,0,x\n", "\n", "\r"),
+			[]string{"n=2", "\"x\" is not"}, []int{0, 4}},
 		{"field count", hdr + "A,2024-01-01T00:00:00Z,1000,0\nA,2024-01-01T00:00:00Z,990,90,1\n", []string{"4 fields"}, []int{2}},
 		{"reappears", hdr +
 			"A,2024-01-01T00:00:00Z,1000,0,1\nB,2024-01-01T00:00:00Z,1000,0,1\n" +
@@ -272,6 +293,26 @@ func BenchmarkRead(b *testing.B) {
 			} else if err != nil {
 				b.Fatal(err)
 			}
+		}
+	}
+}
+
+// TestHugeTokenQuotedShort: a field of 8 MB in a bad number, an unknown
+// column and a bad time gives a message of at most a few hundred bytes
+// (ingest.Quote).
+func TestHugeTokenQuotedShort(t *testing.T) {
+	big := strings.Repeat("9x", 4<<20)
+	for name, text := range map[string]string{
+		"number": hdr + "A,2024-01-01T00:00:00Z," + big + ",0,1\n",
+		"column": "station_id,launch_time_utc," + big + "\n",
+		"time":   hdr + "A," + big + ",1000,0,1\n",
+	} {
+		rs := readAll(t, text)
+		if len(rs) != 1 || rs[0].err == nil {
+			t.Fatalf("%s: %v", name, rs)
+		}
+		if msg := rs[0].err.Error(); len(msg) > 400 || !strings.Contains(msg, "(8388608 bytes)") {
+			t.Errorf("%s: message of %d bytes: %.300s", name, len(msg), msg)
 		}
 	}
 }

@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"strings"
 	"unicode/utf8"
+
+	"github.com/sondeclim/sondeclim/ingest"
 )
 
 // MaxStationIDBytes is the longest station identifier the store accepts,
@@ -95,15 +97,6 @@ func unhex(c byte) int {
 	return -1
 }
 
-// QuoteLimit is the most bytes of input a message quotes.
-const QuoteLimit = 100
-
-// Quote quotes s for a message (Go syntax, so control characters and
-// invalid UTF-8 show as escapes), cut to its first QuoteLimit bytes with
-// "…" when longer, so that a hostile token cannot flood the log.
-func Quote(s string) string {
-	if len(s) > QuoteLimit {
-		return fmt.Sprintf("%q…", s[:QuoteLimit])
-	}
-	return fmt.Sprintf("%q", s)
-}
+// Quote quotes s for a message, at most ingest.QuoteLimit bytes of it
+// (ingest.Quote: the one quoting rule of every message about input).
+func Quote(s string) string { return ingest.Quote(s) }
