@@ -73,13 +73,17 @@ func LoadStations(ctx context.Context, db *sql.DB) ([]Station, error) {
 	}
 	defer rows.Close()
 	var out []Station
+	var s Station
+	var sc scanner
+	sc.s("station_id", &s.ID)
+	sc.s("station_name", &s.Name)
+	sc.t("first_time", &s.First)
+	sc.t("last_time", &s.Last)
+	sc.i("n_soundings", &s.Soundings)
 	for rows.Next() {
-		var s Station
-		var first, last sql.NullTime
-		if err := rows.Scan(&s.ID, &s.Name, &first, &last, &s.Soundings); err != nil {
+		if err := sc.scan(rows); err != nil {
 			return nil, fmt.Errorf("stations: %w", err)
 		}
-		s.First, s.Last = first.Time.UTC(), last.Time.UTC()
 		out = append(out, s)
 	}
 	if err := rows.Err(); err != nil {
@@ -177,13 +181,21 @@ func LoadMonthlyHeights(ctx context.Context, db *sql.DB, st Station, method stri
 	}
 	defer rows.Close()
 	m := &MonthlyHeights{Station: st, Method: method}
+	var b HeightBox
+	var sc scanner
+	sc.i("month", &b.Month)
+	sc.i("nominal_hour", &b.Hour)
+	sc.i("n_values", &b.N)
+	sc.i("n_undefined", &b.Undefined)
+	sc.f("p10_m", &b.P10)
+	sc.f("p25_m", &b.P25)
+	sc.f("p50_m", &b.P50)
+	sc.f("p75_m", &b.P75)
+	sc.f("p90_m", &b.P90)
 	for rows.Next() {
-		var b HeightBox
-		var p [5]sql.NullFloat64
-		if err := rows.Scan(&b.Month, &b.Hour, &b.N, &b.Undefined, &p[0], &p[1], &p[2], &p[3], &p[4]); err != nil {
+		if err := sc.scan(rows); err != nil {
 			return nil, fmt.Errorf("monthly mixing heights of %s: %w", st.ID, err)
 		}
-		b.P10, b.P25, b.P50, b.P75, b.P90 = nullNaN(p[0]), nullNaN(p[1]), nullNaN(p[2]), nullNaN(p[3]), nullNaN(p[4])
 		m.Boxes = append(m.Boxes, b)
 	}
 	return m, rows.Err()
@@ -340,9 +352,14 @@ func LoadSBIFrequency(ctx context.Context, db *sql.DB, st Station) (*SBIFrequenc
 	}
 	defer rows.Close()
 	f := &SBIFrequency{Station: st}
+	var c FrequencyCell
+	var sc scanner
+	sc.i("month", &c.Month)
+	sc.i("nominal_hour", &c.Hour)
+	sc.i("n_valid", &c.Valid)
+	sc.i("n_sbi", &c.SBI)
 	for rows.Next() {
-		var c FrequencyCell
-		if err := rows.Scan(&c.Month, &c.Hour, &c.Valid, &c.SBI); err != nil {
+		if err := sc.scan(rows); err != nil {
 			return nil, fmt.Errorf("inversion frequency of %s: %w", st.ID, err)
 		}
 		f.Cells = append(f.Cells, c)

@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"image/color"
 	"math"
+	"slices"
 	"sort"
 	"strings"
 	"time"
@@ -190,44 +191,77 @@ func readRows(ctx context.Context, db *sql.DB, file string, args []any, read fun
 	return rows.Err()
 }
 
-// scanner collects nullable destinations and converts them after Scan.
+// scanner collects nullable destinations by column name and converts
+// them after Scan, so a Go scanner is tied to its SQL file's column names,
+// not to the order of its SELECT list: every column the SQL selects must
+// be claimed and every claimed column selected.
 type scanner struct {
-	dest []any
+	dest map[string]any
 	post []func()
+	row  []any  // destinations in the order of the result's columns
+	dup  string // a column claimed twice
 }
 
-func (s *scanner) f(p *float64) {
+func (s *scanner) add(name string, v any, post func()) {
+	if s.dest == nil {
+		s.dest = map[string]any{}
+	}
+	if _, ok := s.dest[name]; ok {
+		s.dup = name
+	}
+	s.dest[name] = v
+	s.post = append(s.post, post)
+}
+
+func (s *scanner) f(name string, p *float64) {
 	var v sql.NullFloat64
-	s.dest = append(s.dest, &v)
-	s.post = append(s.post, func() { *p = nullNaN(v) })
+	s.add(name, &v, func() { *p = nullNaN(v) })
 }
 
-func (s *scanner) s(p *string) {
+func (s *scanner) s(name string, p *string) {
 	var v sql.NullString
-	s.dest = append(s.dest, &v)
-	s.post = append(s.post, func() { *p = v.String })
+	s.add(name, &v, func() { *p = v.String })
 }
 
-func (s *scanner) b(p *bool) {
+func (s *scanner) b(name string, p *bool) {
 	var v sql.NullBool
-	s.dest = append(s.dest, &v)
-	s.post = append(s.post, func() { *p = v.Bool })
+	s.add(name, &v, func() { *p = v.Bool })
 }
 
-func (s *scanner) i(p *int) {
+func (s *scanner) i(name string, p *int) {
 	var v sql.NullInt64
-	s.dest = append(s.dest, &v)
-	s.post = append(s.post, func() { *p = int(v.Int64) })
+	s.add(name, &v, func() { *p = int(v.Int64) })
 }
 
-func (s *scanner) t(p *time.Time) {
+func (s *scanner) t(name string, p *time.Time) {
 	var v sql.NullTime
-	s.dest = append(s.dest, &v)
-	s.post = append(s.post, func() { *p = v.Time.UTC() })
+	s.add(name, &v, func() { *p = v.Time.UTC() })
 }
 
 func (s *scanner) scan(rows *sql.Rows) error {
-	if err := rows.Scan(s.dest...); err != nil {
+	if s.dup != "" {
+		return fmt.Errorf("column %s is read twice", s.dup)
+	}
+	cols, err := rows.Columns()
+	if err != nil {
+		return err
+	}
+	s.row = s.row[:0]
+	for _, c := range cols {
+		d, ok := s.dest[c]
+		if !ok {
+			return fmt.Errorf("column %s is selected but not read", c)
+		}
+		s.row = append(s.row, d)
+	}
+	if len(cols) != len(s.dest) {
+		for name := range s.dest {
+			if !slices.Contains(cols, name) {
+				return fmt.Errorf("column %s is read but not selected", name)
+			}
+		}
+	}
+	if err := rows.Scan(s.row...); err != nil {
 		return err
 	}
 	for _, f := range s.post {
@@ -239,39 +273,39 @@ func (s *scanner) scan(rows *sql.Rows) error {
 func (p *Profile) scanSounding(rows *sql.Rows) error {
 	var sc scanner
 	var line int
-	sc.s(&p.StationID)
-	sc.s(&p.StationName)
-	sc.t(&p.LaunchTime)
-	sc.t(&p.NominalTime)
-	sc.i(&p.NominalHour)
-	sc.f(&p.LatitudeDeg)
-	sc.f(&p.LongitudeDeg)
-	sc.f(&p.ElevationM)
-	sc.s(&p.SourceFile)
-	sc.i(&line)
-	sc.s(&p.SourceFormat)
-	sc.i(&p.LevelCount)
-	sc.s(&p.QCStatus)
-	sc.s(&p.AnalysisStatus)
-	sc.s(&p.SunClass)
-	sc.f(&p.SunElevation)
-	sc.s(&p.Regime)
-	sc.f(&p.SurfacePressureHPa)
-	sc.f(&p.SurfaceTemperatureC)
-	sc.f(&p.SurfaceDewpointC)
-	sc.f(&p.SurfaceThetaK)
-	sc.f(&p.Consensus.HeightAGLM)
-	sc.s(&p.Consensus.Status)
-	sc.f(&p.SpreadM)
-	sc.i(&p.MethodsOK)
-	sc.b(&p.Unresolved)
-	sc.f(&p.TransportWindMS)
-	sc.s(&p.TransportWindMethod)
-	sc.f(&p.VentilationM2S)
-	sc.f(&p.VentilationKtFt)
-	sc.s(&p.VentilationCategory)
-	sc.s(&p.VentilationTable)
-	sc.s(&p.VentilationHeightMethod)
+	sc.s("station_id", &p.StationID)
+	sc.s("station_name", &p.StationName)
+	sc.t("launch_time", &p.LaunchTime)
+	sc.t("nominal_time", &p.NominalTime)
+	sc.i("nominal_hour", &p.NominalHour)
+	sc.f("latitude_deg", &p.LatitudeDeg)
+	sc.f("longitude_deg", &p.LongitudeDeg)
+	sc.f("elevation_m", &p.ElevationM)
+	sc.s("source_file", &p.SourceFile)
+	sc.i("source_line", &line)
+	sc.s("source_format", &p.SourceFormat)
+	sc.i("level_count", &p.LevelCount)
+	sc.s("qc_status", &p.QCStatus)
+	sc.s("analysis_status", &p.AnalysisStatus)
+	sc.s("sun_class", &p.SunClass)
+	sc.f("sun_elevation_deg", &p.SunElevation)
+	sc.s("liu_liang_regime", &p.Regime)
+	sc.f("surface_pressure_hpa", &p.SurfacePressureHPa)
+	sc.f("surface_temperature_c", &p.SurfaceTemperatureC)
+	sc.f("surface_dewpoint_c", &p.SurfaceDewpointC)
+	sc.f("surface_theta_k", &p.SurfaceThetaK)
+	sc.f("mixing_height_consensus_m", &p.Consensus.HeightAGLM)
+	sc.s("mixing_height_consensus_status", &p.Consensus.Status)
+	sc.f("mixing_height_spread_m", &p.SpreadM)
+	sc.i("mixing_height_methods_ok", &p.MethodsOK)
+	sc.b("mixing_height_unresolved", &p.Unresolved)
+	sc.f("transport_wind_ms", &p.TransportWindMS)
+	sc.s("transport_wind_method", &p.TransportWindMethod)
+	sc.f("ventilation_index_m2s", &p.VentilationM2S)
+	sc.f("ventilation_index_ktft", &p.VentilationKtFt)
+	sc.s("ventilation_category", &p.VentilationCategory)
+	sc.s("ventilation_table", &p.VentilationTable)
+	sc.s("ventilation_height_method", &p.VentilationHeightMethod)
 	if err := sc.scan(rows); err != nil {
 		return err
 	}
@@ -285,26 +319,26 @@ func (p *Profile) scanSounding(rows *sql.Rows) error {
 func (p *Profile) scanLevel(rows *sql.Rows) error {
 	var l Level
 	var sc scanner
-	sc.i(&l.Index)
-	sc.s(&l.Kind)
-	sc.f(&l.PressureHPa)
-	sc.f(&l.HeightM)
-	sc.b(&l.HeightDerived)
-	sc.f(&l.HeightAGLM)
-	sc.f(&l.TemperatureC)
-	sc.f(&l.DewpointC)
-	sc.f(&l.ThetaK)
-	sc.f(&l.MixingRatioGKg)
-	sc.f(&l.WindDirDeg)
-	sc.f(&l.WindSpeedMS)
-	sc.s(&l.TemperatureStatus)
-	sc.s(&l.HeightStatus)
-	sc.s(&l.HumidityStatus)
-	sc.s(&l.PressureQC)
-	sc.s(&l.HeightQC)
-	sc.s(&l.TemperatureQC)
-	sc.s(&l.HumidityQC)
-	sc.s(&l.WindQC)
+	sc.i("level_index", &l.Index)
+	sc.s("level_kind", &l.Kind)
+	sc.f("pressure_hpa", &l.PressureHPa)
+	sc.f("height_m", &l.HeightM)
+	sc.b("height_derived", &l.HeightDerived)
+	sc.f("height_agl_m", &l.HeightAGLM)
+	sc.f("temperature_c", &l.TemperatureC)
+	sc.f("dewpoint_c", &l.DewpointC)
+	sc.f("theta_k", &l.ThetaK)
+	sc.f("mixing_ratio_gkg", &l.MixingRatioGKg)
+	sc.f("wind_direction_deg", &l.WindDirDeg)
+	sc.f("wind_speed_ms", &l.WindSpeedMS)
+	sc.s("temperature_status", &l.TemperatureStatus)
+	sc.s("height_status", &l.HeightStatus)
+	sc.s("humidity_status", &l.HumidityStatus)
+	sc.s("pressure_qc", &l.PressureQC)
+	sc.s("height_qc", &l.HeightQC)
+	sc.s("temperature_qc", &l.TemperatureQC)
+	sc.s("humidity_qc", &l.HumidityQC)
+	sc.s("wind_qc", &l.WindQC)
 	if err := sc.scan(rows); err != nil {
 		return err
 	}
@@ -315,17 +349,17 @@ func (p *Profile) scanLevel(rows *sql.Rows) error {
 func (p *Profile) scanInversion(rows *sql.Rows) error {
 	var v Inversion
 	var sc scanner
-	sc.i(&v.Index)
-	sc.b(&v.SurfaceBased)
-	sc.f(&v.BaseAGLM)
-	sc.f(&v.TopAGLM)
-	sc.f(&v.BasePressureHPa)
-	sc.f(&v.TopPressureHPa)
-	sc.f(&v.DepthM)
-	sc.f(&v.StrengthK)
-	sc.f(&v.GradientKPerKm)
-	sc.b(&v.TopAtCeiling)
-	sc.s(&v.Class)
+	sc.i("inversion_index", &v.Index)
+	sc.b("surface_based", &v.SurfaceBased)
+	sc.f("base_agl_m", &v.BaseAGLM)
+	sc.f("top_agl_m", &v.TopAGLM)
+	sc.f("base_pressure_hpa", &v.BasePressureHPa)
+	sc.f("top_pressure_hpa", &v.TopPressureHPa)
+	sc.f("depth_m", &v.DepthM)
+	sc.f("strength_k", &v.StrengthK)
+	sc.f("gradient_k_per_km", &v.GradientKPerKm)
+	sc.b("top_at_ceiling", &v.TopAtCeiling)
+	sc.s("class", &v.Class)
 	if err := sc.scan(rows); err != nil {
 		return err
 	}
@@ -336,14 +370,14 @@ func (p *Profile) scanInversion(rows *sql.Rows) error {
 func (p *Profile) scanMixedLayer(rows *sql.Rows) error {
 	var m MixedLayer
 	var sc scanner
-	sc.i(&m.Index)
-	sc.f(&m.BaseAGLM)
-	sc.f(&m.TopAGLM)
-	sc.f(&m.BasePressureHPa)
-	sc.f(&m.TopPressureHPa)
-	sc.f(&m.ThetaK)
-	sc.f(&m.MixingRatioGKg)
-	sc.i(&m.Levels)
+	sc.i("layer_index", &m.Index)
+	sc.f("base_agl_m", &m.BaseAGLM)
+	sc.f("top_agl_m", &m.TopAGLM)
+	sc.f("base_pressure_hpa", &m.BasePressureHPa)
+	sc.f("top_pressure_hpa", &m.TopPressureHPa)
+	sc.f("theta_k", &m.ThetaK)
+	sc.f("mixing_ratio_gkg", &m.MixingRatioGKg)
+	sc.i("levels", &m.Levels)
 	if err := sc.scan(rows); err != nil {
 		return err
 	}
@@ -354,12 +388,12 @@ func (p *Profile) scanMixedLayer(rows *sql.Rows) error {
 func (p *Profile) scanHeight(rows *sql.Rows) error {
 	var h MethodHeight
 	var sc scanner
-	sc.s(&h.Method)
-	sc.f(&h.HeightAGLM)
-	sc.s(&h.Status)
-	sc.s(&h.Note)
-	sc.f(&h.LevelSpacingM)
-	sc.b(&h.Unresolved)
+	sc.s("method", &h.Method)
+	sc.f("height_agl_m", &h.HeightAGLM)
+	sc.s("status", &h.Status)
+	sc.s("note", &h.Note)
+	sc.f("level_spacing_m", &h.LevelSpacingM)
+	sc.b("unresolved", &h.Unresolved)
 	if err := sc.scan(rows); err != nil {
 		return err
 	}
