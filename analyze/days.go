@@ -135,13 +135,6 @@ func (d DayRecord) SBIPersists(minStrengthK float64) Tri {
 	return m.And(d.AfternoonSBI)
 }
 
-// DayHeatDeficitJ returns the smaller of the morning and afternoon heat
-// deficits (J m⁻²): what is left of the pool after the day's heating, NaN
-// unless both are known.
-func (d DayRecord) DayHeatDeficitJ() float64 {
-	return math.Min(d.MorningHeatDeficitJ, d.AfternoonHeatDeficitJ) // NaN if either is
-}
-
 // BuildDays groups soundings into local solar days (sun.LocalSolarDate)
 // per station and returns one DayRecord per station and day with at least
 // one sounding, sorted by station and date. holzworth maps a day to its

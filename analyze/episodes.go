@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strconv"
+	"strings"
 	"time"
 )
 
@@ -21,12 +23,16 @@ type Criterion struct {
 	PersistentSBI          bool
 	MinMorningSBIStrengthK float64 // K; used with PersistentSBI (NaN or 0: any SBI)
 	DeepStable             bool    // the morning deep stable layer of Wolyn & McKee (1989)
-	// MinHeatDeficitMJ: the smaller of the morning and afternoon heat
-	// deficits (DayRecord.DayHeatDeficitJ) is at least this, MJ m⁻².
+	// MinHeatDeficitMJ: the morning and the afternoon heat deficits are
+	// both at least this, MJ m⁻² (a day with one of them below it fails
+	// even when the other is unknown).
 	MinHeatDeficitMJ   float64
 	MaxAfternoonMHM    float64 // m AGL
 	MaxAfternoonWindMS float64 // m/s
 	MaxVentilationM2S  float64 // m² s⁻¹
+	// Condition is a user's rule (ParseRule), nil for the built-ins; it
+	// must hold besides any of the conditions above.
+	Condition *Condition
 
 	// MinDays is the least number of days meeting the rule in an episode
 	// (missing days inside do not count towards it). MaxGapDays is the
@@ -95,7 +101,7 @@ func (c Criterion) Validate() error {
 	case c.MaxGapDays < 0:
 		return fmt.Errorf("episode criterion %s: maximum gap %d days, want ≥ 0", c.Name, c.MaxGapDays)
 	case !c.PersistentSBI && !c.DeepStable && math.IsNaN(c.MinHeatDeficitMJ) && math.IsNaN(c.MaxAfternoonMHM) &&
-		math.IsNaN(c.MaxAfternoonWindMS) && math.IsNaN(c.MaxVentilationM2S):
+		math.IsNaN(c.MaxAfternoonWindMS) && math.IsNaN(c.MaxVentilationM2S) && c.Condition == nil:
 		return fmt.Errorf("episode criterion %s: no condition set", c.Name)
 	}
 	return nil
@@ -121,7 +127,8 @@ func (c Criterion) Evaluate(d DayRecord) Tri {
 		r = r.And(d.DeepStable)
 	}
 	if t := c.MinHeatDeficitMJ; !math.IsNaN(t) {
-		r = r.And(cmp(d.DayHeatDeficitJ()/1e6, func(v float64) bool { return v >= t }))
+		atLeast := func(v float64) bool { return v >= t }
+		r = r.And(cmp(d.MorningHeatDeficitJ/1e6, atLeast)).And(cmp(d.AfternoonHeatDeficitJ/1e6, atLeast))
 	}
 	if t := c.MaxAfternoonMHM; !math.IsNaN(t) {
 		r = r.And(cmp(d.AfternoonMHM, func(v float64) bool { return v <= t }))
@@ -132,7 +139,48 @@ func (c Criterion) Evaluate(d DayRecord) Tri {
 	if t := c.MaxVentilationM2S; !math.IsNaN(t) {
 		r = r.And(cmp(d.VentilationM2S, func(v float64) bool { return v <= t }))
 	}
+	if c.Condition != nil {
+		r = r.And(c.Condition.Eval(d))
+	}
 	return r
+}
+
+// Definition writes the criterion in the rule syntax of ParseRule, with
+// its minimum length and gap allowance: the text recorded with every
+// episode (the episodes table's rule column), so stored results say what
+// rule made them. A built-in's definition, parsed as a user rule under
+// another name, finds the same episodes. The deep-stable-layer fraction
+// (DayConfig.MinStableFraction) and the choice of morning and afternoon
+// soundings are the day configuration's, not the rule's.
+func (c Criterion) Definition() string {
+	var parts []string
+	if c.PersistentSBI {
+		if m := c.MinMorningSBIStrengthK; !math.IsNaN(m) && m > 0 {
+			parts = append(parts, "morning_sbi_strength_k >= "+strconv.FormatFloat(m, 'g', -1, 64))
+		}
+		parts = append(parts, "sbi_persists")
+	}
+	if c.DeepStable {
+		parts = append(parts, "deep_stable_layer")
+	}
+	num := func(col, op string, v float64) {
+		if !math.IsNaN(v) {
+			parts = append(parts, col+" "+op+" "+strconv.FormatFloat(v, 'g', -1, 64))
+		}
+	}
+	num("morning_heat_deficit_mj_m2", ">=", c.MinHeatDeficitMJ)
+	num("afternoon_heat_deficit_mj_m2", ">=", c.MinHeatDeficitMJ)
+	num("afternoon_mixing_height_m", "<=", c.MaxAfternoonMHM)
+	num("afternoon_transport_wind_ms", "<=", c.MaxAfternoonWindMS)
+	num("afternoon_ventilation_m2s", "<=", c.MaxVentilationM2S)
+	if c.Condition != nil {
+		s := c.Condition.String()
+		if len(parts) > 0 && c.Condition.op == "or" {
+			s = "(" + s + ")"
+		}
+		parts = append(parts, s)
+	}
+	return fmt.Sprintf("%s; min_days=%d; max_gap=%d", strings.Join(parts, " and "), c.MinDays, c.MaxGapDays)
 }
 
 // Episode is one run of consecutive local days meeting a criterion at

@@ -69,19 +69,7 @@ func TestSterlingInversionShapes(t *testing.T) {
 // January, next to none in June–August, and runs of them forming
 // episodes with a heat deficit.
 func TestSterlingDeepStableLayers(t *testing.T) {
-	all := readSterling(t)
-	cfg := DefaultConfig()
-	var obs []DayObs
-	for _, s := range all {
-		r := Analyze(s, cfg)
-		if r.Status != StatusOK {
-			continue
-		}
-		obs = append(obs, DayObs{StationID: s.StationID, LaunchTime: s.LaunchTime, LongitudeDeg: s.LongitudeDeg,
-			SBIPresent: r.SBI.Present, SBIStrengthK: r.SBI.StrengthK, HeatDeficitJ: r.HeatDeficit.JPerM2,
-			StableFraction: r.StableFraction, ParcelMHM: r.Parcel.HeightAGLM, TransportWindMS: r.Ventilation.TransportWindMS})
-	}
-	days := BuildDays(obs, nil, DefaultDayConfig())
+	days := sterlingDays(t)
 	var nJan, dslJan, nJJA, dslJJA float64
 	for _, d := range days {
 		if d.DeepStable == Unknown {
