@@ -3,7 +3,8 @@
 -- Parameters: $1 period ('season' or 'month'), $2 station ids (empty list:
 -- all), $3 first year, $4 last year (season mode: the season's year, December
 -- counting with the following DJF; month mode: the calendar year), $5 the
--- criterion names, in order.
+-- criterion names, in order, $6 their definitions (analyze.Criterion.Definition,
+-- the rule column: what rule made the row).
 -- An episode is counted in the period of its first day; a day inside an
 -- episode (days_in_episodes, share_of_days) in its own period. share_of_days
 -- is days meeting the rule inside episodes over the days with an analysable
@@ -19,7 +20,8 @@ WITH d AS (
 ), dk AS (
     SELECT * FROM d WHERE y BETWEEN $3 AND $4
 ), crit AS (
-    SELECT c.criterion, c.ord FROM (SELECT unnest($5::VARCHAR[]) AS criterion, generate_subscripts($5::VARCHAR[], 1) AS ord) c
+    SELECT c.criterion, c.rule, c.ord FROM (SELECT unnest($5::VARCHAR[]) AS criterion, unnest($6::VARCHAR[]) AS rule,
+        generate_subscripts($5::VARCHAR[], 1) AS ord) c
 ), cells AS (
     SELECT station_id, season, month, count(*) AS n_days, count(DISTINCT y) AS n_years
     FROM dk GROUP BY ALL
@@ -51,7 +53,8 @@ SELECT c.station_id, k.criterion, c.season, c.month, c.n_years, c.n_days,
        ep.q[2] AS length_p90_days,
        ep.longest AS longest_days,
        coalesce(ep.days_missing, 0) AS days_missing,
-       coalesce(ep.n_open, 0) AS n_open_ended
+       coalesce(ep.n_open, 0) AS n_open_ended,
+       k.rule
 FROM cells c
 CROSS JOIN crit k
 LEFT JOIN ep ON ep.station_id = c.station_id AND ep.criterion = k.criterion

@@ -48,10 +48,15 @@ func AttachEpisodes(ctx context.Context, db *sql.DB, o EpisodeOptions) (EpisodeC
 	if criteria == nil {
 		criteria = analyze.BuiltinCriteria()
 	}
+	seen := map[string]bool{}
 	for _, c := range criteria {
 		if err := c.Validate(); err != nil {
 			return n, err
 		}
+		if seen[c.Name] {
+			return n, fmt.Errorf("queries: episodes: two rules named %s", c.Name)
+		}
+		seen[c.Name] = true
 	}
 	obs, err := readDayObs(ctx, db)
 	if err != nil {
@@ -66,15 +71,7 @@ func AttachEpisodes(ctx context.Context, db *sql.DB, o EpisodeOptions) (EpisodeC
 	n.Days = len(days)
 	dayRows := make([]schema.DayRow, len(days))
 	for i, d := range days {
-		season, sy := seasonOf(d.Date)
-		dayRows[i] = schema.DayRow{StationID: d.StationID, LocalDate: d.Date, Year: int32(d.Date.Year()),
-			Month: int32(d.Date.Month()), Season: season, SeasonYear: int32(sy), Soundings: int32(d.Soundings),
-			HasMorning: d.Morning >= 0, HasAfternoon: d.Afternoon >= 0,
-			MorningSBI: d.MorningSBI.Bool(), MorningSBIK: d.MorningSBIStrengthK, AfternoonSBI: d.AfternoonSBI.Bool(),
-			SBIPersists: d.SBIPersists(0).Bool(), MorningHDMJ: d.MorningHeatDeficitJ / 1e6,
-			AfternoonHDMJ: d.AfternoonHeatDeficitJ / 1e6, MaxHDMJ: d.MaxHeatDeficitJ / 1e6,
-			StableFraction: d.StableFraction, DeepStable: d.DeepStable.Bool(), AfternoonMHM: d.AfternoonMHM,
-			AfternoonMHFrom: d.AfternoonMHSource, AfternoonWindMS: d.AfternoonWindMS, AfternoonVentM2S: d.VentilationM2S}
+		dayRows[i] = dayRow(d)
 	}
 	var epRows []schema.EpisodeRow
 	var edRows []schema.EpisodeDayRow
@@ -83,9 +80,10 @@ func AttachEpisodes(ctx context.Context, db *sql.DB, o EpisodeOptions) (EpisodeC
 		if err != nil {
 			return n, err
 		}
+		def := c.Definition()
 		for _, e := range eps {
 			season, sy := seasonOf(e.First)
-			epRows = append(epRows, schema.EpisodeRow{StationID: e.StationID, Criterion: e.Criterion,
+			epRows = append(epRows, schema.EpisodeRow{StationID: e.StationID, Criterion: e.Criterion, Rule: def,
 				FirstDay: e.First, LastDay: e.Last, Year: int32(e.First.Year()), Month: int32(e.First.Month()),
 				Season: season, SeasonYear: int32(sy), LengthDays: int32(e.LengthDays), DaysMet: int32(e.DaysMet),
 				DaysMissing: int32(e.DaysMissing), Soundings: int32(e.Soundings), OpenStart: e.OpenStart, OpenEnd: e.OpenEnd,
@@ -113,6 +111,19 @@ func AttachEpisodes(ctx context.Context, db *sql.DB, o EpisodeOptions) (EpisodeC
 		return n, err
 	}
 	return n, materialize(ctx, db, dir, schema.TableEpisodeDays, edRows)
+}
+
+// dayRow is the days table's row of a day.
+func dayRow(d analyze.DayRecord) schema.DayRow {
+	season, sy := seasonOf(d.Date)
+	return schema.DayRow{StationID: d.StationID, LocalDate: d.Date, Year: int32(d.Date.Year()),
+		Month: int32(d.Date.Month()), Season: season, SeasonYear: int32(sy), Soundings: int32(d.Soundings),
+		HasMorning: d.Morning >= 0, HasAfternoon: d.Afternoon >= 0,
+		MorningSBI: d.MorningSBI.Bool(), MorningSBIK: d.MorningSBIStrengthK, AfternoonSBI: d.AfternoonSBI.Bool(),
+		SBIPersists: d.SBIPersists(0).Bool(), MorningHDMJ: d.MorningHeatDeficitJ / 1e6,
+		AfternoonHDMJ: d.AfternoonHeatDeficitJ / 1e6, MaxHDMJ: d.MaxHeatDeficitJ / 1e6,
+		StableFraction: d.StableFraction, DeepStable: d.DeepStable.Bool(), AfternoonMHM: d.AfternoonMHM,
+		AfternoonMHFrom: d.AfternoonMHSource, AfternoonWindMS: d.AfternoonWindMS, AfternoonVentM2S: d.VentilationM2S}
 }
 
 // materialize writes rows as a Parquet file with the table's documented
@@ -239,8 +250,8 @@ func identChar(c byte) bool {
 // select as for ClimatologyOf): years and days with soundings, episodes
 // (counted in the period of their first day) and episodes per year, days
 // inside episodes meeting the rule and their share of the days, length
-// median, p90 and longest (calendar days), missing days inside and
-// episodes with an open start or end. The columns are documented in
+// median, p90 and longest (calendar days), missing days inside,
+// episodes with an open start or end, and the rule's definition. The columns are documented in
 // climatology_episodes.sql; month or season, whichever o leaves empty, is
 // dropped.
 func EpisodeClimatology(ctx context.Context, db *sql.DB, o ClimatologyOptions, criteria []analyze.Criterion) (*Table, error) {
@@ -251,16 +262,16 @@ func EpisodeClimatology(ctx context.Context, db *sql.DB, o ClimatologyOptions, c
 	if criteria == nil {
 		criteria = analyze.BuiltinCriteria()
 	}
-	names := make([]string, len(criteria))
+	names, defs := make([]string, len(criteria)), make([]string, len(criteria))
 	for i, c := range criteria {
-		names[i] = c.Name
+		names[i], defs[i] = c.Name, c.Definition()
 	}
 	args := o.sampleArgs() // by, time, stations, first, last
 	body, err := statement("climatology_episodes.sql")
 	if err != nil {
 		return nil, err
 	}
-	t, err := Query(ctx, db, body, args[0], args[2], args[3], args[4], names)
+	t, err := Query(ctx, db, body, args[0], args[2], args[3], args[4], names, defs)
 	if err != nil {
 		return nil, fmt.Errorf("episode climatology: %w", err)
 	}

@@ -9,6 +9,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 	"text/tabwriter"
@@ -29,6 +30,19 @@ type Table struct {
 	// form that reads back to the same float64) instead of rounding them
 	// to the precision of the column's unit.
 	Exact bool
+}
+
+// Without returns t without the named columns.
+func (t *Table) Without(names ...string) *Table {
+	var keep []string
+	for _, c := range t.Columns {
+		if !slices.Contains(names, c) {
+			keep = append(keep, c)
+		}
+	}
+	out := selectColumns(t, keep)
+	out.Exact = t.Exact
+	return out
 }
 
 // Query runs query on db with bound args and reads the whole result into a

@@ -47,6 +47,7 @@ type DayRow struct {
 type EpisodeRow struct {
 	StationID   string    `col:"station_id" doc:"station identifier"`
 	Criterion   string    `col:"criterion" doc:"name of the rule the days meet (persistent_inversion_whiteman2001, deep_stable_layer_wolyn_mckee1989, heat_deficit_pool, pollution_potential_holzworth1972, or a user rule)"`
+	Rule        string    `col:"rule" doc:"the rule's definition in the syntax of --rule (sondeclim climatology -h): its condition on the days table's columns, min_days and max_gap"`
 	FirstDay    time.Time `col:"first_day" doc:"local solar date of the first day meeting the rule"`
 	LastDay     time.Time `col:"last_day" doc:"local solar date of the last day meeting the rule"`
 	Year        int32     `col:"year" doc:"calendar year of first_day"`

@@ -55,12 +55,16 @@ as 0 m, "undefined" ones are counted apart and left out. Frequencies are
 fractions of the valid soundings. Thin cells stay in the table with a note:
 fewer valid soundings than --min-soundings, fewer than --min-tail values
 behind p10/p90, or (by season) a month with fewer than 10 valid soundings.
---out DIR writes every view to DIR/climatology-VIEW.EXT instead.`,
+--out DIR writes every view to DIR/climatology-VIEW.EXT instead.
+
+`+ruleHelp,
 		`  sondeclim climatology --store ./store
   sondeclim climatology --store ./store --by month --time sun --station USM00072403
   sondeclim climatology --store ./store --years 1991-2020 --table inversions
   sondeclim climatology --store ./store --format csv > climatology.csv
-  sondeclim climatology --store ./store --format markdown --out ./tables`,
+  sondeclim climatology --store ./store --format markdown --out ./tables
+  sondeclim climatology --store ./store --table episodes --by month \
+    --rule 'calm_shallow: afternoon_mixing_height_m <= 800 and afternoon_transport_wind_ms <= 3; min_days=3'`,
 		c.stderr)
 	store := fs.String("store", "", "store `directory` written by sondeclim ingest")
 	by := fs.String("by", "season", "`period` of a cell: season or month")
@@ -73,6 +77,7 @@ behind p10/p90, or (by season) a month with fewer than 10 valid soundings.
 	view := fs.String("table", "", "`view`: summary, mixing, inversions, mixed, ventilation, all or episodes (default summary for text and markdown, all for csv and json)")
 	format := fs.String("format", "text", "output `format`: text, csv, json or markdown")
 	out := fs.String("out", "", "write every view to files in `directory` instead of stdout")
+	rules := ruleFlag(fs)
 	allHours := fs.Bool("all-hours", false, "give every nominal hour its own row (default: a station's special hours, with under 10 % of its soundings, join the nearest regular hour within 3 h or an \"other\" row)")
 	if err := parseFlags(fs, args); err != nil {
 		return err
@@ -114,7 +119,10 @@ behind p10/p90, or (by season) a month with fewer than 10 valid soundings.
 	}
 	defer db.Close()
 	if *view == "episodes" {
-		return c.episodes(ctx, db, opts, stations, *years, *format, write)
+		return c.episodes(ctx, db, opts, *rules, stations, *years, *format, write)
+	}
+	if len(*rules) > 0 {
+		return fmt.Errorf("climatology: --rule applies to --table episodes: %w", errUsage)
 	}
 	ct, err := queries.ClimatologyOf(ctx, db, opts)
 	if err != nil {
@@ -153,12 +161,13 @@ behind p10/p90, or (by season) a month with fewer than 10 valid soundings.
 }
 
 // episodes prints the climatology of episodes.
-func (c *climatologyCmd) episodes(ctx context.Context, db *sql.DB, opts queries.ClimatologyOptions, stations stationList,
+func (c *climatologyCmd) episodes(ctx context.Context, db *sql.DB, opts queries.ClimatologyOptions, rules ruleList, stations stationList,
 	years, format string, write func(io.Writer, *queries.Table) error) error {
-	if _, err := queries.AttachEpisodes(ctx, db, queries.DefaultEpisodeOptions()); err != nil {
+	eo := rules.episodeOptions()
+	if _, err := queries.AttachEpisodes(ctx, db, eo); err != nil {
 		return fmt.Errorf("climatology: %w", err)
 	}
-	t, err := queries.EpisodeClimatology(ctx, db, opts, nil)
+	t, err := queries.EpisodeClimatology(ctx, db, opts, eo.Criteria)
 	if err != nil {
 		return fmt.Errorf("climatology: %w", err)
 	}
@@ -167,20 +176,31 @@ func (c *climatologyCmd) episodes(ctx context.Context, db *sql.DB, opts queries.
 	}
 	people := format == "text" || format == "markdown"
 	if people {
+		// The definitions go under the table instead of in a wide column.
+		t = t.Without("rule")
 		fmt.Fprintf(c.stdout, "Episodes by station, rule and %s\n\n", opts.By)
 	}
 	if err := write(c.stdout, t); err != nil {
 		return err
 	}
 	if people {
-		fmt.Fprintf(c.stdout, "\n%s\n%s\n", episodeFootnote, caution)
+		fmt.Fprintf(c.stdout, "\n%s\n", episodeFootnote)
+		if len(rules) > 0 {
+			fmt.Fprintln(c.stdout, "Your rules:")
+			for _, r := range rules {
+				fmt.Fprintf(c.stdout, "  %s: %s\n", r.Name, r.Definition())
+			}
+		}
+		fmt.Fprintln(c.stdout, caution)
 	}
 	return nil
 }
 
 // episodeFootnote states the definitions under the episodes climatology.
-const episodeFootnote = `Episodes: runs of at least 2 consecutive local solar days meeting a rule; one
-missing day inside neither ends nor counts (days_missing), two end the episode.
+const episodeFootnote = `Episodes: runs of consecutive local solar days meeting a rule. Built-in rules
+need 2 days; one missing day inside neither ends an episode nor counts
+(days_missing), two end it (a rule's min_days and max_gap; csv and json carry
+every rule's definition in a rule column).
 An episode counts in the period of its first day, each day inside in its own.
 share_of_days = days meeting the rule inside episodes / days with a sounding.
 Rules: persistent_inversion_whiteman2001 (morning surface inversion still on

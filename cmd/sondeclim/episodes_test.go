@@ -205,3 +205,72 @@ func TestClimatologyEpisodesGolden(t *testing.T) {
 		t.Fatalf("by month: exit %d\n%s\n%s", code, out, errs)
 	}
 }
+
+// TestRuleFlag: a --rule saying in the rule syntax what a built-in rule
+// says (its documentation: persistent_inversion_whiteman2001 is the
+// morning SBI still on the afternoon/evening sounding, for at least 2
+// days with 1 missing day kept inside) gives the built-in's episodes, day
+// for day, through the command line; the rule's definition is recorded in
+// the episodes table and the climatology; a broken rule is a usage error
+// naming its position.
+func TestRuleFlag(t *testing.T) {
+	dir := t.TempDir()
+	path, _, err := synth.WriteFile(dir, synth.Config{Seed: 1, StartYear: 2001, Years: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	store := t.TempDir()
+	mustIngest(t, "--store", store, path)
+	cols := "station_id, first_day, last_day, length_days, days_met, days_missing, soundings, open_start, open_end, " +
+		"peak_heat_deficit_mj_m2, lowest_afternoon_mixing_height_m, lowest_ventilation_m2s"
+	rule := func(name string) []string {
+		return []string{"--rule", name + ": sbi_persists", "--rule", "lid_holz: afternoon_mixing_height_m <= 1500 and afternoon_transport_wind_ms <= 4; min_days=2; max_gap=1"}
+	}
+	run := func(sql string) string {
+		code, out, errs := runCmd(t, append(append([]string{"query", "--store", store, "--format", "csv", "--exact"}, rule("mine")...), sql)...)
+		if code != exitOK {
+			t.Fatalf("%s: exit %d\n%s", sql, code, errs)
+		}
+		return out
+	}
+	for builtin, mine := range map[string]string{"persistent_inversion_whiteman2001": "mine", "pollution_potential_holzworth1972": "lid_holz"} {
+		want := run("select " + cols + " from episodes where criterion = '" + builtin + "' order by all")
+		got := run("select " + cols + " from episodes where criterion = '" + mine + "' order by all")
+		if n := strings.Count(want, "\n"); n < 5 {
+			t.Fatalf("%s: %d episodes in the invented archive, too few to compare", builtin, n-1)
+		}
+		if got != want {
+			t.Errorf("--rule %s vs %s: episodes differ:\n%s", mine, builtin, firstDiff(got, want))
+		}
+		wantDays := run("select station_id, local_date, status from episode_days where criterion = '" + builtin + "' order by all")
+		gotDays := run("select station_id, local_date, status from episode_days where criterion = '" + mine + "' order by all")
+		if gotDays != wantDays {
+			t.Errorf("--rule %s vs %s: episode days differ:\n%s", mine, builtin, firstDiff(gotDays, wantDays))
+		}
+	}
+	if got := run("select distinct rule from episodes where criterion in ('mine', 'persistent_inversion_whiteman2001')"); got != "rule\nsbi_persists; min_days=2; max_gap=1\n" {
+		t.Errorf("recorded rules %q, want one definition for both", got)
+	}
+	code, out, errs := runCmd(t, append([]string{"climatology", "--store", store, "--table", "episodes", "--format", "csv"}, rule("mine")...)...)
+	if code != exitOK || !strings.Contains(out, ",mine,DJF,") || !strings.Contains(out, "sbi_persists; min_days=2; max_gap=1") {
+		t.Errorf("climatology with --rule: exit %d, no row of rule mine with its definition\n%s\n%s", code, out, errs)
+	}
+	code, out, _ = runCmd(t, append([]string{"climatology", "--store", store, "--table", "episodes"}, rule("mine")...)...)
+	if code != exitOK || !strings.Contains(out, "Your rules:\n  mine: sbi_persists; min_days=2; max_gap=1\n") {
+		t.Errorf("climatology text with --rule: exit %d, rules not listed under the table\n%s", code, out)
+	}
+	for _, tc := range []struct {
+		args []string
+		want string
+	}{
+		{[]string{"query", "--store", store, "--rule", "x: afternoon_mixing_height_m <= and sbi_persists", "select * from episodes"}, "position 33"},
+		{[]string{"query", "--store", store, "--rule", "x: sbi_persists", "select 1"}, "name the episodes"},
+		{[]string{"query", "--store", store, "--rule", "x: sbi_persists", "--rule", "x: deep_stable_layer", "select * from episodes"}, "two rules named x"},
+		{[]string{"climatology", "--store", store, "--rule", "x: sbi_persists"}, "--table episodes"},
+	} {
+		code, _, errs := runCmd(t, tc.args...)
+		if code != exitUsage || !strings.Contains(errs, tc.want) {
+			t.Errorf("%v: exit %d, want %d and %q in\n%s", tc.args, code, exitUsage, tc.want, errs)
+		}
+	}
+}

@@ -10,6 +10,7 @@ import (
 	"log/slog"
 	"strings"
 
+	"github.com/sondeclim/sondeclim/analyze"
 	"github.com/sondeclim/sondeclim/internal/clilog"
 	"github.com/sondeclim/sondeclim/queries"
 )
@@ -112,3 +113,67 @@ func noMatch(ctx context.Context, db *sql.DB, cmd string, stations []string, yea
 	}
 	return &noMatchError{fmt.Sprintf("%s: no soundings match %s; %s", cmd, what, queries.DescribeHoldings(h, 12))}
 }
+
+// ruleList is the repeatable --rule flag: the user's own episode rules,
+// parsed when the flag is read (analyze.ParseRule), so a mistake is a
+// usage error naming its position.
+type ruleList []analyze.Criterion
+
+func (r *ruleList) String() string {
+	var defs []string
+	for _, c := range *r {
+		defs = append(defs, c.Name+": "+c.Definition())
+	}
+	return strings.Join(defs, " | ")
+}
+
+func (r *ruleList) Set(v string) error {
+	c, err := analyze.ParseRule(v)
+	if err != nil {
+		return err
+	}
+	for _, o := range *r {
+		if o.Name == c.Name {
+			return fmt.Errorf("two rules named %s", c.Name)
+		}
+	}
+	*r = append(*r, c)
+	return nil
+}
+
+// episodeOptions returns the default day and episode options with the
+// user's rules after the built-in ones.
+func (r ruleList) episodeOptions() queries.EpisodeOptions {
+	o := queries.DefaultEpisodeOptions()
+	o.Criteria = append(analyze.BuiltinCriteria(), r...)
+	return o
+}
+
+// ruleFlag adds --rule to a command that builds episodes.
+func ruleFlag(fs *flag.FlagSet) *ruleList {
+	var r ruleList
+	fs.Var(&r, "rule", "your own episode `rule`, NAME: CONDITION[; min_days=N][; max_gap=N], evaluated beside the built-in ones (repeatable; syntax under \"Your own episode rules\" above)")
+	return &r
+}
+
+// ruleHelp documents the syntax of --rule (analyze.ParseRule) in the help
+// of the commands that take it.
+const ruleHelp = `Your own episode rules (--rule): NAME: CONDITION[; min_days=N][; max_gap=N].
+CONDITION combines the days table's columns (sondeclim schema) with and, or,
+not and parentheses; a number column is compared with <, <=, >, >=, = or !=
+and a number in the column's unit, a true/false column stands alone:
+  true/false  sbi_persists, morning_sbi, afternoon_sbi, deep_stable_layer,
+              has_morning, has_afternoon
+  numbers     afternoon_mixing_height_m, afternoon_transport_wind_ms,
+              afternoon_ventilation_m2s, morning_sbi_strength_k (0 on a
+              morning without an inversion), morning_heat_deficit_mj_m2,
+              afternoon_heat_deficit_mj_m2, max_heat_deficit_mj_m2,
+              stable_layer_fraction, soundings
+A day whose needed value is missing is unknown (as NULL in SQL: "unknown and
+false" is false, "unknown or true" true). min_days (default 2) is the least
+number of days meeting the rule in an episode; max_gap (default 1) the most
+unknown days in a row kept inside one: they neither end it nor count, and
+are listed as missing; a longer gap ends it. The rule's definition is
+recorded in the episodes table's rule column and the climatology's rule
+column. Example:
+  --rule 'shallow_lid: afternoon_mixing_height_m <= 600 and sbi_persists; min_days=3'`

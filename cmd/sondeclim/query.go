@@ -36,14 +36,19 @@ allow it are locked.
 Numbers are written at the precision of the data, chosen by the unit at
 the end of the column name (heights in m to 1 m, K and °C to 0.1, g/kg
 to 0.01, frequencies to 0.01; sondeclim schema lists all); --exact
-writes them in full.`,
+writes them in full.
+
+`+ruleHelp,
 		`  sondeclim query --store ./store "select count(*) from soundings"
   sondeclim query --store ./store "select criterion, count(*), max(length_days) from episodes group by 1"
   sondeclim query --store ./store --format csv \
-    "select station_id, launch_time, sbi_strength_k from soundings where sbi_present order by 3 desc limit 10"`,
+    "select station_id, launch_time, sbi_strength_k from soundings where sbi_present order by 3 desc limit 10"
+  sondeclim query --store ./store --rule 'lid_500: afternoon_mixing_height_m <= 500; min_days=3' \
+    "select first_day, length_days, rule from episodes where criterion = 'lid_500'"`,
 		c.stderr)
 	store := fs.String("store", "", "store `directory` written by sondeclim ingest")
 	format := fs.String("format", "text", "output `format`: text, csv or json")
+	rules := ruleFlag(fs)
 	exactOut := fs.Bool("exact", false, "write numbers in full float64 precision instead of at the precision of the column's unit (see sondeclim schema)")
 	if err := parseFlags(fs, args); err != nil {
 		return err
@@ -71,8 +76,11 @@ writes them in full.`,
 		return fmt.Errorf("query: %w", err)
 	}
 	defer db.Close()
+	if len(*rules) > 0 && !queries.MentionsEpisodeTables(sql) {
+		return fmt.Errorf("query: --rule makes episodes; name the episodes or episode_days table in the SQL: %w", errUsage)
+	}
 	if queries.MentionsEpisodeTables(sql) {
-		if _, err := queries.AttachEpisodes(ctx, db, queries.DefaultEpisodeOptions()); err != nil {
+		if _, err := queries.AttachEpisodes(ctx, db, rules.episodeOptions()); err != nil {
 			return fmt.Errorf("query: %w", err)
 		}
 	}
