@@ -41,6 +41,19 @@ type Column struct {
 	dict   *array.String  // kindEnum: the allowed values, in tag order
 }
 
+// keyType is the Arrow type kindKey columns are written as; they are read
+// back (by DuckDB) as text, like any dictionary-encoded string column.
+var keyType = &arrow.DictionaryType{IndexType: arrow.PrimitiveTypes.Int32, ValueType: arrow.BinaryTypes.String}
+
+// writeType is the Arrow type the column is written as: its Type, except
+// for the station_id key, whose text is written through a dictionary.
+func (c *Column) writeType() arrow.DataType {
+	if c.kind == kindKey {
+		return keyType
+	}
+	return c.Type
+}
+
 // fieldKind enumerates the Go field types the writer supports.
 type fieldKind int
 
@@ -55,6 +68,11 @@ const (
 	kindPtrInt32
 	kindPtrString
 	kindEnum // a string field tagged enum:"a,b,…" or naming a dictionary vocabulary: written as a dictionary column
+	// kindKey is the station_id string column: one value per file in the
+	// store's partitioned files, so it is written as a dictionary array
+	// built here (the last value remembered) rather than hashed value by
+	// value in the Parquet writer's dictionary encoder.
+	kindKey
 )
 
 var (
@@ -168,6 +186,9 @@ func columnsOf(t reflect.Type) ([]Column, error) {
 			c.dict = b.NewStringArray()
 			b.Release()
 		}
+		if c.kind == kindString && c.Name == StationColumn {
+			c.kind = kindKey
+		}
 		cols = append(cols, c)
 	}
 	if len(cols) == 0 {
@@ -184,7 +205,7 @@ func arrowSchema(table string, cols []Column) *arrow.Schema {
 	fields := make([]arrow.Field, len(cols))
 	for i, c := range cols {
 		fields[i] = arrow.Field{
-			Name: c.Name, Type: c.Type, Nullable: c.Nullable,
+			Name: c.Name, Type: c.writeType(), Nullable: c.Nullable,
 			Metadata: arrow.NewMetadata([]string{DocKey}, []string{c.Doc}),
 		}
 	}
@@ -206,6 +227,8 @@ type colBuf struct {
 	data    []byte  // string bytes
 	last    string  // enum: the last value looked up
 	lastIdx int16
+	keys    []string         // kindKey: the distinct values, in order of appearance (indices in i32)
+	keyIdx  map[string]int32 // kindKey: index of each value once there is more than one
 }
 
 func newColBuf(c *Column, n int) *colBuf {
@@ -244,7 +267,7 @@ func (b *colBuf) grow(c *Column, n int) {
 		b.i32 = extend(b.i32, n+1)
 	case kindBool, kindPtrBool:
 		b.bits = extend(b.bits, bitmapBytes(n))
-	case kindInt32, kindPtrInt32:
+	case kindInt32, kindPtrInt32, kindKey:
 		b.i32 = extend(b.i32, n)
 	case kindInt64, kindTime:
 		b.i64 = extend(b.i64, n)
@@ -330,6 +353,15 @@ func fillColumn[T any](c *Column, b *colBuf, rows []T, idx []int, base int) erro
 				b.i64[base+k] = t.UnixMicro()
 			}
 		}
+	case kindKey:
+		for k, i := range idx {
+			v := *(*string)(at(i))
+			if n := len(b.keys); n == 0 || v != b.keys[n-1] {
+				b.i32[base+k] = b.keyIndex(v)
+			} else {
+				b.i32[base+k] = int32(n - 1)
+			}
+		}
 	case kindEnum:
 		// The dictionary is the tag's fixed list, so values are stored as
 		// indices: no hashing here or in the Parquet writer. Values repeat
@@ -356,6 +388,24 @@ func fillColumn[T any](c *Column, b *colBuf, rows []T, idx []int, base int) erro
 	return nil
 }
 
+// keyIndex returns the dictionary index of the kindKey value v, adding it
+// when new. The value last added is checked by the caller; a map is made
+// only when a second value appears.
+func (b *colBuf) keyIndex(v string) int32 {
+	if b.keyIdx == nil {
+		b.keyIdx = make(map[string]int32, 2)
+		for i, k := range b.keys {
+			b.keyIdx[k] = int32(i)
+		}
+	}
+	if i, ok := b.keyIdx[v]; ok {
+		return i
+	}
+	b.keys = append(b.keys, v)
+	b.keyIdx[v] = int32(len(b.keys) - 1)
+	return int32(len(b.keys) - 1)
+}
+
 // array returns the filled column as an Arrow array over b's memory.
 func (b *colBuf) array(c *Column) arrow.Array {
 	switch c.kind {
@@ -369,6 +419,15 @@ func (b *colBuf) array(c *Column) arrow.Array {
 		return array.MakeFromData(b.valid.data(c.Type, b.n, bytesOf(b.i64)))
 	case kindFloat64:
 		return array.MakeFromData(b.valid.data(c.Type, b.n, bytesOf(b.f64)))
+	case kindKey:
+		d := b.valid.data(keyType, b.n, bytesOf(b.i32)).(*array.Data)
+		sb := array.NewStringBuilder(memory.DefaultAllocator)
+		sb.AppendValues(b.keys, nil)
+		dict := sb.NewStringArray()
+		sb.Release()
+		d.SetDictionary(dict.Data())
+		dict.Release()
+		return array.MakeFromData(d)
 	}
 	d := b.valid.data(c.Type, b.n, bytesOf(b.i16)).(*array.Data)
 	d.SetDictionary(c.dict.Data())

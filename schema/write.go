@@ -109,7 +109,7 @@ func partitions[T any](cols []Column, rows []T) ([]*partition, error) {
 	var st, yr *Column
 	for i := range cols {
 		switch c := &cols[i]; {
-		case c.Name == StationColumn && c.kind == kindString:
+		case c.Name == StationColumn && c.kind == kindKey:
 			st = c
 		case c.Name == YearColumn && (c.kind == kindInt32 || c.kind == kindInt64):
 			yr = c
@@ -266,7 +266,7 @@ func encode(w *bufio.Writer, sc *arrow.Schema, cols []Column, arrays func() ([]a
 		parquet.WithDictionaryDefault(false),
 	}
 	for _, c := range cols {
-		if c.kind == kindString || c.kind == kindPtrString || c.kind == kindEnum {
+		if c.kind == kindString || c.kind == kindPtrString || c.kind == kindEnum || c.kind == kindKey {
 			opts = append(opts, parquet.WithDictionaryFor(c.Name, true))
 		}
 	}
