@@ -65,9 +65,10 @@ type Options struct {
 	// all its members together; 0 means DefaultInputBudget.
 	InputBudget int64
 	// MaxPartitionBytes bounds the staged bytes of one station-year (text
-	// of an input read in place, or encoded soundings), which are built in
-	// memory; a larger one is refused and reported. 0 means
-	// DefaultMaxPartitionBytes.
+	// of an input read in place, counted twice, or encoded soundings),
+	// which are built in memory; a larger one is refused and reported.
+	// The station-years built at once hold at most as much together. 0
+	// means DefaultMaxPartitionBytes.
 	MaxPartitionBytes int64
 	// RunBudget bounds the decompressed bytes of all compressed inputs of
 	// the run; inputs left when it is used up are reported and read by

@@ -691,7 +691,8 @@ func TestCorruptContainers(t *testing.T) {
 // the per-run budget defers the inputs left when it is used up to the next
 // run, which reads them (with one worker, so that which input is deferred
 // is fixed); a station-year over the partition bound is refused with a
-// reason, the other station stored; a TEMP input over the reader's bound
+// reason, the other station stored; two that fit one at a time are built
+// one at a time; a TEMP input over the reader's bound
 // is refused, not decoded into gigabytes of groups. Each is a reported
 // skip (exit 3).
 func TestDecompressionBudgets(t *testing.T) {
@@ -753,9 +754,17 @@ func TestDecompressionBudgets(t *testing.T) {
 	if reasons(s)["partition_too_large"] != 2 {
 		t.Errorf("partition bound: skips %+v; want both station-years refused", s.Skipped)
 	}
-	s = ingest(exitOK, "--store", filepath.Join(root, "s4"), "--max-partition-bytes", fmt.Sprint(len(a)*2), src)
+	s = ingest(exitOK, "--store", filepath.Join(root, "s4"), "--max-partition-bytes", fmt.Sprint(len(a)*3), src)
 	if s.Soundings != 1460 {
 		t.Errorf("under the partition bound: %d soundings, want 1460", s.Soundings)
+	}
+	// Two station-years that each fit the bound but not both at once are
+	// built one after the other by two workers (plain archive-v2 text counts
+	// twice its bytes): both stored, the tables those of one worker.
+	pair := filepath.Join(root, "s4b")
+	code, _, errs := runCmd(t, "ingest", "--quiet", "--workers", "2", "--store", pair, "--max-partition-bytes", fmt.Sprint(len(a)*3), src)
+	if code != exitOK || dump(t, pair) != dump(t, filepath.Join(root, "s4")) {
+		t.Errorf("two station-years under a bound that holds one at a time: exit %d, or tables differ from one worker's\n%s", code, errs)
 	}
 
 	// A TEMP input of 17 MB of groups in one report, 40 KB of gzip.

@@ -80,7 +80,7 @@ error; 3 done, but some input was skipped (data lost).`,
 	full := fs.Bool("full", false, "ignore what was ingested before and rebuild every partition from the inputs given")
 	maxInput := fs.Int64("max-input-bytes", engine.DefaultInputBudget, "decompressed-size budget of one compressed input, all its members together, `bytes` (over it: skipped)")
 	maxRun := fs.Int64("max-run-bytes", engine.DefaultRunBudget, "decompressed-size budget of all compressed inputs of the run, `bytes` (inputs left over are reported and read by the next run)")
-	maxPart := fs.Int64("max-partition-bytes", engine.DefaultMaxPartitionBytes, "largest station-year to build, staged `bytes` (it is built in memory; larger ones are reported and left as committed)")
+	maxPart := fs.Int64("max-partition-bytes", engine.DefaultMaxPartitionBytes, "largest station-year to build, staged `bytes`, archive-v2 text counted twice (it is built in memory, about 5 times this at the peak; larger ones are reported and left as committed; the station-years built at once hold at most this together)")
 	prune := fs.Bool("prune-missing", false, "remove the soundings of inputs ingested before that are gone now (without it they stay, with a note)")
 	verify := fs.Bool("verify", false, "check the SHA-256 of every store file the run would leave alone (always: presence and size) and rebuild damaged partitions")
 	wait := fs.Bool("wait", false, "wait for another ingest into the same store to finish instead of failing")
