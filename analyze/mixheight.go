@@ -15,6 +15,12 @@ const (
 	MixingHeightUndefined = ParcelUndefined // no result (no crossing, missing input)
 )
 
+// MixingHeightStatuses returns the mixing-height statuses in the order
+// above (the vocabulary of the status columns of the store).
+func MixingHeightStatuses() []string {
+	return []string{MixingHeightOK, MixingHeightSurface, MixingHeightUndefined}
+}
+
 // Mixing-height method names (the registry, methods.go, gives their order).
 const (
 	// MethodParcel: Holzworth parcel, surface temperature + Parcel.ExcessK,

@@ -83,9 +83,9 @@ type SoundingRow struct {
 	MixedMixingRatio float64 `col:"mixed_layer_mixing_ratio_gkg" doc:"g/kg; pressure-weighted (mass-weighted) mean water-vapour mixing ratio of the mixed layer"`
 	MixedLevels      int32   `col:"mixed_layer_levels" doc:"count; sounding levels inside the mixed layer (0 when none was found)"`
 	ParcelMHM        float64 `col:"mixing_height_parcel_m" doc:"m above ground; mixing height by the parcel method from the sounding's own surface temperature (0 when status is surface, null when undefined)"`
-	ParcelMHStatus   string  `col:"mixing_height_parcel_status" doc:"ok, surface (parcel stable from the ground up) or undefined (no crossing below the ceiling, or not analysable)"`
+	ParcelMHStatus   string  `col:"mixing_height_parcel_status" values:"mixing_height_status" doc:"{values}: surface when the parcel is stable from the ground up, undefined when there is no crossing below the ceiling or the sounding is not analysable"`
 	ConsensusMHM     float64 `col:"mixing_height_consensus_m" doc:"m above ground; median of the methods whose status is ok (see the mixing_heights table for each method)"`
-	ConsensusStatus  string  `col:"mixing_height_consensus_status" doc:"ok, surface or undefined"`
+	ConsensusStatus  string  `col:"mixing_height_consensus_status" values:"mixing_height_status" doc:"{values}"`
 	ConsensusSpreadM float64 `col:"mixing_height_spread_m" doc:"m; highest minus lowest of the methods whose status is ok"`
 	ConsensusMethods int32   `col:"mixing_height_methods_ok" doc:"count; methods in the consensus whose status is ok"`
 	Unresolved       bool    `col:"mixing_height_unresolved" doc:"true when the sounding's level spacing around the consensus height is too coarse to resolve it"`
@@ -159,7 +159,7 @@ type MixingHeightRow struct {
 	Year          int32     `col:"year" doc:"calendar year of the sounding's nominal time"`
 	Method        string    `col:"method" values:"mixing_height_method" doc:"{values}"`
 	HeightAGLM    float64   `col:"height_agl_m" doc:"m above ground; 0 for status surface, null for undefined"`
-	Status        string    `col:"status" doc:"ok, surface or undefined"`
+	Status        string    `col:"status" values:"mixing_height_status" doc:"{values}"`
 	Note          string    `col:"note" doc:"short reason for undefined results or detail of an ok one"`
 	LevelSpacingM float64   `col:"level_spacing_m" doc:"m; spacing of the sounding's levels around the height"`
 	Unresolved    bool      `col:"unresolved" doc:"true when the level spacing is too coarse to resolve the height"`
@@ -176,7 +176,7 @@ type AfternoonRow struct {
 	TmaxC         float64   `col:"tmax_c" doc:"degC; maximum surface temperature of the day"`
 	TmaxSource    string    `col:"tmax_source" doc:"daily_maxima (user file), or later_sounding: not a maximum but the surface temperature of the same local day's later sounding (12-20 h local mean solar time; US 00 UTC launches are near or after sunset), which biases the height low, most in winter"`
 	HeightAGLM    float64   `col:"height_agl_m" doc:"m above ground; afternoon mixing height"`
-	Status        string    `col:"status" doc:"ok, surface or undefined"`
+	Status        string    `col:"status" values:"mixing_height_status" doc:"{values}"`
 	Note          string    `col:"note" doc:"reason when undefined"`
 }
 
@@ -187,7 +187,7 @@ type LevelRow struct {
 	LaunchTime time.Time `col:"launch_time" doc:"UTC; launch time of the sounding this level belongs to"`
 	Year       int32     `col:"year" doc:"calendar year of the sounding's nominal time"`
 	Index      int32     `col:"level_index" doc:"0-based position of the level in the source order"`
-	Kind       string    `col:"level_kind" values:"level_kind" doc:"surface, standard, significant or wind_only"`
+	Kind       string    `col:"level_kind" values:"level_kind" doc:"{values}"`
 	SourceLine int64     `col:"source_line" doc:"1-based line of the level in the source file (0 if not line-oriented)"`
 
 	ElapsedS       float64 `col:"elapsed_s" doc:"s since release"`
@@ -203,11 +203,11 @@ type LevelRow struct {
 	ThetaK         float64 `col:"theta_k" doc:"K; potential temperature, T (1000 hPa / p)^kappa"`
 	MixingRatioGKg float64 `col:"mixing_ratio_gkg" doc:"g/kg; water-vapour mixing ratio from dewpoint and pressure"`
 
-	TemperatureStatus string `col:"temperature_status" values:"value_status" doc:"reported, missing, removed_upstream or derived"`
-	HeightStatus      string `col:"height_status" values:"value_status" doc:"reported, missing, removed_upstream or derived"`
-	HumidityStatus    string `col:"humidity_status" values:"value_status" doc:"status of the dewpoint depression (reported, missing, removed_upstream or derived)"`
+	TemperatureStatus string `col:"temperature_status" values:"value_status" doc:"{values}"`
+	HeightStatus      string `col:"height_status" values:"value_status" doc:"{values}"`
+	HumidityStatus    string `col:"humidity_status" values:"value_status" doc:"status of the dewpoint depression: {values}"`
 
-	PressureQC    string `col:"pressure_qc" values:"qc_flag" doc:"quality-control flag of the pressure: good, suspect, bad, missing or corrected"`
+	PressureQC    string `col:"pressure_qc" values:"qc_flag" doc:"quality-control flag of the pressure: {values}"`
 	HeightQC      string `col:"height_qc" values:"qc_flag" doc:"quality-control flag of the height"`
 	TemperatureQC string `col:"temperature_qc" values:"qc_flag" doc:"quality-control flag of the temperature (derived values use the corrected value when corrected)"`
 	HumidityQC    string `col:"humidity_qc" values:"qc_flag" doc:"quality-control flag of the humidity (dewpoint depression)"`

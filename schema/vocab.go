@@ -14,7 +14,7 @@ import (
 // in the row structs.
 type vocabulary struct {
 	values []string // in the order of the Go constants
-	doc    string   // replaces "{values}" in the doc tag; default: values joined by ", "
+	doc    string   // replaces "{values}" in the doc tag; default: the values as an English list ("a, b or c")
 	// dict columns are written as dictionary indices into values (a value
 	// outside them is an error); the others as plain strings.
 	dict bool
@@ -25,6 +25,9 @@ type vocabulary struct {
 var vocabularies = map[string]func() vocabulary{
 	"mixing_height_method": func() vocabulary {
 		return vocabulary{values: analyze.MethodNames(), doc: analyze.MethodsDoc()}
+	},
+	"mixing_height_status": func() vocabulary {
+		return vocabulary{values: analyze.MixingHeightStatuses()}
 	},
 	"level_kind": func() vocabulary {
 		return vocabulary{values: enumNames(sounding.KindSignificant, sounding.KindWindOnly), dict: true}
@@ -61,7 +64,15 @@ func vocabOf(name string) (vocabulary, bool) {
 	}
 	v := f()
 	if v.doc == "" {
-		v.doc = strings.Join(v.values, ", ")
+		v.doc = englishList(v.values)
 	}
 	return v, true
+}
+
+// englishList joins values as "a", "a or b", "a, b or c".
+func englishList(values []string) string {
+	if len(values) < 2 {
+		return strings.Join(values, "")
+	}
+	return strings.Join(values[:len(values)-1], ", ") + " or " + values[len(values)-1]
 }
