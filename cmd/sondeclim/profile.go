@@ -15,9 +15,11 @@ import (
 	"time"
 
 	"github.com/sondeclim/sondeclim/engine"
+	"github.com/sondeclim/sondeclim/qc"
 	"github.com/sondeclim/sondeclim/queries"
 	"github.com/sondeclim/sondeclim/queries/figures"
 	"github.com/sondeclim/sondeclim/schema"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 func init() {
@@ -219,15 +221,15 @@ func levelFlags(l figures.Level) string {
 		f = append(f, "z derived")
 	}
 	for _, s := range []struct{ v, status string }{{"T", l.TemperatureStatus}, {"Td", l.HumidityStatus}} {
-		if s.status == "removed_upstream" || s.status == "derived" {
+		if s.status == sounding.RemovedUpstream.String() || s.status == sounding.Derived.String() {
 			f = append(f, s.v+" "+s.status)
 		}
 	}
-	if l.HeightStatus == "removed_upstream" {
-		f = append(f, "z removed_upstream")
+	if l.HeightStatus == sounding.RemovedUpstream.String() {
+		f = append(f, "z "+l.HeightStatus)
 	}
 	for _, q := range []struct{ v, flag string }{{"p", l.PressureQC}, {"z", l.HeightQC}, {"T", l.TemperatureQC}, {"Td", l.HumidityQC}, {"wind", l.WindQC}} {
-		if q.flag != "" && q.flag != "good" && q.flag != "missing" {
+		if q.flag != "" && q.flag != qc.Good.String() && q.flag != qc.Missing.String() {
 			f = append(f, q.v+" "+q.flag)
 		}
 	}

@@ -16,6 +16,8 @@ import (
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
+
+	"github.com/sondeclim/sondeclim/analyze"
 )
 
 // Level is one level of a sounding as stored in the levels table. Missing
@@ -513,7 +515,7 @@ var methodInk = []color.Color{
 func markedHeights(p *Profile) []MethodHeight {
 	var out []MethodHeight
 	for _, h := range append([]MethodHeight{p.Consensus}, p.Heights...) {
-		if h.Status == "ok" || h.Status == "surface" {
+		if h.Status == analyze.MixingHeightOK || h.Status == analyze.MixingHeightSurface {
 			if !math.IsNaN(h.HeightAGLM) {
 				out = append(out, h)
 			}
@@ -566,7 +568,7 @@ func drawHeightLabels(c draw.Canvas, dc draw.Canvas, p *plot.Plot, marked []Meth
 	items := make([]item, len(marked))
 	for i, m := range marked {
 		text := fmt.Sprintf("%s %.0f m", m.Method, m.HeightAGLM)
-		if m.Status == "surface" {
+		if m.Status == analyze.MixingHeightSurface {
 			text = m.Method + ": surface"
 		}
 		items[i] = item{at: trY(m.HeightAGLM), text: text, col: colors[i]}
@@ -666,7 +668,7 @@ func ProfileFigure(p *Profile) *Figure {
 		p.LaunchTime.UTC().Format("2006-01-02 15:04"), p.NominalTime.UTC().Format("2006-01-02"), p.NominalHour)
 	var undefined []string
 	for _, h := range p.Heights {
-		if h.Status != "ok" && h.Status != "surface" {
+		if h.Status != analyze.MixingHeightOK && h.Status != analyze.MixingHeightSurface {
 			undefined = append(undefined, h.Method)
 		}
 	}
