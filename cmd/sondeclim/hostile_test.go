@@ -782,3 +782,49 @@ func TestDecompressionBudgets(t *testing.T) {
 		t.Errorf("TEMP bomb: %d soundings, skips %+v; want one too_large", s.Soundings, s.Skipped)
 	}
 }
+
+// TestHostileNetCDFStations: the netCDF reader takes the station
+// identifier from the site attribute. The real Lamont flight
+// (../shared/validation, PROVENANCE.md) with its site_id "sgp" patched to
+// "../" is stored under an escaped partition inside the store, as station
+// "../C1"; the Bankhead flight with control characters in its site_id is
+// rejected alone (bad_station_id naming the file); exit 3, nothing written
+// outside the store.
+func TestHostileNetCDFStations(t *testing.T) {
+	v := sharedDir(t)
+	root := t.TempDir()
+	in := filepath.Join(root, "in")
+	os.MkdirAll(in, 0o755)
+	patch := func(name, from, to string) string {
+		b, err := os.ReadFile(filepath.Join(v, "netcdf", name))
+		if err != nil {
+			t.Fatal(err)
+		}
+		attr := "site_id\x00\x00\x00\x00\x02\x00\x00\x00\x04"
+		if !bytes.Contains(b, []byte(attr+from)) {
+			t.Fatalf("%s: site_id %q not found", name, from)
+		}
+		p := filepath.Join(in, name)
+		writeFile(t, p, string(bytes.Replace(b, []byte(attr+from), []byte(attr+to), 1)))
+		return p
+	}
+	patch("sgpsondewnpnC1.b1.20190101.053200.cdf", "sgp\x00", "../\x00")
+	bad := patch("bnfsondewnpnM1.b1.20250619.053000.cdf", "bnf\x00", "\x01\n\x02\x00")
+	st := filepath.Join(root, "a", "store")
+	sum := filepath.Join(root, "sum.json")
+	code, _, errs := runCmd(t, "ingest", "--quiet", "--summary-json", sum, "--store", st, in)
+	if code != exitSkipped {
+		t.Fatalf("exit %d, want %d\n%s", code, exitSkipped, errs)
+	}
+	if out := listOutside(t, root, st, in, sum); len(out) > 0 {
+		t.Fatalf("files written outside the store: %v", out)
+	}
+	s := readSummary(t, sum)
+	if s.Soundings != 1 || len(s.Skipped) != 1 || s.Skipped[0].Reason != "bad_station_id" || !strings.Contains(s.Skipped[0].Where, bad) {
+		t.Errorf("%d soundings, skips %+v; want 1 and one bad_station_id for %s", s.Soundings, s.Skipped, bad)
+	}
+	code, out, _ := runCmd(t, "query", "--store", st, "--format", "csv", "select station_id from soundings")
+	if code != exitOK || out != "station_id\n../C1\n" {
+		t.Errorf("stored station: exit %d, %q; want ../C1", code, out)
+	}
+}

@@ -19,6 +19,8 @@ import (
 func FuzzReader(f *testing.F) {
 	f.Add([]byte(hdrA + "\n" + lvSfc + "\n" + lvStd + "\n" + hdrB + "\n" + lvSfc + "\n"))
 	f.Add([]byte(lvSfc + "\n" + hdrB + "\r\n" + lvSfc))
+	// A byte-order mark, CR-only line ends, a line of text first.
+	f.Add([]byte("\xef\xbb\xbfa note\r" + hdrA + "\r" + lvSfc + "\r" + lvStd + "\r\xef\xbb\xbf" + hdrB + "\r\r\n" + lvSfc))
 	if dir, _ := findValidation(); dir != "" {
 		for _, name := range []string{"SWM00002527-data-hour99.txt", "USM00070026-data-truncated.txt",
 			"USM00074794-data-1950-portion.txt", "AUM00011035-data.txt.gz"} {
@@ -40,8 +42,9 @@ func FuzzReader(f *testing.F) {
 	f.Fuzz(func(t *testing.T, in []byte) {
 		rd := NewReader(bytes.NewReader(in), "fuzz", "")
 		// Each call consumes at least one line, so the number of calls is
-		// bounded by the number of lines plus the final io.EOF.
-		limit := bytes.Count(in, []byte{'\n'}) + 2
+		// bounded by the number of lines (a CR of its own ends one too)
+		// plus the final io.EOF.
+		limit := bytes.Count(in, []byte{'\n'}) + bytes.Count(in, []byte{'\r'}) + 2
 		for i := 0; ; i++ {
 			if i > limit {
 				t.Fatalf("no io.EOF after %d calls", i)
@@ -54,6 +57,9 @@ func FuzzReader(f *testing.F) {
 			if err != nil {
 				if !errors.As(err, &pe) || pe.Line < 1 {
 					t.Fatalf("error %v (%T) is not a ParseError with a line", err, err)
+				}
+				if len(err.Error()) > 1000 {
+					t.Fatalf("message of %d bytes quotes too much input", len(err.Error()))
 				}
 				continue
 			}

@@ -28,6 +28,8 @@ func FuzzReader(f *testing.F) {
 			}
 		}
 	}
+	// A byte-order mark, CR-only line ends, text between reports.
+	f.Add([]byte("\xef\xbb\xbfa note\r" + strings.ReplaceAll(methodsPartA, "\n", "\r") + "\rZCZC 123\rmore text=\r"))
 	f.Fuzz(func(t *testing.T, data []byte) {
 		rd := NewReader(strings.NewReader(string(data)), "fuzz", Options{Reference: time.Date(2022, 7, 13, 0, 0, 0, 0, time.UTC)})
 		for i := 0; ; i++ {
@@ -40,6 +42,9 @@ func FuzzReader(f *testing.F) {
 			}
 			if err == nil && len(s.Levels) == 0 {
 				t.Fatal("sounding without levels")
+			}
+			if err != nil && len(err.Error()) > 1000 {
+				t.Fatalf("message of %d bytes quotes too much input", len(err.Error()))
 			}
 		}
 	})

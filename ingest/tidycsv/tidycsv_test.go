@@ -255,6 +255,9 @@ func FuzzReader(f *testing.F) {
 	f.Add(example)
 	f.Add(hdr + "A,2024-01-01T00:00:00Z,1000,0,1\nB,2024-01-01T00:00:00Z,1000,0,1\nA,2024-01-01T00:00:00Z,900,900,-5\n")
 	f.Add("station_id,launch_time_utc,pressure_hpa,height_m,temperature_c,level_kind,nominal_time_utc\n\"A\",2024-01-01T00:00:00Z,1e3,,,surface,2024-01-01T00:00:00Z\n")
+	// A byte-order mark, junk before the header, CR-only line ends, numbers
+	// FORMAT.md refuses.
+	f.Add("\ufeffnote\r" + strings.ReplaceAll(hdr, "\n", "\r") + "A,2024-01-01T00:00:00Z,0x10,1_0,Inf\rA,2024-01-01 00:00,1,2,3\r")
 	f.Fuzz(func(t *testing.T, text string) {
 		r := NewReader(strings.NewReader(text), "fuzz.csv")
 		for i := 0; ; i++ {
@@ -268,6 +271,9 @@ func FuzzReader(f *testing.F) {
 			var pe *ingest.ParseError
 			if err != nil && !errors.As(err, &pe) {
 				t.Fatalf("error of type %T: %v", err, err)
+			}
+			if err != nil && len(err.Error()) > 1000 {
+				t.Fatalf("message of %d bytes quotes too much input", len(err.Error()))
 			}
 			if err == nil && (len(s.Levels) == 0 || s.StationID == "") {
 				t.Fatalf("empty sounding %+v", s)
