@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"context"
+	"fmt"
 	"image/png"
 	"os"
 	"os/exec"
@@ -47,33 +48,86 @@ func runChromium(t *testing.T, bin, url string, extra ...string) string {
 	return out.String()
 }
 
-// probe is added to a copy of the report: it sets the title to a marker
-// only when every image has loaded with a size and no error occurred
-// (scripts or resources).
+// probe is added to a copy of the report. On load it measures what a
+// reader sees and writes it into the title, which --dump-dom returns: the
+// window width, the figures loaded, the tables that need a horizontal
+// scroll bar (a table wider than its box), the right edge of the
+// climatology table's "Median" heading, the page's width, and whether an
+// error occurred (scripts or resources).
 const probe = `<script>
 var failed = false;
 window.addEventListener('error', function () { failed = true; }, true);
 window.addEventListener('load', function () {
-  var imgs = document.querySelectorAll('img'), ok = imgs.length > 0 && !failed;
+  var imgs = document.querySelectorAll('img'), loaded = 0;
   for (var i = 0; i < imgs.length; i++) {
-    if (!imgs[i].complete || imgs[i].naturalWidth === 0) { ok = false; }
+    if (imgs[i].complete && imgs[i].naturalWidth > 0) { loaded++; }
   }
-  document.title = ok ? 'FIGURES-LOADED ' + imgs.length : 'FIGURES-FAILED';
+  var boxes = document.querySelectorAll('div.scroll'), over = 0;
+  for (var i = 0; i < boxes.length; i++) {
+    if (boxes[i].scrollWidth > boxes[i].clientWidth + 1) { over++; }
+  }
+  var median = -1, ths = document.querySelectorAll('div.climatology th');
+  for (var i = 0; i < ths.length; i++) {
+    if (ths[i].textContent.trim() === 'Median') { median = Math.round(ths[i].getBoundingClientRect().right); break; }
+  }
+  document.title = 'PROBE window=' + window.innerWidth + ' images=' + loaded + '/' + imgs.length +
+    ' tables=' + boxes.length + ' overflowing=' + over + ' median_right=' + median +
+    ' page=' + document.documentElement.scrollWidth + (failed ? ' ERROR' : '');
 });
 </script>
 </body>`
 
-// TestReportInBrowser writes the report of the demo store and renders it
-// in headless Chromium: every figure must load, the page must not be
-// blank, and nothing may be fetched from elsewhere.
-func TestReportInBrowser(t *testing.T) {
+// probeResult is what the probe wrote.
+type probeResult struct {
+	window, images, figures, tables, overflowing, medianRight, page int
+	failed                                                          bool
+}
+
+// runProbe renders html (a report page in dir) with the probe in a
+// headless Chromium window of the given size and returns its findings.
+func runProbe(t *testing.T, bin, dir, html, size string) probeResult {
+	t.Helper()
+	probed := filepath.Join(dir, "probed.html")
+	if err := os.WriteFile(probed, []byte(strings.Replace(html, "</body>", probe, 1)), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	dom := runChromium(t, bin, "file://"+probed, "--window-size="+size, "--dump-dom")
+	title := regexp.MustCompile(`<title>(PROBE [^<]*)</title>`).FindStringSubmatch(dom)
+	if title == nil {
+		t.Fatalf("the probe did not run in Chromium: %.300s", dom)
+	}
+	var p probeResult
+	if _, err := fmt.Sscanf(title[1], "PROBE window=%d images=%d/%d tables=%d overflowing=%d median_right=%d page=%d",
+		&p.window, &p.images, &p.figures, &p.tables, &p.overflowing, &p.medianRight, &p.page); err != nil {
+		t.Fatalf("probe %q: %v", title[1], err)
+	}
+	p.failed = strings.HasSuffix(title[1], "ERROR")
+	return p
+}
+
+// normaliseReport replaces what changes from run to run in a report page
+// (date, program version, store path) by fixed words, for the golden file.
+func normaliseReport(html, store string) string {
+	html = regexp.MustCompile(`<td id="generated">[^<]*</td>`).ReplaceAllString(html, `<td id="generated">DATE</td>`)
+	html = regexp.MustCompile(`sondeclim \d+\.\d+\.\d+[^<.]*`).ReplaceAllString(html, "sondeclim VERSION")
+	return strings.ReplaceAll(html, store, "STORE")
+}
+
+// TestReport writes the report of the demo store, compares the page with
+// its golden file (figures as files: the page holds their names only), and
+// renders it in headless Chromium in a 1,400 × 900 px window: every figure
+// must load, the climatology table's median column must lie inside the
+// window, and no table may need a horizontal scroll bar. The same check in
+// a 700 px window must find overflowing tables, so it can fail.
+func TestReport(t *testing.T) {
 	dir := t.TempDir()
 	if code, _, errs := runCmd(t, "demo", "--dir", dir, "--years", "1", "--workers", "2"); code != exitOK {
 		t.Fatalf("demo: exit %d\n%s", code, errs)
 	}
+	store := filepath.Join(dir, "store")
 	page := filepath.Join(dir, "report.html")
-	code, out, errs := runCmd(t, "report", "--store", filepath.Join(dir, "store"), "--out", page)
-	if code != exitOK || !strings.Contains(out, "3 figures") {
+	code, out, errs := runCmd(t, "report", "--store", store, "--out", page)
+	if code != exitOK || !strings.Contains(out, "1 stations with a section, 0 listed only, 4 figures") {
 		t.Fatalf("report: exit %d, %q\n%s", code, out, errs)
 	}
 	b, err := os.ReadFile(page)
@@ -81,36 +135,57 @@ func TestReportInBrowser(t *testing.T) {
 		t.Fatal(err)
 	}
 	html := string(b)
+	golden(t, "report.html", normaliseReport(html, store))
 	// Self-contained: no URL-loaded script, style, font or image.
 	if m := regexp.MustCompile(`(?i)(src|href)\s*=\s*"(https?:|//)|@import|url\(\s*['"]?https?:`).FindString(html); m != "" {
 		t.Errorf("report refers to something outside the page: %q", m)
 	}
 	for _, want := range []string{"ZZXSYN00001", "Caution.", "defer to local regulations and licensed meteorological practice",
-		"Holzworth", "Heffter", "Vogelezang", "Seidel", "Liu, S.", "Kahl", "Bolton", "Data coverage", "Seasonal climatology"} {
+		"42.37° N, 101.85° W, 560 m above sea level", "Median", "Guidance", "Trends", "Quality control", "Episodes",
+		"schema version", "derivation version"} {
 		if !strings.Contains(html, want) {
 			t.Errorf("report lacks %q", want)
 		}
+	}
+	if strings.Contains(html, "from memory") {
+		t.Errorf("report still has references given from memory")
 	}
 	// Coverage of the invented year: 365 days × 2 soundings, all valid.
 	if !regexp.MustCompile(`<td>ZZXSYN00001</td><td>2001</td><td>730</td><td>730</td><td>0</td>`).MatchString(html) {
 		t.Errorf("coverage row for 2001 not found")
 	}
-	if n := strings.Count(html, `<img src="data:image/png;base64,`); n != 3 {
-		t.Errorf("%d embedded PNG figures, want 3", n)
+	figs, err := filepath.Glob(filepath.Join(dir, "report-figures", "*.png"))
+	if err != nil || len(figs) != 4 {
+		t.Errorf("%d figure files beside the page, want 4", len(figs))
+	}
+	for _, f := range figs {
+		fb, err := os.ReadFile(f)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if _, err := png.Decode(bytes.NewReader(fb)); err != nil {
+			t.Errorf("%s: %v", f, err)
+		}
 	}
 
 	bin := chromium(t)
-	probed := filepath.Join(dir, "probed.html")
-	if err := os.WriteFile(probed, []byte(strings.Replace(html, "</body>", probe, 1)), 0o644); err != nil {
-		t.Fatal(err)
+	p := runProbe(t, bin, dir, html, "1400,900")
+	switch {
+	case p.window != 1400:
+		t.Errorf("Chromium's window is %d px wide, not 1400: the layout checks mean nothing", p.window)
+	case p.failed || p.images != 4 || p.figures != 4:
+		t.Errorf("figures: %d of %d loaded (error: %v)", p.images, p.figures, p.failed)
+	case p.medianRight <= 0 || p.medianRight > p.window:
+		t.Errorf("the climatology's median column ends at %d px, outside the %d px window", p.medianRight, p.window)
+	case p.overflowing != 0 || p.page > p.window:
+		t.Errorf("%d of %d tables need a horizontal scroll bar (page %d px wide)", p.overflowing, p.tables, p.page)
 	}
-	dom := runChromium(t, bin, "file://"+probed, "--dump-dom")
-	if !strings.Contains(dom, "<title>FIGURES-LOADED 3</title>") {
-		title := regexp.MustCompile(`<title>[^<]*</title>`).FindString(dom)
-		t.Errorf("figures did not all load in Chromium: %s", title)
+	if narrow := runProbe(t, bin, dir, html, "700,900"); narrow.overflowing == 0 {
+		t.Errorf("in a 700 px window no table overflows: the overflow check cannot fail (%+v)", narrow)
 	}
+
 	shot := filepath.Join(dir, "shot.png")
-	runChromium(t, bin, "file://"+page, "--window-size=1200,1600", "--screenshot="+shot)
+	runChromium(t, bin, "file://"+page, "--window-size=1400,1600", "--screenshot="+shot)
 	sb, err := os.ReadFile(shot)
 	if err != nil {
 		t.Fatal(err)
@@ -131,6 +206,30 @@ func TestReportInBrowser(t *testing.T) {
 	}
 	if len(colours) < 20 {
 		t.Errorf("screenshot looks blank: %d distinct colours", len(colours))
+	}
+
+	// --embed: one file, the same four figures inside it.
+	one := filepath.Join(dir, "one.html")
+	if code, _, errs := runCmd(t, "report", "--store", store, "--out", one, "--embed"); code != exitOK {
+		t.Fatalf("report --embed: exit %d\n%s", code, errs)
+	}
+	eb, err := os.ReadFile(one)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if n := strings.Count(string(eb), `<img src="data:image/png;base64,`); n != 4 {
+		t.Errorf("--embed: %d embedded figures, want 4", n)
+	}
+	if _, err := os.Stat(filepath.Join(dir, "one-figures")); err == nil {
+		t.Errorf("--embed wrote a figures folder")
+	}
+	if code, _, _ := runCmd(t, "report", "--store", store, "--out", one, "--min-soundings", "0"); code != exitUsage {
+		t.Errorf("--min-soundings 0: exit %d, want %d", code, exitUsage)
+	}
+	// A minimum above the station's 730 valid soundings lists it only.
+	code, out, errs = runCmd(t, "report", "--store", store, "--out", one, "--min-soundings", "731")
+	if code != exitOK || !strings.Contains(out, "0 stations with a section, 1 listed only, 0 figures") {
+		t.Errorf("--min-soundings 731: exit %d, %q\n%s", code, out, errs)
 	}
 }
 

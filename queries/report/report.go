@@ -1,26 +1,31 @@
-// Package report writes a store's boundary-layer climatology as one
-// self-contained HTML page: the figures of package figures embedded as
-// base64 PNG images, the data coverage per station and year, the seasonal
-// climatology table, the method notes with their references, and the
-// caution about use. The page loads nothing from elsewhere (no scripts,
-// fonts, style sheets or images by URL), so it opens offline in any
-// browser.
+// Package report writes a store's boundary-layer climatology as an HTML
+// page a meteorologist can hand on: what the report was made from (program
+// version, store, schema and derivation versions, date), the stations with
+// their positions and periods of record, the data coverage, and per station
+// the seasonal climatology, the figures of package figures, the episodes,
+// the forecasters' guidance, the trends and the quality-control findings;
+// then the method notes with their references and the caution about use.
+//
+// Stations with fewer valid soundings than Options.MinSoundings are listed
+// with their counts but get no section (a handful of soundings gives no
+// climatology). The figures are PNG files beside the page (Report.Save) or,
+// with Options.Embed, inside it as data URIs. The page loads nothing from
+// elsewhere (no scripts, fonts, style sheets or images by URL), so it opens
+// offline in any browser.
 package report
 
 import (
-	"bytes"
 	"context"
 	"database/sql"
 	_ "embed"
-	"encoding/base64"
 	"fmt"
 	"html/template"
-	"io"
 	"math"
-	"strconv"
+	"slices"
 	"strings"
 	"time"
 
+	"github.com/sondeclim/sondeclim/analyze"
 	"github.com/sondeclim/sondeclim/queries"
 	"github.com/sondeclim/sondeclim/queries/figures"
 )
@@ -28,10 +33,16 @@ import (
 //go:embed coverage.sql
 var coverageSQL string
 
-//go:embed page.html
-var pageHTML string
+//go:embed stations.sql
+var stationsSQL string
 
-// Options selects what a report covers.
+// DefaultMinSoundings is the number of valid soundings below which a
+// station is listed but given no section: queries.MinSeasonSoundings, the
+// smallest sample of one cell of the seasonal table, so that a station
+// below it cannot fill a single cell.
+const DefaultMinSoundings = queries.MinSeasonSoundings
+
+// Options selects what a report covers and records what made it.
 type Options struct {
 	// Station restricts the report to one station id; empty means every
 	// station of the store.
@@ -40,51 +51,93 @@ type Options struct {
 	// figures.Consensus (the default when empty) or a method of the
 	// mixing_heights table.
 	Method string
+	// MinSoundings is the number of valid soundings a station needs for
+	// its section; 0 means DefaultMinSoundings, a negative value is an
+	// error.
+	MinSoundings int
+	// Embed puts the figures inside the page as data URIs; otherwise Save
+	// writes them as PNG files into a folder beside the page.
+	Embed bool
+
+	// What made the report, shown in its colophon.
+	Generated         time.Time // when it was written (UTC); zero: now
+	Version           string    // program version (internal/buildinfo)
+	StorePath         string    // the store directory as given
+	SchemaVersion     int       // store schema version
+	DerivationVersion int       // derivation version of the program
 }
 
 // Caution is the notice on every report.
 const Caution = "Every number and figure here is an estimate from soundings. For regulatory, air-quality, smoke-management or burn decisions, defer to local regulations and licensed meteorological practice."
 
-// Table is a table for the page: column headings and formatted cells.
-type Table struct {
-	Columns []string
-	Rows    [][]string
-}
-
-// Image is one embedded figure.
+// Image is one figure of a station.
 type Image struct {
-	Title  string
-	Name   string
-	Source template.URL // data:image/png;base64,…
-	Width  int          // CSS pixels
+	Title string
+	Name  string // file stem
+	Width int    // CSS pixels
+	PNG   []byte
+	// Source is the image's address in the page: a data URI when
+	// embedded, else the relative path Save writes it to.
+	Source template.URL
 }
 
-// Section holds one station's figures.
+// Section is one station's part of the report.
 type Section struct {
-	Station figures.Station
-	Label   string
-	Images  []Image
+	ID, Label   string
+	Position    string // "38.98° N, 77.49° W, 88 m above sea level"
+	Climatology Table
+	Images      []Image
+	Episodes    Table
+	Persistence Table
+	Afternoon   Table
+	Trends      Table
+	QC          Table
+	Excluded    int // soundings excluded by quality control
 }
 
 // Report is the content of the page.
 type Report struct {
-	Title       string
-	Caution     string
-	Coverage    Table
-	Climatology Table
-	Sections    []Section
-	Method      string
+	Title        string
+	Caution      string
+	Generated    string
+	Version      string
+	Store        string
+	Schema       int
+	Derivation   int
+	MinSoundings int
+	Method       string
+	Embed        bool
+	// FigureDir is the folder of the figure files, relative to the page
+	// (Save sets it from the page's name).
+	FigureDir string
+
+	Stations Table
+	Listed   []string // ids of the stations listed without a section
+	Coverage Table
+	Sections []Section
+	Rules    []Rule
 }
+
+// Rule is an episode rule as the page describes it.
+type Rule struct{ Name, Words string }
 
 // Build reads the report's content from the store behind db (see
 // queries.Open). An unknown station or method is an error naming the
 // ones the store has.
 func Build(ctx context.Context, db *sql.DB, opt Options) (*Report, error) {
-	method := opt.Method
-	if method == "" {
-		method = figures.Consensus
+	if opt.Method == "" {
+		opt.Method = figures.Consensus
 	}
-	stations, err := figures.LoadStations(ctx, db)
+	if opt.MinSoundings < 0 {
+		return nil, fmt.Errorf("the minimum number of soundings must not be negative, got %d", opt.MinSoundings)
+	}
+	if opt.MinSoundings == 0 {
+		opt.MinSoundings = DefaultMinSoundings
+	}
+	if opt.Generated.IsZero() {
+		opt.Generated = time.Now()
+	}
+	all, err := figures.LoadStations(ctx, db)
 	if err != nil {
 		return nil, err
 	}
@@ -93,104 +146,118 @@ func Build(ctx context.Context, db *sql.DB, opt Options) (*Report, error) {
 		if err != nil {
 			return nil, err
 		}
-		stations = []figures.Station{st}
+		all = []figures.Station{st}
 	}
-	if len(stations) == 0 {
+	if len(all) == 0 {
 		return nil, fmt.Errorf("the store holds no soundings")
 	}
-	r := &Report{Caution: Caution, Method: method}
-	if len(stations) == 1 {
-		r.Title = "Boundary-layer climatology of " + stations[0].Label()
+	r := &Report{Caution: Caution, Method: opt.Method, Generated: opt.Generated.UTC().Format("2006-01-02 15:04 UTC"),
+		Version: opt.Version, Store: opt.StorePath, Schema: opt.SchemaVersion, Derivation: opt.DerivationVersion,
+		MinSoundings: opt.MinSoundings, Embed: opt.Embed}
+	if len(all) == 1 {
+		r.Title = "Boundary-layer climatology of " + all[0].Label()
 	} else {
-		r.Title = fmt.Sprintf("Boundary-layer climatology of %d stations", len(stations))
+		r.Title = fmt.Sprintf("Boundary-layer climatology of %d stations", len(all))
 	}
+	for _, c := range analyze.BuiltinCriteria() {
+		r.Rules = append(r.Rules, Rule{Name: c.Name, Words: ruleWords(c.Name)})
+	}
+
+	meta, err := queries.Query(ctx, db, stationsSQL, opt.Station)
+	if err != nil {
+		return nil, fmt.Errorf("stations: %w", err)
+	}
+	kept, positions := r.stations(meta)
 	cov, err := queries.Query(ctx, db, coverageSQL, opt.Station)
 	if err != nil {
 		return nil, fmt.Errorf("coverage: %w", err)
 	}
-	r.Coverage = format(cov, "")
-	clim, err := queries.Climatology(ctx, db)
-	if err != nil {
-		return nil, fmt.Errorf("%w", err)
+	r.Coverage = render(cov, coverageColumns)
+	if len(kept) == 0 {
+		return r, nil
 	}
-	r.Climatology = format(clim, opt.Station)
-	for _, st := range stations {
-		figs, err := figures.StationFigures(ctx, db, st, method)
-		if err != nil {
-			return nil, err
+	t, err := loadTables(ctx, db, kept)
+	if err != nil {
+		return nil, err
+	}
+	excluded := excludedByStation(cov)
+	for _, st := range all {
+		if !slices.Contains(kept, st.ID) {
+			continue
 		}
-		sec := Section{Station: st, Label: st.Label()}
-		for _, f := range figs {
-			var buf bytes.Buffer
-			if err := f.Render(&buf, "png"); err != nil {
-				return nil, err
-			}
-			sec.Images = append(sec.Images, Image{
-				Title:  f.Title,
-				Name:   f.Name,
-				Source: template.URL("data:image/png;base64," + base64.StdEncoding.EncodeToString(buf.Bytes())),
-				Width:  int(math.Round(f.Width.Points() * 96 / 72)),
-			})
+		sec := Section{ID: st.ID, Label: st.Label(), Position: positions[st.ID], Excluded: excluded[st.ID]}
+		t.fill(&sec)
+		if sec.Images, err = stationImages(ctx, db, st, opt.Method); err != nil {
+			return nil, err
 		}
 		r.Sections = append(r.Sections, sec)
 	}
 	return r, nil
 }
 
-// format turns a query result into text cells: heights (columns ending in
-// _m) to whole metres, kelvin to 0.1 K, fractions to 0.01, NULL as "–".
-// When station is not empty, only rows whose station_id equals it remain.
-func format(t *queries.Table, station string) Table {
-	out := Table{Columns: t.Columns}
-	sid := -1
-	for i, c := range t.Columns {
-		if c == "station_id" {
-			sid = i
+// stations fills the stations table of r from the rows of stations.sql,
+// and returns the ids of the stations with a section and each station's
+// position in words.
+func (r *Report) stations(meta *queries.Table) ([]string, map[string]string) {
+	col := func(name string) int { return slices.Index(meta.Columns, name) }
+	id, valid := col("station_id"), col("n_valid")
+	lat, lon, elev, npos := col("latitude_deg"), col("longitude_deg"), col("elevation_m"), col("n_positions")
+	var kept []string
+	positions := map[string]string{}
+	out := &queries.Table{Columns: append(slices.Clone(meta.Columns), "shown")}
+	for _, row := range meta.Rows {
+		sid := fmt.Sprint(row[id])
+		n, _ := row[valid].(int64)
+		shown := "section below"
+		if int(n) < r.MinSoundings {
+			shown = fmt.Sprintf("listed only: fewer than %d valid soundings", r.MinSoundings)
+			r.Listed = append(r.Listed, sid)
+		} else {
+			kept = append(kept, sid)
 		}
+		if np, _ := row[npos].(int64); np > 1 {
+			shown += fmt.Sprintf("; %d positions in the record, the latest shown", np)
+		}
+		positions[sid] = position(row[lat], row[lon], row[elev])
+		out.Rows = append(out.Rows, append(slices.Clone(row), shown))
 	}
-	for _, row := range t.Rows {
-		if station != "" && sid >= 0 && row[sid] != station {
-			continue
+	r.Stations = render(out, stationColumns)
+	return kept, positions
+}
+
+// position writes a station's position in words.
+func position(lat, lon, elev any) string {
+	la, ok1 := lat.(float64)
+	lo, ok2 := lon.(float64)
+	var parts []string
+	if ok1 && ok2 {
+		ns, ew := "N", "E"
+		if la < 0 {
+			ns = "S"
 		}
-		cells := make([]string, len(row))
-		for i, v := range row {
-			cells[i] = cell(t.Columns[i], v)
+		if lo < 0 {
+			ew = "W"
 		}
-		out.Rows = append(out.Rows, cells)
+		parts = append(parts, fmt.Sprintf("%.2f° %s, %.2f° %s", math.Abs(la), ns, math.Abs(lo), ew))
+	} else {
+		parts = append(parts, "position not given")
+	}
+	if e, ok := elev.(float64); ok && !math.IsNaN(e) {
+		parts = append(parts, fmt.Sprintf("%.0f m above sea level", e))
+	} else {
+		parts = append(parts, "elevation not given")
+	}
+	return strings.Join(parts, ", ")
+}
+
+// excludedByStation sums the coverage table's QC-excluded soundings per
+// station.
+func excludedByStation(cov *queries.Table) map[string]int {
+	out := map[string]int{}
+	id, ex := slices.Index(cov.Columns, "station_id"), slices.Index(cov.Columns, "n_qc_excluded")
+	for _, r := range cov.Rows {
+		n, _ := r[ex].(int64)
+		out[fmt.Sprint(r[id])] += int(n)
 	}
 	return out
-}
-
-func cell(column string, v any) string {
-	switch x := v.(type) {
-	case nil:
-		return "–"
-	case float64:
-		if math.IsNaN(x) {
-			return "–"
-		}
-		switch {
-		case strings.HasSuffix(column, "_m"):
-			return strconv.FormatFloat(x, 'f', 0, 64)
-		case strings.HasSuffix(column, "_k"):
-			return strconv.FormatFloat(x, 'f', 1, 64)
-		default:
-			return strconv.FormatFloat(x, 'f', 2, 64)
-		}
-	case time.Time:
-		return x.UTC().Format(time.RFC3339)
-	}
-	return fmt.Sprint(v)
-}
-
-var page = template.Must(template.New("report").Parse(pageHTML))
-
-// WriteHTML writes the report as one self-contained HTML5 page.
-func (r *Report) WriteHTML(w io.Writer) error {
-	var buf bytes.Buffer
-	if err := page.Execute(&buf, r); err != nil {
-		return fmt.Errorf("%w", err)
-	}
-	_, err := w.Write(buf.Bytes())
-	return err
 }

@@ -44,6 +44,18 @@ func TestBuild(t *testing.T) {
 	if _, err := schema.WriteTable(dir, schema.TableMixedLayers, []schema.MixedLayerRow{{StationID: "XR001", LaunchTime: rows[0].LaunchTime, Year: 2015, BaseAGLM: 100, TopAGLM: 600}}); err != nil {
 		t.Fatal(err)
 	}
+	if _, err := schema.WriteTable(dir, schema.TableAfternoon, []schema.AfternoonRow{{StationID: "XR001", Year: 2015,
+		LocalDate: time.Date(2015, 1, 1, 0, 0, 0, 0, time.UTC), MorningLaunch: rows[0].LaunchTime, TmaxC: 3, TmaxSource: "later_sounding",
+		HeightAGLM: 450, Status: "ok"}}); err != nil {
+		t.Fatal(err)
+	}
+	// Two findings of one check on one sounding of XR001.
+	if _, err := schema.WriteTable(dir, schema.TableQCFindings, []schema.QCFindingRow{
+		{StationID: "XR001", LaunchTime: rows[5].LaunchTime, Year: 2016, Index: 3, Variable: "pressure", Check: "pressure_order", Severity: "bad"},
+		{StationID: "XR001", LaunchTime: rows[5].LaunchTime, Year: 2016, Index: 4, Variable: "pressure", Check: "pressure_order", Severity: "bad"},
+	}); err != nil {
+		t.Fatal(err)
+	}
 	ctx := context.Background()
 	db, err := queries.Open(ctx, dir)
 	if err != nil {
@@ -51,7 +63,20 @@ func TestBuild(t *testing.T) {
 	}
 	defer db.Close()
 
-	r, err := Build(ctx, db, Options{})
+	// With the default minimum (45 valid soundings) both stations are
+	// listed only: no sections, no figures.
+	thin, err := Build(ctx, db, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(thin.Sections) != 0 || strings.Join(thin.Listed, ",") != "XR001,XR002" || len(thin.Stations.Rows) != 2 {
+		t.Errorf("default minimum: %d sections, listed %v", len(thin.Sections), thin.Listed)
+	}
+	if got := thin.Stations.Rows[0][len(thin.Stations.Rows[0])-1]; !strings.Contains(got, "fewer than 45 valid soundings") {
+		t.Errorf("thin station's row says %q", got)
+	}
+
+	r, err := Build(ctx, db, Options{MinSoundings: 4, Version: "TEST", StorePath: "STORE", Generated: time.Date(2020, 1, 2, 3, 4, 0, 0, time.UTC)})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -64,9 +89,19 @@ func TestBuild(t *testing.T) {
 	if got := r.Coverage.Rows; len(got) != len(want) || strings.Join(flat(got), ",") != strings.Join(flat(want), ",") {
 		t.Errorf("coverage %v, want %v", got, want)
 	}
-	if len(r.Sections) != 2 || len(r.Sections[0].Images) != 3 {
-		t.Errorf("%d sections", len(r.Sections))
+	// XR001 has 5 valid soundings (>= 4), XR002 3.
+	if len(r.Sections) != 1 || r.Sections[0].ID != "XR001" || len(r.Sections[0].Images) != 4 || strings.Join(r.Listed, ",") != "XR002" {
+		t.Fatalf("%d sections, listed %v", len(r.Sections), r.Listed)
 	}
+	if r.Sections[0].Excluded != 2 {
+		t.Errorf("XR001: %d soundings excluded by QC, want 2", r.Sections[0].Excluded)
+	}
+	// The QC table: check in words, severity, 2 findings, 1 sounding of
+	// 8 (12.5 %, written 12: rounding half to even), 2 levels.
+	if got := strings.Join(flat(r.Sections[0].QC.Rows), ","); got != "pressure not decreasing with height bad 2 1 12 2 level or sounding not used" {
+		t.Errorf("QC rows %q", got)
+	}
+	r.Embed = true
 	var buf bytes.Buffer
 	if err := r.WriteHTML(&buf); err != nil {
 		t.Fatal(err)
@@ -75,24 +110,27 @@ func TestBuild(t *testing.T) {
 	if m := regexp.MustCompile(`(?i)(src|href)\s*=\s*"(https?:|//)`).FindString(page); m != "" {
 		t.Errorf("page refers outside itself: %q", m)
 	}
-	if !strings.Contains(page, Caution) || strings.Count(page, `src="data:image/png;base64,`) != 6 {
-		t.Errorf("page lacks the caution or the 6 figures")
+	if !strings.Contains(page, Caution) || strings.Count(page, `src="data:image/png;base64,`) != 4 {
+		t.Errorf("page lacks the caution or the 4 figures")
+	}
+	for _, want := range []string{"2020-01-02 03:04 UTC", "sondeclim TEST", "STORE (schema version"} {
+		if !strings.Contains(page, want) {
+			t.Errorf("page lacks %q", want)
+		}
 	}
 
-	one, err := Build(ctx, db, Options{Station: "XR002"})
+	one, err := Build(ctx, db, Options{Station: "XR002", MinSoundings: 1})
 	if err != nil {
 		t.Fatal(err)
 	}
 	if len(one.Coverage.Rows) != 1 || len(one.Sections) != 1 || !strings.Contains(one.Title, "XR002 INVENTED") {
 		t.Errorf("station report: %d coverage rows, %d sections, title %q", len(one.Coverage.Rows), len(one.Sections), one.Title)
 	}
-	for _, row := range one.Climatology.Rows {
-		if row[0] != "XR002" {
-			t.Errorf("climatology row of another station: %v", row)
-		}
-	}
 	if _, err := Build(ctx, db, Options{Station: "NOPE"}); err == nil {
 		t.Error("unknown station accepted")
+	}
+	if _, err := Build(ctx, db, Options{MinSoundings: -1}); err == nil {
+		t.Error("negative minimum accepted")
 	}
 }
 
