@@ -121,10 +121,10 @@ func shortRule(name string) string {
 	return name
 }
 
-// withRuleWords adds a column rule, the criterion in words.
+// withRuleWords adds a column rule_words, the criterion in words.
 func withRuleWords(t *queries.Table) *queries.Table {
 	i := slices.Index(t.Columns, "criterion")
-	out := &queries.Table{Columns: append(slices.Clone(t.Columns), "rule")}
+	out := &queries.Table{Columns: append(slices.Clone(t.Columns), "rule_words")}
 	for _, r := range t.Rows {
 		out.Rows = append(out.Rows, append(slices.Clone(r), shortRule(fmt.Sprint(r[i]))))
 	}

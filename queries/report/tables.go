@@ -267,7 +267,7 @@ var (
 		{name: "note", head: "Note", show: text, wrap: true},
 	}
 	episodeColumns = []column{
-		{name: "rule", head: "Rule", words: true},
+		{name: "rule_words", head: "Rule", words: true},
 		{name: "season_label", head: "Season", words: true},
 		{name: "n_years", head: "Years"},
 		{name: "n_days", head: "Days with soundings"},
