@@ -1,9 +1,11 @@
 package analyze
 
 import (
+	"math"
 	"testing"
 	"time"
 
+	"github.com/sondeclim/sondeclim/physics/thermo"
 	"github.com/sondeclim/sondeclim/sounding"
 )
 
@@ -43,6 +45,32 @@ func BenchmarkAnalyze100Levels(b *testing.B) {
 		r := Analyze(s, cfg)
 		if r.Status != StatusOK {
 			b.Fatal(r.Status)
+		}
+	}
+}
+
+// BenchmarkBulkStability100Levels times what episodes add to every
+// sounding's analysis (the heat deficit and the stable-layer fraction),
+// on the same sounding as BenchmarkAnalyze100Levels, to compare the two.
+func BenchmarkBulkStability100Levels(b *testing.B) {
+	s := benchSounding()
+	cfg := DefaultConfig()
+	r := Analyze(s, cfg)
+	var z, p, tk, th []float64
+	for i, l := range s.Levels {
+		if math.IsNaN(r.HeightAGLM[i]) || math.IsNaN(l.TemperatureK) {
+			continue
+		}
+		z, p, tk = append(z, r.HeightAGLM[i]), append(p, l.PressurePa), append(tk, l.TemperatureK)
+		th = append(th, thermo.PotentialTemperature(l.TemperatureK, l.PressurePa, cfg.Constants.Kappa, cfg.Constants.P0Pa))
+	}
+	top := cfg.HeatDeficit.TopAGL(z, p, 0)
+	b.ReportAllocs()
+	for b.Loop() {
+		h := HeatDeficit(z, p, tk, th, top, cfg.Constants.Cpd, cfg.Constants.Rd)
+		f := StableLayerFraction(z, tk, cfg.StableLayer.DepthM, cfg.StableLayer.MaxLapseKPerKm)
+		if math.IsNaN(h) || math.IsNaN(f) {
+			b.Fatal("heat deficit or stable fraction not computed")
 		}
 	}
 }
