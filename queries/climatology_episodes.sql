@@ -8,7 +8,10 @@
 -- An episode is counted in the period of its first day; a day inside an
 -- episode (days_in_episodes, share_of_days) in its own period. share_of_days
 -- is days meeting the rule inside episodes over the days with an analysable
--- sounding. Lengths are calendar days (missing days inside included);
+-- sounding. n_days_judged counts the days on which the rule could be judged
+-- (rule_months: met or failed); where it is 0 (e.g. a station without a
+-- morning sounding and a rule that needs one) the episode counts are null,
+-- not 0: no episodes could have been found. Lengths are calendar days (missing days inside included);
 -- percentiles are Hyndman-Fan type 7.
 WITH d AS (
     SELECT station_id, local_date,
@@ -30,6 +33,15 @@ WITH d AS (
     FROM episode_days ed JOIN dk USING (station_id, local_date)
     WHERE ed.status = 'met'
     GROUP BY ALL
+), judged AS (
+    SELECT station_id, criterion,
+           CASE WHEN $1 = 'month' THEN NULL ELSE season END AS season,
+           CASE WHEN $1 = 'month' THEN month ELSE NULL END AS month,
+           sum(days_met + days_failed) AS n_judged
+    FROM rule_months
+    WHERE (len($2::VARCHAR[]) = 0 OR list_contains($2::VARCHAR[], station_id))
+      AND (CASE WHEN $1 = 'month' THEN year ELSE season_year END) BETWEEN $3 AND $4
+    GROUP BY ALL
 ), ep AS (
     SELECT station_id, criterion,
            CASE WHEN $1 = 'month' THEN NULL ELSE season END AS season,
@@ -45,10 +57,11 @@ WITH d AS (
     GROUP BY ALL
 )
 SELECT c.station_id, k.criterion, c.season, c.month, c.n_years, c.n_days,
-       coalesce(ep.n_episodes, 0) AS n_episodes,
-       round(coalesce(ep.n_episodes, 0) / c.n_years, 3) AS episodes_per_year,
-       coalesce(met.days_in_episodes, 0) AS days_in_episodes,
-       round(coalesce(met.days_in_episodes, 0) / c.n_days, 4) AS share_of_days,
+       coalesce(j.n_judged, 0) AS n_days_judged,
+       CASE WHEN coalesce(j.n_judged, 0) > 0 THEN coalesce(ep.n_episodes, 0) END AS n_episodes,
+       CASE WHEN coalesce(j.n_judged, 0) > 0 THEN round(coalesce(ep.n_episodes, 0) / c.n_years, 3) END AS episodes_per_year,
+       CASE WHEN coalesce(j.n_judged, 0) > 0 THEN coalesce(met.days_in_episodes, 0) END AS days_in_episodes,
+       CASE WHEN coalesce(j.n_judged, 0) > 0 THEN round(coalesce(met.days_in_episodes, 0) / c.n_days, 4) END AS share_of_days,
        ep.q[1] AS length_median_days,
        ep.q[2] AS length_p90_days,
        ep.longest AS longest_days,
@@ -59,6 +72,8 @@ FROM cells c
 CROSS JOIN crit k
 LEFT JOIN ep ON ep.station_id = c.station_id AND ep.criterion = k.criterion
     AND ep.season IS NOT DISTINCT FROM c.season AND ep.month IS NOT DISTINCT FROM c.month
+LEFT JOIN judged j ON j.station_id = c.station_id AND j.criterion = k.criterion
+    AND j.season IS NOT DISTINCT FROM c.season AND j.month IS NOT DISTINCT FROM c.month
 LEFT JOIN met ON met.station_id = c.station_id AND met.criterion = k.criterion
     AND met.season IS NOT DISTINCT FROM c.season AND met.month IS NOT DISTINCT FROM c.month
 ORDER BY c.station_id, k.ord,

@@ -32,8 +32,9 @@ type EpisodeCounts struct {
 	Soundings, Days, Episodes, EpisodeDays int
 }
 
-// AttachEpisodes builds the tables days, episodes and episode_days (package
-// schema: DayRow, EpisodeRow, EpisodeDayRow) in db from the soundings and
+// AttachEpisodes builds the tables days, episodes, episode_days and
+// rule_months (package schema: DayRow, EpisodeRow, EpisodeDayRow,
+// RuleMonthRow) in db from the soundings and
 // afternoon_mixing views, replacing earlier ones. Days and episodes are
 // computed per station over its whole record (analyze.BuildDays and
 // analyze.FindEpisodes), so an episode spanning a year boundary or an
@@ -68,6 +69,12 @@ func AttachEpisodes(ctx context.Context, db *sql.DB, o EpisodeOptions) (EpisodeC
 		return n, err
 	}
 	days := analyze.BuildDays(obs, holz, o.Days)
+	return writeDayTables(ctx, db, days, criteria, n)
+}
+
+// writeDayTables builds the derived tables from days (sorted by station
+// and date) and validated criteria.
+func writeDayTables(ctx context.Context, db *sql.DB, days []analyze.DayRecord, criteria []analyze.Criterion, n EpisodeCounts) (EpisodeCounts, error) {
 	n.Days = len(days)
 	dayRows := make([]schema.DayRow, len(days))
 	for i, d := range days {
@@ -75,7 +82,9 @@ func AttachEpisodes(ctx context.Context, db *sql.DB, o EpisodeOptions) (EpisodeC
 	}
 	var epRows []schema.EpisodeRow
 	var edRows []schema.EpisodeDayRow
+	var rmRows []schema.RuleMonthRow
 	for _, c := range criteria {
+		rmRows = append(rmRows, ruleMonths(days, c)...)
 		eps, err := analyze.FindEpisodes(days, c)
 		if err != nil {
 			return n, err
@@ -110,7 +119,33 @@ func AttachEpisodes(ctx context.Context, db *sql.DB, o EpisodeOptions) (EpisodeC
 	if err := materialize(ctx, db, dir, schema.TableEpisodes, epRows); err != nil {
 		return n, err
 	}
-	return n, materialize(ctx, db, dir, schema.TableEpisodeDays, edRows)
+	if err := materialize(ctx, db, dir, schema.TableEpisodeDays, edRows); err != nil {
+		return n, err
+	}
+	return n, materialize(ctx, db, dir, schema.TableRuleMonths, rmRows)
+}
+
+// ruleMonths counts how the days (sorted by station and date) answer c,
+// per station and calendar month.
+func ruleMonths(days []analyze.DayRecord, c analyze.Criterion) []schema.RuleMonthRow {
+	var out []schema.RuleMonthRow
+	for _, d := range days {
+		y, m := int32(d.Date.Year()), int32(d.Date.Month())
+		if k := len(out) - 1; k < 0 || out[k].StationID != d.StationID || out[k].Year != y || out[k].Month != m {
+			season, sy := seasonOf(d.Date)
+			out = append(out, schema.RuleMonthRow{StationID: d.StationID, Criterion: c.Name, Year: y, Month: m, Season: season, SeasonYear: int32(sy)})
+		}
+		r := &out[len(out)-1]
+		switch c.Evaluate(d) {
+		case analyze.Yes:
+			r.DaysMet++
+		case analyze.No:
+			r.DaysFailed++
+		default:
+			r.DaysUnknown++
+		}
+	}
+	return out
 }
 
 // dayRow is the days table's row of a day.
@@ -223,7 +258,7 @@ func seasonOf(t time.Time) (string, int) {
 // only when they are used.
 func MentionsEpisodeTables(sqlText string) bool {
 	s := strings.ToLower(sqlText)
-	for _, t := range []string{schema.TableDays, schema.TableEpisodes, schema.TableEpisodeDays} {
+	for _, t := range []string{schema.TableDays, schema.TableEpisodes, schema.TableEpisodeDays, schema.TableRuleMonths} {
 		for i := strings.Index(s, t); i >= 0; {
 			before := i == 0 || !identChar(s[i-1])
 			after := i+len(t) >= len(s) || !identChar(s[i+len(t)])

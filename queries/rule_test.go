@@ -135,3 +135,78 @@ func TestRuleMatchesSQL(t *testing.T) {
 		}
 	}
 }
+
+// TestEpisodeClimatologyByHand: a constructed list of days (invented, not
+// observations) through the derived tables and the episode climatology,
+// with every figure worked out by hand: January has two deep-stable-layer
+// episodes, February has no morning sounding, so the rule cannot be judged
+// there and its counts are null rather than 0.
+func TestEpisodeClimatologyByHand(t *testing.T) {
+	ctx := context.Background()
+	db, err := sql.Open("duckdb", "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer db.Close()
+	Y, N, U := analyze.Yes, analyze.No, analyze.Unknown
+	var days []analyze.DayRecord
+	add := func(m time.Month, d int, dsl analyze.Tri) {
+		nan := math.NaN()
+		rec := analyze.DayRecord{StationID: "V", Date: time.Date(2020, m, d, 0, 0, 0, 0, time.UTC), Soundings: 1, Morning: 0, Afternoon: -1,
+			MorningSBI: N, MorningSBIStrengthK: nan, MorningHeatDeficitJ: nan, AfternoonHeatDeficitJ: nan, MaxHeatDeficitJ: nan,
+			StableFraction: 0.5, DeepStable: dsl, AfternoonMHM: nan, AfternoonWindMS: nan, VentilationM2S: nan}
+		if dsl == U {
+			rec.Morning, rec.StableFraction, rec.MorningSBI = -1, nan, U
+		}
+		days = append(days, rec)
+	}
+	for i, s := range []analyze.Tri{Y, Y, Y, N, Y, Y, U, Y, N, N} { // 1-10 January
+		add(time.January, i+1, s)
+	}
+	for d := 1; d <= 5; d++ { // 1-5 February: no morning sounding
+		add(time.February, d, U)
+	}
+	var dsl analyze.Criterion
+	for _, c := range analyze.BuiltinCriteria() {
+		if c.Name == analyze.CriterionDeepStable {
+			dsl = c
+		}
+	}
+	if _, err := writeDayTables(ctx, db, days, []analyze.Criterion{dsl}, EpisodeCounts{}); err != nil {
+		t.Fatal(err)
+	}
+	var met, failed, unknown int
+	if err := db.QueryRow("SELECT days_met, days_failed, days_unknown FROM rule_months WHERE month = 1").Scan(&met, &failed, &unknown); err != nil {
+		t.Fatal(err)
+	}
+	if met != 6 || failed != 3 || unknown != 1 {
+		t.Errorf("January: met %d failed %d unknown %d, want 6, 3, 1", met, failed, unknown)
+	}
+	tab, err := EpisodeClimatology(ctx, db, ClimatologyOptions{By: ByMonth}, []analyze.Criterion{dsl})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(tab.Rows) != 2 {
+		t.Fatalf("%d rows, want January and February", len(tab.Rows))
+	}
+	// January: episodes 1-3 (3 days, open start: the record begins there)
+	// and 5-8 (3 met, 7 missing, length 4). Lengths 3 and 4: median 3.5,
+	// type-7 p90 3 + 0.9 × 1 = 3.9. Days in episodes 6 of 10: 0.6.
+	want := map[string]any{"n_days": 10, "n_days_judged": 9, "n_episodes": 2, "days_in_episodes": 6, "share_of_days": 0.6,
+		"length_median_days": 3.5, "length_p90_days": 3.9, "longest_days": 4, "days_missing": 1, "n_open_ended": 1,
+		"rule": "deep_stable_layer; min_days=2; max_gap=1"}
+	for col, w := range want {
+		got := fmt.Sprint(cell(tab, tab.Rows[0], col))
+		if got != fmt.Sprint(w) {
+			t.Errorf("January %s = %s, want %v", col, got, w)
+		}
+	}
+	for _, col := range []string{"n_episodes", "episodes_per_year", "days_in_episodes", "share_of_days"} {
+		if v := cell(tab, tab.Rows[1], col); v != nil {
+			t.Errorf("February (rule not judged on any day) %s = %v, want null", col, v)
+		}
+	}
+	if v := fmt.Sprint(cell(tab, tab.Rows[1], "n_days_judged")); v != "0" {
+		t.Errorf("February n_days_judged = %s, want 0", v)
+	}
+}

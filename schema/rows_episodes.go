@@ -11,6 +11,7 @@ const (
 	TableDays        = "days"         // rows of DayRow
 	TableEpisodes    = "episodes"     // rows of EpisodeRow
 	TableEpisodeDays = "episode_days" // rows of EpisodeDayRow
+	TableRuleMonths  = "rule_months"  // rows of RuleMonthRow
 )
 
 // DayRow is one row of the `days` table: one station's local solar day
@@ -73,4 +74,20 @@ type EpisodeDayRow struct {
 	FirstDay  time.Time `col:"first_day" doc:"first day of the episode (joins episodes on station_id, criterion, first_day)"`
 	LocalDate time.Time `col:"local_date" doc:"the day (joins days on station_id, local_date)"`
 	Status    string    `col:"status" doc:"met (the day meets the rule) or missing (unknown, kept inside by the gap allowance)"`
+}
+
+// RuleMonthRow is one row of the `rule_months` table: how the days of one
+// station and calendar month with an analysable sounding answered one
+// rule, so that "no episodes" can be told apart from "the rule could not
+// be judged" (e.g. a station without a morning sounding).
+type RuleMonthRow struct {
+	StationID   string `col:"station_id" doc:"station identifier"`
+	Criterion   string `col:"criterion" doc:"rule (as in episodes.criterion)"`
+	Year        int32  `col:"year" doc:"calendar year of the days"`
+	Month       int32  `col:"month" doc:"calendar month of the days, 1-12"`
+	Season      string `col:"season" doc:"meteorological season of the month"`
+	SeasonYear  int32  `col:"season_year" doc:"year the season belongs to; December is counted with the following year"`
+	DaysMet     int32  `col:"days_met" doc:"count; days with a sounding meeting the rule (inside an episode or not)"`
+	DaysFailed  int32  `col:"days_failed" doc:"count; days with a sounding failing the rule"`
+	DaysUnknown int32  `col:"days_unknown" doc:"count; days with a sounding on which the rule cannot be judged (the sounding or value it needs is missing)"`
 }

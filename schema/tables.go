@@ -60,6 +60,8 @@ var derivedTables = []Table{
 		reflect.TypeFor[EpisodeRow](), false},
 	{TableEpisodeDays, "One row per day inside an episode, met or missing. Derived when queried.",
 		reflect.TypeFor[EpisodeDayRow](), false},
+	{TableRuleMonths, "One row per station, rule and calendar month: the days with a sounding that met, failed or could not be judged on the rule. Derived when queried.",
+		reflect.TypeFor[RuleMonthRow](), false},
 }
 
 // DerivedTables returns the tables built when queried, in order.

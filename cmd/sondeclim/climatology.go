@@ -44,10 +44,12 @@ Views (--table):
   all          text/markdown: the four views above in turn; csv/json: every
                column in one wide row per cell (csv/json default)
   episodes     per station × episode rule × period (no time of day):
+               days with a sounding and days the rule could be judged on,
                episodes and episodes per year, days inside episodes and
                their share of the days, length median/p90/longest in days,
                missing days inside, open-ended episodes (sondeclim schema:
-               the episodes and days tables)
+               the episodes, days and rule_months tables); where no day
+               could be judged the counts are empty, not 0
 
 Heights are m above ground. Percentiles are Hyndman-Fan type 7 (linear
 interpolation between order statistics); a "surface" mixing height counts
@@ -202,7 +204,9 @@ need 2 days; one missing day inside neither ends an episode nor counts
 (days_missing), two end it (a rule's min_days and max_gap; csv and json carry
 every rule's definition in a rule column).
 An episode counts in the period of its first day, each day inside in its own.
-share_of_days = days meeting the rule inside episodes / days with a sounding.
+share_of_days = days meeting the rule inside episodes / days with a sounding;
+n_days_judged = days the rule could be judged on (met or failed): where it is
+0 (e.g. no morning sounding for a morning rule) the counts are "-", not 0.
 Rules: persistent_inversion_whiteman2001 (morning surface inversion still on
 the afternoon/evening sounding), deep_stable_layer_wolyn_mckee1989 (>= 65 % of
 the lowest 1.5 km with lapse rate <= 2.5 K/km in the morning),

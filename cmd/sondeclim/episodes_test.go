@@ -20,6 +20,7 @@ func episodeTables(t *testing.T, store string) string {
 		"select * from days order by all",
 		"select * from episodes order by all",
 		"select * from episode_days order by all",
+		"select * from rule_months order by all",
 	} {
 		code, out, errs := runCmd(t, "query", "--store", store, "--format", "csv", q)
 		if code != exitOK {
@@ -201,7 +202,7 @@ func TestClimatologyEpisodesGolden(t *testing.T) {
 	}
 	golden(t, "climatology-episodes.txt", out)
 	code, out, errs = runCmd(t, "climatology", "--store", store, "--table", "episodes", "--by", "month", "--format", "csv")
-	if code != exitOK || !strings.HasPrefix(out, "station_id,criterion,month,n_years,n_days,n_episodes") {
+	if code != exitOK || !strings.HasPrefix(out, "station_id,criterion,month,n_years,n_days,n_days_judged,n_episodes") {
 		t.Fatalf("by month: exit %d\n%s\n%s", code, out, errs)
 	}
 }

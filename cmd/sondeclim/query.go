@@ -23,7 +23,7 @@ func (c *queryCmd) Run(ctx context.Context, args []string) error {
 Run one SQL statement (DuckDB dialect) over a store. Each table of the store
 is visible as a view of the same name: soundings (one row per sounding) and
 levels (one row per level), and so on (sondeclim schema lists them). The
-tables days, episodes and episode_days are computed over each station's
+tables days, episodes, episode_days and rule_months are computed over each station's
 whole record when the SQL names them. Use "-" as the SQL to read it from
 stdin.
 
@@ -77,7 +77,7 @@ writes them in full.
 	}
 	defer db.Close()
 	if len(*rules) > 0 && !queries.MentionsEpisodeTables(sql) {
-		return fmt.Errorf("query: --rule makes episodes; name the episodes or episode_days table in the SQL: %w", errUsage)
+		return fmt.Errorf("query: --rule makes episodes; name the episodes, episode_days or rule_months table in the SQL: %w", errUsage)
 	}
 	if queries.MentionsEpisodeTables(sql) {
 		if _, err := queries.AttachEpisodes(ctx, db, rules.episodeOptions()); err != nil {
