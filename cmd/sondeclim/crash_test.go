@@ -112,14 +112,20 @@ func TestRandomKills(t *testing.T) {
 	mustIngest(t, append([]string{"--store", baseStore}, base...)...)
 	wantBase, _ := rowHashes(t, baseStore)
 	baseFiles := parquetFiles(t, baseStore)
+	// The shorter of two runs (the first may pay for cold caches).
 	full := filepath.Join(root, "full")
-	start := time.Now()
-	cmd := exec.Command(os.Args[0], append([]string{"ingest", "--quiet", "--workers", "2", "--store", full}, all...)...)
-	cmd.Env = append(os.Environ(), "SONDECLIM_RUN_MAIN=1")
-	if out, err := cmd.CombinedOutput(); err != nil {
-		t.Fatalf("uninterrupted run: %v\n%s", err, out)
+	var took time.Duration
+	for _, dir := range []string{filepath.Join(root, "full-first"), full} {
+		start := time.Now()
+		cmd := exec.Command(os.Args[0], append([]string{"ingest", "--quiet", "--workers", "2", "--store", dir}, all...)...)
+		cmd.Env = append(os.Environ(), "SONDECLIM_RUN_MAIN=1")
+		if out, err := cmd.CombinedOutput(); err != nil {
+			t.Fatalf("uninterrupted run: %v\n%s", err, out)
+		}
+		if d := time.Since(start); took == 0 || d < took {
+			took = d
+		}
 	}
-	took := time.Since(start)
 	want, errs := rowHashes(t, full)
 	if want == "" || wantBase == "" {
 		t.Fatalf("reference stores cannot be queried: %s", errs)
@@ -138,8 +144,8 @@ func TestRandomKills(t *testing.T) {
 			name = "incremental"
 		}
 		for i := range n {
-			// Stratified: one delay in each n-th of 1.1 times the run.
-			delay := time.Duration(float64(took) * 1.1 * (float64(i) + rng.Float64()) / float64(n))
+			// Stratified: one delay in each n-th of the run's length.
+			delay := time.Duration(float64(took) * (float64(i) + rng.Float64()) / float64(n))
 			st := filepath.Join(root, fmt.Sprintf("%s-%02d", name, i))
 			if incremental {
 				if err := os.CopyFS(st, os.DirFS(baseStore)); err != nil {
@@ -191,7 +197,7 @@ func TestRandomKills(t *testing.T) {
 	}
 	t.Logf("uninterrupted run %v; %d of %d runs killed before they ended; %d of %d reruns match the uninterrupted tables",
 		took.Round(time.Millisecond), killed, 2*n, matched, 2*n)
-	if killed < n {
+	if killed < n/2 {
 		t.Errorf("only %d of %d runs were killed before they ended: the delays do not cover the run", killed, 2*n)
 	}
 }
