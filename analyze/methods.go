@@ -22,6 +22,10 @@ import (
 type Method struct {
 	// Name is the value of mixing_heights.method, snake_case; stable.
 	Name string
+	// Title is the method's name in words for people (figure labels,
+	// report headings), e.g. "bulk Richardson (alternative)"; Name stays
+	// the value programs use.
+	Title string
 	// Detail is a short note shown after the name in the schema
 	// documentation (e.g. "critical 0.25"); may be empty.
 	Detail string
@@ -56,18 +60,18 @@ var (
 // Richardson method from being counted twice (its alternative critical
 // value stays out; proposal, no source).
 var methods = []Method{
-	{Name: MethodParcel, Config: "Parcel", Regimes: convectiveRegimes, Consensus: true, height: parcelHeight},
-	{Name: MethodParcelVirtual, Config: "Parcel", Regimes: convectiveRegimes, Consensus: true, height: parcelVirtualHeight},
-	{Name: MethodHeffter, Config: "Heffter", Regimes: convectiveRegimes, Consensus: true, height: heffterHeight},
-	{Name: MethodRichardson, Detail: "critical 0.25", Config: "Richardson", Regimes: allRegimes, Consensus: true,
+	{Name: MethodParcel, Title: "Holzworth parcel", Config: "Parcel", Regimes: convectiveRegimes, Consensus: true, height: parcelHeight},
+	{Name: MethodParcelVirtual, Title: "parcel (virtual temperature)", Config: "Parcel", Regimes: convectiveRegimes, Consensus: true, height: parcelVirtualHeight},
+	{Name: MethodHeffter, Title: "Heffter", Config: "Heffter", Regimes: convectiveRegimes, Consensus: true, height: heffterHeight},
+	{Name: MethodRichardson, Title: "bulk Richardson", Detail: "critical 0.25", Config: "Richardson", Regimes: allRegimes, Consensus: true,
 		height: func(in *methodInput) MixingHeight { return in.richardson(MethodRichardson, in.cfg.Richardson.Critical) }},
-	{Name: MethodRichardsonAlt, Detail: "critical 0.5", Config: "Richardson", Regimes: allRegimes,
+	{Name: MethodRichardsonAlt, Title: "bulk Richardson (alternative)", Detail: "critical 0.5", Config: "Richardson", Regimes: allRegimes,
 		height: func(in *methodInput) MixingHeight {
 			return in.richardson(MethodRichardsonAlt, in.cfg.Richardson.CriticalAlt)
 		}},
-	{Name: MethodLiuLiang, Config: "LiuLiang", Regimes: allRegimes, Consensus: true, height: liuLiangHeight},
-	{Name: MethodSBITop, Config: "Inversion", Regimes: stableRegimes, Consensus: true, height: sbiTopHeight},
-	{Name: MethodElevatedBase, Config: "Inversion", Regimes: convectiveRegimes, Consensus: true, height: elevatedBaseHeight},
+	{Name: MethodLiuLiang, Title: "Liu-Liang", Config: "LiuLiang", Regimes: allRegimes, Consensus: true, height: liuLiangHeight},
+	{Name: MethodSBITop, Title: "surface inversion top", Config: "Inversion", Regimes: stableRegimes, Consensus: true, height: sbiTopHeight},
+	{Name: MethodElevatedBase, Title: "elevated inversion base", Config: "Inversion", Regimes: convectiveRegimes, Consensus: true, height: elevatedBaseHeight},
 }
 
 // Methods returns a copy of the mixing-height method registry, in output
@@ -95,6 +99,19 @@ func LookupMethod(name string) (Method, bool) {
 		}
 	}
 	return Method{}, false
+}
+
+// MethodTitle returns the name in words of the method called name (its
+// Title), "consensus of methods" for HeightConsensus, and name itself for
+// a name the registry does not hold (a store written by another version).
+func MethodTitle(name string) string {
+	if name == HeightConsensus {
+		return "consensus of methods"
+	}
+	if m, ok := LookupMethod(name); ok && m.Title != "" {
+		return m.Title
+	}
+	return name
 }
 
 // MethodsDoc lists the registered methods for the schema documentation:

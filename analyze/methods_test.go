@@ -14,12 +14,22 @@ import (
 func TestMethodRegistry(t *testing.T) {
 	snake := regexp.MustCompile(`^[a-z][a-z0-9_]*$`)
 	seen := map[string]bool{}
+	titles := map[string]bool{}
 	cfgType := reflect.TypeFor[Config]()
 	for _, m := range Methods() {
 		if !snake.MatchString(m.Name) || seen[m.Name] || m.Name == HeightConsensus {
 			t.Errorf("method name %q: not snake_case, repeated or reserved", m.Name)
 		}
 		seen[m.Name] = true
+		// A title is words for people: not the code name, no underscore,
+		// and no two methods share one.
+		if m.Title == "" || m.Title == m.Name || regexp.MustCompile(`_`).MatchString(m.Title) || titles[m.Title] {
+			t.Errorf("%s: title %q is empty, the code name, has an underscore or is repeated", m.Name, m.Title)
+		}
+		titles[m.Title] = true
+		if got := MethodTitle(m.Name); got != m.Title {
+			t.Errorf("MethodTitle(%q) = %q, want %q", m.Name, got, m.Title)
+		}
 		if m.height == nil {
 			t.Errorf("%s: no height function", m.Name)
 		}
@@ -37,6 +47,9 @@ func TestMethodRegistry(t *testing.T) {
 		if got, ok := LookupMethod(m.Name); !ok || got.Name != m.Name {
 			t.Errorf("LookupMethod(%q) = %v, %v", m.Name, got.Name, ok)
 		}
+	}
+	if got := MethodTitle("no_such_method"); got != "no_such_method" {
+		t.Errorf("MethodTitle of an unregistered name = %q, want the name", got)
 	}
 	if _, ok := LookupMethod("no_such_method"); ok {
 		t.Error("LookupMethod found an unregistered name")
