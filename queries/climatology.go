@@ -36,6 +36,14 @@ const (
 	MinTailSoundings   = 25 // values behind p10 and p90
 )
 
+// MinStationSoundings is the default of the figures command's
+// --min-soundings option: a station with fewer valid soundings
+// (analysis_status ok) is named as thin and not drawn, since not even one
+// monthly cell (MinMonthSoundings, the smallest cell its figures draw) can
+// reach its minimum sample. The report's option of the same name and
+// meaning defaults to MinSeasonSoundings, the cell its tables show.
+const MinStationSoundings = MinMonthSoundings
+
 // ClimatologyOptions selects the cells and the sample of a climatology.
 // The zero value is the seasonal climatology by nominal hour of every
 // station and year.

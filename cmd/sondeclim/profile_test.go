@@ -86,6 +86,34 @@ func TestProfileSterling(t *testing.T) {
 }
 
 // TestProfileDemo prints a sounding of the invented demo station.
+// TestProfileHighResolutionLine draws the real Lamont flight
+// (../shared/validation/netcdf, PROVENANCE.md: 4,176 records at 1-2 s) as
+// a line: the SVG holds a few hundred shapes, not one marker per record
+// (the figure drew 1,907 paths when it marked every level).
+func TestProfileHighResolutionLine(t *testing.T) {
+	v := sharedDir(t)
+	fig := filepath.Join(t.TempDir(), "lamont.svg")
+	code, _, errs := runCmd(t, "profile", "--file", filepath.Join(v, "netcdf", "sgpsondewnpnC1.b1.20190101.053200.cdf"),
+		"--time", "2019-01-01T05:32", "--figure", fig)
+	if code != exitOK {
+		t.Fatalf("profile: exit %d\n%s", code, errs)
+	}
+	b, err := os.ReadFile(fig)
+	if err != nil {
+		t.Fatal(err)
+	}
+	svg := string(b)
+	if n := strings.Count(svg, "<path"); n > 300 {
+		t.Errorf("high-resolution profile drawn with %d paths, want a line (at most 300)", n)
+	}
+	// Methods are named in words in the figure.
+	for _, want := range []string{"consensus of methods", "bulk Richardson (alternative)"} {
+		if !strings.Contains(svg, want) {
+			t.Errorf("figure lacks %q", want)
+		}
+	}
+}
+
 func TestProfileDemo(t *testing.T) {
 	dir := t.TempDir()
 	if code, _, errs := runCmd(t, "demo", "--dir", dir, "--years", "1", "--workers", "2"); code != exitOK {

@@ -16,7 +16,7 @@ import (
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 
-	"github.com/sondeclim/sondeclim/analyze/stats"
+	"github.com/sondeclim/sondeclim/analyze"
 	"github.com/sondeclim/sondeclim/schema"
 )
 
@@ -48,6 +48,7 @@ type Station struct {
 	ID, Name    string
 	First, Last time.Time // UTC; earliest and latest nominal time
 	Soundings   int       // soundings attempted
+	Valid       int       // of those, valid (analysis_status ok): the ones the figures count
 }
 
 // Label returns "ID NAME, YYYY-MM-DD to YYYY-MM-DD" for titles.
@@ -80,6 +81,7 @@ func LoadStations(ctx context.Context, db *sql.DB) ([]Station, error) {
 	sc.t("first_time", &s.First)
 	sc.t("last_time", &s.Last)
 	sc.i("n_soundings", &s.Soundings)
+	sc.i("n_valid", &s.Valid)
 	for rows.Next() {
 		if err := sc.scan(rows); err != nil {
 			return nil, fmt.Errorf("stations: %w", err)
@@ -162,27 +164,40 @@ type MonthlyHeights struct {
 // (analysis_status ok) count. A method the store does not have is an
 // error naming the methods it has.
 func LoadMonthlyHeights(ctx context.Context, db *sql.DB, st Station, method string) (*MonthlyHeights, error) {
-	if method != Consensus {
-		known, err := Methods(ctx, db)
-		if err != nil {
-			return nil, err
-		}
-		if !contains(known, method) {
-			return nil, fmt.Errorf("unknown mixing-height method %q (the store has: %s)", method, strings.Join(known, ", "))
-		}
-	}
-	q, err := statement("monthly_heights.sql")
+	by, err := loadMonthlyHeights(ctx, db, st.ID, method)
 	if err != nil {
 		return nil, err
 	}
-	rows, err := db.QueryContext(ctx, q, st.ID, method)
-	if err != nil {
-		return nil, fmt.Errorf("monthly mixing heights of %s: %w", st.ID, err)
+	return &MonthlyHeights{Station: st, Method: method, Boxes: by[st.ID]}, nil
+}
+
+// checkMethod returns an error naming the store's methods unless method is
+// Consensus or one of them.
+func checkMethod(ctx context.Context, db *sql.DB, method string) error {
+	if method == Consensus {
+		return nil
 	}
-	defer rows.Close()
-	m := &MonthlyHeights{Station: st, Method: method}
+	known, err := Methods(ctx, db)
+	if err != nil {
+		return err
+	}
+	if !contains(known, method) {
+		return fmt.Errorf("unknown mixing-height method %q (the store has: %s)", method, strings.Join(known, ", "))
+	}
+	return nil
+}
+
+// loadMonthlyHeights reads the boxes of station ("" for every station) by
+// station id.
+func loadMonthlyHeights(ctx context.Context, db *sql.DB, station, method string) (map[string][]HeightBox, error) {
+	if err := checkMethod(ctx, db, method); err != nil {
+		return nil, err
+	}
+	out := map[string][]HeightBox{}
+	var id string
 	var b HeightBox
 	var sc scanner
+	sc.s("station_id", &id)
 	sc.i("month", &b.Month)
 	sc.i("nominal_hour", &b.Hour)
 	sc.i("n_values", &b.N)
@@ -192,13 +207,25 @@ func LoadMonthlyHeights(ctx context.Context, db *sql.DB, st Station, method stri
 	sc.f("p50_m", &b.P50)
 	sc.f("p75_m", &b.P75)
 	sc.f("p90_m", &b.P90)
-	for rows.Next() {
+	err := readRows(ctx, db, "monthly_heights.sql", []any{station, method}, func(rows *sql.Rows) error {
 		if err := sc.scan(rows); err != nil {
-			return nil, fmt.Errorf("monthly mixing heights of %s: %w", st.ID, err)
+			return err
 		}
-		m.Boxes = append(m.Boxes, b)
+		out[id] = append(out[id], b)
+		return nil
+	})
+	if err != nil {
+		return nil, fmt.Errorf("monthly mixing heights%s: %w", of(station), err)
 	}
-	return m, rows.Err()
+	return out, nil
+}
+
+// of returns " of ID" for error messages, "" for every station.
+func of(station string) string {
+	if station == "" {
+		return ""
+	}
+	return " of " + station
 }
 
 func nullNaN(v sql.NullFloat64) float64 {
@@ -284,10 +311,7 @@ func MonthlyHeightsFigure(m *MonthlyHeights, minCount int) *Figure {
 	if minCount <= 0 {
 		minCount = DefaultMinCount
 	}
-	method := m.Method
-	if method == Consensus {
-		method = "consensus of methods"
-	}
+	method := analyze.MethodTitle(m.Method)
 	title := fmt.Sprintf("Mixing height by month and launch hour (%s)\n%s", method, m.Station.Label())
 	p := newPlot(title, "month", "mixing height (m above ground)")
 	s, hours := BoxShapes(m, minCount)
@@ -342,29 +366,36 @@ type SBIFrequency struct {
 // LoadSBIFrequency reads the surface-based inversion counts of station per
 // month and nominal hour (valid soundings only).
 func LoadSBIFrequency(ctx context.Context, db *sql.DB, st Station) (*SBIFrequency, error) {
-	q, err := statement("sbi_frequency.sql")
+	by, err := loadSBIFrequency(ctx, db, st.ID)
 	if err != nil {
 		return nil, err
 	}
-	rows, err := db.QueryContext(ctx, q, st.ID)
-	if err != nil {
-		return nil, fmt.Errorf("inversion frequency of %s: %w", st.ID, err)
-	}
-	defer rows.Close()
-	f := &SBIFrequency{Station: st}
+	return &SBIFrequency{Station: st, Cells: by[st.ID]}, nil
+}
+
+// loadSBIFrequency reads the cells of station ("" for every station) by
+// station id.
+func loadSBIFrequency(ctx context.Context, db *sql.DB, station string) (map[string][]FrequencyCell, error) {
+	out := map[string][]FrequencyCell{}
+	var id string
 	var c FrequencyCell
 	var sc scanner
+	sc.s("station_id", &id)
 	sc.i("month", &c.Month)
 	sc.i("nominal_hour", &c.Hour)
 	sc.i("n_valid", &c.Valid)
 	sc.i("n_sbi", &c.SBI)
-	for rows.Next() {
+	err := readRows(ctx, db, "sbi_frequency.sql", []any{station}, func(rows *sql.Rows) error {
 		if err := sc.scan(rows); err != nil {
-			return nil, fmt.Errorf("inversion frequency of %s: %w", st.ID, err)
+			return err
 		}
-		f.Cells = append(f.Cells, c)
+		out[id] = append(out[id], c)
+		return nil
+	})
+	if err != nil {
+		return nil, fmt.Errorf("inversion frequency%s: %w", of(station), err)
 	}
-	return f, rows.Err()
+	return out, nil
 }
 
 // SBIFrequencyFigure draws the monthly surface-based inversion frequency in
@@ -420,25 +451,40 @@ type SBIStrength struct {
 // LoadSBIStrength reads the strengths of station's surface-based inversions
 // by season (valid soundings only).
 func LoadSBIStrength(ctx context.Context, db *sql.DB, st Station) (*SBIStrength, error) {
-	q, err := statement("sbi_strength.sql")
+	by, err := loadSBIStrength(ctx, db, st.ID)
 	if err != nil {
 		return nil, err
 	}
-	rows, err := db.QueryContext(ctx, q, st.ID)
-	if err != nil {
-		return nil, fmt.Errorf("inversion strengths of %s: %w", st.ID, err)
+	return &SBIStrength{Station: st, BySeason: seasonsOrEmpty(by[st.ID])}, nil
+}
+
+func seasonsOrEmpty(m map[string][]float64) map[string][]float64 {
+	if m == nil {
+		return map[string][]float64{}
 	}
-	defer rows.Close()
-	s := &SBIStrength{Station: st, BySeason: map[string][]float64{}}
-	for rows.Next() {
-		var season string
+	return m
+}
+
+// loadSBIStrength reads the strengths of station ("" for every station)
+// by station id and season.
+func loadSBIStrength(ctx context.Context, db *sql.DB, station string) (map[string]map[string][]float64, error) {
+	out := map[string]map[string][]float64{}
+	err := readRows(ctx, db, "sbi_strength.sql", []any{station}, func(rows *sql.Rows) error {
+		var id, season string
 		var k float64
-		if err := rows.Scan(&season, &k); err != nil {
-			return nil, fmt.Errorf("inversion strengths of %s: %w", st.ID, err)
+		if err := rows.Scan(&id, &season, &k); err != nil {
+			return err
 		}
-		s.BySeason[season] = append(s.BySeason[season], k)
+		if out[id] == nil {
+			out[id] = map[string][]float64{}
+		}
+		out[id][season] = append(out[id][season], k)
+		return nil
+	})
+	if err != nil {
+		return nil, fmt.Errorf("inversion strengths%s: %w", of(station), err)
 	}
-	return s, rows.Err()
+	return out, nil
 }
 
 // Bin is one bar of a histogram: values v with Lo ≤ v < Hi.
@@ -512,7 +558,7 @@ func SBIStrengthFigure(s *SBIStrength, binK float64) *Figure {
 		v := s.BySeason[season]
 		head := fmt.Sprintf("%s: no surface-based inversions", season)
 		if len(v) > 0 {
-			head = fmt.Sprintf("%s: %d inversions, median %.1f K", season, len(v), stats.MedianSorted(v))
+			head = fmt.Sprintf("%s: %d inversions, median %.1f K", season, len(v), median(v))
 		}
 		p := newPlot(head, "strength (K, top minus surface temperature)", "soundings")
 		p.Title.TextStyle.Font.Size = vg.Points(10)
@@ -551,6 +597,18 @@ func SBIStrengthFigure(s *SBIStrength, binK float64) *Figure {
 	}
 }
 
+// median returns the type-7 median of sorted values (NaN when empty).
+func median(sorted []float64) float64 {
+	n := len(sorted)
+	if n == 0 {
+		return math.NaN()
+	}
+	if n%2 == 1 {
+		return sorted[n/2]
+	}
+	return (sorted[n/2-1] + sorted[n/2]) / 2
+}
+
 func centred(s draw.TextStyle) draw.TextStyle {
 	s.XAlign = draw.XCenter
 	return s
@@ -561,20 +619,80 @@ func centred(s draw.TextStyle) draw.TextStyle {
 // monthly surface-based inversion frequency, and inversion strength by
 // season.
 func StationFigures(ctx context.Context, db *sql.DB, st Station, method string) ([]*Figure, error) {
+	data, err := LoadStationData(ctx, db, []Station{st}, method, false)
+	if err != nil {
+		return nil, err
+	}
+	return data[0].Figures(), nil
+}
+
+// StationData holds what the climatology figures of one station show.
+type StationData struct {
+	Heights   *MonthlyHeights
+	Frequency *SBIFrequency
+	Strength  *SBIStrength
+	Calendar  *EpisodeCalendar // nil unless loaded
+}
+
+// LoadStationData reads the numbers of the climatology figures of every
+// station in stations, in that order, for mixing-height method (Consensus
+// when ""), and with calendar also the episode calendar. Each kind of
+// figure takes one query for all the stations, not one per station: every
+// query reads the footers of all the store's files, so per-station queries
+// made a store-wide run quadratic in the number of stations.
+func LoadStationData(ctx context.Context, db *sql.DB, stations []Station, method string, calendar bool) ([]StationData, error) {
 	if method == "" {
 		method = Consensus
 	}
-	mh, err := LoadMonthlyHeights(ctx, db, st, method)
+	filter := ""
+	if len(stations) == 1 {
+		filter = stations[0].ID
+	}
+	heights, err := loadMonthlyHeights(ctx, db, filter, method)
 	if err != nil {
 		return nil, err
 	}
-	fr, err := LoadSBIFrequency(ctx, db, st)
+	freq, err := loadSBIFrequency(ctx, db, filter)
 	if err != nil {
 		return nil, err
 	}
-	sg, err := LoadSBIStrength(ctx, db, st)
+	strength, err := loadSBIStrength(ctx, db, filter)
 	if err != nil {
 		return nil, err
 	}
-	return []*Figure{MonthlyHeightsFigure(mh, 0), SBIFrequencyFigure(fr, 0), SBIStrengthFigure(sg, 1)}, nil
+	var cal map[string]*EpisodeCalendar
+	if calendar {
+		if cal, err = loadEpisodeCalendars(ctx, db, filter); err != nil {
+			return nil, err
+		}
+	}
+	out := make([]StationData, len(stations))
+	for i, st := range stations {
+		out[i] = StationData{
+			Heights:   &MonthlyHeights{Station: st, Method: method, Boxes: heights[st.ID]},
+			Frequency: &SBIFrequency{Station: st, Cells: freq[st.ID]},
+			Strength:  &SBIStrength{Station: st, BySeason: seasonsOrEmpty(strength[st.ID])},
+		}
+		if calendar {
+			c := cal[st.ID]
+			if c == nil {
+				c = newEpisodeCalendar()
+			}
+			c.Station = st
+			out[i].Calendar = c
+		}
+	}
+	return out, nil
+}
+
+// Figures returns the figures of d: monthly mixing height, surface-based
+// inversion frequency and strength, and the episode calendar when it was
+// loaded. Drawing happens when a figure is rendered, so the figures of
+// several stations may be rendered at once.
+func (d StationData) Figures() []*Figure {
+	figs := []*Figure{MonthlyHeightsFigure(d.Heights, 0), SBIFrequencyFigure(d.Frequency, 0), SBIStrengthFigure(d.Strength, 1)}
+	if d.Calendar != nil {
+		figs = append(figs, EpisodeCalendarFigure(d.Calendar))
+	}
+	return figs
 }

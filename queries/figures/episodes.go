@@ -33,38 +33,87 @@ type EpisodeCalendar struct {
 // LoadEpisodeCalendar reads the episode days of station (building the
 // episode tables with defaults unless they exist, queries.EnsureEpisodes).
 func LoadEpisodeCalendar(ctx context.Context, db *sql.DB, st Station) (*EpisodeCalendar, error) {
+	by, err := loadEpisodeCalendars(ctx, db, st.ID)
+	if err != nil {
+		return nil, err
+	}
+	c := by[st.ID]
+	if c == nil {
+		c = newEpisodeCalendar()
+	}
+	c.Station = st
+	return c, nil
+}
+
+// newEpisodeCalendar returns an empty calendar with the built-in rules.
+func newEpisodeCalendar() *EpisodeCalendar {
+	c := &EpisodeCalendar{}
+	for _, r := range analyze.BuiltinCriteria() {
+		c.Rules = append(c.Rules, r.Name)
+	}
+	return c
+}
+
+// loadEpisodeCalendars reads the calendars of station ("" for every
+// station) by station id, with one query for the years and one for the
+// days whatever the number of stations. Station is left unset.
+func loadEpisodeCalendars(ctx context.Context, db *sql.DB, station string) (map[string]*EpisodeCalendar, error) {
 	if err := queries.EnsureEpisodes(ctx, db); err != nil {
 		return nil, err
 	}
-	c := &EpisodeCalendar{Station: st}
 	idx := map[string]int{}
-	for _, r := range analyze.BuiltinCriteria() {
-		idx[r.Name] = len(c.Rules)
-		c.Rules = append(c.Rules, r.Name)
+	for i, r := range newEpisodeCalendar().Rules {
+		idx[r] = i
 	}
-	if err := db.QueryRowContext(ctx, "SELECT coalesce(min(year), 0), coalesce(max(year), 0) FROM days WHERE station_id = ?", st.ID).
-		Scan(&c.FirstYear, &c.LastYear); err != nil {
-		return nil, fmt.Errorf("episode calendar of %s: %w", st.ID, err)
+	out := map[string]*EpisodeCalendar{}
+	get := func(id string) *EpisodeCalendar {
+		if out[id] == nil {
+			out[id] = newEpisodeCalendar()
+		}
+		return out[id]
 	}
-	rows, err := db.QueryContext(ctx, "SELECT criterion, local_date, status = 'met' FROM episode_days WHERE station_id = ? ORDER BY local_date, criterion", st.ID)
+	fail := func(err error) error { return fmt.Errorf("episode calendar%s: %w", of(station), err) }
+	years, err := db.QueryContext(ctx, "SELECT station_id, min(year), max(year) FROM days WHERE ($1 = '' OR station_id = $1) GROUP BY station_id", station)
 	if err != nil {
-		return nil, fmt.Errorf("episode calendar of %s: %w", st.ID, err)
+		return nil, fail(err)
+	}
+	defer years.Close()
+	for years.Next() {
+		var id string
+		var first, last int
+		if err := years.Scan(&id, &first, &last); err != nil {
+			return nil, fail(err)
+		}
+		c := get(id)
+		c.FirstYear, c.LastYear = first, last
+	}
+	if err := years.Err(); err != nil {
+		return nil, fail(err)
+	}
+	rows, err := db.QueryContext(ctx, "SELECT station_id, criterion, local_date, status = 'met' FROM episode_days "+
+		"WHERE ($1 = '' OR station_id = $1) ORDER BY station_id, local_date, criterion", station)
+	if err != nil {
+		return nil, fail(err)
 	}
 	defer rows.Close()
 	for rows.Next() {
-		var name string
+		var id, name string
 		var d CalendarDay
-		if err := rows.Scan(&name, &d.Date, &d.Met); err != nil {
-			return nil, fmt.Errorf("episode calendar of %s: %w", st.ID, err)
+		if err := rows.Scan(&id, &name, &d.Date, &d.Met); err != nil {
+			return nil, fail(err)
 		}
 		i, ok := idx[name]
 		if !ok {
 			continue
 		}
 		d.Rule, d.Date = i, d.Date.UTC()
+		c := get(id)
 		c.Days = append(c.Days, d)
 	}
-	return c, rows.Err()
+	if err := rows.Err(); err != nil {
+		return nil, fail(err)
+	}
+	return out, nil
 }
 
 // monthPosition places a date on the month axis of monthTicks: month m

@@ -2,10 +2,16 @@ package figures
 
 import (
 	"bytes"
+	"context"
 	"fmt"
 	"image/color"
 	"io"
 	"math"
+	"os"
+	"path/filepath"
+	"slices"
+
+	"golang.org/x/sync/errgroup"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/font"
@@ -292,4 +298,68 @@ func safeName(s string) string {
 		}
 	}
 	return string(b)
+}
+
+// SplitThin divides stations into those with at least minValid valid
+// soundings (Station.Valid), which are drawn, and the thin rest, keeping
+// their order. minValid ≤ 0 draws every station.
+func SplitThin(stations []Station, minValid int) (drawn, thin []Station) {
+	for _, st := range stations {
+		if st.Valid >= minValid {
+			drawn = append(drawn, st)
+		} else {
+			thin = append(thin, st)
+		}
+	}
+	return drawn, thin
+}
+
+// WriteFiles renders every figure in each format into dir as NAME.FORMAT,
+// at most workers at once (workers < 1 means 1), and returns the paths in
+// the order of figs and formats whatever the number of workers. Rendering
+// is most of a store-wide run's time and the figures are independent, so
+// they are drawn concurrently. The first error stops the run and is
+// returned; files written before it stay.
+func WriteFiles(ctx context.Context, figs []*Figure, formats []string, dir string, workers int) ([]string, error) {
+	for _, f := range formats {
+		if !slices.Contains(Formats, f) {
+			return nil, fmt.Errorf("unknown image format %q (png or svg)", f)
+		}
+	}
+	paths := make([]string, 0, len(figs)*len(formats))
+	for _, f := range figs {
+		for _, ext := range formats {
+			paths = append(paths, filepath.Join(dir, f.Name+"."+ext))
+		}
+	}
+	g, ctx := errgroup.WithContext(ctx)
+	g.SetLimit(max(workers, 1))
+	for i, f := range figs {
+		for j, ext := range formats {
+			path := paths[i*len(formats)+j]
+			g.Go(func() error {
+				if err := ctx.Err(); err != nil {
+					return err
+				}
+				return writeFile(path, f, ext)
+			})
+		}
+	}
+	if err := g.Wait(); err != nil {
+		return nil, err
+	}
+	return paths, nil
+}
+
+// writeFile renders f as format into path.
+func writeFile(path string, f *Figure, format string) error {
+	out, err := os.Create(path)
+	if err != nil {
+		return err
+	}
+	if err := f.Render(out, format); err != nil {
+		out.Close()
+		return err
+	}
+	return out.Close()
 }

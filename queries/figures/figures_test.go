@@ -8,9 +8,13 @@ import (
 	"errors"
 	"image/png"
 	"math"
+	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 	"time"
+
+	"gonum.org/v1/plot/plotter"
 
 	"github.com/sondeclim/sondeclim/queries"
 	"github.com/sondeclim/sondeclim/schema"
@@ -333,10 +337,16 @@ func TestProfileShading(t *testing.T) {
 			t.Errorf("SVG has %d shapes filled %s, want %d", got, c.fill, c.n)
 		}
 	}
-	// The defined heights are labelled, the undefined one is named.
-	for _, s := range []string{"parcel: surface", "bulk_richardson 450 m", "consensus 450 m", "Undefined: heffter."} {
+	// The defined heights are labelled, the undefined one is named, each
+	// method in words (the registry's Title), never by its code name.
+	for _, s := range []string{"Holzworth parcel: surface", "bulk Richardson 450 m", "consensus of methods 450 m", "Undefined: Heffter."} {
 		if !strings.Contains(svg, s) {
 			t.Errorf("SVG lacks %q", s)
+		}
+	}
+	for _, code := range []string{"bulk_richardson", "heffter"} {
+		if strings.Contains(svg, code) {
+			t.Errorf("SVG names method %q by its code name", code)
 		}
 	}
 }
@@ -429,5 +439,77 @@ func TestMonthPosition(t *testing.T) {
 		if math.Abs(x0-tc.x0) > 1e-12 || math.Abs(x1-tc.x1) > 1e-12 {
 			t.Errorf("%s: %g..%g, want %g..%g", tc.d.Format("2006-01-02"), x0, x1, tc.x0, tc.x1)
 		}
+	}
+}
+
+// TestMarksLevels: levels are marked when their median spacing reaches
+// 50 m (significant levels of a TEMP or archive sounding are tens to
+// hundreds of metres apart; a 1-2 s high-resolution record, rising about
+// 5 m/s, is 5-10 m apart: common practice, no source), counted up to top.
+func TestMarksLevels(t *testing.T) {
+	pts := func(step float64, n int) plotter.XYs {
+		var p plotter.XYs
+		for i := 0; i < n; i++ {
+			p = append(p, plotter.XY{X: 280, Y: float64(i) * step})
+		}
+		return p
+	}
+	for _, c := range []struct {
+		name string
+		pts  plotter.XYs
+		top  float64
+		want bool
+	}{
+		{"1-2 s record, 8 m apart", pts(8, 500), 3000, false},
+		{"significant levels, 120 m apart", pts(120, 20), 3000, true},
+		{"exactly 50 m", pts(50, 40), 3000, true},
+		{"one level", pts(8, 1), 3000, true},
+		{"none", nil, 3000, true},
+		// Coarse above top does not count: 8 m apart up to 400 m, then 500 m.
+		{"fine below top", append(pts(8, 50), plotter.XY{X: 1, Y: 900}, plotter.XY{X: 1, Y: 1400}, plotter.XY{X: 1, Y: 1900}), 400, false},
+	} {
+		if got := MarksLevels(c.pts, c.top); got != c.want {
+			t.Errorf("%s: MarksLevels = %v, want %v", c.name, got, c.want)
+		}
+	}
+}
+
+// TestWriteFiles renders the scaffold's figures several at once: the
+// paths come back in figure and format order, every file decodes, and an
+// unknown format writes nothing. (Run with -race to check that figures
+// render concurrently without sharing state.)
+func TestWriteFiles(t *testing.T) {
+	ctx := context.Background()
+	db := scaffold(t)
+	st, _ := FindStation(ctx, db, "XFIG1")
+	data, err := LoadStationData(ctx, db, []Station{st, st}, "", false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var figs []*Figure
+	for _, d := range data {
+		figs = append(figs, d.Figures()...)
+	}
+	dir := t.TempDir()
+	paths, err := WriteFiles(ctx, figs[:4], Formats, dir, 4)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(paths) != 8 {
+		t.Fatalf("%d paths, want 8", len(paths))
+	}
+	for i, p := range paths {
+		want := filepath.Join(dir, figs[i/2].Name+"."+Formats[i%2])
+		if p != want {
+			t.Errorf("path %d = %s, want %s", i, p, want)
+		}
+		b, err := os.ReadFile(p)
+		if err != nil {
+			t.Fatal(err)
+		}
+		checkImage(t, p, Formats[i%2], b)
+	}
+	if _, err := WriteFiles(ctx, figs, []string{"gif"}, t.TempDir(), 2); err == nil {
+		t.Error("unknown format accepted")
 	}
 }

@@ -3,10 +3,12 @@
 -- mixing_heights table.
 --
 -- Source: the soundings view, joined to mixing_heights on station_id and
--- launch_time for a single method. Parameters: $1 station_id, $2 method
--- name ('consensus' for the consensus of methods).
--- One row per month (1-12) and nominal_hour (h UTC) with at least one valid
--- sounding (analysis_status = 'ok'):
+-- launch_time for a single method. Parameters: $1 station_id ('' for every
+-- station), $2 method name ('consensus' for the consensus of methods).
+-- One query serves every station: a store's files are read once, not once
+-- per station.
+-- One row per station_id, month (1-12) and nominal_hour (h UTC) with at
+-- least one valid sounding (analysis_status = 'ok'):
 --   n_values     soundings whose status is ok or surface
 --   n_undefined  soundings whose status is undefined (counted, left out of
 --                the percentiles)
@@ -14,19 +16,20 @@
 --                counted as 0 m; quantile_cont is Hyndman & Fan type 7
 --                (linear interpolation between order statistics)
 WITH raw AS (
-    SELECT s.month, s.nominal_hour,
+    SELECT s.station_id, s.month, s.nominal_hour,
         s.mixing_height_consensus_status AS status, s.mixing_height_consensus_m AS h
     FROM soundings AS s
-    WHERE s.station_id = $1 AND s.analysis_status = 'ok' AND $2 = 'consensus'
+    WHERE ($1 = '' OR s.station_id = $1) AND s.analysis_status = 'ok' AND $2 = 'consensus'
     UNION ALL
-    SELECT s.month, s.nominal_hour, m.status, m.height_agl_m AS h
+    SELECT s.station_id, s.month, s.nominal_hour, m.status, m.height_agl_m AS h
     FROM soundings AS s
     JOIN mixing_heights AS m
         ON m.station_id = s.station_id AND m.launch_time = s.launch_time
-    WHERE s.station_id = $1 AND s.analysis_status = 'ok' AND m.method = $2
+    WHERE ($1 = '' OR s.station_id = $1) AND ($1 = '' OR m.station_id = $1) AND s.analysis_status = 'ok' AND m.method = $2
 ),
 v AS (
     SELECT
+        station_id,
         month,
         nominal_hour,
         status,
@@ -37,6 +40,7 @@ v AS (
     FROM raw
 )
 SELECT
+    station_id,
     month,
     nominal_hour,
     count(height_m) AS n_values,
@@ -47,5 +51,5 @@ SELECT
     quantile_cont(height_m, 0.75) AS p75_m,
     quantile_cont(height_m, 0.90) AS p90_m
 FROM v
-GROUP BY month, nominal_hour
-ORDER BY month, nominal_hour
+GROUP BY station_id, month, nominal_hour
+ORDER BY station_id, month, nominal_hour

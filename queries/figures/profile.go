@@ -502,6 +502,33 @@ func profileLine(levels []Level, value func(Level) float64, top float64) (plotte
 	return pts, lo - pad, hi + pad
 }
 
+// markerSpacingM is the median level spacing, m, from which the levels of
+// a profile are marked: the boundary between significant-level and
+// high-resolution profiles that the inversion rule uses
+// (analyze.InversionConfig.FineSpacingM, 50 m; common practice, no
+// source). Below it the markers of a 1–2 s record (thousands of points)
+// would merge into a thick smear, so the profile is a line only.
+const markerSpacingM = 50
+
+// MarksLevels reports whether the profile figure marks each level of pts
+// ((value, height) points sorted by height, m above ground) besides the
+// line through them: when the median spacing of the levels from the ground
+// to top is at least markerSpacingM. A single level is always marked (it
+// makes no line).
+func MarksLevels(pts plotter.XYs, top float64) bool {
+	var gaps []float64
+	for i := 1; i < len(pts) && pts[i].Y <= top; i++ {
+		if d := pts[i].Y - pts[i-1].Y; d > 0 {
+			gaps = append(gaps, d)
+		}
+	}
+	if len(gaps) == 0 {
+		return true
+	}
+	sort.Float64s(gaps)
+	return median(gaps) >= markerSpacingM
+}
+
 // methodInk gives each mixing-height method its own line colour.
 var methodInk = []color.Color{
 	color.RGBA{0x1b, 0x3a, 0x6b, 0xff}, color.RGBA{0x5b, 0x2a, 0x86, 0xff},
@@ -567,9 +594,10 @@ func drawHeightLabels(c draw.Canvas, dc draw.Canvas, p *plot.Plot, marked []Meth
 	}
 	items := make([]item, len(marked))
 	for i, m := range marked {
-		text := fmt.Sprintf("%s %.0f m", m.Method, m.HeightAGLM)
+		name := analyze.MethodTitle(m.Method)
+		text := fmt.Sprintf("%s %.0f m", name, m.HeightAGLM)
 		if m.Status == analyze.MixingHeightSurface {
-			text = m.Method + ": surface"
+			text = name + ": surface"
 		}
 		items[i] = item{at: trY(m.HeightAGLM), text: text, col: colors[i]}
 	}
@@ -646,7 +674,7 @@ func ProfileFigure(p *Profile) *Figure {
 				pl.Add(line)
 			}
 		}
-		if len(pts) > 0 {
+		if len(pts) > 0 && MarksLevels(pts, top) {
 			if sc, err := plotter.NewScatter(pts); err == nil {
 				sc.GlyphStyle = draw.GlyphStyle{Color: lineInk, Radius: vg.Points(1.6), Shape: draw.CircleGlyph{}}
 				pl.Add(sc)
@@ -669,7 +697,7 @@ func ProfileFigure(p *Profile) *Figure {
 	var undefined []string
 	for _, h := range p.Heights {
 		if h.Status != analyze.MixingHeightOK && h.Status != analyze.MixingHeightSurface {
-			undefined = append(undefined, h.Method)
+			undefined = append(undefined, analyze.MethodTitle(h.Method))
 		}
 	}
 	caption := "Shaded: inversions (amber) and well-mixed layers (blue). Lines: mixing height by method; solid black: consensus (median of methods with status ok)."

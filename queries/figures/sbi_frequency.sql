@@ -1,16 +1,18 @@
 -- Surface-based inversion frequency per month and nominal hour.
 --
--- Source: the soundings view. Parameters: $1 station_id.
--- One row per month (1-12) and nominal_hour (h UTC) with at least one valid
+-- Source: the soundings view. Parameters: $1 station_id ('' for every
+-- station).
+-- One row per station_id, month (1-12) and nominal_hour (h UTC) with at least one valid
 -- sounding (analysis_status = 'ok' and sbi_present not null):
 --   n_valid  valid soundings
 --   n_sbi    of those, soundings with a surface-based inversion
 SELECT
+    station_id,
     month,
     nominal_hour,
     count(*) AS n_valid,
     count(*) FILTER (WHERE sbi_present) AS n_sbi
 FROM soundings
-WHERE station_id = $1 AND analysis_status = 'ok' AND sbi_present IS NOT NULL
-GROUP BY month, nominal_hour
-ORDER BY month, nominal_hour
+WHERE ($1 = '' OR station_id = $1) AND analysis_status = 'ok' AND sbi_present IS NOT NULL
+GROUP BY station_id, month, nominal_hour
+ORDER BY station_id, month, nominal_hour
