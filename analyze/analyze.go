@@ -93,6 +93,16 @@ type Result struct {
 	MixingHeightConsensus Consensus
 	// LiuLiangRegime is RegimeConvective, RegimeNeutral, RegimeStable or "".
 	LiuLiangRegime string
+	// Regime is the boundary-layer regime (BLConvective, BLStable,
+	// BLNeutral, or BLUnknown; ClassifyRegime) that chooses the methods of
+	// the consensus.
+	Regime string
+	// ResidualTopAGLM is the top of the residual layer in the stable and
+	// neutral regimes, m AGL (residualTop); NaN otherwise. It is not a
+	// mixing height: air between the night's mixing height and this top is
+	// left from the previous day and is mixed down when the morning's
+	// convection reaches it (fumigation).
+	ResidualTopAGLM float64
 
 	Ventilation Ventilation
 
@@ -129,7 +139,7 @@ func Analyze(s *sounding.Sounding, cfg Config) Result {
 		SurfaceIndex: -1, CeilingAGLM: nan, LowestLevelAGLM: nan, SurfacePressurePa: nan,
 		SBI: noInversion(), MixedLayer: noMixedLayer(),
 		Parcel:          Parcel{Status: ParcelUndefined, HeightAGLM: nan, Theta0K: nan},
-		SunElevationDeg: nan, LocalSolarTimeH: nan, SunClass: sun.Unknown, SurfaceWindMS: nan,
+		SunElevationDeg: nan, LocalSolarTimeH: nan, SunClass: sun.Unknown, SurfaceWindMS: nan, ResidualTopAGLM: nan,
 		LowestElevated:        noInversion(),
 		MixingHeightConsensus: ConsensusOf(nil, nil),
 		Ventilation: Ventilation{HeightMethod: cfg.Ventilation.HeightMethod, MixingHeightAGLM: nan,

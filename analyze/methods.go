@@ -33,8 +33,10 @@ type Method struct {
 	// ("" when it has no parameters of its own).
 	Config string
 	// Regimes lists the boundary-layer regimes the method may define the
-	// mixing height in (RegimeConvective, RegimeStable, RegimeNeutral),
-	// METHODS §4.6a.
+	// mixing height in (BLConvective, BLStable, BLNeutral; METHODS §4.6a):
+	// with MixingHeightConfig.ByRegime, only those methods enter the
+	// consensus of a sounding in that regime (see ClassifyRegime and
+	// fitsRegime).
 	Regimes []string
 	// Consensus is true when the method enters the default consensus
 	// (DefaultMixingHeightConfig).
@@ -45,15 +47,19 @@ type Method struct {
 }
 
 // The regime assignments follow METHODS §4.6a (Liu & Liang 2010 and Seidel
-// et al. 2010's assignment of methods): stable-layer methods (SBI top, bulk
-// Richardson, Liu–Liang) at night, convective ones (parcel, Heffter, bulk
-// Richardson, Liu–Liang, EI base) by day. The neutral (residual-layer)
-// assignments of the Richardson and Liu–Liang methods are a proposal, no
-// source: both are defined there, the others find a residual top.
+// et al. 2010's assignment of methods, the latter from memory there):
+// stable-layer methods (SBI top, bulk Richardson, Liu–Liang SBL height) at
+// night, convective ones (parcel, Heffter, bulk Richardson, Liu–Liang CBL
+// height, EI base) by day. Heffter and the EI base find the top of the
+// previous day's residual layer at night (reported as
+// Result.ResidualTopAGLM instead); the parcel from a night-time surface
+// temperature stops at the ground. The neutral assignments of the
+// Richardson and Liu–Liang methods are a proposal, no source: both are
+// defined in a near-neutral layer, the others find a residual top.
 var (
-	allRegimes        = []string{RegimeConvective, RegimeNeutral, RegimeStable}
-	convectiveRegimes = []string{RegimeConvective}
-	stableRegimes     = []string{RegimeStable}
+	allRegimes        = []string{BLConvective, BLStable, BLNeutral}
+	convectiveRegimes = []string{BLConvective}
+	stableRegimes     = []string{BLStable}
 )
 
 // methods is the registry, in output order. The consensus flags keep the

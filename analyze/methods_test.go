@@ -40,7 +40,7 @@ func TestMethodRegistry(t *testing.T) {
 			t.Errorf("%s: serves no regime", m.Name)
 		}
 		for _, g := range m.Regimes {
-			if g != RegimeConvective && g != RegimeNeutral && g != RegimeStable {
+			if g != BLConvective && g != BLNeutral && g != BLStable {
 				t.Errorf("%s: unknown regime %q", m.Name, g)
 			}
 		}

@@ -79,6 +79,13 @@ type MixingHeightConfig struct {
 	// MethodRichardsonAlt, so that the Richardson method is not counted
 	// twice; proposal, no source).
 	Consensus []string
+	// ByRegime restricts the consensus of each sounding to the methods of
+	// Consensus that fit its boundary-layer regime (Result.Regime,
+	// ClassifyRegime; Method.Regimes): stable-layer methods at night and
+	// dawn, convective ones by day. Default true (METHODS §4.6a; the
+	// median over every method mixes residual-layer tops into night-time
+	// heights). False gives the median over all of Consensus.
+	ByRegime bool
 	// Resolution rule: an ok height h is Unresolved when the spacing Δz of
 	// the sounding's levels around it (the levels that bracket it; when h
 	// falls on a level, the larger of the two adjacent spacings) exceeds
@@ -93,6 +100,7 @@ type MixingHeightConfig struct {
 func DefaultMixingHeightConfig() MixingHeightConfig {
 	return MixingHeightConfig{
 		Consensus:          defaultConsensus(),
+		ByRegime:           true,
 		MaxSpacingFraction: 0.5, MaxSpacingM: 500,
 	}
 }
@@ -296,8 +304,8 @@ func RichardsonHeight(zAGLM, rib []float64, ric, ceilingAGLM float64) (heightAGL
 }
 
 // mixingHeights fills MixingHeights (one entry per registered method, in
-// registry order), MixingHeightConsensus and LiuLiangRegime from the
-// profile's first n (searched) levels.
+// registry order), LiuLiangRegime, Regime, MixingHeightConsensus and
+// ResidualTopAGLM from the profile's first n (searched) levels.
 func (r *Result) mixingHeights(pr profile, n int, cfg Config) {
 	in := methodInput{r: r, pr: pr, n: n, cfg: cfg}
 	mh := r.MixingHeights
@@ -308,11 +316,18 @@ func (r *Result) mixingHeights(pr profile, n int, cfg Config) {
 			mh[i].Unresolved = cfg.MixingHeight.resolve(mh[i].HeightAGLM, mh[i].LevelSpacingM)
 		}
 	}
-	r.MixingHeightConsensus = ConsensusOf(mh, cfg.MixingHeight.Consensus)
+	r.Regime = ClassifyRegime(r.SunClass, r.SBI.Present, r.LiuLiangRegime)
+	names := cfg.MixingHeight.Consensus
+	if cfg.MixingHeight.ByRegime {
+		var buf [16]string
+		names = regimeConsensus(buf[:0], names, r.Regime, r.LiuLiangRegime)
+	}
+	r.MixingHeightConsensus = ConsensusOf(mh, names)
 	if cs := &r.MixingHeightConsensus; cs.Status == MixingHeightOK {
 		cs.LevelSpacingM = pr.levelSpacing(cs.HeightAGLM, n)
 		cs.Unresolved = cfg.MixingHeight.resolve(cs.HeightAGLM, cs.LevelSpacingM)
 	}
+	r.ResidualTopAGLM = r.residualTop(cfg.Heffter.MaxBaseAGLM)
 }
 
 // ventilation fills Ventilation from the chosen mixing height and the

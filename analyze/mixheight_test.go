@@ -143,8 +143,14 @@ func TestAnalyzeMixingHeights(t *testing.T) {
 	if m := by[MethodRichardson]; m.Unresolved || m.LevelSpacingM != 200 {
 		t.Errorf("Richardson resolution: %+v", m)
 	}
+	// No position (no sun class) and a near-neutral profile (Liu–Liang
+	// NRL): the regime is neutral, whose consensus holds the Richardson
+	// and Liu–Liang methods only (ClassifyRegime rule 4, METHODS §4.6a).
+	if r.Regime != BLNeutral || r.LiuLiangRegime != RegimeNeutral {
+		t.Errorf("regime %q (Liu–Liang %q), want neutral (NRL)", r.Regime, r.LiuLiangRegime)
+	}
 	var ok []float64
-	for _, name := range DefaultMixingHeightConfig().Consensus {
+	for _, name := range regimeConsensus(nil, DefaultMixingHeightConfig().Consensus, r.Regime, r.LiuLiangRegime) {
 		if m := by[name]; m.Status == MixingHeightOK {
 			ok = append(ok, m.HeightAGLM)
 		}

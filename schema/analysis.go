@@ -137,6 +137,8 @@ func AppendSounding(out *PartRows, s *sounding.Sounding, rep qc.Report, res *ana
 		ConsensusMethods: int32(res.MixingHeightConsensus.OK),
 		Unresolved:       res.MixingHeightConsensus.Unresolved,
 		LiuLiangRegime:   res.LiuLiangRegime,
+		BLRegime:         res.Regime,
+		ResidualTopAGLM:  res.ResidualTopAGLM,
 
 		TransportWindMS:  res.Ventilation.TransportWindMS,
 		TransportWindDef: res.Ventilation.TransportWind,

@@ -84,12 +84,14 @@ type SoundingRow struct {
 	MixedLevels      int32   `col:"mixed_layer_levels" doc:"count; sounding levels inside the mixed layer (0 when none was found)"`
 	ParcelMHM        float64 `col:"mixing_height_parcel_m" doc:"m above ground; mixing height by the parcel method from the sounding's own surface temperature (0 when status is surface, null when undefined)"`
 	ParcelMHStatus   string  `col:"mixing_height_parcel_status" values:"mixing_height_status" doc:"{values}: surface when the parcel is stable from the ground up, undefined when there is no crossing below the ceiling or the sounding is not analysable"`
-	ConsensusMHM     float64 `col:"mixing_height_consensus_m" doc:"m above ground; median of the methods whose status is ok (see the mixing_heights table for each method)"`
+	ConsensusMHM     float64 `col:"mixing_height_consensus_m" doc:"m above ground; median of the methods that fit the sounding's bl_regime and whose status is ok (see the mixing_heights table for each method)"`
 	ConsensusStatus  string  `col:"mixing_height_consensus_status" values:"mixing_height_status" doc:"{values}"`
-	ConsensusSpreadM float64 `col:"mixing_height_spread_m" doc:"m; highest minus lowest of the methods whose status is ok"`
-	ConsensusMethods int32   `col:"mixing_height_methods_ok" doc:"count; methods in the consensus whose status is ok"`
+	ConsensusSpreadM float64 `col:"mixing_height_spread_m" doc:"m; highest minus lowest of the consensus methods (those fitting bl_regime) whose status is ok"`
+	ConsensusMethods int32   `col:"mixing_height_methods_ok" doc:"count; methods in the consensus (those fitting bl_regime) whose status is ok"`
 	Unresolved       bool    `col:"mixing_height_unresolved" doc:"true when the sounding's level spacing around the consensus height is too coarse to resolve it"`
 	LiuLiangRegime   string  `col:"liu_liang_regime" doc:"boundary-layer regime by Liu and Liang (2010): CBL, NRL or SBL"`
+	BLRegime         string  `col:"bl_regime" doc:"boundary-layer regime that chooses the consensus methods: stable (surface-based inversion, or Liu-Liang SBL), convective (otherwise, sun above the horizon), neutral (otherwise, sun below it); empty when unknown (no position and no Liu-Liang regime)"`
+	ResidualTopAGLM  float64 `col:"residual_layer_top_agl_m" doc:"m above ground; top of the residual layer (the previous day's mixed layer left aloft) in the stable and neutral regimes: base of the lowest elevated inversion above the night's mixing height, else the Heffter height above it; not a mixing height; null by day or when none is found"`
 	TransportWindMS  float64 `col:"transport_wind_ms" doc:"m/s; mean wind from the ground to the mixing height used for ventilation"`
 	TransportWindDef string  `col:"transport_wind_method" doc:"averaging used for transport_wind_ms"`
 	VentilationM2S   float64 `col:"ventilation_index_m2s" doc:"m2/s; mixing height times transport wind"`
