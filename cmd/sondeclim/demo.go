@@ -81,8 +81,13 @@ run gives the same numbers); the station and its setting do not exist.`,
 	if err != nil {
 		return fmt.Errorf("demo: %w", err)
 	}
-	fmt.Fprintf(c.stdout, "Seasonal climatology of the invented station %s (%s), %d-%d\n\n",
+	fmt.Fprintf(c.stdout, "Seasonal climatology of the invented station %s (%s), %d-%d\n",
 		st.ID, st.Name, cfg.StartYear, cfg.StartYear+cfg.Years-1)
+	fmt.Fprintf(c.stdout, `Invented scenario: a valley on a high plain, %.2f N %.2f W, %.0f m. Local solar time is
+UTC %+.1f h: the 00 UTC soundings are released near 16:30 local time (late afternoon; near or
+after sunset in winter), the 12 UTC ones near 04:30 (before dawn; about sunrise in June-July).
+
+`, st.LatitudeDeg, -st.LongitudeDeg, st.ElevationM, st.LongitudeDeg/15)
 	if err := queries.WriteText(c.stdout, t); err != nil {
 		return err
 	}

@@ -5,36 +5,45 @@
 //
 // The default station, "Marrow Vale" (id ZZXSYN00001), is an invented inland
 // valley station on a high plain: 42.37° N, 101.85° W, 560 m above sea
-// level. Winters are cold (late-afternoon temperatures near 0 °C, dawn near
-// −11 °C in December–February) and summers hot (near 28 °C and 13 °C in
-// June–August). Local solar time is
-// UTC − 6.8 h, so the 00 UTC sounding is released near 17 LST (late afternoon
-// of the previous local day, when the daytime mixed layer is deepest) and
-// the 12 UTC sounding near 05 LST (just before dawn, at the end of the
-// night's radiative cooling). Like the real archive, the 00 UTC release
-// happens on the previous UTC day (release time 23MM in the header).
+// level. Winters are cold (late-afternoon temperatures near −2 °C, dawn near
+// −12 °C in December–February) and summers hot (near 28 °C in the late
+// afternoon and 19 °C at dawn in June–August; a diurnal range of typically
+// 6–12 K). Local mean solar time is UTC − 6.8 h. Like the real archive, the
+// 00 UTC sounding is released on the previous UTC day, at 23:00–23:40 UTC:
+// 16:15–16:55 local solar time, late afternoon of the local day, with the
+// sun well up from March to October and near or below the horizon from
+// late November to January (sunset near 16:30 at the winter solstice). The
+// 12 UTC sounding is released at 11:00–11:40 UTC, 04:15–04:55 local solar
+// time: before dawn most of the year, at about sunrise in June and July.
 //
 // Every morning sounding starts with a surface-based radiation inversion
-// with a probability that falls from 85 % in mid-winter to 40 % in
+// with a probability that falls from 85 % in mid-winter to 65 % in
 // mid-summer; winter inversions are deeper (typically 200–600 m) and
-// stronger (typically 3–9 K) than summer ones (100–250 m, 2–4 K). Above it lies a residual
-// layer (constant θ, 1–3 K below the coming afternoon's mixed-layer θ) as
-// deep as the same local day's afternoon mixed layer, capped by a weak
-// elevated inversion: the morning and afternoon soundings of one day
-// agree, as the Holzworth afternoon construction (morning profile lifted
-// from the day's maximum temperature) assumes. The dawn surface
-// temperature follows from the residual layer and the night's inversion,
-// so the diurnal range is an outcome (typically 6–12 K).
-// Every afternoon sounding has a well-mixed layer (θ and mixing ratio
-// constant) whose depth grows from about 400–850 m in winter to 1600–3000 m
-// in summer, capped by an inversion with much drier air above. About half
-// of the soundings carry a further subsidence inversion 1–3 km higher, again
-// with the dewpoint depression increasing upward across it. The free
-// troposphere cools at about 6.5 K/km (varying from layer to layer) up to a
-// tropopause near 10 km in winter and 12 km in summer; above it the
-// temperature is nearly constant up to the top of the sounding just above
-// 100 hPa. Winds strengthen with height and veer towards the west, up to a
-// jet near the tropopause that is stronger in winter.
+// stronger (typically 3–9 K) than summer ones (130–320 m, 3–7 K). On the
+// other (windy or overcast) mornings a mechanically mixed surface layer
+// 200–500 m deep, 2–4 K cooler in potential temperature than the layer
+// above, lies under a 100 m stable step. Above lies a residual layer
+// (constant θ, 1–3 K below the coming afternoon's mixed-layer θ) as deep as
+// the same local day's afternoon mixed layer, capped by a weak elevated
+// inversion: the morning and afternoon soundings of one day agree, as the
+// Holzworth afternoon construction (morning profile lifted from the day's
+// maximum temperature) assumes. The dawn surface temperature follows from
+// the residual layer and the night's surface layer, so the diurnal range
+// is an outcome. Every afternoon sounding has a well-mixed layer (θ and
+// mixing ratio constant) whose depth grows from about 400–850 m in winter
+// to 1600–3000 m in summer, capped by an inversion with much drier air
+// above. When the sun is within 2° of the horizon or below it at release
+// (winter), the valley floor is already shaded and cooling: 70 % of those
+// afternoon soundings (30 % with the sun 2–5° up) start with a shallow
+// surface inversion, 30–120 m deep and about 3 K strong, under the day's
+// mixed layer. About half of the soundings carry a further subsidence
+// inversion 1–3 km higher, again with the dewpoint depression increasing
+// upward across it. The free troposphere cools at about 6.5 K/km (varying
+// from layer to layer) up to a tropopause near 10 km in winter and 12 km in
+// summer; above it the temperature is nearly constant up to the top of the
+// sounding just above 100 hPa. Winds strengthen with height and veer
+// towards the west, up to a jet near the tropopause that is stronger in
+// winter.
 //
 // In the cold half of winter (about late November to late March), high
 // pressure can start a cold-air pool lasting 2–7 days: its mornings always
@@ -50,7 +59,8 @@
 // Other stations ([StationAt] with index ≥ 1, chosen through
 // [Config.StationIndex]) are invented in the same way on the same plain:
 // latitude 36–48° N, longitude 112–92° W (so 00 UTC is always late
-// afternoon and 12 UTC always before dawn), elevation 300–900 m, with a
+// afternoon, near or after sunset in winter, and 12 UTC before dawn or
+// near sunrise), elevation 300–900 m, with a
 // climate shifted by latitude and elevation. Their ids are ZZXSYN followed by
 // five digits; the "ZZX" prefix followed by "SYN" belongs to no real station
 // in the version-2 station list.

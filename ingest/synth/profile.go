@@ -68,18 +68,44 @@ func clamp(x, lo, hi float64) float64 { return min(max(x, lo), hi) }
 
 func uniform(r *rand.Rand, lo, hi float64) float64 { return lo + (hi-lo)*r.Float64() }
 
+// eveningInversion decides whether a late-afternoon sounding released with
+// the sun sunDeg degrees above the horizon starts with a shallow surface
+// inversion: the valley floor loses the direct sun some minutes before the
+// astronomical sunset (shading by the valley's sides) and radiative
+// cooling then inverts the lowest tens of metres within the first hour
+// (the scenario's own choice, no source): probability 0.7 with the sun
+// below 2°, 0.3 from 2° to 5°, none higher.
+func eveningInversion(r *rand.Rand, sunDeg float64) bool {
+	switch {
+	case sunDeg < 2:
+		return r.Float64() < 0.7
+	case sunDeg < 5:
+		return r.Float64() < 0.3
+	}
+	return false
+}
+
 // afternoon designs a late-afternoon sounding: a well-mixed layer of depth
 // 300–3200 m (deeper in summer), a capping inversion with dry air above,
-// then the free troposphere. s is the season (0 mid-winter, 1 mid-summer).
-// In a cold-air pool the lowest 150–350 m stay inverted by 1.5–4 K below
-// the mixed layer, which then starts at the pool's top.
-func (pr *profile) afternoon(r *rand.Rand, cl climate, s, anomK, pSfcPa, elevM, h float64, pool bool) (tropAGLM float64) {
+// then the free troposphere. s is the season (0 mid-winter, 1 mid-summer);
+// sunDeg the sun's elevation at release, degrees. In a cold-air pool the
+// lowest 150–350 m stay inverted by 1.5–4 K below the mixed layer, which
+// then starts at the pool's top. Near or after sunset (eveningInversion)
+// the lowest 30–120 m are inverted by 0.5–4.5 K (about 3 K in mid-winter)
+// instead: the night's radiation inversion beginning under the day's mixed
+// layer.
+func (pr *profile) afternoon(r *rand.Rand, cl climate, s, anomK, pSfcPa, elevM, h float64, pool bool, sunDeg float64) (tropAGLM float64) {
 	tS := lerp(cl.tmaxWinter, cl.tmaxSummer, s) + anomK + zeroCK
 	poolTop, poolK := 0.0, 0.0
-	if pool {
+	switch {
+	case pool:
 		poolTop, poolK = uniform(r, 150, 350), uniform(r, 1.5, 4)
 		h = max(h, poolTop+200)
+	case eveningInversion(r, sunDeg):
+		poolTop, poolK = uniform(r, 30, 120), lerp(3, 1.5, s)*uniform(r, 0.5, 1.5)
+		h = max(h, poolTop+200)
 	}
+	inverted := poolTop > 0
 	w := lerp(cl.wWinter, cl.wSummer, s) * math.Exp(0.2*r.NormFloat64())
 	// Keep the lifting condensation level (about 122 m per kelvin of
 	// dewpoint depression; common practice, no source) above the mixed
@@ -90,7 +116,7 @@ func (pr *profile) afternoon(r *rand.Rand, cl climate, s, anomK, pSfcPa, elevM, 
 		w = mixingRatio(td, pSfcPa)
 	}
 	theta := tS * math.Pow(p0Pa/pSfcPa, kappa)
-	if pool {
+	if inverted {
 		// The mixed layer's adiabat at the pool's top, and the colder
 		// surface below it.
 		tTop := tS - dryLapseKPerM*poolTop
@@ -101,7 +127,7 @@ func (pr *profile) afternoon(r *rand.Rand, cl climate, s, anomK, pSfcPa, elevM, 
 		pr.reset(pSfcPa, tS, td)
 	}
 	for _, f := range [...]float64{0.05, 0.3, 0.55, 0.8} {
-		if z := h * f; !pool || z > pr.last().zAGLM+20 {
+		if z := h * f; !inverted || z > pr.last().zAGLM+20 {
 			pr.addThetaW(z-pr.last().zAGLM, theta+0.08*r.NormFloat64(), w*(1+0.01*r.NormFloat64()))
 		}
 	}
@@ -112,9 +138,11 @@ func (pr *profile) afternoon(r *rand.Rand, cl climate, s, anomK, pSfcPa, elevM, 
 }
 
 // morning designs a pre-dawn sounding: a surface-based radiation inversion
-// (probability 85 % in mid-winter to 40 % in mid-summer) or a stable but
-// not inverted surface layer, the previous day's residual layer, a weak
-// inversion at its top, then the free troposphere.
+// (probability 85 % in mid-winter to 65 % in mid-summer: clear, calm
+// nights on a high plain) or, on windy or overcast nights, a mechanically
+// mixed surface layer 200–500 m deep, 2–4 K cooler in θ than the residual
+// layer and joined to it by a 100 m stable step; then the previous day's
+// residual layer, a weak inversion at its top, then the free troposphere.
 //
 // In a cold-air pool the surface inversion is always present.
 func (pr *profile) morning(r *rand.Rand, cl climate, s, anomK, pSfcPa, elevM, h float64, pool bool) (tropAGLM float64) {
@@ -130,19 +158,26 @@ func (pr *profile) morning(r *rand.Rand, cl climate, s, anomK, pSfcPa, elevM, h 
 	thetaR := tAft*math.Pow(p0Pa/pSfcPa, kappa) - uniform(r, 1, 3)
 	tR := thetaR * math.Pow(pSfcPa/p0Pa, kappa) // at the surface pressure
 	dpd := uniform(r, 0.3, 3)
-	if pool || r.Float64() < lerp(0.85, 0.40, s) {
-		depth := clamp(lerp(350, 150, s)*math.Exp(0.35*r.NormFloat64()), 60, 900)
-		dT := clamp(lerp(6, 2.5, s)*math.Exp(0.4*r.NormFloat64()), 0.8, 15)
+	if pool || r.Float64() < lerp(0.85, 0.65, s) {
+		depth := clamp(lerp(350, 220, s)*math.Exp(0.35*r.NormFloat64()), 60, 900)
+		dT := clamp(lerp(6, 5, s)*math.Exp(0.4*r.NormFloat64()), 0.8, 15)
 		tS := tR - dT - dryLapseKPerM*depth
 		pr.reset(pSfcPa, tS, tS-dpd)
 		pr.addDPD(0.3*depth, tS+0.6*dT, dpd+uniform(r, 0, 1.5))
 		pr.addDPD(0.7*depth, tS+dT, dpd+uniform(r, 1, 5))
 	} else {
-		dz := uniform(r, 150, 400)
-		lapse := uniform(r, 3, 8) / 1000
-		tS := tR - (dryLapseKPerM-lapse)*dz - uniform(r, 0, 0.5)
+		// Windy or overcast: the night's cooling is mixed through a
+		// near-neutral layer (θ 2–4 K below the residual layer's, rising
+		// 0–0.4 K through it), under a 100 m stable step up to the
+		// residual layer.
+		dz := uniform(r, 200, 500)
+		thetaM := thetaR - uniform(r, 2, 4)
+		tS := thetaM * math.Pow(pSfcPa/p0Pa, kappa)
 		pr.reset(pSfcPa, tS, tS-dpd)
-		pr.addDPD(dz, tS-lapse*dz, dpd+uniform(r, 0, 2))
+		w := mixingRatio(tS-dpd, pSfcPa)
+		pr.addThetaW(dz, thetaM+uniform(r, 0, 0.4), w)
+		l := pr.last()
+		pr.addDPD(100, l.tK-dryLapseKPerM*100+(thetaR-thetaM), l.tK-l.tdK+uniform(r, 0, 2))
 	}
 	l := pr.last()
 	w := mixingRatio(l.tdK, l.pPa)

@@ -11,6 +11,8 @@ import (
 	"path/filepath"
 	"strconv"
 	"time"
+
+	"github.com/sondeclim/sondeclim/physics/sun"
 )
 
 // Config selects what [Write] generates.
@@ -190,11 +192,17 @@ func (g *generator) sounding(t time.Time) {
 			h = mixedDepth(r, s)
 		}
 		g.dayMixedM = math.NaN()
-		ztrop = g.pr.afternoon(r, g.cl, s, g.anomK, pSfc, g.st.ElevationM, h, pool)
+		// The release is on the previous UTC day at 23:00–23:40, near
+		// 16:15–16:55 local mean solar time: before sunset from March to
+		// October, near or after it in winter (package documentation).
 		g.releaseHHMM = 2300 + r.IntN(41)
+		release := t.Add(-time.Duration(60-g.releaseHHMM%100) * time.Minute)
+		sunDeg := sun.ElevationDeg(release, g.st.LatitudeDeg, g.st.LongitudeDeg)
+		ztrop = g.pr.afternoon(r, g.cl, s, g.anomK, pSfc, g.st.ElevationM, h, pool, sunDeg)
 	} else {
-		// 12 UTC is before dawn; 00 UTC next comes the same local day's
-		// late afternoon (package documentation).
+		// 12 UTC is before dawn (near sunrise in June and July); 00 UTC
+		// next comes the same local day's late afternoon (package
+		// documentation).
 		g.dayMixedM = mixedDepth(r, s)
 		ztrop = g.pr.morning(r, g.cl, s, g.anomK, pSfc, g.st.ElevationM, g.dayMixedM, pool)
 		g.releaseHHMM = 1100 + r.IntN(41)
