@@ -47,14 +47,14 @@ func queryOne(t *testing.T, store, q string) string {
 // TestEpisodesIncremental: days and episodes are the same whether the
 // record is ingested at once, grown by a nightly append that cuts through
 // an episode at the year boundary, or split by year and ingested in
-// reverse order with another worker count. The invented archive (seed 4,
-// 2001–2002) has a persistent-inversion episode from 28 December 2001 to 1
+// reverse order with another worker count. The invented archive (seed 5,
+// 2001–2002) has a persistent-inversion episode from 29 December 2001 to 2
 // January 2002; the 00 UTC sounding of 1 January is launched at 23 UTC on
 // 31 December, so it is 31 December's evening sounding but lies in the
 // 2002 partition: the day itself spans two partitions.
 func TestEpisodesIncremental(t *testing.T) {
 	dir := t.TempDir()
-	path, _, err := synth.WriteFile(dir, synth.Config{Seed: 4, StartYear: 2001, Years: 2})
+	path, _, err := synth.WriteFile(dir, synth.Config{Seed: 5, StartYear: 2001, Years: 2})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -71,8 +71,8 @@ func TestEpisodesIncremental(t *testing.T) {
 	mustIngest(t, "--store", whole, "--workers", "1", path)
 	span := queryOne(t, whole, "select strftime(first_day, '%Y-%m-%d'), strftime(last_day, '%Y-%m-%d'), length_days, days_missing from episodes "+
 		"where criterion = 'persistent_inversion_whiteman2001' and first_day <= '2001-12-31' and last_day >= '2002-01-01'")
-	if span != "2001-12-28,2002-01-01,5,0" {
-		t.Fatalf("episode over the year boundary: %q, want 2001-12-28,2002-01-01,5,0", span)
+	if span != "2001-12-29,2002-01-02,5,0" {
+		t.Fatalf("episode over the year boundary: %q, want 2001-12-29,2002-01-02,5,0", span)
 	}
 	want := episodeTables(t, whole)
 
@@ -87,7 +87,7 @@ func TestEpisodesIncremental(t *testing.T) {
 	// Before the append, 31 December has no evening sounding: the episode
 	// ends on 30 December with an open end (it may go on).
 	part := queryOne(t, appended, "select strftime(last_day, '%Y-%m-%d'), open_end from episodes "+
-		"where criterion = 'persistent_inversion_whiteman2001' and first_day = '2001-12-28'")
+		"where criterion = 'persistent_inversion_whiteman2001' and first_day = '2001-12-29'")
 	if part != "2001-12-30,true" {
 		t.Errorf("before the append: %q, want 2001-12-30,true", part)
 	}

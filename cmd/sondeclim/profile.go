@@ -236,6 +236,15 @@ func levelFlags(l figures.Level) string {
 	return strings.Join(f, ", ")
 }
 
+// surfaceNote says when the surface pressure was derived rather than
+// reported, and from how far up the profile starts.
+func surfaceNote(p *figures.Profile) string {
+	if !p.SurfacePressureDerived {
+		return ""
+	}
+	return fmt.Sprintf(" (derived: the surface line has no pressure; hypsometric from the station elevation and the lowest level, %s m above ground)", num(p.LowestLevelAGLM, 0))
+}
+
 // writeProfileText prints a sounding for people.
 func writeProfileText(w io.Writer, p *figures.Profile) error {
 	var b strings.Builder
@@ -250,7 +259,9 @@ func writeProfileText(w io.Writer, p *figures.Profile) error {
 	fmt.Fprintf(tw, "  source\t%s:%d (%s), %d levels\n", p.SourceFile, p.SourceLine, p.SourceFormat, p.LevelCount)
 	fmt.Fprintf(tw, "  status\tquality control %s; analysis %s\n", dash(p.QCStatus), dash(p.AnalysisStatus))
 	fmt.Fprintf(tw, "  sun\t%s (elevation %s deg); Liu-Liang regime %s\n", dash(p.SunClass), num(p.SunElevation, 1), dash(p.Regime))
-	fmt.Fprintf(tw, "  surface\t%s hPa, T %s degC, Td %s degC, theta %s K\n", num(p.SurfacePressureHPa, 1), num(p.SurfaceTemperatureC, 1), num(p.SurfaceDewpointC, 1), num(p.SurfaceThetaK, 2))
+	fmt.Fprintf(tw, "  regime\t%s (chooses the consensus methods); residual-layer top %s m\n", dash(p.BLRegime), num(p.ResidualTopAGLM, 0))
+	fmt.Fprintf(tw, "  surface\t%s hPa%s, T %s degC, Td %s degC, theta %s K\n", num(p.SurfacePressureHPa, 1), surfaceNote(p),
+		num(p.SurfaceTemperatureC, 1), num(p.SurfaceDewpointC, 1), num(p.SurfaceThetaK, 2))
 	tw.Flush()
 
 	b.WriteString("\nMixing height (m above ground)\n")
@@ -259,7 +270,7 @@ func writeProfileText(w io.Writer, p *figures.Profile) error {
 	for _, h := range p.Heights {
 		fmt.Fprintf(tw, "  %s\t%s\t%s\t%s\t%t\t%s\n", h.Method, num(h.HeightAGLM, 0), h.Status, num(h.LevelSpacingM, 0), h.Unresolved, dash(h.Note))
 	}
-	fmt.Fprintf(tw, "  %s\t%s\t%s\t-\t%t\tmedian of %d methods with status ok, spread %s m\n", figures.Consensus, num(p.Consensus.HeightAGLM, 0),
+	fmt.Fprintf(tw, "  %s\t%s\t%s\t-\t%t\tmedian of the %d methods fitting the regime with status ok, spread %s m\n", figures.Consensus, num(p.Consensus.HeightAGLM, 0),
 		dash(p.Consensus.Status), p.Unresolved, p.MethodsOK, num(p.SpreadM, 0))
 	tw.Flush()
 

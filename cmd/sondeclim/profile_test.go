@@ -78,6 +78,18 @@ func TestProfileSterling(t *testing.T) {
 		t.Errorf("JSON: station %q, level_count %d, %d levels, %d heights", p.StationID, p.LevelCount, len(p.Levels), len(p.Heights))
 	}
 
+	// The surface line of the July sounding carries a pressure; from
+	// 2016-09-14 on the file's surface lines do not (PROVENANCE.md quirks),
+	// so the ground pressure is derived from the built-in station list's
+	// elevation, and profile says so.
+	if strings.Contains(out, "(derived:") {
+		t.Errorf("July sounding: surface pressure shown as derived")
+	}
+	code, autumn, errs := runCmd(t, "profile", "--store", store, "--station", "USM00072403", "--time", "2016-10-01T12")
+	if code != exitOK || !strings.Contains(autumn, "hPa (derived: the surface line has no pressure") {
+		t.Errorf("autumn sounding: exit %d, derived surface pressure not shown\n%s%s", code, autumn, errs)
+	}
+
 	// Nothing within 3 h of 06 UTC (launches are near 00 and 12 UTC).
 	code, _, errs = runCmd(t, "profile", "--store", store, "--station", "USM00072403", "--time", "2016-07-01T06")
 	if code != exitFailure || !strings.Contains(errs, "no sounding") {

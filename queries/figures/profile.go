@@ -104,11 +104,22 @@ type Profile struct {
 	SunClass       string    `json:"sun_class"`
 	SunElevation   float64   `json:"sun_elevation_deg"`
 	Regime         string    `json:"liu_liang_regime"`
+	// BLRegime is the boundary-layer regime that chose the consensus
+	// methods (stable, convective, neutral; "" when unknown).
+	BLRegime string `json:"bl_regime"`
 
-	SurfacePressureHPa  float64 `json:"surface_pressure_hpa"`
-	SurfaceTemperatureC float64 `json:"surface_temperature_c"`
-	SurfaceDewpointC    float64 `json:"surface_dewpoint_c"`
-	SurfaceThetaK       float64 `json:"surface_theta_k"`
+	SurfacePressureHPa float64 `json:"surface_pressure_hpa"`
+	// SurfacePressureDerived is true when the ground pressure was derived
+	// hypsometrically from the station elevation and the lowest level
+	// (LowestLevelAGLM above ground), the surface line carrying none.
+	SurfacePressureDerived bool    `json:"surface_pressure_derived"`
+	LowestLevelAGLM        float64 `json:"lowest_level_agl_m"`
+	SurfaceTemperatureC    float64 `json:"surface_temperature_c"`
+	SurfaceDewpointC       float64 `json:"surface_dewpoint_c"`
+	SurfaceThetaK          float64 `json:"surface_theta_k"`
+	// ResidualTopAGLM is the residual-layer top (stable and neutral
+	// regimes), m above ground; NaN when none.
+	ResidualTopAGLM float64 `json:"residual_layer_top_agl_m"`
 
 	// Consensus is the median of the methods whose status is ok (Method
 	// is "consensus").
@@ -292,10 +303,14 @@ func (p *Profile) scanSounding(rows *sql.Rows) error {
 	sc.s("sun_class", &p.SunClass)
 	sc.f("sun_elevation_deg", &p.SunElevation)
 	sc.s("liu_liang_regime", &p.Regime)
+	sc.s("bl_regime", &p.BLRegime)
 	sc.f("surface_pressure_hpa", &p.SurfacePressureHPa)
+	sc.b("surface_pressure_derived", &p.SurfacePressureDerived)
+	sc.f("lowest_level_agl_m", &p.LowestLevelAGLM)
 	sc.f("surface_temperature_c", &p.SurfaceTemperatureC)
 	sc.f("surface_dewpoint_c", &p.SurfaceDewpointC)
 	sc.f("surface_theta_k", &p.SurfaceThetaK)
+	sc.f("residual_layer_top_agl_m", &p.ResidualTopAGLM)
 	sc.f("mixing_height_consensus_m", &p.Consensus.HeightAGLM)
 	sc.s("mixing_height_consensus_status", &p.Consensus.Status)
 	sc.f("mixing_height_spread_m", &p.SpreadM)
