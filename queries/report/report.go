@@ -21,6 +21,7 @@ import (
 	"fmt"
 	"html/template"
 	"math"
+	"runtime"
 	"slices"
 	"strings"
 	"time"
@@ -28,6 +29,7 @@ import (
 	"github.com/sondeclim/sondeclim/analyze"
 	"github.com/sondeclim/sondeclim/queries"
 	"github.com/sondeclim/sondeclim/queries/figures"
+	"golang.org/x/sync/errgroup"
 )
 
 //go:embed coverage.sql
@@ -181,16 +183,30 @@ func Build(ctx context.Context, db *sql.DB, opt Options) (*Report, error) {
 		return nil, err
 	}
 	excluded := excludedByStation(cov)
+	var drawn []figures.Station
 	for _, st := range all {
 		if !slices.Contains(kept, st.ID) {
 			continue
 		}
 		sec := Section{ID: st.ID, Label: st.Label(), Position: positions[st.ID], Excluded: excluded[st.ID]}
 		t.fill(&sec)
-		if sec.Images, err = stationImages(ctx, db, st, opt.Method); err != nil {
-			return nil, err
-		}
 		r.Sections = append(r.Sections, sec)
+		drawn = append(drawn, st)
+	}
+	// The figures of the stations are drawn side by side, one station per
+	// processor; each lands in its own section, so the page does not
+	// depend on the order they finish in.
+	g, gctx := errgroup.WithContext(ctx)
+	g.SetLimit(runtime.GOMAXPROCS(0))
+	for i, st := range drawn {
+		g.Go(func() error {
+			im, err := stationImages(gctx, db, st, opt.Method)
+			r.Sections[i].Images = im
+			return err
+		})
+	}
+	if err := g.Wait(); err != nil {
+		return nil, err
 	}
 	return r, nil
 }

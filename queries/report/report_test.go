@@ -119,6 +119,23 @@ func TestBuild(t *testing.T) {
 		}
 	}
 
+	// Both stations drawn (side by side): each section holds its own
+	// station's figures.
+	both, err := Build(ctx, db, Options{MinSoundings: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, sec := range both.Sections {
+		for _, im := range sec.Images {
+			if !strings.HasPrefix(im.Name, sec.ID+"-") {
+				t.Errorf("section %s holds figure %s", sec.ID, im.Name)
+			}
+		}
+	}
+	if len(both.Sections) != 2 || both.Figures() != 8 {
+		t.Errorf("%d sections, %d figures, want 2 and 8", len(both.Sections), both.Figures())
+	}
+
 	one, err := Build(ctx, db, Options{Station: "XR002", MinSoundings: 1})
 	if err != nil {
 		t.Fatal(err)
