@@ -8,7 +8,8 @@ import (
 
 // TestSterlingInversionShapes compares the surface-based inversions of the
 // real Sterling, Virginia 2016 file (PROVENANCE.md) with the published
-// 30-year figures for Pittsburgh, a mid-Atlantic station 300 km away
+// 30-year figures for Pittsburgh (southwestern Pennsylvania, inland, about
+// 300 km from Sterling; confirmed in the abstract)
 // (Sadar 2022, Environ. Sci. Pollut. Res., doi 10.1007/s11356-022-20504-7,
 // abstract): at 12 UTC an SBI in 47 % of soundings, mean strength 3.9 °C,
 // mean depth 246 m; at 00 UTC in 20 %, 1.1 °C, 101 m. One year at another
@@ -61,9 +62,12 @@ func TestSterlingInversionShapes(t *testing.T) {
 // TestSterlingDeepStableLayers: Wolyn & McKee (1989, Mon. Wea. Rev.,
 // abstract) found deep stable layers to be "a wintertime phenomenon", on
 // 10–20 % of December–January days at four intermountain basin stations
-// (Grand Junction, Salt Lake City, Winnemucca, Boise). The validation files
-// hold no such station, and the Sterling file has one January and no
-// December: 31 mornings, whose binomial 95 % interval is about ±12 points,
+// (Grand Junction, Salt Lake City, Winnemucca, Boise), judged on the 12 UTC
+// (05 MST) sounding; confirmed in the abstract. Three of those stations
+// (72476, 72572, 72681) are in the validation files, but only in the TEMP
+// bulletins of one July evening (2022-07-13 00 UTC): no winter morning, so
+// no basin figure can be tested there. The Sterling file (an eastern,
+// non-basin station) has one January and no December: 31 mornings, whose binomial 95 % interval is about ±12 points,
 // so no basin figure can be tested (Sterling's January 2016 value is only
 // logged). What it can test is the season: deep stable mornings in
 // January, next to none in June–August, and runs of them forming
