@@ -3,7 +3,7 @@ package analyze
 import "math"
 
 // KtFtPerM2S converts a ventilation index from m²/s to knot·feet:
-// 1 m²/s = (1/0.514444 kt)(1/0.3048 ft) = 6.37745 kt·ft (METHODS §5 [D];
+// 1 m²/s = (1/0.514444 kt)(1/0.3048 ft) = 6.37744 kt·ft (METHODS §5 [D];
 // 1 kt = 1852/3600 m/s and 1 ft = 0.3048 m exactly by definition).
 const KtFtPerM2S = 3600.0 / 1852 / 0.3048
 
@@ -28,6 +28,9 @@ type VentilationTable struct {
 	Name       string
 	Unit       string                // UnitM2S or UnitKtFt
 	Categories []VentilationCategory // ascending MinInclusive; the first should be 0
+	// Source names who set the thresholds. It does not change a result,
+	// so it is left out of the analysis parameters (and their hash).
+	Source string `json:"-"`
 }
 
 // Category returns the label of the category holding viM2S (m²/s,
@@ -61,7 +64,8 @@ func (t VentilationTable) Category(viM2S float64) string {
 // potential); the 2000 m²/s boundary is a proposal with no source.
 func GenericVentilationTable() VentilationTable {
 	return VentilationTable{Name: "generic", Unit: UnitM2S, Categories: []VentilationCategory{
-		{"poor", 0}, {"fair", 2000}, {"good", 6000}}}
+		{"poor", 0}, {"fair", 2000}, {"good", 6000}},
+		Source: "6000 m2/s from the guidance quoted in METHODS §5; 2000 m2/s a proposal, no source"}
 }
 
 // NCVISTable is the North Carolina Forest Service Ventilation Index
@@ -71,7 +75,8 @@ func GenericVentilationTable() VentilationTable {
 // kt·ft there).
 func NCVISTable() VentilationTable {
 	return VentilationTable{Name: "nc_vis", Unit: UnitKtFt, Categories: []VentilationCategory{
-		{"1", 0}, {"2", 33500}, {"3", 45000}, {"4", 60000}, {"5", 112000}}}
+		{"1", 0}, {"2", 33500}, {"3", 45000}, {"4", 60000}, {"5", 112000}},
+		Source: "North Carolina Forest Service Ventilation Index System, as quoted in METHODS §5 (2015 NC Prescribed Fire Council presentation)"}
 }
 
 // VentilationConfig selects the inputs of the ventilation index.

@@ -86,6 +86,7 @@ error; 3 done, but some input was skipped (data lost).`,
 	wait := fs.Bool("wait", false, "wait for another ingest into the same store to finish instead of failing")
 	shard := fs.String("shard", "", "write only the stations of shard `K/N` (stations are assigned by a hash of their id)")
 	dailyMax := fs.String("daily-max", "", "CSV `file` of daily maximum temperatures (station_id,date,tmax_c; date local YYYY-MM-DD) for the afternoon (Holzworth) mixing height; without it, the same day's afternoon sounding is used")
+	ventTable := fs.String("ventilation-table", analyze.GenericVentilationTable().Name, "ventilation category `table`: a built-in name ("+ventilationTableNames()+") or a table file (format in the README, \"Ventilation categories\"); part of the analysis parameters, so a change rebuilds the store")
 	useSuspect := fs.Bool("use-suspect", false, "let the analysis use values quality control flags as suspect (bad values are never used)")
 	cpuProfile := fs.String("cpuprofile", "", "write a CPU profile to `file` (for performance work: go tool pprof FILE)")
 	summaryJSON := fs.String("summary-json", "", "write a machine-readable summary of the run to `file`")
@@ -129,6 +130,15 @@ error; 3 done, but some input was skipped (data lost).`,
 		for _, r := range recs {
 			opt.DailyMaxima[analyze.DayKey{StationID: r.StationID, Date: r.Date}] = r.TmaxK
 		}
+	}
+	if *ventTable != analyze.GenericVentilationTable().Name {
+		tab, err := loadVentilationTable(*ventTable)
+		if err != nil {
+			return fmt.Errorf("ingest: %w", err)
+		}
+		cfg := analyze.DefaultConfig()
+		cfg.Ventilation.Table = tab
+		opt.Analysis = &cfg
 	}
 	if !*quiet && isTerminal(c.stderr) {
 		opt.Progress = progressBar(c.stderr)
@@ -287,4 +297,34 @@ func tuneGC() {
 	}
 	debug.SetMemoryLimit(ingestMemoryLimit)
 	debug.SetGCPercent(-1)
+}
+
+// ventilationTableNames lists the built-in ventilation tables, "a, b".
+func ventilationTableNames() string {
+	var names []string
+	for _, t := range analyze.BuiltinVentilationTables() {
+		names = append(names, t.Name)
+	}
+	return strings.Join(names, ", ")
+}
+
+// loadVentilationTable returns the built-in table called arg, or else the
+// table in the file arg; errors name the file and line.
+func loadVentilationTable(arg string) (analyze.VentilationTable, error) {
+	if t, ok := analyze.LookupVentilationTable(arg); ok {
+		return t, nil
+	}
+	f, err := os.Open(arg)
+	if err != nil {
+		return analyze.VentilationTable{}, fmt.Errorf("--ventilation-table %q is neither a built-in table (%s) nor a readable file: %w", arg, ventilationTableNames(), err)
+	}
+	defer f.Close()
+	t, err := analyze.ParseVentilationTable(f)
+	if err != nil {
+		if msg, ok := strings.CutPrefix(err.Error(), "line "); ok {
+			return t, fmt.Errorf("ventilation table %s:%s", arg, msg)
+		}
+		return t, fmt.Errorf("ventilation table %s: %w", arg, err)
+	}
+	return t, nil
 }
