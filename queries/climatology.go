@@ -278,7 +278,9 @@ func (ct *ClimatologyTables) Table(name string) (*Table, error) {
 		v := selectColumns(ct.Cells, append(slices.Clone(cellKeys), "n_ventilation",
 			"transport_wind_p25_ms", "transport_wind_p50_ms", "transport_wind_p75_ms",
 			"ventilation_index_p10_m2s", "ventilation_index_p25_m2s", "ventilation_index_p50_m2s",
-			"ventilation_index_p75_m2s", "ventilation_index_p90_m2s", "ventilation_table"))
+			"ventilation_index_p75_m2s", "ventilation_index_p90_m2s",
+			"ventilation_index_p10_ktft", "ventilation_index_p25_ktft", "ventilation_index_p50_ktft",
+			"ventilation_index_p75_ktft", "ventilation_index_p90_ktft", "ventilation_table"))
 		v = ct.withCategories(v)
 		return appendColumnFrom(v, ct.Cells, "note"), nil
 	case "all":

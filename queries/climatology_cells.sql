@@ -35,6 +35,10 @@
 --   n_ventilation                  valid soundings with a ventilation index
 --   transport_wind_p25/p50/p75_ms  m/s; transport wind
 --   ventilation_index_pNN_m2s      m2/s; percentiles 10/25/50/75/90 of the ventilation index
+--   ventilation_index_pNN_ktft     kt*ft; the same percentiles in knot-feet, the unit of
+--                                  fire-weather practice (1 m2/s = 3600/1852/0.3048 =
+--                                  6.37744 kt*ft, analyze.KtFtPerM2S; type-7 percentiles
+--                                  scale with the unit, so they are the m2/s ones times it)
 --   ventilation_table              category table(s) of the store, comma-separated
 --   note                           empty, or the special hours the cell holds
 --                                  ("with 06 UTC"; "other hours: 06,18 UTC" for
@@ -107,6 +111,11 @@ c AS (
         ventilation_index_q[3] AS ventilation_index_p50_m2s,
         ventilation_index_q[4] AS ventilation_index_p75_m2s,
         ventilation_index_q[5] AS ventilation_index_p90_m2s,
+        ventilation_index_q[1] * (3600.0 / 1852 / 0.3048) AS ventilation_index_p10_ktft,
+        ventilation_index_q[2] * (3600.0 / 1852 / 0.3048) AS ventilation_index_p25_ktft,
+        ventilation_index_q[3] * (3600.0 / 1852 / 0.3048) AS ventilation_index_p50_ktft,
+        ventilation_index_q[4] * (3600.0 / 1852 / 0.3048) AS ventilation_index_p75_ktft,
+        ventilation_index_q[5] * (3600.0 / 1852 / 0.3048) AS ventilation_index_p90_ktft,
         ventilation_table, n_fewest_month, hours_pooled
     FROM a
 )

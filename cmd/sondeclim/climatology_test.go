@@ -2,6 +2,7 @@ package main
 
 import (
 	"context"
+	"encoding/csv"
 	"fmt"
 	"math"
 	"os"
@@ -361,5 +362,65 @@ func TestClimatologyUsage(t *testing.T) {
 	s.Set("C3")
 	if got := strings.Join(s, "|"); got != "A1|B2|C3" {
 		t.Errorf("station list %q", got)
+	}
+}
+
+// TestClimatologyVentilationKtFt: the ventilation view gives the index in
+// kt·ft beside m²/s, and its median is the median of the soundings' own
+// kt·ft values (real Wien soundings, ../shared/validation, PROVENANCE.md;
+// conversion checked against NIST SP 811 in analyze), and an ingest with
+// --ventilation-table of a file records that table's name and categories.
+func TestClimatologyVentilationKtFt(t *testing.T) {
+	v := sharedDir(t)
+	dir := t.TempDir()
+	table := filepath.Join(dir, "smoke.txt")
+	if err := os.WriteFile(table, []byte("# invented\nname: county_smoke\nunit: kt*ft\nsource: invented\n0 poor\n33500 marginal\n60000 good\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	store := filepath.Join(dir, "store")
+	if code, _, errs := runCmd(t, "ingest", "--quiet", "--store", store, "--ventilation-table", table,
+		filepath.Join(v, "archive-v2", "AUM00011035-data.txt.gz")); code != exitOK {
+		t.Fatalf("ingest: exit %d\n%s", code, errs)
+	}
+	code, out, errs := runCmd(t, "climatology", "--store", store, "--table", "ventilation", "--format", "csv")
+	if code != exitOK {
+		t.Fatalf("climatology: exit %d\n%s", code, errs)
+	}
+	rows, err := csv.NewReader(strings.NewReader(out)).ReadAll()
+	if err != nil || len(rows) < 2 {
+		t.Fatalf("csv: %v\n%s", err, out)
+	}
+	col := func(name string) int { return slices.Index(rows[0], name) }
+	if col("ventilation_index_p50_ktft") < 0 || col("ventilation_table") < 0 {
+		t.Fatalf("columns %v", rows[0])
+	}
+	checked := 0
+	for _, r := range rows[1:] {
+		if r[col("season")] != "JJA" || r[col("nominal_hour")] != "12" {
+			continue
+		}
+		checked++
+		code, q, errs := runCmd(t, "query", "--store", store, "--format", "csv",
+			"select round(median(ventilation_index_ktft)) from soundings where season = 'JJA' and nominal_hour = 12 and analysis_status = 'ok'")
+		if code != exitOK {
+			t.Fatalf("query: exit %d\n%s", code, errs)
+		}
+		want := strings.TrimSpace(strings.Split(q, "\n")[1])
+		if got := r[col("ventilation_index_p50_ktft")]; strings.TrimSuffix(want, ".0") != got {
+			t.Errorf("JJA 12 UTC median %s kt·ft, soundings' own median %s", got, want)
+		}
+		if r[col("ventilation_table")] != "county_smoke" {
+			t.Errorf("table %q", r[col("ventilation_table")])
+		}
+	}
+	if checked != 1 {
+		t.Errorf("%d JJA 12 UTC rows checked, want 1", checked)
+	}
+	if !strings.Contains(out, "marginal") {
+		t.Errorf("no category of the table's own in\n%s", out)
+	}
+	if code, _, errs := runCmd(t, "ingest", "--quiet", "--store", filepath.Join(dir, "s2"), "--ventilation-table", "no_such_table",
+		filepath.Join(v, "archive-v2", "AUM00011035-data.txt.gz")); code == exitOK || !strings.Contains(errs, "generic, nc_vis") {
+		t.Errorf("unknown table: exit %d, %s", code, errs)
 	}
 }
