@@ -196,6 +196,8 @@ func AppendSounding(out *PartRows, s *sounding.Sounding, rep qc.Report, res *ana
 			Kind:              l.Kind.String(),
 			SourceLine:        int64(l.Line),
 			ElapsedS:          l.ElapsedS,
+			LatDispDeg:        l.LatDisplacementDeg,
+			LonDispDeg:        l.LonDisplacementDeg,
 			PressureHPa:       hPa(l.PressurePa),
 			HeightM:           res.HeightM[i],
 			HeightDerived:     res.HeightDerived[i],

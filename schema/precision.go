@@ -39,11 +39,15 @@ var unitDecimals = []struct {
 // OutputDecimals returns the number of decimals a value of the named
 // column is written with, and false when the name carries no known unit
 // (such values are written with six significant digits). Positions are
-// written to 1e-4 degree (about 10 m), other angles to 0.1°.
+// written to 1e-4 degree (about 10 m), the per-level displacements from
+// them to 1e-5 degree (the resolution of BUFR's 0 05 015 and 0 06 015),
+// other angles to 0.1°.
 func OutputDecimals(column string) (int, bool) {
 	switch {
 	case column == "latitude_deg" || column == "longitude_deg":
 		return 4, true
+	case strings.HasSuffix(column, "_displacement_deg"):
+		return 5, true
 	case strings.HasSuffix(column, "_deg"):
 		return 1, true
 	case strings.HasPrefix(column, "p_below_"):
@@ -74,7 +78,7 @@ func PrecisionText() string {
 		parts = append(parts, "`…"+u.suffix+"` ("+u.what+") to "+d)
 	}
 	return "Text, CSV and JSON output round each value to the precision of the data, chosen by the end of the column name: " +
-		strings.Join(parts, ", ") + "; `latitude_deg` and `longitude_deg` to 0.0001, other `…_deg` to 0.1, `p_below_…` to 0.01; " +
+		strings.Join(parts, ", ") + "; `latitude_deg` and `longitude_deg` to 0.0001, `…_displacement_deg` to 0.00001, other `…_deg` to 0.1, `p_below_…` to 0.01; " +
 		"in the trends table `slope_pct_per_decade` to 0.1, `mk_z` to 0.01, `mk_p` to 0.001, and `median` and `slope_per_decade` " +
 		"at the precision of the metric's unit (the slope with one decimal more); " +
 		"other numbers to six significant digits. The Parquet files keep full precision; `sondeclim query --exact` writes numbers in full."

@@ -193,6 +193,8 @@ type LevelRow struct {
 	SourceLine int64     `col:"source_line" doc:"1-based line of the level in the source file (0 if not line-oriented)"`
 
 	ElapsedS       float64 `col:"elapsed_s" doc:"s since release"`
+	LatDispDeg     float64 `col:"latitude_displacement_deg" doc:"degrees north of the sounding's latitude_deg (the launch site): where the balloon was at this level; null when the source gives no per-level position (BUFR 3 09 052, 3 09 056 and 3 09 057 give it, at 0.00001 deg; netCDF flights from their per-record latitude)"`
+	LonDispDeg     float64 `col:"longitude_displacement_deg" doc:"degrees east of the sounding's longitude_deg (the launch site): where the balloon was at this level; null when the source gives no per-level position (as latitude_displacement_deg)"`
 	PressureHPa    float64 `col:"pressure_hpa" doc:"hPa"`
 	HeightM        float64 `col:"height_m" doc:"gpm above mean sea level; reported, or filled hypsometrically (see height_derived)"`
 	HeightDerived  bool    `col:"height_derived" doc:"true when height_m was filled by hypsometric integration"`

@@ -45,10 +45,13 @@ func AppendBinary(b []byte, s *Sounding, source bool) []byte {
 	for i := range s.Levels {
 		l := &s.Levels[i]
 		b = append(b, byte(l.Kind), flags(l.Tropopause, false, false))
-		// A bitmap says which of the nine values are present (not NaN);
-		// only those follow, since archive levels miss many of them.
+		// A bitmap says which of the eleven values are present (not NaN);
+		// only those follow, since archive levels miss many of them. The
+		// displacements came last, so a level without them is encoded as
+		// before they existed (and its hash is unchanged).
 		vals := [...]float64{l.ElapsedS, l.PressurePa, l.HeightM, l.TemperatureK, l.DewpointK,
-			l.DewpointDepressionK, l.RelHumidityPct, l.WindDirectionDeg, l.WindSpeedMS}
+			l.DewpointDepressionK, l.RelHumidityPct, l.WindDirectionDeg, l.WindSpeedMS,
+			l.LatDisplacementDeg, l.LonDisplacementDeg}
 		var present uint16
 		for k, v := range vals {
 			if !math.IsNaN(v) {
@@ -211,7 +214,8 @@ func DecodeBinary(b []byte) (*Sounding, []byte, error) {
 		l.Tropopause = d.byte()&1 != 0
 		present := d.uint16()
 		for k, p := range [...]*float64{&l.ElapsedS, &l.PressurePa, &l.HeightM, &l.TemperatureK, &l.DewpointK,
-			&l.DewpointDepressionK, &l.RelHumidityPct, &l.WindDirectionDeg, &l.WindSpeedMS} {
+			&l.DewpointDepressionK, &l.RelHumidityPct, &l.WindDirectionDeg, &l.WindSpeedMS,
+			&l.LatDisplacementDeg, &l.LonDisplacementDeg} {
 			if present&(1<<k) != 0 {
 				*p = d.float()
 			} else {

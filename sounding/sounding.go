@@ -119,6 +119,14 @@ type Level struct {
 	WindDirectionDeg    float64 // degrees true, direction the wind comes from
 	WindSpeedMS         float64 // m/s
 
+	// LatDisplacementDeg and LonDisplacementDeg are the balloon's position
+	// at this level relative to the sounding's position (LatitudeDeg,
+	// LongitudeDeg): degrees north and degrees east of it, NaN where the
+	// source gives no per-level position (most formats). They carry no
+	// Status entry: NaN simply means not given.
+	LatDisplacementDeg float64
+	LonDisplacementDeg float64
+
 	// Status says, for each observed variable, whether it was reported,
 	// missing, removed upstream or derived here.
 	Status [NumVars]Status
@@ -139,6 +147,7 @@ func NewLevel() Level {
 	l.ElapsedS, l.PressurePa, l.HeightM, l.TemperatureK = nan, nan, nan, nan
 	l.DewpointK, l.DewpointDepressionK, l.RelHumidityPct = nan, nan, nan
 	l.WindDirectionDeg, l.WindSpeedMS = nan, nan
+	l.LatDisplacementDeg, l.LonDisplacementDeg = nan, nan
 	for i := range l.Status {
 		l.Status[i] = Missing
 	}

@@ -76,7 +76,10 @@
 //     0 10 003 ÷ 9.80665 m s⁻²) becomes a level, in message order:
 //     temperature 0 12 101/0 12 001, dewpoint 0 12 103/0 12 003 (its
 //     depression derived), wind direction and speed 0 11 001/0 11 002,
-//     time since launch 0 04 086 (ElapsedS). Wind-shear iterations
+//     time since launch 0 04 086 (ElapsedS), latitude and longitude
+//     displacement from the launch site 0 05 015/0 06 015
+//     (LatDisplacementDeg, LonDisplacementDeg; 3 09 052, 3 09 056 and
+//     3 09 057 carry them, at 0.00001°). Wind-shear iterations
 //     (0 11 061/0 11 062, 3 03 051) are not levels.
 //   - Kind from 0 08 042 (or 0 08 001): bit 1 surface, bit 2 standard
 //     level, otherwise significant (temperature, humidity or wind); bit 3
@@ -84,11 +87,9 @@
 //     levels with a pressure higher than the surface level's lie below the
 //     ground (the sender extrapolated them) and are dropped, as the TEMP
 //     reader does.
-//   - Missing values stay NaN with status Missing. The latitude and
-//     longitude displacement of each level (0 05 015, 0 06 015 in 3 09 057)
-//     are decoded but not kept: the sounding model has no per-level
-//     position. Quality information (percent confidence) and substituted
-//     values after 2 22–2 37 are decoded but not mapped.
+//   - Missing values stay NaN with status Missing. Quality information
+//     (percent confidence) and substituted values after 2 22–2 37 are
+//     decoded but not mapped.
 //
 // A subset without a station identifier, without any time or without a
 // level is rejected with a *ingest.ParseError at the message's offset.

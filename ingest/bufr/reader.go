@@ -148,6 +148,8 @@ var (
 	dDewOld    = FXY(0, 12, 3)
 	dWindDir   = FXY(0, 11, 1)
 	dWindSpd   = FXY(0, 11, 2)
+	dLatDisp   = FXY(0, 5, 15)
+	dLonDisp   = FXY(0, 6, 15)
 	dShearBelo = FXY(0, 11, 61)
 	dShearAbov = FXY(0, 11, 62)
 )
@@ -334,6 +336,14 @@ func toSounding(m *Message, sub *Subset) (*sounding.Sounding, error) {
 			set(l, sounding.VarWindSpeed, &l.WindSpeedMS, x)
 		case dTimeDisp:
 			set(l, sounding.VarElapsedTime, &l.ElapsedS, x)
+		case dLatDisp:
+			if x >= -90 && x <= 90 {
+				l.LatDisplacementDeg = x
+			}
+		case dLonDisp:
+			if x >= -360 && x <= 360 {
+				l.LonDisplacementDeg = x
+			}
 		case dSigExt:
 			cur.sig, cur.sigBits = x, 18
 		case dSigOld:

@@ -193,6 +193,7 @@ func ecFilter() string {
 		{"P", "pressure", ""}, {"Z", "nonCoordinateGeopotentialHeight", ""}, {"G", "nonCoordinateGeopotential", ""},
 		{"T", "airTemperature", ""}, {"TD", "dewpointTemperature", ""},
 		{"WD", "windDirection", ""}, {"WS", "windSpeed", ""}, {"E", "timePeriod", ""},
+		{"DLAT", "latitudeDisplacement", "%.6f"}, {"DLON", "longitudeDisplacement", "%.6f"},
 		{"SIG", "extendedVerticalSoundingSignificance", ""}, {"SIG7", "verticalSoundingSignificance", ""},
 	} {
 		fmt.Fprintf(&b, "if (defined(%s)) { print \"@%s=[%s%s]\"; }\n", k.key, k.tag, k.key, k.f)
@@ -268,13 +269,22 @@ func (m refMessage) at(tag string, i int) float64 {
 // and with Debian's general-purpose ecCodes tools (bufr_filter; source of
 // every expected value here) and compares each sounding's station,
 // position, elevation and time, and each level's pressure, height,
-// temperature, dewpoint, wind, time since launch and kind, at the data's
+// temperature, dewpoint, wind, time since launch, latitude and longitude
+// displacement and kind, at the data's
 // resolution (half a unit of the Table B scale; floating-point printing
 // aside the two must agree exactly).
 func TestAgainstReferenceDecoder(t *testing.T) {
 	dir := realdata.Dir(t, "bufr")
+	displaced := map[string]int{}
 	for _, name := range sampleFiles {
-		compareWithReference(t, filepath.Join(dir, name))
+		displaced[name] = compareWithReference(t, filepath.Join(dir, name))
+	}
+	// The 2,743-level flight (3 09 052) gives a position for every level
+	// (bufr_dump -p of the file lists latitudeDisplacement and
+	// longitudeDisplacement for each): the comparison above must have
+	// seen them, not only missing values on both sides.
+	if n := displaced["IUSK73_AMMC_040000.bufr"]; n < 2*2700 {
+		t.Errorf("IUSK73_AMMC_040000.bufr: %d latitude/longitude displacements compared, want one pair per level", n)
 	}
 }
 
@@ -323,8 +333,9 @@ func TestCompressedAgainstReferenceDecoder(t *testing.T) {
 }
 
 // compareWithReference compares the soundings this package reads from
-// path with the reference decoder's values of the same file.
-func compareWithReference(t *testing.T, path string) {
+// path with the reference decoder's values of the same file and returns
+// how many latitude and longitude displacements both decoders reported.
+func compareWithReference(t *testing.T, path string) (displaced int) {
 	t.Helper()
 	name := filepath.Base(path)
 	{
@@ -443,23 +454,29 @@ func compareWithReference(t *testing.T, path string) {
 					got, want float64
 					tol       float64
 				}{
-					{"pressure", l.PressurePa, r.at("P", i), 0.5},              // 0 07 004: 10 Pa, 1 Pa after 2 07 001
-					{"height", l.HeightM, z, 0.5},                              // 0 10 009: 1 gpm; 0 10 003: 10 m²/s²
-					{"temperature", l.TemperatureK, r.at("T", i), 0.005},       // 0 12 101: 0.01 K
-					{"dewpoint", l.DewpointK, r.at("TD", i), 0.005},            // 0 12 103: 0.01 K
-					{"wind direction", l.WindDirectionDeg, r.at("WD", i), 0.5}, // 0 11 001: 1°
-					{"wind speed", l.WindSpeedMS, r.at("WS", i), 0.05},         // 0 11 002: 0.1 m/s
-					{"time since launch", l.ElapsedS, r.at("E", i), 0.5},       // 0 04 086: 1 s
+					{"pressure", l.PressurePa, r.at("P", i), 0.5},                           // 0 07 004: 10 Pa, 1 Pa after 2 07 001
+					{"height", l.HeightM, z, 0.5},                                           // 0 10 009: 1 gpm; 0 10 003: 10 m²/s²
+					{"temperature", l.TemperatureK, r.at("T", i), 0.005},                    // 0 12 101: 0.01 K
+					{"dewpoint", l.DewpointK, r.at("TD", i), 0.005},                         // 0 12 103: 0.01 K
+					{"wind direction", l.WindDirectionDeg, r.at("WD", i), 0.5},              // 0 11 001: 1°
+					{"wind speed", l.WindSpeedMS, r.at("WS", i), 0.05},                      // 0 11 002: 0.1 m/s
+					{"time since launch", l.ElapsedS, r.at("E", i), 0.5},                    // 0 04 086: 1 s
+					{"latitude displacement", l.LatDisplacementDeg, r.at("DLAT", i), 5e-6},  // 0 05 015: 0.00001°
+					{"longitude displacement", l.LonDisplacementDeg, r.at("DLON", i), 5e-6}, // 0 06 015: 0.00001°
 				} {
 					values++
 					if !near(c.got, c.want, c.tol) {
 						fail("message %d level %d: %s %v, reference %v", k+1, j+1, c.what, c.got, c.want)
 					}
+					if strings.HasSuffix(c.what, "displacement") && !math.IsNaN(c.want) && !math.IsNaN(c.got) {
+						displaced++
+					}
 				}
 			}
 		}
-		t.Logf("%s: %d soundings, %d levels, %d values compared with the reference decoder, %d mismatches (%d standard levels below ground not kept)", name, len(got), levels, values, bad, belowGround)
+		t.Logf("%s: %d soundings, %d levels, %d values compared with the reference decoder (%d of them latitude/longitude displacements reported by both), %d mismatches (%d standard levels below ground not kept)", name, len(got), levels, values, displaced, bad, belowGround)
 	}
+	return displaced
 }
 
 // near compares two values that are both missing or within tol.

@@ -121,7 +121,10 @@ func GeopotentialHeight(z float64) float64 { return r0 * z / (r0 + z) }
 //   - HeightM is the geopotential height of the altitude variable
 //     (GeopotentialHeight). Its status is Reported: it is the reported
 //     value in another unit. ElevationM is the first valid height,
-//     LatitudeDeg/LongitudeDeg the first valid position.
+//     LatitudeDeg/LongitudeDeg the first valid position, and each
+//     record's position is kept as its displacement from that one
+//     (LatDisplacementDeg, LonDisplacementDeg; NaN where the record has
+//     no valid latitude and longitude).
 //   - DewpointK comes from the dewpoint variable; DewpointDepressionK =
 //     T − Td with status Derived.
 //   - A value equal to m.MissingValue, to the variable's missing_value or
@@ -305,6 +308,18 @@ func (d *decoder) sounding() *sounding.Sounding {
 			s.LatitudeDeg, s.LongitudeDeg = la, lo
 		}
 		s.Levels[i] = l
+	}
+	// Each record's position, as a displacement from the sounding's
+	// (the first valid one); longitude differences are taken the short
+	// way round, so a flight across 180° does not jump by 360°.
+	for i := range s.Levels {
+		la, lo := at(lat, i), at(lon, i)
+		if math.IsNaN(la) || math.IsNaN(lo) || math.IsNaN(s.LatitudeDeg) {
+			continue
+		}
+		l := &s.Levels[i]
+		l.LatDisplacementDeg = la - s.LatitudeDeg
+		l.LonDisplacementDeg = math.Remainder(lo-s.LongitudeDeg, 360)
 	}
 	return s
 }
