@@ -381,7 +381,9 @@ func BenchmarkWriteLevels(b *testing.B) {
 			Index: int32(i % 100), Kind: kinds[i%4], PressureHPa: 1000 - float64(i%100)*9, HeightM: float64(i%100) * 100,
 			TemperatureC: 15 - float64(i%100)*0.6, DewpointC: 10 - float64(i%100)*0.7, ThetaK: 288 + float64(i%100)*0.4,
 			TemperatureStatus: "reported", HeightStatus: "derived", HumidityStatus: "reported",
-			PressureQC: "good", HeightQC: "good", TemperatureQC: "good", HumidityQC: "suspect", WindQC: "missing"}
+			PressureQC: "good", HeightQC: "good", TemperatureQC: "good", HumidityQC: "suspect", WindQC: "missing",
+			// Most formats give no per-level position: all-null columns.
+			LatDispDeg: math.NaN(), LonDispDeg: math.NaN()}
 	}
 	path := filepath.Join(b.TempDir(), "levels", "part.parquet")
 	for b.Loop() {
