@@ -99,7 +99,8 @@ func sameSounding(a, b *sounding.Sounding) bool {
 		la, lb := a.Levels[i], b.Levels[i]
 		for _, p := range [][2]*float64{{&la.ElapsedS, &lb.ElapsedS}, {&la.PressurePa, &lb.PressurePa}, {&la.HeightM, &lb.HeightM},
 			{&la.TemperatureK, &lb.TemperatureK}, {&la.DewpointK, &lb.DewpointK}, {&la.DewpointDepressionK, &lb.DewpointDepressionK},
-			{&la.RelHumidityPct, &lb.RelHumidityPct}, {&la.WindDirectionDeg, &lb.WindDirectionDeg}, {&la.WindSpeedMS, &lb.WindSpeedMS}} {
+			{&la.RelHumidityPct, &lb.RelHumidityPct}, {&la.WindDirectionDeg, &lb.WindDirectionDeg}, {&la.WindSpeedMS, &lb.WindSpeedMS},
+			{&la.LatDisplacementDeg, &lb.LatDisplacementDeg}, {&la.LonDisplacementDeg, &lb.LonDisplacementDeg}} {
 			if math.Float64bits(*p[0]) != math.Float64bits(*p[1]) {
 				return false
 			}
