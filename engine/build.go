@@ -535,7 +535,7 @@ func (r *run) buildPartition(key string, st *staged, prev *store.Partition) (_ *
 	}
 	if prev != nil && prev.ContentHash == hash && !r.damaged[key] && len(prev.Damage(r.dir, key, r.opt.Verify)) == 0 {
 		stats.unchanged = true
-		stats.duplicates = len(all) - prev.Soundings
+		stats.duplicates = len(all) - countDescents(all) - prev.Soundings
 		return prev, stats, nil, nil
 	}
 
@@ -557,6 +557,10 @@ func (r *run) buildPartition(key string, st *staged, prev *store.Partition) (_ *
 		schema.TableMixingHeights: schema.Slice(rows.MixingHeights),
 		schema.TableAfternoon:     schema.Slice(arows),
 		schema.TableQCFindings:    schema.Slice(rows.QCFindings),
+
+		schema.TableDescents:          schema.Slice(rows.Descents.Descents),
+		schema.TableDescentLevels:     schema.Slice([]schema.LevelRow(rows.Descents.Levels)),
+		schema.TableDescentQCFindings: schema.Slice(rows.Descents.QCFindings),
 	}
 	if err := r.compareWithPrevious(prev, srows, stats); err != nil {
 		return nil, stats, nil, err
@@ -570,6 +574,7 @@ func (r *run) buildPartition(key string, st *staged, prev *store.Partition) (_ *
 // appended to levels.
 func (r *run) analysePart(all []*sounding.Sounding, observed map[*sounding.Sounding]string, levels schema.LevelAppender,
 	stats *buildStats) (srows []schema.SoundingRow, rows schema.PartRows, arows []schema.AfternoonRow) {
+	all, descents := splitDescents(all)
 	t0 := time.Now()
 	reports := make(map[*sounding.Sounding]qc.Report, len(all))
 	for _, s := range all {
@@ -597,8 +602,55 @@ func (r *run) analysePart(all []*sounding.Sounding, observed map[*sounding.Sound
 		}
 	}
 	arows = afternoonRows(results, r.opt.DailyMaxima, r.pairing)
+	rows.Descents = r.analyseDescents(descents, observed)
 	r.stage("analysis", t0)
 	return srows, rows, arows
+}
+
+// splitDescents returns the ascents and the descents of all, each in the
+// order of all.
+func splitDescents(all []*sounding.Sounding) (ascents, descents []*sounding.Sounding) {
+	for _, s := range all {
+		if s.Descent {
+			descents = append(descents, s)
+		} else {
+			ascents = append(ascents, s)
+		}
+	}
+	return ascents, descents
+}
+
+func countDescents(all []*sounding.Sounding) int {
+	_, d := splitDescents(all)
+	return len(d)
+}
+
+// analyseDescents checks and deduplicates the descents of one
+// station-year as analysePart does the ascents, and derives their
+// per-level values (heights, potential temperature, mixing ratio) with
+// the analysis, whose boundary-layer diagnostics are not kept for a
+// descent (schema.DescentRow says why).
+func (r *run) analyseDescents(descents []*sounding.Sounding, observed map[*sounding.Sounding]string) schema.DescentRows {
+	var out schema.DescentRows
+	if len(descents) == 0 {
+		return out
+	}
+	reports := make(map[*sounding.Sounding]qc.Report, len(descents))
+	for _, s := range descents {
+		reports[s] = qc.Check(s, r.qcCfg)
+	}
+	kept, _ := deduplicate(descents, reports)
+	for _, d := range kept {
+		rep := reports[d.s]
+		res := analyze.Analyze(nil, r.cfg)
+		if rep.Usable() {
+			res = analyze.Analyze(qc.Apply(d.s, rep, r.opt.UseSuspect), r.cfg)
+		}
+		schema.AppendDescent(&out, d.s, rep, &res)
+		row := &out.Descents[len(out.Descents)-1]
+		row.SoundingHash, row.Duplicates = observed[d.s], int32(d.merged)
+	}
+	return out
 }
 
 // writePartition writes the files of partition p, one per registered

@@ -76,6 +76,9 @@ func Analyse(ctx context.Context, paths []string, opt Options) (*schema.RowSet, 
 		out.MixingHeights = append(out.MixingHeights, rows.MixingHeights...)
 		out.Afternoon = append(out.Afternoon, arows...)
 		out.QCFindings = append(out.QCFindings, rows.QCFindings...)
+		out.Descents = append(out.Descents, rows.Descents.Descents...)
+		out.DescentLevels = append(out.DescentLevels, rows.Descents.Levels...)
+		out.DescentQCFindings = append(out.DescentQCFindings, rows.Descents.QCFindings...)
 		r.sum.Soundings += len(srows)
 		r.sum.DuplicatesMerged += stats.duplicates
 	}

@@ -66,6 +66,7 @@ type PartRows struct {
 	MixedLayers   []MixedLayerRow
 	MixingHeights []MixingHeightRow
 	QCFindings    []QCFindingRow
+	Descents      DescentRows
 }
 
 // LevelAppender receives level rows: a *Rows[LevelRow] collects them for
@@ -181,6 +182,40 @@ func AppendSounding(out *PartRows, s *sounding.Sounding, rep qc.Report, res *ana
 
 	bad, suspect, corrected := rep.Counts()
 	row.QCBad, row.QCSuspect, row.QCCorrected = int32(bad), int32(suspect), int32(corrected)
+	appendLevelRows(out.Levels, s, rep, res, row.LaunchTime, row.Year)
+	out.QCFindings = appendFindingRows(out.QCFindings, s, rep, row.LaunchTime, row.Year)
+	for i, v := range res.Inversions {
+		out.Inversions = append(out.Inversions, InversionRow{
+			StationID: s.StationID, LaunchTime: row.LaunchTime, Year: row.Year, Index: int32(i),
+			SurfaceBased: v.SurfaceBased, BaseAGLM: v.BaseAGLM, TopAGLM: v.TopAGLM,
+			BasePressHPa: hPa(v.BasePressurePa), TopPressHPa: hPa(v.TopPressurePa),
+			DepthM: v.DepthM(), StrengthK: v.StrengthK, GradientKPerKm: v.GradientKPerKm(),
+			ThetaDeltaK: v.ThetaDeltaK, DPDDeltaK: v.DewpointDepressionDeltaK, RHDeltaPct: v.RelHumidityDeltaPct,
+			WDeltaGKg: v.MixingRatioDeltaKgKg * gPerKg, TurningDeg: v.WindTurningDeg, Levels: int32(v.Levels),
+			TopAtCeiling: v.TopAtCeiling, Class: v.Class,
+		})
+	}
+	for i, m := range res.MixedLayers {
+		out.MixedLayers = append(out.MixedLayers, MixedLayerRow{
+			StationID: s.StationID, LaunchTime: row.LaunchTime, Year: row.Year, Index: int32(i),
+			BaseAGLM: m.BaseAGLM, TopAGLM: m.TopAGLM, BasePress: hPa(m.BasePressurePa), TopPress: hPa(m.TopPressurePa),
+			ThetaK: m.ThetaK, MixingRatio: m.MixingRatioKgKg * gPerKg, ThetaRange: m.ThetaRangeK,
+			ThetaVRange: m.ThetaVRangeK, WRange: m.MixingRatioRangeKgKg * gPerKg, Levels: int32(m.Levels),
+			SuperadTop: m.SuperadiabaticTopAGLM,
+		})
+	}
+	for _, h := range res.MixingHeights {
+		out.MixingHeights = append(out.MixingHeights, MixingHeightRow{
+			StationID: s.StationID, LaunchTime: row.LaunchTime, Year: row.Year, Method: h.Method,
+			HeightAGLM: h.HeightAGLM, Status: h.Status, Note: h.Note, LevelSpacingM: h.LevelSpacingM, Unresolved: h.Unresolved,
+		})
+	}
+	return row
+}
+
+// appendLevelRows appends the level rows of sounding s (with its QC report
+// and analysis) to levels.
+func appendLevelRows(levels LevelAppender, s *sounding.Sounding, rep qc.Report, res *analyze.Result, launch time.Time, year int32) {
 	flag := func(i int, v sounding.Var) string {
 		if i < len(rep.Flags) {
 			return rep.Flags[i][v].String()
@@ -188,10 +223,10 @@ func AppendSounding(out *PartRows, s *sounding.Sounding, rep qc.Report, res *ana
 		return ""
 	}
 	for i, l := range s.Levels {
-		out.Levels.Append(LevelRow{
+		levels.Append(LevelRow{
 			StationID:         s.StationID,
-			LaunchTime:        row.LaunchTime,
-			Year:              row.Year,
+			LaunchTime:        launch,
+			Year:              year,
 			Index:             int32(i),
 			Kind:              l.Kind.String(),
 			SourceLine:        int64(l.Line),
@@ -219,43 +254,50 @@ func AppendSounding(out *PartRows, s *sounding.Sounding, rep qc.Report, res *ana
 			WindQC:            flag(i, sounding.VarWindSpeed),
 		})
 	}
+}
+
+// appendFindingRows appends the QC findings of sounding s to findings.
+func appendFindingRows(findings []QCFindingRow, s *sounding.Sounding, rep qc.Report, launch time.Time, year int32) []QCFindingRow {
 	for _, f := range rep.Findings {
 		p := math.NaN()
 		if f.Level >= 0 && f.Level < len(s.Levels) {
 			p = hPa(s.Levels[f.Level].PressurePa)
 		}
-		out.QCFindings = append(out.QCFindings, QCFindingRow{
-			StationID: s.StationID, LaunchTime: row.LaunchTime, Year: row.Year, Index: int32(f.Level),
+		findings = append(findings, QCFindingRow{
+			StationID: s.StationID, LaunchTime: launch, Year: year, Index: int32(f.Level),
 			PressureHPa: p, Variable: f.VariableName(), Check: f.Check, Severity: f.Severity.String(),
 			Value: qc.DisplayValue(f.Var, f.Value), Corrected: qc.DisplayValue(f.Var, f.NewValue), Message: f.Message,
 		})
 	}
-	for i, v := range res.Inversions {
-		out.Inversions = append(out.Inversions, InversionRow{
-			StationID: s.StationID, LaunchTime: row.LaunchTime, Year: row.Year, Index: int32(i),
-			SurfaceBased: v.SurfaceBased, BaseAGLM: v.BaseAGLM, TopAGLM: v.TopAGLM,
-			BasePressHPa: hPa(v.BasePressurePa), TopPressHPa: hPa(v.TopPressurePa),
-			DepthM: v.DepthM(), StrengthK: v.StrengthK, GradientKPerKm: v.GradientKPerKm(),
-			ThetaDeltaK: v.ThetaDeltaK, DPDDeltaK: v.DewpointDepressionDeltaK, RHDeltaPct: v.RelHumidityDeltaPct,
-			WDeltaGKg: v.MixingRatioDeltaKgKg * gPerKg, TurningDeg: v.WindTurningDeg, Levels: int32(v.Levels),
-			TopAtCeiling: v.TopAtCeiling, Class: v.Class,
-		})
+	return findings
+}
+
+// DescentRows collects the rows of the descent tables of a partition.
+type DescentRows struct {
+	Descents   []DescentRow
+	Levels     RowSlice[LevelRow]
+	QCFindings []QCFindingRow
+}
+
+// AppendDescent appends the rows of descent s (with its QC report rep and
+// the per-level derivations of its analysis res: heights, potential
+// temperature, mixing ratio) to out and returns its descents-table row
+// (without SoundingHash and Duplicates, which the caller knows). Only the
+// per-level values of res are used; its boundary-layer diagnostics do not
+// apply to a descent (see DescentRow).
+func AppendDescent(out *DescentRows, s *sounding.Sounding, rep qc.Report, res *analyze.Result) DescentRow {
+	padPerLevel(res, len(s.Levels))
+	bad, suspect, corrected := rep.Counts()
+	row := DescentRow{
+		StationID: s.StationID, LaunchTime: s.LaunchTime.UTC(), Year: int32(s.NominalTime.Year()),
+		StartLatDeg: s.LatitudeDeg, StartLonDeg: s.LongitudeDeg,
+		SourceFile: s.Source.File, SourceMember: s.Source.Member, SourceFormat: s.Source.Format,
+		LevelCount: int32(len(s.Levels)), QCStatus: rep.Status,
+		QCBad: int32(bad), QCSuspect: int32(suspect), QCCorrected: int32(corrected), ConstantSet: res.ConstantSet,
 	}
-	for i, m := range res.MixedLayers {
-		out.MixedLayers = append(out.MixedLayers, MixedLayerRow{
-			StationID: s.StationID, LaunchTime: row.LaunchTime, Year: row.Year, Index: int32(i),
-			BaseAGLM: m.BaseAGLM, TopAGLM: m.TopAGLM, BasePress: hPa(m.BasePressurePa), TopPress: hPa(m.TopPressurePa),
-			ThetaK: m.ThetaK, MixingRatio: m.MixingRatioKgKg * gPerKg, ThetaRange: m.ThetaRangeK,
-			ThetaVRange: m.ThetaVRangeK, WRange: m.MixingRatioRangeKgKg * gPerKg, Levels: int32(m.Levels),
-			SuperadTop: m.SuperadiabaticTopAGLM,
-		})
-	}
-	for _, h := range res.MixingHeights {
-		out.MixingHeights = append(out.MixingHeights, MixingHeightRow{
-			StationID: s.StationID, LaunchTime: row.LaunchTime, Year: row.Year, Method: h.Method,
-			HeightAGLM: h.HeightAGLM, Status: h.Status, Note: h.Note, LevelSpacingM: h.LevelSpacingM, Unresolved: h.Unresolved,
-		})
-	}
+	appendLevelRows(&out.Levels, s, rep, res, row.LaunchTime, row.Year)
+	out.QCFindings = appendFindingRows(out.QCFindings, s, rep, row.LaunchTime, row.Year)
+	out.Descents = append(out.Descents, row)
 	return row
 }
 
@@ -302,4 +344,8 @@ type RowSet struct {
 	MixingHeights []MixingHeightRow
 	Afternoon     []AfternoonRow
 	QCFindings    []QCFindingRow
+
+	Descents          []DescentRow
+	DescentLevels     []LevelRow
+	DescentQCFindings []QCFindingRow
 }

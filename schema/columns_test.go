@@ -152,6 +152,7 @@ func TestStoreRowTypes(t *testing.T) {
 	}
 	types := []reflect.Type{reflect.TypeFor[SoundingRow](), reflect.TypeFor[LevelRow](), reflect.TypeFor[InversionRow](),
 		reflect.TypeFor[MixedLayerRow](), reflect.TypeFor[MixingHeightRow](), reflect.TypeFor[AfternoonRow](), reflect.TypeFor[QCFindingRow](),
+		reflect.TypeFor[DescentRow](), reflect.TypeFor[LevelRow](), reflect.TypeFor[QCFindingRow](),
 		reflect.TypeFor[DayRow](), reflect.TypeFor[EpisodeRow](), reflect.TypeFor[EpisodeDayRow](), reflect.TypeFor[RuleMonthRow]()}
 	if len(tables) != len(types) {
 		t.Fatalf("%d tables documented, want %d", len(tables), len(types))

@@ -107,6 +107,34 @@ type SoundingRow struct {
 	DeepStable      *bool   `col:"deep_stable_layer" doc:"true when stable_layer_fraction is at least 0.65 (a deep stable layer, Wolyn and McKee 1989); null when not computable"`
 }
 
+// DescentRow is one row of the `descents` table: the profile a radiosonde
+// measured while falling after its balloon burst (BUFR 3 09 056). It has
+// its ascent's station and launch time, so it is kept beside the ascents
+// rather than among them; its levels are in `descent_levels` (the levels
+// table's columns) and its quality-control findings in
+// `descent_qc_findings`. Boundary-layer diagnostics are not derived: the
+// descent ends far from the station, hours after the launch, falling at
+// several metres per second, so its lowest kilometres describe neither
+// the launch site nor the launch time.
+type DescentRow struct {
+	StationID    string    `col:"station_id" doc:"station identifier of the launch site"`
+	LaunchTime   time.Time `col:"launch_time" doc:"UTC; launch time of the flight, the same as its ascent's (join soundings on station_id and launch_time)"`
+	Year         int32     `col:"year" doc:"calendar year of the flight's nominal time"`
+	StartLatDeg  float64   `col:"start_latitude_deg" doc:"degrees north; where the descent began (coordinate significance 2, start of observation, in 3 09 056)"`
+	StartLonDeg  float64   `col:"start_longitude_deg" doc:"degrees east; where the descent began"`
+	SoundingHash string    `col:"sounding_hash" doc:"16 hex digits identifying the observed content of the descent (not its source position)"`
+	Duplicates   int32     `col:"duplicates_merged" doc:"count; other copies of the same descent that were read and dropped in favour of this one"`
+	SourceFile   string    `col:"source_file" doc:"input file the descent was read from"`
+	SourceMember string    `col:"source_member" doc:"member inside a zip archive, empty otherwise"`
+	SourceFormat string    `col:"source_format" doc:"reader that decoded the descent"`
+	LevelCount   int32     `col:"level_count" doc:"count; levels read"`
+	QCStatus     string    `col:"qc_status" doc:"quality-control status as for soundings (a descent has no surface level, which the checks note as suspect)"`
+	QCBad        int32     `col:"qc_findings_bad" doc:"count; findings of severity bad"`
+	QCSuspect    int32     `col:"qc_findings_suspect" doc:"count; findings of severity suspect"`
+	QCCorrected  int32     `col:"qc_findings_corrected" doc:"count; values corrected by quality control"`
+	ConstantSet  string    `col:"constant_set" doc:"name of the thermodynamic constant set used for derived values"`
+}
+
 // InversionRow is one row of the `inversions` table: one inversion layer of
 // one sounding, lowest first.
 type InversionRow struct {

@@ -14,6 +14,10 @@ const (
 	TableMixingHeights = "mixing_heights"   // rows of MixingHeightRow
 	TableAfternoon     = "afternoon_mixing" // rows of AfternoonRow
 	TableQCFindings    = "qc_findings"      // rows of QCFindingRow
+
+	TableDescents          = "descents"            // rows of DescentRow
+	TableDescentLevels     = "descent_levels"      // rows of LevelRow
+	TableDescentQCFindings = "descent_qc_findings" // rows of QCFindingRow
 )
 
 // Table is one entry of the store's table registry.
@@ -47,6 +51,12 @@ var tables = []Table{
 	{TableAfternoon, "One row per station and local day with a morning ascent: the afternoon mixing height from the morning profile and the day's maximum temperature (Holzworth).",
 		reflect.TypeFor[AfternoonRow](), false},
 	{TableQCFindings, "One row per quality-control finding: the check, the level and variable, the severity, the value and what was wrong. Soundings without findings have no rows.",
+		reflect.TypeFor[QCFindingRow](), false},
+	{TableDescents, "One row per radiosonde descent (BUFR 3 09 056), the profile measured while falling after the burst: identity (the ascent's station and launch time), source and quality control. Not analysed for the boundary layer.",
+		reflect.TypeFor[DescentRow](), false},
+	{TableDescentLevels, "One row per level of a descent, lowest first, with the columns of the levels table: observed values, heights filled hypsometrically, potential temperature and mixing ratio, QC flags.",
+		reflect.TypeFor[LevelRow](), false},
+	{TableDescentQCFindings, "One row per quality-control finding of a descent, with the columns of qc_findings (level_index as in descent_levels).",
 		reflect.TypeFor[QCFindingRow](), false},
 }
 

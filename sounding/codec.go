@@ -28,7 +28,9 @@ func AppendBinary(b []byte, s *Sounding, source bool) []byte {
 	b = appendFloat(b, s.ElevationM)
 	b = binary.AppendVarint(b, s.NominalTime.UnixNano())
 	b = binary.AppendVarint(b, s.LaunchTime.UnixNano())
-	b = append(b, flags(s.NominalHourInferred, s.LaunchTimeReported, false))
+	// The descent flag took the third bit, unused before, so an ascent is
+	// encoded (and hashed) as before descents existed.
+	b = append(b, flags(s.NominalHourInferred, s.LaunchTimeReported, s.Descent))
 	b = binary.AppendVarint(b, int64(s.DeclaredLevels))
 	b = appendString(b, s.PressureSource)
 	b = appendString(b, s.HeightSource)
@@ -190,7 +192,7 @@ func DecodeBinary(b []byte) (*Sounding, []byte, error) {
 	s.NominalTime = time.Unix(0, d.varint()).UTC()
 	s.LaunchTime = time.Unix(0, d.varint()).UTC()
 	f := d.byte()
-	s.NominalHourInferred, s.LaunchTimeReported = f&1 != 0, f&2 != 0
+	s.NominalHourInferred, s.LaunchTimeReported, s.Descent = f&1 != 0, f&2 != 0, f&4 != 0
 	s.DeclaredLevels = int(d.varint())
 	s.PressureSource = d.string()
 	s.HeightSource = d.string()

@@ -204,6 +204,16 @@ type Sounding struct {
 	// codes for pressure and non-pressure levels, when given.
 	PressureSource, HeightSource string
 
+	// Descent is true for the profile a radiosonde measures while it falls
+	// after the balloon burst (BUFR 3 09 056), false for an ascent. A
+	// descent has its ascent's station and launch time, so it is part of
+	// the identity (Key). Its levels are in the same order as an ascent's,
+	// the lowest first (the reader reverses the order of reception; ElapsedS
+	// keeps the time since launch); LatitudeDeg and LongitudeDeg are where
+	// the descent began, and the level displacements are from the launch
+	// site as for the ascent.
+	Descent bool
+
 	Source Source
 	Levels []Level
 }
@@ -211,11 +221,13 @@ type Sounding struct {
 // NominalHour returns the nominal hour UTC (0–23).
 func (s *Sounding) NominalHour() int { return s.NominalTime.Hour() }
 
-// Key is a sounding's identity: station and launch time.
+// Key is a sounding's identity: station, launch time and whether it is
+// the flight's descent.
 type Key struct {
 	StationID  string
 	LaunchTime time.Time
+	Descent    bool
 }
 
 // Key returns the sounding's identity.
-func (s *Sounding) Key() Key { return Key{s.StationID, s.LaunchTime} }
+func (s *Sounding) Key() Key { return Key{s.StationID, s.LaunchTime, s.Descent} }

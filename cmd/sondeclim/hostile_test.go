@@ -378,7 +378,7 @@ func TestDeletedManifest(t *testing.T) {
 	}
 }
 
-// TestDamageDetected: a truncated soundings file, a levels file with one
+// TestDamageDetected (4 station-years of 10 tables: 40 files): a truncated soundings file, a levels file with one
 // flipped byte and a deleted file are each named by verify (exit 3, with
 // the problem); ingest rebuilds the missing and truncated ones on its own
 // and, with --verify, the altered one, after which the store verifies clean
@@ -398,7 +398,7 @@ func TestDamageDetected(t *testing.T) {
 	mustIngest(t, "--store", st, in)
 	mustIngest(t, "--store", clean, in)
 	code, out, _ := runCmd(t, "verify", "--store", st)
-	if code != exitOK || !strings.HasPrefix(out, "28 files checked, 0 damaged") {
+	if code != exitOK || !strings.HasPrefix(out, "40 files checked, 0 damaged") {
 		t.Fatalf("fresh store: exit %d\n%s", code, out)
 	}
 	ms, _ := store.ReadAll(st)
@@ -433,7 +433,7 @@ func TestDamageDetected(t *testing.T) {
 			t.Errorf("verify does not name %s as %s:\n%s", rel, problem, out)
 		}
 	}
-	if !strings.Contains(out, "28 files checked, 3 damaged") {
+	if !strings.Contains(out, "40 files checked, 3 damaged") {
 		t.Errorf("verify summary:\n%s", out)
 	}
 	// Presence and size are checked by every ingest.

@@ -54,11 +54,14 @@
 //
 // Reader turns every subset into one sounding (the radiosonde sequences
 // 3 09 052 TEMP, 3 09 057 high resolution, the older 3 09 007 with its
-// quality information, and other layouts with the same elements). A
-// descent profile (3 09 056) is decoded but gives no sounding: it carries
-// the ascent's station and launch time, the sounding's identity, so it
-// would replace the ascent in the store; Reader.Note (or, without it, an
-// ErrUnsupported ParseError) says so. The mapping:
+// quality information, the descent 3 09 056, and other layouts with the
+// same elements). A message with 3 09 056 gives descents
+// (sounding.Sounding.Descent): same station and launch time as the
+// flight's ascent, levels stored lowest first (the message lists them
+// from the burst down; the reader reverses them when the first pressure
+// is lower than the last), position where the descent began (its
+// 3 01 021 after coordinate significance 2, "start of observation"). The
+// mapping:
 //
 //   - StationID: WMO block and station number (0 01 001, 0 01 002) as
 //     five digits, else the ship or mobile station's call sign (0 01 011).

@@ -16,8 +16,8 @@ import (
 // FuzzReader feeds arbitrary bytes to the reader: it must never panic,
 // every error must be a *ingest.ParseError (the input here cannot fail to
 // read), every sounding must have a station, a time and levels, and the
-// reader must end. Seeds: the real sample files (first 12 KiB of each)
-// and the hand-built messages of synth_test.go.
+// reader must end. Seeds: the real sample files (first 12 KiB of each),
+// the descent of testdata and the hand-built messages of synth_test.go.
 //
 //	go test ./ingest/bufr -run '^$' -fuzz FuzzReader -fuzztime 5m -fuzzminimizetime 200x
 //
@@ -30,6 +30,9 @@ func FuzzReader(f *testing.F) {
 				f.Add(b[:min(len(b), 12<<10)])
 			}
 		}
+	}
+	if b, err := os.ReadFile(filepath.Join("testdata", "descent-94461.bufr")); err == nil {
+		f.Add(b) // the descent (3 09 056), see descent_test.go
 	}
 	var w bitWriter
 	w.put(10, 7)

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"iter"
 	"math"
 	"slices"
 	"time"
@@ -26,17 +27,7 @@ type Reader struct {
 	errs         []error
 	dec          Decoder
 	messages     int // messages found, good or bad
-
-	// Note, when set, receives remarks about messages that were read but
-	// give no sounding on purpose (a descent profile); without it they are
-	// returned as *ingest.ParseError wrapping ingest.ErrUnsupported.
-	Note func(offset int64, reason, detail string)
 }
-
-// ErrDescent marks a descent profile (3 09 056), which is read but not
-// turned into a sounding: it carries the ascent's station and launch
-// time, so as a sounding it would replace the ascent in the store.
-var ErrDescent = errors.New("descent profile (3 09 056) not stored: it has the ascent's station and launch time")
 
 // NewReader returns a reader of r; file (and member, for a zip member)
 // name the input in messages and in sounding.Source.
@@ -88,15 +79,9 @@ func (r *Reader) Next() (*sounding.Sounding, error) {
 		if err != nil {
 			return nil, r.errAt(off, err)
 		}
-		if slices.Contains(m.Descriptors, FXY(3, 9, 56)) {
-			if r.Note != nil {
-				r.Note(off, "bufr_descent_not_stored", ErrDescent.Error())
-				continue
-			}
-			return nil, r.errAt(off, fmt.Errorf("%w: %w", ingest.ErrUnsupported, ErrDescent))
-		}
+		descent := slices.Contains(m.Descriptors, dDescent)
 		for k := range subs {
-			s, err := toSounding(m, &subs[k])
+			s, err := toSounding(m, &subs[k], descent)
 			if err != nil && m.Category != 2 && errors.Is(err, ingest.ErrNoData) {
 				// Table A category 2 is "vertical soundings (other than
 				// satellite)"; other messages are not for this reader.
@@ -118,6 +103,7 @@ func (r *Reader) Next() (*sounding.Sounding, error) {
 
 // Descriptors the mapping reads (Table B, version in tables/VERSION).
 var (
+	dDescent    = FXY(3, 9, 56) // Table D: radiosonde descent
 	dBlock      = FXY(0, 1, 1)
 	dStation    = FXY(0, 1, 2)
 	dCallSign   = FXY(0, 1, 11)
@@ -168,9 +154,9 @@ type level struct {
 	any     bool
 }
 
-// toSounding maps one subset to a sounding; see the package
-// documentation for the rules.
-func toSounding(m *Message, sub *Subset) (*sounding.Sounding, error) {
+// toSounding maps one subset to a sounding, a descent when descent is
+// set; see the package documentation for the rules.
+func toSounding(m *Message, sub *Subset, descent bool) (*sounding.Sounding, error) {
 	s := &sounding.Sounding{
 		LatitudeDeg: math.NaN(), LongitudeDeg: math.NaN(), ElevationM: math.NaN(),
 		DeclaredLevels: -1,
@@ -357,6 +343,13 @@ func toSounding(m *Message, sub *Subset) (*sounding.Sounding, error) {
 	}
 	flush()
 	dropBelowGround(s)
+	if descent {
+		s.Descent = true
+		// Received from the top down: stored lowest first, as an ascent.
+		if first, last := firstPressure(slices.All(s.Levels)), firstPressure(slices.Backward(s.Levels)); first < last {
+			slices.Reverse(s.Levels)
+		}
+	}
 
 	switch {
 	case !math.IsNaN(block) && !math.IsNaN(station) && block >= 0 && block < 100 && station >= 0 && station < 1000:
@@ -387,6 +380,17 @@ func toSounding(m *Message, sub *Subset) (*sounding.Sounding, error) {
 		return nil, fmt.Errorf("%w: station %s %s", ingest.ErrNoData, s.StationID, s.LaunchTime.Format(time.RFC3339))
 	}
 	return s, nil
+}
+
+// firstPressure returns the first pressure of the levels given, NaN when
+// none has one.
+func firstPressure(levels iter.Seq2[int, sounding.Level]) float64 {
+	for _, l := range levels {
+		if !math.IsNaN(l.PressurePa) {
+			return l.PressurePa
+		}
+	}
+	return math.NaN()
 }
 
 func mkTime(y, mo, d, h, mi, sec float64) (time.Time, bool) {

@@ -9,6 +9,7 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"slices"
 	"strconv"
 	"strings"
 	"testing"
@@ -416,6 +417,11 @@ func compareWithReference(t *testing.T, path string) (displaced int) {
 				if !math.IsNaN(r.at("P", i)) || !math.IsNaN(r.at("Z", i)) || !math.IsNaN(r.at("G", i)) {
 					idx = append(idx, i)
 				}
+			}
+			if s.Descent {
+				// A descent is received from the top down and stored
+				// lowest first (package doc).
+				slices.Reverse(idx)
 			}
 			if len(idx) != len(s.Levels) {
 				fail("message %d (%s): %d levels, reference %d", k+1, s.StationID, len(s.Levels), len(idx))

@@ -373,19 +373,3 @@ func TestNothingSilent(t *testing.T) {
 		t.Errorf("surface message: %v, want ErrNotRadiosonde", err)
 	}
 }
-
-// TestDescentNotStored: a 3 09 056 message (all data zero: no levels) is
-// decoded, then reported through Note, or as ErrUnsupported without one.
-func TestDescentNotStored(t *testing.T) {
-	msg := edition4([]uint16{FXY(3, 9, 56)}, 1, false, make([]byte, 512))
-	r := NewReader(bytes.NewReader(msg), "d.bufr", "")
-	if _, err := r.Next(); !errors.Is(err, ErrDescent) || !errors.Is(err, ingest.ErrUnsupported) {
-		t.Errorf("without Note: %v, want ErrDescent", err)
-	}
-	r = NewReader(bytes.NewReader(msg), "d.bufr", "")
-	var notes []string
-	r.Note = func(off int64, reason, _ string) { notes = append(notes, reason+"@"+strconv.FormatInt(off, 10)) }
-	if _, err := r.Next(); err != io.EOF || len(notes) != 1 || notes[0] != "bufr_descent_not_stored@0" {
-		t.Errorf("with Note: %v, notes %v", err, notes)
-	}
-}

@@ -85,11 +85,7 @@ var registry = []Format{
 	// BUFR before TEMP: a GTS bulletin of BUFR messages has heading
 	// lines too, and its content is binary.
 	{bufr.Format, bufr.Sniff, func(r io.Reader, f, m string, opt Options) Reader {
-		rd := bufr.NewReader(r, f, m)
-		rd.Note = func(off int64, reason, detail string) {
-			opt.note(Note{Where: fmt.Sprintf("%s@%d", ingest.Where(f, m), off), Reason: reason, Detail: detail})
-		}
-		return rd
+		return bufr.NewReader(r, f, m)
 	}},
 	{temp.Format, temp.Sniff, func(r io.Reader, f, m string, opt Options) Reader {
 		return temp.NewReader(r, ingest.Where(f, m), temp.Options{Station: WMOLookup(opt.Stations)})
