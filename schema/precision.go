@@ -44,7 +44,7 @@ var unitDecimals = []struct {
 // other angles to 0.1°.
 func OutputDecimals(column string) (int, bool) {
 	switch {
-	case column == "latitude_deg" || column == "longitude_deg":
+	case strings.HasSuffix(column, "latitude_deg") || strings.HasSuffix(column, "longitude_deg"): // also start_latitude_deg
 		return 4, true
 	case strings.HasSuffix(column, "_displacement_deg"):
 		return 5, true
@@ -78,7 +78,7 @@ func PrecisionText() string {
 		parts = append(parts, "`…"+u.suffix+"` ("+u.what+") to "+d)
 	}
 	return "Text, CSV and JSON output round each value to the precision of the data, chosen by the end of the column name: " +
-		strings.Join(parts, ", ") + "; `latitude_deg` and `longitude_deg` to 0.0001, `…_displacement_deg` to 0.00001, other `…_deg` to 0.1, `p_below_…` to 0.01; " +
+		strings.Join(parts, ", ") + "; `…latitude_deg` and `…longitude_deg` to 0.0001, `…_displacement_deg` to 0.00001, other `…_deg` to 0.1, `p_below_…` to 0.01; " +
 		"in the trends table `slope_pct_per_decade` to 0.1, `mk_z` to 0.01, `mk_p` to 0.001, and `median` and `slope_per_decade` " +
 		"at the precision of the metric's unit (the slope with one decimal more); " +
 		"other numbers to six significant digits. The Parquet files keep full precision; `sondeclim query --exact` writes numbers in full."

@@ -54,7 +54,7 @@ var tables = []Table{
 		reflect.TypeFor[QCFindingRow](), false},
 	{TableDescents, "One row per radiosonde descent (BUFR 3 09 056), the profile measured while falling after the burst: identity (the ascent's station and launch time), source and quality control. Not analysed for the boundary layer.",
 		reflect.TypeFor[DescentRow](), false},
-	{TableDescentLevels, "One row per level of a descent, lowest first, with the columns of the levels table: observed values, heights filled hypsometrically, potential temperature and mixing ratio, QC flags.",
+	{TableDescentLevels, "One row per level of a descent, lowest first, with the columns of the levels table: observed values, heights filled hypsometrically, potential temperature and mixing ratio, QC flags. height_agl_m is above the lowest level: the height of the landing point is not known.",
 		reflect.TypeFor[LevelRow](), false},
 	{TableDescentQCFindings, "One row per quality-control finding of a descent, with the columns of qc_findings (level_index as in descent_levels).",
 		reflect.TypeFor[QCFindingRow](), false},
