@@ -2,6 +2,7 @@ package main
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"os"
 	"runtime"
@@ -90,6 +91,9 @@ words. The file names are printed, one per line.`, figures.DefaultMinCount, quer
 	var stations []figures.Station
 	if *station != "" {
 		st, err := figures.FindStation(ctx, db, *station)
+		if errors.Is(err, figures.ErrNoStation) {
+			return noMatch(ctx, db, "figures", []string{*station}, "")
+		}
 		if err != nil {
 			return fmt.Errorf("figures: %w", err)
 		}

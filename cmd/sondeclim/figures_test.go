@@ -183,7 +183,7 @@ func TestFiguresDemo(t *testing.T) {
 	}{
 		{[]string{"figures", "--store", store}, exitUsage, "--out are required"},
 		{[]string{"figures", "--store", store, "--out", out, "--format", "gif"}, exitUsage, "unknown --format"},
-		{[]string{"figures", "--store", store, "--out", out, "--station", "NOPE"}, exitFailure, "ZZXSYN00001"},
+		{[]string{"figures", "--store", store, "--out", out, "--station", "NOPE"}, exitNoMatch, "ZZXSYN00001"},
 		{[]string{"figures", "--store", store, "--out", out, "--method", "guesswork"}, exitFailure, "bulk_richardson"},
 	} {
 		code, _, errs := runCmd(t, c.args...)

@@ -2,7 +2,9 @@ package main
 
 import (
 	"context"
+	"errors"
 	"fmt"
+	"github.com/sondeclim/sondeclim/queries/figures"
 	"time"
 
 	"github.com/sondeclim/sondeclim/engine"
@@ -70,6 +72,9 @@ default).`, report.DefaultMinSoundings),
 	r, err := report.Build(ctx, db, report.Options{Station: *station, Method: *method, MinSoundings: *minN, Embed: *embed,
 		Generated: time.Now(), Version: buildinfo.Version(), StorePath: *dir,
 		SchemaVersion: store.Version, DerivationVersion: engine.DerivationVersion})
+	if errors.Is(err, figures.ErrNoStation) {
+		return noMatch(ctx, db, "report", []string{*station}, "")
+	}
 	if err != nil {
 		return fmt.Errorf("report: %w", err)
 	}

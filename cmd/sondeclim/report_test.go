@@ -254,7 +254,7 @@ func TestReportStation(t *testing.T) {
 	if !regexp.MustCompile(`<td>USM00072403</td><td>2016</td><td>662</td>`).Match(b) {
 		t.Errorf("coverage row for Sterling 2016 with 662 soundings not found")
 	}
-	if code, _, errs := runCmd(t, "report", "--store", store, "--out", page, "--station", "NOPE"); code != exitFailure || !strings.Contains(errs, "USM00072403") {
+	if code, _, errs := runCmd(t, "report", "--store", store, "--out", page, "--station", "NOPE"); code != exitNoMatch || !strings.Contains(errs, "USM00072403") {
 		t.Errorf("unknown station: exit %d, stderr %q", code, errs)
 	}
 	if code, _, _ := runCmd(t, "report", "--store", store); code != exitUsage {

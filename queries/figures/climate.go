@@ -4,6 +4,7 @@ import (
 	"context"
 	"database/sql"
 	"embed"
+	"errors"
 	"fmt"
 	"math"
 	"sort"
@@ -94,8 +95,11 @@ func LoadStations(ctx context.Context, db *sql.DB) ([]Station, error) {
 	return out, nil
 }
 
+// ErrNoStation marks FindStation's error for an id the store does not hold.
+var ErrNoStation = errors.New("station not in the store")
+
 // FindStation returns the station with the given id, or an error listing
-// the stations the store holds.
+// the stations the store holds (errors.Is ErrNoStation).
 func FindStation(ctx context.Context, db *sql.DB, id string) (Station, error) {
 	all, err := LoadStations(ctx, db)
 	if err != nil {
@@ -108,7 +112,7 @@ func FindStation(ctx context.Context, db *sql.DB, id string) (Station, error) {
 		}
 		ids = append(ids, s.ID)
 	}
-	return Station{}, fmt.Errorf("station %q is not in the store (stations: %s)", id, strings.Join(ids, ", "))
+	return Station{}, fmt.Errorf("station %q: %w (stations: %s)", id, ErrNoStation, strings.Join(ids, ", "))
 }
 
 // Methods returns the mixing-height methods of the store's mixing_heights
