@@ -547,25 +547,12 @@ func (r *run) buildPartition(key string, st *staged, prev *store.Partition) (_ *
 	if err != nil {
 		return nil, stats, nil, err
 	}
-	srows, rows, arows := r.analysePart(all, observed, levels, stats)
-	p.Soundings = len(srows)
-	batch := map[string]schema.Writer{
-		schema.TableSoundings:     schema.Slice(srows),
-		schema.TableLevels:        levels,
-		schema.TableInversions:    schema.Slice(rows.Inversions),
-		schema.TableMixedLayers:   schema.Slice(rows.MixedLayers),
-		schema.TableMixingHeights: schema.Slice(rows.MixingHeights),
-		schema.TableAfternoon:     schema.Slice(arows),
-		schema.TableQCFindings:    schema.Slice(rows.QCFindings),
-
-		schema.TableDescents:          schema.Slice(rows.Descents.Descents),
-		schema.TableDescentLevels:     schema.Slice([]schema.LevelRow(rows.Descents.Levels)),
-		schema.TableDescentQCFindings: schema.Slice(rows.Descents.QCFindings),
-	}
-	if err := r.compareWithPrevious(prev, srows, stats); err != nil {
+	rows := r.analysePart(all, observed, levels, stats)
+	p.Soundings = len(rows.Soundings)
+	if err := r.compareWithPrevious(prev, rows.Soundings, stats); err != nil {
 		return nil, stats, nil, err
 	}
-	return p, stats, func() error { return r.writePartition(p, stats, batch) }, nil
+	return p, stats, func() error { return r.writePartition(p, stats, &rows) }, nil
 }
 
 // analysePart checks, deduplicates and analyses the copies all of one
@@ -573,7 +560,7 @@ func (r *run) buildPartition(key string, st *staged, prev *store.Partition) (_ *
 // observation hash) and returns the rows of its tables, the level rows
 // appended to levels.
 func (r *run) analysePart(all []*sounding.Sounding, observed map[*sounding.Sounding]string, levels schema.LevelAppender,
-	stats *buildStats) (srows []schema.SoundingRow, rows schema.PartRows, arows []schema.AfternoonRow) {
+	stats *buildStats) (rows schema.PartRows) {
 	all, descents := splitDescents(all)
 	t0 := time.Now()
 	reports := make(map[*sounding.Sounding]qc.Report, len(all))
@@ -589,7 +576,7 @@ func (r *run) analysePart(all []*sounding.Sounding, observed map[*sounding.Sound
 	stats.notAnalysable = map[string]int{}
 	rows = schema.PartRows{Levels: levels,
 		MixingHeights: make([]schema.MixingHeightRow, 0, len(kept)*len(analyze.Methods()))}
-	srows = make([]schema.SoundingRow, len(kept))
+	srows := make([]schema.SoundingRow, len(kept))
 	for i, d := range kept {
 		res := analyzeOne(d.s, reports[d.s], r.cfg, r.opt.UseSuspect, &rows)
 		res.sounding.SoundingHash = observed[d.s]
@@ -601,10 +588,11 @@ func (r *run) analysePart(all []*sounding.Sounding, observed map[*sounding.Sound
 			stats.notAnalysable[res.status]++
 		}
 	}
-	arows = afternoonRows(results, r.opt.DailyMaxima, r.pairing)
+	rows.Soundings = srows
+	rows.Afternoon = afternoonRows(results, r.opt.DailyMaxima, r.pairing)
 	rows.Descents = r.analyseDescents(descents, observed)
 	r.stage("analysis", t0)
-	return srows, rows, arows
+	return rows
 }
 
 // splitDescents returns the ascents and the descents of all, each in the
@@ -656,13 +644,13 @@ func (r *run) analyseDescents(descents []*sounding.Sounding, observed map[*sound
 // writePartition writes the files of partition p, one per registered
 // table in registry order, and counts them in stats. The first error stops
 // it.
-func (r *run) writePartition(p *store.Partition, stats *buildStats, batch map[string]schema.Writer) error {
+func (r *run) writePartition(p *store.Partition, stats *buildStats, batch *schema.PartRows) error {
 	defer r.stage("write", time.Now())
 	stats.rows = map[string]int{}
 	for _, table := range schema.TableNames() {
-		rows, ok := batch[table]
-		if !ok {
-			return fmt.Errorf("no rows collected for table %s", table)
+		rows, err := batch.Writer(table)
+		if err != nil {
+			return err
 		}
 		path := filepath.Join(r.dir, p.Files[table])
 		if err := rows.WriteFile(path, table, false); err != nil {

@@ -66,20 +66,11 @@ func Analyse(ctx context.Context, paths []string, opt Options) (*schema.RowSet, 
 			sum := sha256.Sum256(enc)
 			observed[s] = hex.EncodeToString(sum[:8])
 		}
-		levels := schema.RowSlice[schema.LevelRow](out.Levels)
+		var levels schema.RowSlice[schema.LevelRow]
 		stats := &buildStats{}
-		srows, rows, arows := r.analysePart(all, observed, &levels, stats)
-		out.Levels = levels
-		out.Soundings = append(out.Soundings, srows...)
-		out.Inversions = append(out.Inversions, rows.Inversions...)
-		out.MixedLayers = append(out.MixedLayers, rows.MixedLayers...)
-		out.MixingHeights = append(out.MixingHeights, rows.MixingHeights...)
-		out.Afternoon = append(out.Afternoon, arows...)
-		out.QCFindings = append(out.QCFindings, rows.QCFindings...)
-		out.Descents = append(out.Descents, rows.Descents.Descents...)
-		out.DescentLevels = append(out.DescentLevels, rows.Descents.Levels...)
-		out.DescentQCFindings = append(out.DescentQCFindings, rows.Descents.QCFindings...)
-		r.sum.Soundings += len(srows)
+		rows := r.analysePart(all, observed, &levels, stats)
+		out.Add(&rows)
+		r.sum.Soundings += len(rows.Soundings)
 		r.sum.DuplicatesMerged += stats.duplicates
 	}
 	sortSkips(r.sum.Skipped)

@@ -1,6 +1,7 @@
 package schema
 
 import (
+	"fmt"
 	"math"
 	"time"
 
@@ -57,16 +58,36 @@ func Season(t time.Time) (code string, year int) {
 	return "SON", y
 }
 
-// PartRows collects the rows of one partition's tables other than
-// soundings and afternoon_mixing, appended sounding by sounding so that
-// nothing is copied again before writing.
+// PartRows collects the rows of one partition's tables, appended sounding
+// by sounding so that nothing is copied again before writing. Each
+// registered table (tables.go) names the field that holds its rows, so
+// writing a partition (Writer) and collecting rows in memory (RowSet.Add)
+// follow the registry. AppendSounding fills all but Soundings and
+// Afternoon, which the caller completes (hashes, duplicates, pairing).
 type PartRows struct {
+	Soundings     []SoundingRow
 	Levels        LevelAppender
 	Inversions    []InversionRow
 	MixedLayers   []MixedLayerRow
 	MixingHeights []MixingHeightRow
+	Afternoon     []AfternoonRow
 	QCFindings    []QCFindingRow
 	Descents      DescentRows
+}
+
+// Writer returns the rows of the registered table called table, ready to
+// be written; an unregistered table, or one whose registry entry names no
+// rows, or whose levels collector cannot write, is an error.
+func (p *PartRows) Writer(table string) (Writer, error) {
+	t, ok := LookupTable(table)
+	if !ok || t.rows == nil {
+		return nil, fmt.Errorf("no rows collected for table %s", table)
+	}
+	w := t.rows(p)
+	if w == nil {
+		return nil, fmt.Errorf("no rows collected for table %s", table)
+	}
+	return w, nil
 }
 
 // LevelAppender receives level rows: a *Rows[LevelRow] collects them for
@@ -78,6 +99,14 @@ type RowSlice[T any] []T
 
 // Append adds one row.
 func (s *RowSlice[T]) Append(row T) { *s = append(*s, row) }
+
+// Len returns the number of rows.
+func (s *RowSlice[T]) Len() int { return len(*s) }
+
+// WriteFile writes the rows as the file at path of the named table.
+func (s *RowSlice[T]) WriteFile(path, table string, sync bool) error {
+	return WriteFile(path, table, []T(*s), sync)
+}
 
 // AppendSounding appends the rows of the levels, qc_findings, inversions,
 // mixed_layers and mixing_heights tables of sounding s (with its QC report
@@ -348,4 +377,21 @@ type RowSet struct {
 	Descents          []DescentRow
 	DescentLevels     []LevelRow
 	DescentQCFindings []QCFindingRow
+}
+
+// Add appends the rows of one partition (its levels collected in a
+// *RowSlice[LevelRow]).
+func (r *RowSet) Add(p *PartRows) {
+	r.Soundings = append(r.Soundings, p.Soundings...)
+	if l, ok := p.Levels.(*RowSlice[LevelRow]); ok {
+		r.Levels = append(r.Levels, *l...)
+	}
+	r.Inversions = append(r.Inversions, p.Inversions...)
+	r.MixedLayers = append(r.MixedLayers, p.MixedLayers...)
+	r.MixingHeights = append(r.MixingHeights, p.MixingHeights...)
+	r.Afternoon = append(r.Afternoon, p.Afternoon...)
+	r.QCFindings = append(r.QCFindings, p.QCFindings...)
+	r.Descents = append(r.Descents, p.Descents.Descents...)
+	r.DescentLevels = append(r.DescentLevels, p.Descents.Levels...)
+	r.DescentQCFindings = append(r.DescentQCFindings, p.Descents.QCFindings...)
 }

@@ -32,32 +32,37 @@ type Table struct {
 	// made a climatology over 600 station-years about 0.3 s faster (of
 	// 1.9 s) for 1 % more store.
 	Compact bool
+	// rows returns the table's rows among a partition's (nil for the
+	// derived tables, which the engine does not write).
+	rows func(*PartRows) Writer
 }
 
 // tables is the registry, in the order of the schema document, of the
 // engine's writes and of a partition's files. To add a table: write its row
-// struct (rows.go), add it here, and fill its rows in the engine.
+// struct (rows.go), a field for its rows in PartRows and RowSet
+// (analysis.go), add it here naming that field, and fill the rows
+// (AppendSounding, or the engine for rows across soundings).
 var tables = []Table{
 	{TableSoundings, "One row per radiosonde ascent (one per station and launch time: duplicates are merged): identity, source, surface values and boundary-layer diagnostics.",
-		reflect.TypeFor[SoundingRow](), false},
+		reflect.TypeFor[SoundingRow](), false, func(p *PartRows) Writer { return Slice(p.Soundings) }},
 	{TableLevels, "One row per level of an ascent: observed and derived values with their status.",
-		reflect.TypeFor[LevelRow](), true},
+		reflect.TypeFor[LevelRow](), true, levelsWriter},
 	{TableInversions, "One row per temperature inversion layer below the search ceiling, lowest first, with its class.",
-		reflect.TypeFor[InversionRow](), false},
+		reflect.TypeFor[InversionRow](), false, func(p *PartRows) Writer { return Slice(p.Inversions) }},
 	{TableMixedLayers, "One row per well-mixed layer below the search ceiling, lowest first, with mass-weighted mean potential temperature and mixing ratio.",
-		reflect.TypeFor[MixedLayerRow](), false},
+		reflect.TypeFor[MixedLayerRow](), false, func(p *PartRows) Writer { return Slice(p.MixedLayers) }},
 	{TableMixingHeights, "One row per ascent and mixing-height method, whatever the status, so failures are counted rather than hidden.",
-		reflect.TypeFor[MixingHeightRow](), false},
+		reflect.TypeFor[MixingHeightRow](), false, func(p *PartRows) Writer { return Slice(p.MixingHeights) }},
 	{TableAfternoon, "One row per station and local day with a morning ascent: the afternoon mixing height from the morning profile and the day's maximum temperature (Holzworth).",
-		reflect.TypeFor[AfternoonRow](), false},
+		reflect.TypeFor[AfternoonRow](), false, func(p *PartRows) Writer { return Slice(p.Afternoon) }},
 	{TableQCFindings, "One row per quality-control finding: the check, the level and variable, the severity, the value and what was wrong. Soundings without findings have no rows.",
-		reflect.TypeFor[QCFindingRow](), false},
+		reflect.TypeFor[QCFindingRow](), false, func(p *PartRows) Writer { return Slice(p.QCFindings) }},
 	{TableDescents, "One row per radiosonde descent (BUFR 3 09 056), the profile measured while falling after the burst: identity (the ascent's station and launch time), source and quality control. Not analysed for the boundary layer.",
-		reflect.TypeFor[DescentRow](), false},
+		reflect.TypeFor[DescentRow](), false, func(p *PartRows) Writer { return Slice(p.Descents.Descents) }},
 	{TableDescentLevels, "One row per level of a descent, lowest first, with the columns of the levels table: observed values, heights filled hypsometrically, potential temperature and mixing ratio, QC flags. height_agl_m is above the lowest level: the height of the landing point is not known.",
-		reflect.TypeFor[LevelRow](), false},
+		reflect.TypeFor[LevelRow](), false, func(p *PartRows) Writer { return &p.Descents.Levels }},
 	{TableDescentQCFindings, "One row per quality-control finding of a descent, with the columns of qc_findings (level_index as in descent_levels).",
-		reflect.TypeFor[QCFindingRow](), false},
+		reflect.TypeFor[QCFindingRow](), false, func(p *PartRows) Writer { return Slice(p.Descents.QCFindings) }},
 }
 
 // derivedTables are documented like the store's tables but built when
@@ -65,13 +70,20 @@ var tables = []Table{
 // see rows_episodes.go.
 var derivedTables = []Table{
 	{TableDays, "One row per station and local solar day with an analysable sounding: the morning and afternoon/evening values the episode rules use. Derived when queried, over each station's whole record.",
-		reflect.TypeFor[DayRow](), false},
+		reflect.TypeFor[DayRow](), false, nil},
 	{TableEpisodes, "One row per episode: a run of consecutive local days meeting a rule at one station, with its length, missing days and extremes. Derived when queried, over each station's whole record.",
-		reflect.TypeFor[EpisodeRow](), false},
+		reflect.TypeFor[EpisodeRow](), false, nil},
 	{TableEpisodeDays, "One row per day inside an episode, met or missing. Derived when queried.",
-		reflect.TypeFor[EpisodeDayRow](), false},
+		reflect.TypeFor[EpisodeDayRow](), false, nil},
 	{TableRuleMonths, "One row per station, rule and calendar month: the days with a sounding that met, failed or could not be judged on the rule. Derived when queried.",
-		reflect.TypeFor[RuleMonthRow](), false},
+		reflect.TypeFor[RuleMonthRow](), false, nil},
+}
+
+// levelsWriter returns the partition's level rows when their collector
+// can write them (a *Rows[LevelRow] or a *RowSlice[LevelRow]).
+func levelsWriter(p *PartRows) Writer {
+	w, _ := p.Levels.(Writer)
+	return w
 }
 
 // DerivedTables returns the tables built when queried, in order.
