@@ -180,7 +180,7 @@ func materialize[T any](ctx context.Context, db *sql.DB, dir, table string, rows
 
 // readDayObs reads the analysable soundings' per-day inputs.
 func readDayObs(ctx context.Context, db *sql.DB) ([]analyze.DayObs, error) {
-	rows, err := db.QueryContext(ctx, `SELECT station_id, launch_time, longitude_deg, coalesce(sbi_present, false),
+	rows, err := db.QueryContext(ctx, `SELECT station_id, launch_time, longitude_deg, coalesce(sbi_present, false) AS sbi_present,
 		sbi_strength_k, heat_deficit_mj_m2, stable_layer_fraction, mixing_height_parcel_m, transport_wind_ms
 		FROM soundings WHERE analysis_status = 'ok'`)
 	if err != nil {
@@ -191,15 +191,23 @@ func readDayObs(ctx context.Context, db *sql.DB) ([]analyze.DayObs, error) {
 	}
 	defer rows.Close()
 	var out []analyze.DayObs
+	var o analyze.DayObs
+	var heatDeficitMJ float64
+	var sc Scanner
+	sc.Str("station_id", &o.StationID)
+	sc.Time("launch_time", &o.LaunchTime)
+	sc.Float("longitude_deg", &o.LongitudeDeg)
+	sc.Bool("sbi_present", &o.SBIPresent)
+	sc.Float("sbi_strength_k", &o.SBIStrengthK)
+	sc.Float("heat_deficit_mj_m2", &heatDeficitMJ)
+	sc.Float("stable_layer_fraction", &o.StableFraction)
+	sc.Float("mixing_height_parcel_m", &o.ParcelMHM)
+	sc.Float("transport_wind_ms", &o.TransportWindMS)
 	for rows.Next() {
-		var o analyze.DayObs
-		var lon, sbiK, hd, sf, mh, wind sql.NullFloat64
-		if err := rows.Scan(&o.StationID, &o.LaunchTime, &lon, &o.SBIPresent, &sbiK, &hd, &sf, &mh, &wind); err != nil {
+		if err := sc.Scan(rows); err != nil {
 			return nil, fmt.Errorf("queries: episodes: %w", err)
 		}
-		o.LaunchTime = o.LaunchTime.UTC()
-		o.LongitudeDeg, o.SBIStrengthK, o.StableFraction = nullNaN(lon), nullNaN(sbiK), nullNaN(sf)
-		o.HeatDeficitJ, o.ParcelMHM, o.TransportWindMS = nullNaN(hd)*1e6, nullNaN(mh), nullNaN(wind)
+		o.HeatDeficitJ = heatDeficitMJ * 1e6 // J m⁻²; NaN stays NaN
 		out = append(out, o)
 	}
 	return out, rows.Err()
@@ -208,22 +216,27 @@ func readDayObs(ctx context.Context, db *sql.DB) ([]analyze.DayObs, error) {
 // readHolzworth reads the defined afternoon (Holzworth) mixing heights.
 func readHolzworth(ctx context.Context, db *sql.DB) (map[analyze.DayKey]float64, error) {
 	rows, err := db.QueryContext(ctx, `SELECT station_id, local_date,
-		CASE WHEN status = 'surface' THEN 0 ELSE height_agl_m END
+		CASE WHEN status = 'surface' THEN 0 ELSE height_agl_m END AS height_agl_m
 		FROM afternoon_mixing WHERE status IN ('ok', 'surface')`)
 	if err != nil {
 		return nil, fmt.Errorf("queries: episodes: afternoon mixing heights: %w", err)
 	}
 	defer rows.Close()
 	out := map[analyze.DayKey]float64{}
+	var st string
+	var d time.Time
+	var h float64
+	var sc Scanner
+	sc.Str("station_id", &st)
+	sc.Time("local_date", &d)
+	sc.Float("height_agl_m", &h) // NULL (NaN) when not known: no entry
+
 	for rows.Next() {
-		var st string
-		var d time.Time
-		var h sql.NullFloat64
-		if err := rows.Scan(&st, &d, &h); err != nil {
+		if err := sc.Scan(rows); err != nil {
 			return nil, fmt.Errorf("queries: episodes: %w", err)
 		}
-		if h.Valid {
-			out[analyze.DayKey{StationID: st, Date: d.UTC()}] = h.Float64
+		if !math.IsNaN(h) {
+			out[analyze.DayKey{StationID: st, Date: d}] = h
 		}
 	}
 	return out, rows.Err()

@@ -18,17 +18,23 @@ type StationHolding struct {
 // Holdings lists the stations of a store with their years and sounding
 // counts, by station id.
 func Holdings(ctx context.Context, db *sql.DB) ([]StationHolding, error) {
-	rows, err := db.QueryContext(ctx, `select station_id, coalesce(max(station_name), ''),
-		min(year(launch_time)), max(year(launch_time)), count(*)
+	rows, err := db.QueryContext(ctx, `select station_id, coalesce(max(station_name), '') as station_name,
+		min(year(launch_time)) as first_year, max(year(launch_time)) as last_year, count(*) as n_soundings
 		from soundings group by station_id order by station_id`)
 	if err != nil {
 		return nil, fmt.Errorf("stations in the store: %w", err)
 	}
 	defer rows.Close()
 	var out []StationHolding
+	var h StationHolding
+	var sc Scanner
+	sc.Str("station_id", &h.ID)
+	sc.Str("station_name", &h.Name)
+	sc.Int("first_year", &h.FirstYear)
+	sc.Int("last_year", &h.LastYear)
+	sc.Int("n_soundings", &h.Soundings)
 	for rows.Next() {
-		var h StationHolding
-		if err := rows.Scan(&h.ID, &h.Name, &h.FirstYear, &h.LastYear, &h.Soundings); err != nil {
+		if err := sc.Scan(rows); err != nil {
 			return nil, fmt.Errorf("stations in the store: %w", err)
 		}
 		out = append(out, h)

@@ -18,6 +18,7 @@ import (
 	"gonum.org/v1/plot/vg/draw"
 
 	"github.com/sondeclim/sondeclim/analyze"
+	"github.com/sondeclim/sondeclim/queries"
 	"github.com/sondeclim/sondeclim/schema"
 )
 
@@ -76,15 +77,15 @@ func LoadStations(ctx context.Context, db *sql.DB) ([]Station, error) {
 	defer rows.Close()
 	var out []Station
 	var s Station
-	var sc scanner
-	sc.s("station_id", &s.ID)
-	sc.s("station_name", &s.Name)
-	sc.t("first_time", &s.First)
-	sc.t("last_time", &s.Last)
-	sc.i("n_soundings", &s.Soundings)
-	sc.i("n_valid", &s.Valid)
+	var sc queries.Scanner
+	sc.Str("station_id", &s.ID)
+	sc.Str("station_name", &s.Name)
+	sc.Time("first_time", &s.First)
+	sc.Time("last_time", &s.Last)
+	sc.Int("n_soundings", &s.Soundings)
+	sc.Int("n_valid", &s.Valid)
 	for rows.Next() {
-		if err := sc.scan(rows); err != nil {
+		if err := sc.Scan(rows); err != nil {
 			return nil, fmt.Errorf("stations: %w", err)
 		}
 		out = append(out, s)
@@ -200,19 +201,19 @@ func loadMonthlyHeights(ctx context.Context, db *sql.DB, station, method string)
 	out := map[string][]HeightBox{}
 	var id string
 	var b HeightBox
-	var sc scanner
-	sc.s("station_id", &id)
-	sc.i("month", &b.Month)
-	sc.i("nominal_hour", &b.Hour)
-	sc.i("n_values", &b.N)
-	sc.i("n_undefined", &b.Undefined)
-	sc.f("p10_m", &b.P10)
-	sc.f("p25_m", &b.P25)
-	sc.f("p50_m", &b.P50)
-	sc.f("p75_m", &b.P75)
-	sc.f("p90_m", &b.P90)
+	var sc queries.Scanner
+	sc.Str("station_id", &id)
+	sc.Int("month", &b.Month)
+	sc.Int("nominal_hour", &b.Hour)
+	sc.Int("n_values", &b.N)
+	sc.Int("n_undefined", &b.Undefined)
+	sc.Float("p10_m", &b.P10)
+	sc.Float("p25_m", &b.P25)
+	sc.Float("p50_m", &b.P50)
+	sc.Float("p75_m", &b.P75)
+	sc.Float("p90_m", &b.P90)
 	err := readRows(ctx, db, "monthly_heights.sql", []any{station, method}, func(rows *sql.Rows) error {
-		if err := sc.scan(rows); err != nil {
+		if err := sc.Scan(rows); err != nil {
 			return err
 		}
 		out[id] = append(out[id], b)
@@ -230,13 +231,6 @@ func of(station string) string {
 		return ""
 	}
 	return " of " + station
-}
-
-func nullNaN(v sql.NullFloat64) float64 {
-	if !v.Valid {
-		return math.NaN()
-	}
-	return v.Float64
 }
 
 func contains(list []string, s string) bool {
@@ -383,14 +377,14 @@ func loadSBIFrequency(ctx context.Context, db *sql.DB, station string) (map[stri
 	out := map[string][]FrequencyCell{}
 	var id string
 	var c FrequencyCell
-	var sc scanner
-	sc.s("station_id", &id)
-	sc.i("month", &c.Month)
-	sc.i("nominal_hour", &c.Hour)
-	sc.i("n_valid", &c.Valid)
-	sc.i("n_sbi", &c.SBI)
+	var sc queries.Scanner
+	sc.Str("station_id", &id)
+	sc.Int("month", &c.Month)
+	sc.Int("nominal_hour", &c.Hour)
+	sc.Int("n_valid", &c.Valid)
+	sc.Int("n_sbi", &c.SBI)
 	err := readRows(ctx, db, "sbi_frequency.sql", []any{station}, func(rows *sql.Rows) error {
-		if err := sc.scan(rows); err != nil {
+		if err := sc.Scan(rows); err != nil {
 			return err
 		}
 		out[id] = append(out[id], c)
@@ -473,10 +467,14 @@ func seasonsOrEmpty(m map[string][]float64) map[string][]float64 {
 // by station id and season.
 func loadSBIStrength(ctx context.Context, db *sql.DB, station string) (map[string]map[string][]float64, error) {
 	out := map[string]map[string][]float64{}
+	var id, season string
+	var k float64
+	var sc queries.Scanner
+	sc.Str("station_id", &id)
+	sc.Str("season", &season)
+	sc.Float("sbi_strength_k", &k)
 	err := readRows(ctx, db, "sbi_strength.sql", []any{station}, func(rows *sql.Rows) error {
-		var id, season string
-		var k float64
-		if err := rows.Scan(&id, &season, &k); err != nil {
+		if err := sc.Scan(rows); err != nil {
 			return err
 		}
 		if out[id] == nil {

@@ -73,15 +73,20 @@ func loadEpisodeCalendars(ctx context.Context, db *sql.DB, station string) (map[
 		return out[id]
 	}
 	fail := func(err error) error { return fmt.Errorf("episode calendar%s: %w", of(station), err) }
-	years, err := db.QueryContext(ctx, "SELECT station_id, min(year), max(year) FROM days WHERE ($1 = '' OR station_id = $1) GROUP BY station_id", station)
+	years, err := db.QueryContext(ctx, "SELECT station_id, min(year) AS first_year, max(year) AS last_year FROM days "+
+		"WHERE ($1 = '' OR station_id = $1) GROUP BY station_id", station)
 	if err != nil {
 		return nil, fail(err)
 	}
 	defer years.Close()
+	var id string
+	var first, last int
+	var ysc queries.Scanner
+	ysc.Str("station_id", &id)
+	ysc.Int("first_year", &first)
+	ysc.Int("last_year", &last)
 	for years.Next() {
-		var id string
-		var first, last int
-		if err := years.Scan(&id, &first, &last); err != nil {
+		if err := ysc.Scan(years); err != nil {
 			return nil, fail(err)
 		}
 		c := get(id)
@@ -90,16 +95,21 @@ func loadEpisodeCalendars(ctx context.Context, db *sql.DB, station string) (map[
 	if err := years.Err(); err != nil {
 		return nil, fail(err)
 	}
-	rows, err := db.QueryContext(ctx, "SELECT station_id, criterion, local_date, status = 'met' FROM episode_days "+
+	rows, err := db.QueryContext(ctx, "SELECT station_id, criterion, local_date, status = 'met' AS met FROM episode_days "+
 		"WHERE ($1 = '' OR station_id = $1) ORDER BY station_id, local_date, criterion", station)
 	if err != nil {
 		return nil, fail(err)
 	}
 	defer rows.Close()
+	var name string
+	var d CalendarDay
+	var sc queries.Scanner
+	sc.Str("station_id", &id)
+	sc.Str("criterion", &name)
+	sc.Time("local_date", &d.Date)
+	sc.Bool("met", &d.Met)
 	for rows.Next() {
-		var id, name string
-		var d CalendarDay
-		if err := rows.Scan(&id, &name, &d.Date, &d.Met); err != nil {
+		if err := sc.Scan(rows); err != nil {
 			return nil, fail(err)
 		}
 		i, ok := idx[name]

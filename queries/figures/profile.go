@@ -7,7 +7,6 @@ import (
 	"fmt"
 	"image/color"
 	"math"
-	"slices"
 	"sort"
 	"strings"
 	"time"
@@ -18,6 +17,7 @@ import (
 	"gonum.org/v1/plot/vg/draw"
 
 	"github.com/sondeclim/sondeclim/analyze"
+	"github.com/sondeclim/sondeclim/queries"
 )
 
 // Level is one level of a sounding as stored in the levels table. Missing
@@ -204,126 +204,47 @@ func readRows(ctx context.Context, db *sql.DB, file string, args []any, read fun
 	return rows.Err()
 }
 
-// scanner collects nullable destinations by column name and converts
-// them after Scan, so a Go scanner is tied to its SQL file's column names,
-// not to the order of its SELECT list: every column the SQL selects must
-// be claimed and every claimed column selected.
-type scanner struct {
-	dest map[string]any
-	post []func()
-	row  []any  // destinations in the order of the result's columns
-	dup  string // a column claimed twice
-}
-
-func (s *scanner) add(name string, v any, post func()) {
-	if s.dest == nil {
-		s.dest = map[string]any{}
-	}
-	if _, ok := s.dest[name]; ok {
-		s.dup = name
-	}
-	s.dest[name] = v
-	s.post = append(s.post, post)
-}
-
-func (s *scanner) f(name string, p *float64) {
-	var v sql.NullFloat64
-	s.add(name, &v, func() { *p = nullNaN(v) })
-}
-
-func (s *scanner) s(name string, p *string) {
-	var v sql.NullString
-	s.add(name, &v, func() { *p = v.String })
-}
-
-func (s *scanner) b(name string, p *bool) {
-	var v sql.NullBool
-	s.add(name, &v, func() { *p = v.Bool })
-}
-
-func (s *scanner) i(name string, p *int) {
-	var v sql.NullInt64
-	s.add(name, &v, func() { *p = int(v.Int64) })
-}
-
-func (s *scanner) t(name string, p *time.Time) {
-	var v sql.NullTime
-	s.add(name, &v, func() { *p = v.Time.UTC() })
-}
-
-func (s *scanner) scan(rows *sql.Rows) error {
-	if s.dup != "" {
-		return fmt.Errorf("column %s is read twice", s.dup)
-	}
-	cols, err := rows.Columns()
-	if err != nil {
-		return err
-	}
-	s.row = s.row[:0]
-	for _, c := range cols {
-		d, ok := s.dest[c]
-		if !ok {
-			return fmt.Errorf("column %s is selected but not read", c)
-		}
-		s.row = append(s.row, d)
-	}
-	if len(cols) != len(s.dest) {
-		for name := range s.dest {
-			if !slices.Contains(cols, name) {
-				return fmt.Errorf("column %s is read but not selected", name)
-			}
-		}
-	}
-	if err := rows.Scan(s.row...); err != nil {
-		return err
-	}
-	for _, f := range s.post {
-		f()
-	}
-	return nil
-}
-
 func (p *Profile) scanSounding(rows *sql.Rows) error {
-	var sc scanner
+	var sc queries.Scanner
 	var line int
-	sc.s("station_id", &p.StationID)
-	sc.s("station_name", &p.StationName)
-	sc.t("launch_time", &p.LaunchTime)
-	sc.t("nominal_time", &p.NominalTime)
-	sc.i("nominal_hour", &p.NominalHour)
-	sc.f("latitude_deg", &p.LatitudeDeg)
-	sc.f("longitude_deg", &p.LongitudeDeg)
-	sc.f("elevation_m", &p.ElevationM)
-	sc.s("source_file", &p.SourceFile)
-	sc.i("source_line", &line)
-	sc.s("source_format", &p.SourceFormat)
-	sc.i("level_count", &p.LevelCount)
-	sc.s("qc_status", &p.QCStatus)
-	sc.s("analysis_status", &p.AnalysisStatus)
-	sc.s("sun_class", &p.SunClass)
-	sc.f("sun_elevation_deg", &p.SunElevation)
-	sc.s("liu_liang_regime", &p.Regime)
-	sc.s("bl_regime", &p.BLRegime)
-	sc.f("surface_pressure_hpa", &p.SurfacePressureHPa)
-	sc.b("surface_pressure_derived", &p.SurfacePressureDerived)
-	sc.f("lowest_level_agl_m", &p.LowestLevelAGLM)
-	sc.f("surface_temperature_c", &p.SurfaceTemperatureC)
-	sc.f("surface_dewpoint_c", &p.SurfaceDewpointC)
-	sc.f("surface_theta_k", &p.SurfaceThetaK)
-	sc.f("residual_layer_top_agl_m", &p.ResidualTopAGLM)
-	sc.f("mixing_height_consensus_m", &p.Consensus.HeightAGLM)
-	sc.s("mixing_height_consensus_status", &p.Consensus.Status)
-	sc.f("mixing_height_spread_m", &p.SpreadM)
-	sc.i("mixing_height_methods_ok", &p.MethodsOK)
-	sc.b("mixing_height_unresolved", &p.Unresolved)
-	sc.f("transport_wind_ms", &p.TransportWindMS)
-	sc.s("transport_wind_method", &p.TransportWindMethod)
-	sc.f("ventilation_index_m2s", &p.VentilationM2S)
-	sc.f("ventilation_index_ktft", &p.VentilationKtFt)
-	sc.s("ventilation_category", &p.VentilationCategory)
-	sc.s("ventilation_table", &p.VentilationTable)
-	sc.s("ventilation_height_method", &p.VentilationHeightMethod)
-	if err := sc.scan(rows); err != nil {
+	sc.Str("station_id", &p.StationID)
+	sc.Str("station_name", &p.StationName)
+	sc.Time("launch_time", &p.LaunchTime)
+	sc.Time("nominal_time", &p.NominalTime)
+	sc.Int("nominal_hour", &p.NominalHour)
+	sc.Float("latitude_deg", &p.LatitudeDeg)
+	sc.Float("longitude_deg", &p.LongitudeDeg)
+	sc.Float("elevation_m", &p.ElevationM)
+	sc.Str("source_file", &p.SourceFile)
+	sc.Int("source_line", &line)
+	sc.Str("source_format", &p.SourceFormat)
+	sc.Int("level_count", &p.LevelCount)
+	sc.Str("qc_status", &p.QCStatus)
+	sc.Str("analysis_status", &p.AnalysisStatus)
+	sc.Str("sun_class", &p.SunClass)
+	sc.Float("sun_elevation_deg", &p.SunElevation)
+	sc.Str("liu_liang_regime", &p.Regime)
+	sc.Str("bl_regime", &p.BLRegime)
+	sc.Float("surface_pressure_hpa", &p.SurfacePressureHPa)
+	sc.Bool("surface_pressure_derived", &p.SurfacePressureDerived)
+	sc.Float("lowest_level_agl_m", &p.LowestLevelAGLM)
+	sc.Float("surface_temperature_c", &p.SurfaceTemperatureC)
+	sc.Float("surface_dewpoint_c", &p.SurfaceDewpointC)
+	sc.Float("surface_theta_k", &p.SurfaceThetaK)
+	sc.Float("residual_layer_top_agl_m", &p.ResidualTopAGLM)
+	sc.Float("mixing_height_consensus_m", &p.Consensus.HeightAGLM)
+	sc.Str("mixing_height_consensus_status", &p.Consensus.Status)
+	sc.Float("mixing_height_spread_m", &p.SpreadM)
+	sc.Int("mixing_height_methods_ok", &p.MethodsOK)
+	sc.Bool("mixing_height_unresolved", &p.Unresolved)
+	sc.Float("transport_wind_ms", &p.TransportWindMS)
+	sc.Str("transport_wind_method", &p.TransportWindMethod)
+	sc.Float("ventilation_index_m2s", &p.VentilationM2S)
+	sc.Float("ventilation_index_ktft", &p.VentilationKtFt)
+	sc.Str("ventilation_category", &p.VentilationCategory)
+	sc.Str("ventilation_table", &p.VentilationTable)
+	sc.Str("ventilation_height_method", &p.VentilationHeightMethod)
+	if err := sc.Scan(rows); err != nil {
 		return err
 	}
 	p.SourceLine = int64(line)
@@ -335,28 +256,28 @@ func (p *Profile) scanSounding(rows *sql.Rows) error {
 
 func (p *Profile) scanLevel(rows *sql.Rows) error {
 	var l Level
-	var sc scanner
-	sc.i("level_index", &l.Index)
-	sc.s("level_kind", &l.Kind)
-	sc.f("pressure_hpa", &l.PressureHPa)
-	sc.f("height_m", &l.HeightM)
-	sc.b("height_derived", &l.HeightDerived)
-	sc.f("height_agl_m", &l.HeightAGLM)
-	sc.f("temperature_c", &l.TemperatureC)
-	sc.f("dewpoint_c", &l.DewpointC)
-	sc.f("theta_k", &l.ThetaK)
-	sc.f("mixing_ratio_gkg", &l.MixingRatioGKg)
-	sc.f("wind_direction_deg", &l.WindDirDeg)
-	sc.f("wind_speed_ms", &l.WindSpeedMS)
-	sc.s("temperature_status", &l.TemperatureStatus)
-	sc.s("height_status", &l.HeightStatus)
-	sc.s("humidity_status", &l.HumidityStatus)
-	sc.s("pressure_qc", &l.PressureQC)
-	sc.s("height_qc", &l.HeightQC)
-	sc.s("temperature_qc", &l.TemperatureQC)
-	sc.s("humidity_qc", &l.HumidityQC)
-	sc.s("wind_qc", &l.WindQC)
-	if err := sc.scan(rows); err != nil {
+	var sc queries.Scanner
+	sc.Int("level_index", &l.Index)
+	sc.Str("level_kind", &l.Kind)
+	sc.Float("pressure_hpa", &l.PressureHPa)
+	sc.Float("height_m", &l.HeightM)
+	sc.Bool("height_derived", &l.HeightDerived)
+	sc.Float("height_agl_m", &l.HeightAGLM)
+	sc.Float("temperature_c", &l.TemperatureC)
+	sc.Float("dewpoint_c", &l.DewpointC)
+	sc.Float("theta_k", &l.ThetaK)
+	sc.Float("mixing_ratio_gkg", &l.MixingRatioGKg)
+	sc.Float("wind_direction_deg", &l.WindDirDeg)
+	sc.Float("wind_speed_ms", &l.WindSpeedMS)
+	sc.Str("temperature_status", &l.TemperatureStatus)
+	sc.Str("height_status", &l.HeightStatus)
+	sc.Str("humidity_status", &l.HumidityStatus)
+	sc.Str("pressure_qc", &l.PressureQC)
+	sc.Str("height_qc", &l.HeightQC)
+	sc.Str("temperature_qc", &l.TemperatureQC)
+	sc.Str("humidity_qc", &l.HumidityQC)
+	sc.Str("wind_qc", &l.WindQC)
+	if err := sc.Scan(rows); err != nil {
 		return err
 	}
 	p.Levels = append(p.Levels, l)
@@ -365,19 +286,19 @@ func (p *Profile) scanLevel(rows *sql.Rows) error {
 
 func (p *Profile) scanInversion(rows *sql.Rows) error {
 	var v Inversion
-	var sc scanner
-	sc.i("inversion_index", &v.Index)
-	sc.b("surface_based", &v.SurfaceBased)
-	sc.f("base_agl_m", &v.BaseAGLM)
-	sc.f("top_agl_m", &v.TopAGLM)
-	sc.f("base_pressure_hpa", &v.BasePressureHPa)
-	sc.f("top_pressure_hpa", &v.TopPressureHPa)
-	sc.f("depth_m", &v.DepthM)
-	sc.f("strength_k", &v.StrengthK)
-	sc.f("gradient_k_per_km", &v.GradientKPerKm)
-	sc.b("top_at_ceiling", &v.TopAtCeiling)
-	sc.s("class", &v.Class)
-	if err := sc.scan(rows); err != nil {
+	var sc queries.Scanner
+	sc.Int("inversion_index", &v.Index)
+	sc.Bool("surface_based", &v.SurfaceBased)
+	sc.Float("base_agl_m", &v.BaseAGLM)
+	sc.Float("top_agl_m", &v.TopAGLM)
+	sc.Float("base_pressure_hpa", &v.BasePressureHPa)
+	sc.Float("top_pressure_hpa", &v.TopPressureHPa)
+	sc.Float("depth_m", &v.DepthM)
+	sc.Float("strength_k", &v.StrengthK)
+	sc.Float("gradient_k_per_km", &v.GradientKPerKm)
+	sc.Bool("top_at_ceiling", &v.TopAtCeiling)
+	sc.Str("class", &v.Class)
+	if err := sc.Scan(rows); err != nil {
 		return err
 	}
 	p.Inversions = append(p.Inversions, v)
@@ -386,16 +307,16 @@ func (p *Profile) scanInversion(rows *sql.Rows) error {
 
 func (p *Profile) scanMixedLayer(rows *sql.Rows) error {
 	var m MixedLayer
-	var sc scanner
-	sc.i("layer_index", &m.Index)
-	sc.f("base_agl_m", &m.BaseAGLM)
-	sc.f("top_agl_m", &m.TopAGLM)
-	sc.f("base_pressure_hpa", &m.BasePressureHPa)
-	sc.f("top_pressure_hpa", &m.TopPressureHPa)
-	sc.f("theta_k", &m.ThetaK)
-	sc.f("mixing_ratio_gkg", &m.MixingRatioGKg)
-	sc.i("levels", &m.Levels)
-	if err := sc.scan(rows); err != nil {
+	var sc queries.Scanner
+	sc.Int("layer_index", &m.Index)
+	sc.Float("base_agl_m", &m.BaseAGLM)
+	sc.Float("top_agl_m", &m.TopAGLM)
+	sc.Float("base_pressure_hpa", &m.BasePressureHPa)
+	sc.Float("top_pressure_hpa", &m.TopPressureHPa)
+	sc.Float("theta_k", &m.ThetaK)
+	sc.Float("mixing_ratio_gkg", &m.MixingRatioGKg)
+	sc.Int("levels", &m.Levels)
+	if err := sc.Scan(rows); err != nil {
 		return err
 	}
 	p.MixedLayers = append(p.MixedLayers, m)
@@ -404,14 +325,14 @@ func (p *Profile) scanMixedLayer(rows *sql.Rows) error {
 
 func (p *Profile) scanHeight(rows *sql.Rows) error {
 	var h MethodHeight
-	var sc scanner
-	sc.s("method", &h.Method)
-	sc.f("height_agl_m", &h.HeightAGLM)
-	sc.s("status", &h.Status)
-	sc.s("note", &h.Note)
-	sc.f("level_spacing_m", &h.LevelSpacingM)
-	sc.b("unresolved", &h.Unresolved)
-	if err := sc.scan(rows); err != nil {
+	var sc queries.Scanner
+	sc.Str("method", &h.Method)
+	sc.Float("height_agl_m", &h.HeightAGLM)
+	sc.Str("status", &h.Status)
+	sc.Str("note", &h.Note)
+	sc.Float("level_spacing_m", &h.LevelSpacingM)
+	sc.Bool("unresolved", &h.Unresolved)
+	if err := sc.Scan(rows); err != nil {
 		return err
 	}
 	p.Heights = append(p.Heights, h)

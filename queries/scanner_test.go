@@ -1,4 +1,4 @@
-package figures
+package queries
 
 import (
 	"context"
@@ -10,11 +10,17 @@ import (
 	"github.com/duckdb/duckdb-go/v2"
 )
 
-// TestScannerByName checks that the profile scanners read columns by name:
+// TestScannerByName checks that Scanner reads columns by name:
 // a SELECT list in another order reads the same values, and a column
 // selected but not read, read but not selected, or read twice is an error
 // rather than a silent shift of every later value. Scaffolding: the
 // expected values are the literals of the query.
+// methodHeight is a row read by the test.
+type methodHeight struct {
+	Method, Note string
+	HeightAGLM   float64
+}
+
 func TestScannerByName(t *testing.T) {
 	conn, err := duckdb.NewConnector("", nil)
 	if err != nil {
@@ -22,8 +28,8 @@ func TestScannerByName(t *testing.T) {
 	}
 	db := sql.OpenDB(conn)
 	defer db.Close()
-	read := func(q string, claim func(*scanner, *MethodHeight)) (MethodHeight, error) {
-		var h MethodHeight
+	read := func(q string, claim func(*Scanner, *methodHeight)) (methodHeight, error) {
+		var h methodHeight
 		rows, err := db.QueryContext(context.Background(), q)
 		if err != nil {
 			t.Fatal(err)
@@ -32,13 +38,13 @@ func TestScannerByName(t *testing.T) {
 		if !rows.Next() {
 			t.Fatal("no row")
 		}
-		var sc scanner
+		var sc Scanner
 		claim(&sc, &h)
-		return h, sc.scan(rows)
+		return h, sc.Scan(rows)
 	}
-	both := func(sc *scanner, h *MethodHeight) {
-		sc.s("method", &h.Method)
-		sc.f("height_agl_m", &h.HeightAGLM)
+	both := func(sc *Scanner, h *methodHeight) {
+		sc.Str("method", &h.Method)
+		sc.Float("height_agl_m", &h.HeightAGLM)
 	}
 	for _, q := range []string{
 		"SELECT 'parcel' AS method, 812.5 AS height_agl_m",
@@ -55,13 +61,13 @@ func TestScannerByName(t *testing.T) {
 	}
 	for _, c := range []struct {
 		q, want string
-		claim   func(*scanner, *MethodHeight)
+		claim   func(*Scanner, *methodHeight)
 	}{
 		{"SELECT 'parcel' AS method, 812.5 AS height_agl_m, 'ok' AS status", "status is selected but not read", both},
 		{"SELECT 'parcel' AS method", "height_agl_m is read but not selected", both},
-		{"SELECT 'parcel' AS method, 1.0 AS height_agl_m", "method is read twice", func(sc *scanner, h *MethodHeight) {
+		{"SELECT 'parcel' AS method, 1.0 AS height_agl_m", "method is read twice", func(sc *Scanner, h *methodHeight) {
 			both(sc, h)
-			sc.s("method", &h.Note)
+			sc.Str("method", &h.Note)
 		}},
 	} {
 		if _, err := read(c.q, c.claim); err == nil || !strings.Contains(err.Error(), c.want) {
