@@ -2,6 +2,7 @@ package analyze
 
 import (
 	"math"
+	"syscall"
 	"testing"
 	"time"
 
@@ -73,4 +74,45 @@ func BenchmarkBulkStability100Levels(b *testing.B) {
 			b.Fatal("heat deficit or stable fraction not computed")
 		}
 	}
+}
+
+// BenchmarkAnalyzeSterling analyses every sounding of the real Sterling
+// 2016 file (PROVENANCE.md; about 198 levels each, as read, without
+// quality control); ns/level compares with the ingest's CPU time per
+// level.
+func BenchmarkAnalyzeSterling(b *testing.B) {
+	ss := readSterling(b)
+	levels := 0
+	for _, s := range ss {
+		levels += len(s.Levels)
+	}
+	cfg := DefaultConfig()
+	b.ReportAllocs()
+	cpu0 := cpuTime()
+	for b.Loop() {
+		for _, s := range ss {
+			if r := Analyze(s, cfg); r.Status == "" {
+				b.Fatal("no status")
+			}
+		}
+	}
+	reportPerLevel(b, cpu0, levels)
+}
+
+// cpuTime returns the CPU time (user and system) the process has used.
+// On a loaded machine it measures the work better than the wall clock.
+func cpuTime() time.Duration {
+	var ru syscall.Rusage
+	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err != nil {
+		return 0
+	}
+	return time.Duration(ru.Utime.Nano() + ru.Stime.Nano())
+}
+
+// reportPerLevel reports the wall and CPU time per level of b's loop
+// (cpu0: cpuTime before it), over levels levels per iteration.
+func reportPerLevel(b *testing.B, cpu0 time.Duration, levels int) {
+	n := float64(b.N) * float64(levels)
+	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/n, "ns/level")
+	b.ReportMetric(float64((cpuTime()-cpu0).Nanoseconds())/n, "cpu-ns/level")
 }

@@ -19,7 +19,7 @@ import (
 
 // sharedDir returns ../shared relative to the repository root (the
 // directory holding go.mod), or "" when it is absent.
-func sharedDir(t *testing.T) string {
+func sharedDir(t testing.TB) string {
 	t.Helper()
 	dir, err := os.Getwd()
 	if err != nil {
@@ -44,7 +44,7 @@ func sharedDir(t *testing.T) string {
 
 // readSterling returns the soundings of the real Sterling, Virginia 2016
 // archive file (PROVENANCE.md), skipping the test when it is absent.
-func readSterling(t *testing.T) []*sounding.Sounding {
+func readSterling(t testing.TB) []*sounding.Sounding {
 	t.Helper()
 	shared := sharedDir(t)
 	path := filepath.Join(shared, "validation", "archive-v2", "USM00072403-data-beg2016.txt.zip")
