@@ -33,25 +33,27 @@ func blankAt(line []byte, c int) bool { return c > len(line) || line[c-1] == ' '
 // sign, surrounded by spaces, without allocating. ok is false for a blank
 // or malformed field.
 func atoi(b []byte) (v int, ok bool) {
-	for len(b) > 0 && b[0] == ' ' {
-		b = b[1:]
+	i, n := 0, len(b)
+	for i < n && b[i] == ' ' {
+		i++
 	}
-	for len(b) > 0 && b[len(b)-1] == ' ' {
-		b = b[:len(b)-1]
+	for n > i && b[n-1] == ' ' {
+		n--
 	}
 	neg := false
-	if len(b) > 0 && (b[0] == '-' || b[0] == '+') {
-		neg = b[0] == '-'
-		b = b[1:]
+	if i < n && (b[i] == '-' || b[i] == '+') {
+		neg = b[i] == '-'
+		i++
 	}
-	if len(b) == 0 || len(b) > 9 {
+	if i == n || n-i > 9 {
 		return 0, false
 	}
-	for _, c := range b {
-		if c < '0' || c > '9' {
+	for _, c := range b[i:n] {
+		d := c - '0'
+		if d > 9 {
 			return 0, false
 		}
-		v = v*10 + int(c-'0')
+		v = v*10 + int(d)
 	}
 	if neg {
 		v = -v
@@ -202,7 +204,7 @@ func nominalAndLaunch(y int, m time.Month, d, hour, relMin int) (nominal, launch
 	return nominal, best, inferred, true
 }
 
-// parseLevel reads one data record.
+// parseLevel reads one data record into lv, which it overwrites.
 //
 // Columns (1-based): LVLTYP1 1, LVLTYP2 2, ETIME 4–8 (MMMSS), PRESS 10–15
 // (Pa), PFLAG 16, GPH 17–21 (gpm), ZFLAG 22, TEMP 23–27 (°C × 10), TFLAG 28,
@@ -219,23 +221,24 @@ func nominalAndLaunch(y int, m time.Month, d, hour, relMin int) (nominal, launch
 // −9999 gives NaN with status Missing, −8888 NaN with RemovedUpstream. The
 // dewpoint is T − DPD when both are reported (status of the depression
 // stays Reported; the dewpoint itself is derived here).
-func parseLevel(line []byte) (sounding.Level, error) {
-	lv := sounding.NewLevel()
-	bad := func(format string, a ...any) error {
-		return fmt.Errorf("%w: %s", ingest.ErrBadLevel, fmt.Sprintf(format, a...))
-	}
+//
+// The level is filled where it lies (a level is about 140 bytes; returning
+// it by value and copying it into the sounding cost a tenth of the
+// reading time on the real Sterling file).
+func parseLevel(lv *sounding.Level, line []byte) error {
+	*lv = sounding.NewLevel()
 	if len(line) < 51 {
-		return lv, bad("%d characters, want at least 51", len(line))
+		return badLevel("%d characters, want at least 51", len(line))
 	}
 	for _, c := range [...]int{3, 9, 34, 40, 46} {
 		if line[c-1] != ' ' {
-			return lv, bad("column %d is not blank", c)
+			return badLevel("column %d is not blank", c)
 		}
 	}
 	t1, t2 := line[0], line[1]
 	switch {
 	case t1 < '0' || t1 > '3' || t2 < '0' || t2 > '2' || (t1 == '0' && t2 != '1'):
-		return lv, bad("level type %q", line[:2])
+		return badLevel("level type %q", line[:2])
 	case t2 == '1':
 		lv.Kind = sounding.KindSurface
 	case t1 == '1':
@@ -247,41 +250,31 @@ func parseLevel(line []byte) (sounding.Level, error) {
 	}
 	lv.Tropopause = t2 == '2'
 
-	type spec struct {
-		v          sounding.Var
-		from, to   int
-		flag       int // column of the flag, 0 if none
-		scale, off float64
-		dst        *float64
+	// The fields in column order; the first bad one is reported.
+	if err := readField(lv, line, sounding.VarPressure, 10, 15, 16, 1, 0, &lv.PressurePa); err != nil {
+		return err
 	}
-	specs := [...]spec{
-		{sounding.VarPressure, 10, 15, 16, 1, 0, &lv.PressurePa},
-		{sounding.VarHeight, 17, 21, 22, 1, 0, &lv.HeightM},
-		{sounding.VarTemperature, 23, 27, 28, 10, thermo.ZeroCelsiusK, &lv.TemperatureK},
-		{sounding.VarRelHumidity, 29, 33, 0, 10, 0, &lv.RelHumidityPct},
-		{sounding.VarDewpointDepression, 35, 39, 0, 10, 0, &lv.DewpointDepressionK},
-		{sounding.VarWindDirection, 41, 45, 0, 1, 0, &lv.WindDirectionDeg},
-		{sounding.VarWindSpeed, 47, 51, 0, 10, 0, &lv.WindSpeedMS},
+	if err := readField(lv, line, sounding.VarHeight, 17, 21, 22, 1, 0, &lv.HeightM); err != nil {
+		return err
 	}
-	for _, sp := range specs {
-		raw, ok := atoi(line[sp.from-1 : sp.to])
-		if !ok {
-			return lv, bad("%s %q in columns %d-%d", sp.v, line[sp.from-1:sp.to], sp.from, sp.to)
-		}
-		if sp.flag > 0 {
-			switch f := line[sp.flag-1]; f {
-			case ' ':
-			case 'A', 'B':
-				lv.UpstreamTier[sp.v] = f
-			default:
-				return lv, bad("%s flag %q in column %d", sp.v, f, sp.flag)
-			}
-		}
-		lv.Status[sp.v] = setValue(sp.dst, raw, sp.scale, sp.off)
+	if err := readField(lv, line, sounding.VarTemperature, 23, 27, 28, 10, thermo.ZeroCelsiusK, &lv.TemperatureK); err != nil {
+		return err
+	}
+	if err := readField(lv, line, sounding.VarRelHumidity, 29, 33, 0, 10, 0, &lv.RelHumidityPct); err != nil {
+		return err
+	}
+	if err := readField(lv, line, sounding.VarDewpointDepression, 35, 39, 0, 10, 0, &lv.DewpointDepressionK); err != nil {
+		return err
+	}
+	if err := readField(lv, line, sounding.VarWindDirection, 41, 45, 0, 1, 0, &lv.WindDirectionDeg); err != nil {
+		return err
+	}
+	if err := readField(lv, line, sounding.VarWindSpeed, 47, 51, 0, 10, 0, &lv.WindSpeedMS); err != nil {
+		return err
 	}
 	raw, ok := atoi(line[3:8])
 	if !ok {
-		return lv, bad("elapsed time %q in columns 4-8", line[3:8])
+		return badLevel("elapsed time %q in columns 4-8", line[3:8])
 	}
 	switch raw {
 	case codeMissing:
@@ -296,7 +289,32 @@ func parseLevel(line []byte) (sounding.Level, error) {
 		lv.Status[sounding.VarDewpointDepression] == sounding.Reported {
 		lv.DewpointK = lv.TemperatureK - lv.DewpointDepressionK
 	}
-	return lv, nil
+	return nil
+}
+
+func badLevel(format string, a ...any) error {
+	return fmt.Errorf("%w: %s", ingest.ErrBadLevel, fmt.Sprintf(format, a...))
+}
+
+// readField reads variable v of a data record, columns from..to (1-based)
+// scaled as raw/scale + off, into *dst and its status into lv, with the
+// flag in column flag (0 when the field has none) into lv.UpstreamTier.
+func readField(lv *sounding.Level, line []byte, v sounding.Var, from, to, flag int, scale, off float64, dst *float64) error {
+	raw, ok := atoi(line[from-1 : to])
+	if !ok {
+		return badLevel("%s %q in columns %d-%d", v, line[from-1:to], from, to)
+	}
+	if flag > 0 {
+		switch f := line[flag-1]; f {
+		case ' ':
+		case 'A', 'B':
+			lv.UpstreamTier[v] = f
+		default:
+			return badLevel("%s flag %q in column %d", v, f, flag)
+		}
+	}
+	lv.Status[v] = setValue(dst, raw, scale, off)
+	return nil
 }
 
 // setValue stores raw/scale + off in *dst, or NaN for the special codes,
@@ -310,6 +328,15 @@ func setValue(dst *float64, raw int, scale, off float64) sounding.Status {
 		*dst = math.NaN()
 		return sounding.RemovedUpstream
 	}
-	*dst = float64(raw)/scale + off
+	// x/1 and x+0 are x exactly (float64(raw) is never −0), so the
+	// unscaled fields skip the division.
+	x := float64(raw)
+	if scale != 1 {
+		x /= scale
+	}
+	if off != 0 {
+		x += off
+	}
+	*dst = x
 	return sounding.Reported
 }

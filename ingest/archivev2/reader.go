@@ -188,24 +188,23 @@ func (r *Reader) Next() (*sounding.Sounding, error) {
 		if s == nil || badErr != nil || count > s.DeclaredLevels {
 			continue
 		}
-		var lv sounding.Level
-		var err error
 		if long {
-			err = fmt.Errorf("%w: line longer than %d bytes", ingest.ErrBadLevel, maxLine)
-		} else {
-			lv, err = parseLevel(line)
-		}
-		if err != nil {
-			badLine, badErr = r.line, err
+			badLine, badErr = r.line, fmt.Errorf("%w: line longer than %d bytes", ingest.ErrBadLevel, maxLine)
 			continue
 		}
-		lv.Line = r.line
 		if len(s.Levels) == cap(s.Levels) {
 			// Grow once to the declared size, now that records are
 			// really present (a header alone reserves little).
 			s.Levels = slices.Grow(s.Levels, s.DeclaredLevels-len(s.Levels))
 		}
-		s.Levels = append(s.Levels, lv)
+		s.Levels = s.Levels[:len(s.Levels)+1]
+		lv := &s.Levels[len(s.Levels)-1]
+		if err := parseLevel(lv, line); err != nil {
+			s.Levels = s.Levels[:len(s.Levels)-1]
+			badLine, badErr = r.line, err
+			continue
+		}
+		lv.Line = r.line
 	}
 
 	switch {
