@@ -81,7 +81,8 @@ func DefaultPairingConfig() PairingConfig {
 	return PairingConfig{MorningFromH: 3, MorningToH: 10, AfternoonFromH: 12, AfternoonToH: 20}
 }
 
-// Sources of the maximum temperature of an afternoon estimate.
+// TmaxSource is the source of the maximum temperature of an afternoon
+// estimate (the column afternoon_mixing.tmax_source).
 //
 // TmaxFromLaterSounding is not a daily maximum: it is the surface
 // temperature of the same local day's later sounding, in the afternoon
@@ -92,10 +93,16 @@ func DefaultPairingConfig() PairingConfig {
 // measured here). The afternoon mixing height computed from it is
 // therefore biased low, most in winter; give daily maxima (--daily-max)
 // for the Holzworth construction proper (METHODS §4.1: Tmax of 12–16 LST).
+type TmaxSource string
+
+// Sources of Tmax.
 const (
-	TmaxFromDailyMaxima   = "daily_maxima"
-	TmaxFromLaterSounding = "later_sounding"
+	TmaxFromDailyMaxima   TmaxSource = "daily_maxima"
+	TmaxFromLaterSounding TmaxSource = "later_sounding"
 )
+
+// TmaxSources returns the sources of Tmax in the order above.
+func TmaxSources() []TmaxSource { return []TmaxSource{TmaxFromDailyMaxima, TmaxFromLaterSounding} }
 
 // AfternoonEstimate is the afternoon mixing height of one morning sounding.
 type AfternoonEstimate struct {
@@ -106,7 +113,7 @@ type AfternoonEstimate struct {
 	TmaxK     float64   // K; NaN when no maximum was found
 	// TmaxSource is TmaxFromDailyMaxima, TmaxFromLaterSounding or ""
 	// (then MixingHeight is undefined with note "no_tmax").
-	TmaxSource   string
+	TmaxSource   TmaxSource
 	MixingHeight MixingHeight
 }
 

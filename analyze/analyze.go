@@ -8,23 +8,33 @@ import (
 	"github.com/sondeclim/sondeclim/sounding"
 )
 
-// Analysis statuses. Anything other than StatusOK means the sounding was
-// attempted but could not be analysed; it must be counted, not dropped.
+// Status is the analysis status of a sounding (the column
+// soundings.analysis_status). Anything other than StatusOK means the
+// sounding was attempted but could not be analysed; it must be counted,
+// not dropped.
+type Status string
+
+// Analysis statuses.
 const (
-	StatusOK             = "ok"
-	StatusInvalidConfig  = "invalid_config"   // the Config fails validation (e.g. a zero Config)
-	StatusNoLevels       = "no_levels"        // nil sounding or no levels at all
-	StatusNoThermoLevels = "no_thermo_levels" // no level has pressure, temperature and a height
-	StatusNoSurfaceLevel = "no_surface_level" // the lowest such level is more than MaxSurfaceGapM above the station
-	StatusTooFewLevels   = "too_few_levels"   // fewer than MinLevels usable levels below CoverageTopPa
+	StatusOK             Status = "ok"
+	StatusInvalidConfig  Status = "invalid_config"   // the Config fails validation (e.g. a zero Config)
+	StatusNoLevels       Status = "no_levels"        // nil sounding or no levels at all
+	StatusNoThermoLevels Status = "no_thermo_levels" // no level has pressure, temperature and a height
+	StatusNoSurfaceLevel Status = "no_surface_level" // the lowest such level is more than MaxSurfaceGapM above the station
+	StatusTooFewLevels   Status = "too_few_levels"   // fewer than MinLevels usable levels below CoverageTopPa
 )
+
+// Statuses returns the analysis statuses in the order above.
+func Statuses() []Status {
+	return []Status{StatusOK, StatusInvalidConfig, StatusNoLevels, StatusNoThermoLevels, StatusNoSurfaceLevel, StatusTooFewLevels}
+}
 
 // Result holds the diagnostics of one sounding. Per-level slices are
 // aligned 1:1 with the sounding's Levels (same index) and hold NaN where a
 // value cannot be computed; they are filled as far as possible even when
 // Status is not StatusOK.
 type Result struct {
-	Status      string // StatusOK or one of the reasons above
+	Status      Status
 	ConstantSet string // thermo.Constants.ID() of the set used
 	SatVap      string // saturation vapour pressure formula used
 
@@ -67,7 +77,7 @@ type Result struct {
 	// time). Set for every sounding, analysable or not.
 	SunElevationDeg float64
 	LocalSolarTimeH float64
-	SunClass        string
+	SunClass        sun.Class
 
 	// SurfaceWindMS is the wind speed at the lowest wind level when it is
 	// within MaxSurfaceGapM of the ground, m/s; NaN otherwise.
@@ -92,11 +102,11 @@ type Result struct {
 	// MixingHeightConfig.Consensus.
 	MixingHeightConsensus Consensus
 	// LiuLiangRegime is RegimeConvective, RegimeNeutral, RegimeStable or "".
-	LiuLiangRegime string
+	LiuLiangRegime LiuLiangRegime
 	// Regime is the boundary-layer regime (BLConvective, BLStable,
 	// BLNeutral, or BLUnknown; ClassifyRegime) that chooses the methods of
 	// the consensus.
-	Regime string
+	Regime BLRegime
 	// ResidualTopAGLM is the top of the residual layer in the stable and
 	// neutral regimes, m AGL (residualTop); NaN otherwise. It is not a
 	// mixing height: air between the night's mixing height and this top is
@@ -138,7 +148,7 @@ func Analyze(s *sounding.Sounding, cfg Config) Result {
 	r := Result{Status: StatusOK, ConstantSet: cfg.Constants.ID(), SatVap: cfg.SatVap.String(),
 		SurfaceIndex: -1, CeilingAGLM: nan, LowestLevelAGLM: nan, SurfacePressurePa: nan,
 		SBI: noInversion(), MixedLayer: noMixedLayer(),
-		Parcel:          Parcel{Status: ParcelUndefined, HeightAGLM: nan, Theta0K: nan},
+		Parcel:          Parcel{Status: MixingHeightUndefined, HeightAGLM: nan, Theta0K: nan},
 		SunElevationDeg: nan, LocalSolarTimeH: nan, SunClass: sun.Unknown, SurfaceWindMS: nan, ResidualTopAGLM: nan,
 		LowestElevated:        noInversion(),
 		MixingHeightConsensus: ConsensusOf(nil, nil),

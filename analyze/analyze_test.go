@@ -40,7 +40,7 @@ func TestAnalyzeTTBB(t *testing.T) {
 	}
 	// Parcel from the surface (θ0 = 286.01 K) is colder than the first
 	// level above (983 hPa): surface (METHODS §4.1 rule).
-	if r.Parcel.Status != ParcelSurface || r.Parcel.HeightAGLM != 0 {
+	if r.Parcel.Status != MixingHeightSurface || r.Parcel.HeightAGLM != 0 {
 		t.Errorf("parcel = %+v", r.Parcel)
 	}
 }
@@ -157,18 +157,18 @@ func TestParcelMixingHeight(t *testing.T) {
 		theta0 float64
 		ceil   float64
 		want   float64
-		status string
+		status MixingHeightStatus
 	}{
-		{"METHODS §9 1750 m", 295.2, 5000, 1750, ParcelOK},
+		{"METHODS §9 1750 m", 295.2, 5000, 1750, MixingHeightOK},
 		// Rule of METHODS §4.1: θ0 < θ(first level above) → surface, 0.
-		{"stable from ground", 291.3, 5000, 0, ParcelSurface},
+		{"stable from ground", 291.3, 5000, 0, MixingHeightSurface},
 		// Equal to the first level: lowest height where θ ≥ θ0 is that level.
-		{"equal first level", 291.6, 5000, 250, ParcelOK},
+		{"equal first level", 291.6, 5000, 250, MixingHeightOK},
 		// Crossing at 1750 m lies above a 1500 m ceiling.
-		{"above ceiling", 295.2, 1500, nan, ParcelUndefined},
+		{"above ceiling", 295.2, 1500, nan, MixingHeightUndefined},
 		// Never crosses within the profile.
-		{"never crosses", 400, 5000, nan, ParcelUndefined},
-		{"NaN theta0", nan, 5000, nan, ParcelUndefined},
+		{"never crosses", 400, 5000, nan, MixingHeightUndefined},
+		{"NaN theta0", nan, 5000, nan, MixingHeightUndefined},
 	}
 	for _, tt := range tests {
 		h, st := ParcelMixingHeight(z, th, tt.theta0, tt.ceil)
@@ -179,10 +179,10 @@ func TestParcelMixingHeight(t *testing.T) {
 	// NaN levels are skipped: removing the 1500 m level leaves the crossing
 	// between 1000 and 2000 m, still 1750 m for a linear profile.
 	th[4] = nan
-	if h, st := ParcelMixingHeight(z, th, 295.2, 5000); st != ParcelOK || math.Abs(h-1750) > 1e-6 {
+	if h, st := ParcelMixingHeight(z, th, 295.2, 5000); st != MixingHeightOK || math.Abs(h-1750) > 1e-6 {
 		t.Errorf("with NaN level: %v %q", h, st)
 	}
-	if _, st := ParcelMixingHeight(z[:3], th, 295.2, 5000); st != ParcelUndefined {
+	if _, st := ParcelMixingHeight(z[:3], th, 295.2, 5000); st != MixingHeightUndefined {
 		t.Errorf("mismatched slices: %q", st)
 	}
 }
@@ -204,7 +204,7 @@ func TestAnalyzeParcelTTAA(t *testing.T) {
 		cfg := DefaultConfig()
 		cfg.Parcel.ExcessK = tt.excess
 		r := Analyze(ttaa(), cfg)
-		if r.Status != StatusOK || r.Parcel.Status != ParcelOK {
+		if r.Status != StatusOK || r.Parcel.Status != MixingHeightOK {
 			t.Fatalf("status %q parcel %+v", r.Status, r.Parcel)
 		}
 		near(t, "theta0", r.Parcel.Theta0K, tt.theta0, 0.005)
@@ -292,7 +292,7 @@ func TestAnalyzeEdgeCases(t *testing.T) {
 		name   string
 		s      *sounding.Sounding
 		cfg    Config
-		status string
+		status Status
 	}{
 		{"nil", nil, cfg, StatusNoLevels},
 		{"empty", &sounding.Sounding{}, cfg, StatusNoLevels},
@@ -307,7 +307,7 @@ func TestAnalyzeEdgeCases(t *testing.T) {
 		if r.Status != tt.status {
 			t.Errorf("%s: status %q, want %q", tt.name, r.Status, tt.status)
 		}
-		if r.Status != StatusOK && (r.SBI.Present || r.MixedLayer.Found || r.Parcel.Status != ParcelUndefined) {
+		if r.Status != StatusOK && (r.SBI.Present || r.MixedLayer.Found || r.Parcel.Status != MixingHeightUndefined) {
 			t.Errorf("%s: diagnostics present on failure: %+v", tt.name, r)
 		}
 		if tt.s != nil && len(r.HeightM) != len(tt.s.Levels) && tt.status != StatusInvalidConfig {
@@ -331,12 +331,12 @@ func TestAnalyzeEdgeCases(t *testing.T) {
 		t.Fatalf("profile is not superadiabatic at the surface: θ %v", r.ThetaK)
 	}
 	// The parcel rises past 983 hPa and meets the environment below 962 hPa.
-	if r.Parcel.Status != ParcelOK || !(r.Parcel.HeightAGLM > r.HeightAGLM[1] && r.Parcel.HeightAGLM < r.HeightAGLM[2]) {
+	if r.Parcel.Status != MixingHeightOK || !(r.Parcel.HeightAGLM > r.HeightAGLM[1] && r.Parcel.HeightAGLM < r.HeightAGLM[2]) {
 		t.Errorf("superadiabatic parcel = %+v (levels at %v)", r.Parcel, r.HeightAGLM)
 	}
 	// Never crosses below the ceiling: a parcel 30 K too warm.
 	cfg.Parcel.ExcessK = 30
-	if r := Analyze(ttbb(), cfg); r.Parcel.Status != ParcelUndefined || !math.IsNaN(r.Parcel.HeightAGLM) {
+	if r := Analyze(ttbb(), cfg); r.Parcel.Status != MixingHeightUndefined || !math.IsNaN(r.Parcel.HeightAGLM) {
 		t.Errorf("warm parcel = %+v", r.Parcel)
 	}
 }

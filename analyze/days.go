@@ -88,11 +88,20 @@ func DefaultDayConfig() DayConfig {
 		MinStableFraction: DefaultStableLayerConfig().MinFraction}
 }
 
-// Sources of a day's afternoon mixing height (DayRecord.AfternoonMHSource).
+// AfternoonSource is where a day's afternoon mixing height comes from
+// (DayRecord.AfternoonMHSource).
+type AfternoonSource string
+
+// Sources of a day's afternoon mixing height.
 const (
-	AfternoonFromHolzworth = "holzworth"        // morning profile and the day's maximum temperature (afternoon_mixing)
-	AfternoonFromSounding  = "afternoon_parcel" // the afternoon sounding's own parcel mixing height
+	AfternoonFromHolzworth AfternoonSource = "holzworth"        // morning profile and the day's maximum temperature (afternoon_mixing)
+	AfternoonFromSounding  AfternoonSource = "afternoon_parcel" // the afternoon sounding's own parcel mixing height
 )
+
+// AfternoonSources returns the sources in the order above.
+func AfternoonSources() []AfternoonSource {
+	return []AfternoonSource{AfternoonFromHolzworth, AfternoonFromSounding}
+}
 
 // DayRecord is one station's local solar day.
 type DayRecord struct {
@@ -102,18 +111,18 @@ type DayRecord struct {
 	Morning   int       // index in the input of the morning sounding, −1 when none
 	Afternoon int       // index of the afternoon/evening sounding, −1 when none
 
-	MorningSBI            Tri     // SBI on the morning sounding
-	MorningSBIStrengthK   float64 // K, NaN without one
-	AfternoonSBI          Tri     // SBI on the afternoon/evening sounding
-	MorningHeatDeficitJ   float64 // J m⁻², morning sounding
-	AfternoonHeatDeficitJ float64 // J m⁻², afternoon/evening sounding
-	MaxHeatDeficitJ       float64 // J m⁻², largest of the day's soundings
-	StableFraction        float64 // morning sounding, 0–1
-	DeepStable            Tri     // StableFraction ≥ MinStableFraction (Wolyn & McKee 1989)
-	AfternoonMHM          float64 // m AGL, NaN unknown
-	AfternoonMHSource     string  // AfternoonFromHolzworth, AfternoonFromSounding or ""
-	AfternoonWindMS       float64 // m/s, transport wind of the afternoon sounding
-	VentilationM2S        float64 // m² s⁻¹, AfternoonMHM × AfternoonWindMS
+	MorningSBI            Tri             // SBI on the morning sounding
+	MorningSBIStrengthK   float64         // K, NaN without one
+	AfternoonSBI          Tri             // SBI on the afternoon/evening sounding
+	MorningHeatDeficitJ   float64         // J m⁻², morning sounding
+	AfternoonHeatDeficitJ float64         // J m⁻², afternoon/evening sounding
+	MaxHeatDeficitJ       float64         // J m⁻², largest of the day's soundings
+	StableFraction        float64         // morning sounding, 0–1
+	DeepStable            Tri             // StableFraction ≥ MinStableFraction (Wolyn & McKee 1989)
+	AfternoonMHM          float64         // m AGL, NaN unknown
+	AfternoonMHSource     AfternoonSource // AfternoonFromHolzworth, AfternoonFromSounding or ""
+	AfternoonWindMS       float64         // m/s, transport wind of the afternoon sounding
+	VentilationM2S        float64         // m² s⁻¹, AfternoonMHM × AfternoonWindMS
 }
 
 // SBIPersists reports whether a morning SBI of at least minStrengthK is

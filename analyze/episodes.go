@@ -213,6 +213,27 @@ type EpisodeDay struct {
 	Status Tri // Yes (met) or Unknown (missing)
 }
 
+// EpisodeDayStatus names an EpisodeDay's Status in the column
+// episode_days.status.
+type EpisodeDayStatus string
+
+// Statuses of a day inside an episode.
+const (
+	DayMet     EpisodeDayStatus = "met"     // the day meets the rule
+	DayMissing EpisodeDayStatus = "missing" // unknown, kept inside by the gap allowance
+)
+
+// EpisodeDayStatuses returns the statuses in the order above.
+func EpisodeDayStatuses() []EpisodeDayStatus { return []EpisodeDayStatus{DayMet, DayMissing} }
+
+// StatusName returns DayMet for a day that meets the rule, else DayMissing.
+func (d EpisodeDay) StatusName() EpisodeDayStatus {
+	if d.Status == Yes {
+		return DayMet
+	}
+	return DayMissing
+}
+
 const day = 24 * time.Hour
 
 // FindEpisodes returns the episodes of criterion c in days (any order,

@@ -60,7 +60,7 @@ func DefaultHeffterConfig() HeffterConfig {
 // with the largest Δθ (note "largest_jump"). A base at the ground gives
 // status surface (height 0). No critical layer: undefined "no_critical_layer".
 // NaN grid values end a layer and are never part of one.
-func HeffterHeight(zAGLM, thetaK []float64, cfg HeffterConfig) (heightAGLM float64, status, note string) {
+func HeffterHeight(zAGLM, thetaK []float64, cfg HeffterConfig) (heightAGLM float64, status MixingHeightStatus, note string) {
 	nan := math.NaN()
 	if len(zAGLM) != len(thetaK) || len(zAGLM) < 2 {
 		return nan, MixingHeightUndefined, "too_few_levels"
@@ -118,12 +118,21 @@ func HeffterHeight(zAGLM, thetaK []float64, cfg HeffterConfig) (heightAGLM float
 
 // ---- Liu & Liang (2010), METHODS §4.4 ----
 
+// LiuLiangRegime is a boundary-layer regime as Liu & Liang (2010) name
+// them (the column soundings.liu_liang_regime).
+type LiuLiangRegime string
+
 // Liu & Liang regimes.
 const (
-	RegimeConvective = "CBL"
-	RegimeNeutral    = "NRL"
-	RegimeStable     = "SBL"
+	RegimeConvective LiuLiangRegime = "CBL"
+	RegimeNeutral    LiuLiangRegime = "NRL"
+	RegimeStable     LiuLiangRegime = "SBL"
 )
+
+// LiuLiangRegimes returns the Liu & Liang regimes in the order above.
+func LiuLiangRegimes() []LiuLiangRegime {
+	return []LiuLiangRegime{RegimeConvective, RegimeNeutral, RegimeStable}
+}
 
 // LiuLiangConfig parameterises the Liu & Liang (2010) method. Thresholds
 // as implemented by a general-purpose toolkit (METHODS §4.4; the paper
@@ -181,7 +190,7 @@ func LiuLiangOcean() LiuLiangConfig {
 //
 // Fewer than 5 grid levels: undefined "too_few_levels"; no level found:
 // undefined "no_crossing".
-func LiuLiangHeight(zAGLM, thetaK, speedMS []float64, cfg LiuLiangConfig) (heightAGLM float64, regime, status, note string) {
+func LiuLiangHeight(zAGLM, thetaK, speedMS []float64, cfg LiuLiangConfig) (heightAGLM float64, regime LiuLiangRegime, status MixingHeightStatus, note string) {
 	nan := math.NaN()
 	n := len(zAGLM)
 	if len(thetaK) != n || len(speedMS) != n || n < 5 {
@@ -203,7 +212,7 @@ func LiuLiangHeight(zAGLM, thetaK, speedMS []float64, cfg LiuLiangConfig) (heigh
 	case math.IsNaN(d):
 		return nan, "", MixingHeightUndefined, "missing_theta"
 	}
-	ok := func(z float64, note string) (float64, string, string, string) {
+	ok := func(z float64, note string) (float64, LiuLiangRegime, MixingHeightStatus, string) {
 		return z - zAGLM[0], regime, MixingHeightOK, note
 	}
 	if regime != RegimeStable {

@@ -7,11 +7,15 @@ import (
 	"github.com/sondeclim/sondeclim/physics/thermo"
 )
 
-// Reference kinds of the heat deficit's top (HeatDeficitConfig.Reference).
+// HeatDeficitReference is the kind of the heat deficit's top
+// (HeatDeficitConfig.Reference).
+type HeatDeficitReference string
+
+// Reference kinds of the heat deficit's top.
 const (
-	HeatDeficitAGL      = "agl"      // a fixed height above ground
-	HeatDeficitMSL      = "msl"      // a height above mean sea level, e.g. a basin's rim
-	HeatDeficitPressure = "pressure" // a pressure level
+	HeatDeficitAGL      HeatDeficitReference = "agl"      // a fixed height above ground
+	HeatDeficitMSL      HeatDeficitReference = "msl"      // a height above mean sea level, e.g. a basin's rim
+	HeatDeficitPressure HeatDeficitReference = "pressure" // a pressure level
 )
 
 // HeatDeficitConfig sets the reference height h of the heat deficit
@@ -22,7 +26,7 @@ const (
 // deficit was introduced for; a basin's rim height, HeatDeficitMSL, is the
 // better choice where one exists, as in Whiteman, Bian & Zhong 1999).
 type HeatDeficitConfig struct {
-	Reference  string
+	Reference  HeatDeficitReference
 	HeightM    float64 // m AGL (agl) or gpm MSL (msl)
 	PressurePa float64 // Pa (pressure)
 }

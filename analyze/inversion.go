@@ -9,14 +9,23 @@ import (
 	"github.com/sondeclim/sondeclim/physics/thermo"
 )
 
-// Inversion classes (see InversionClassConfig for the rules and their order).
+// InversionClass is the class of an inversion (see InversionClassConfig
+// for the rules and their order).
+type InversionClass string
+
+// Inversion classes.
 const (
-	ClassRadiation    = "radiation"
-	ClassSubsidence   = "subsidence"
-	ClassFrontal      = "frontal"
-	ClassCapping      = "capping"
-	ClassUnclassified = "unclassified"
+	ClassRadiation    InversionClass = "radiation"
+	ClassSubsidence   InversionClass = "subsidence"
+	ClassFrontal      InversionClass = "frontal"
+	ClassCapping      InversionClass = "capping"
+	ClassUnclassified InversionClass = "unclassified"
 )
+
+// InversionClasses returns the inversion classes in the order above.
+func InversionClasses() []InversionClass {
+	return []InversionClass{ClassRadiation, ClassSubsidence, ClassFrontal, ClassCapping, ClassUnclassified}
+}
 
 // Inversion is a temperature inversion layer: a layer in which temperature
 // increases with height (METHODS §3.1). Heights are m AGL.
@@ -54,7 +63,7 @@ type Inversion struct {
 	WindTurningDeg float64
 	// Class is one of the Class* constants (InversionClassConfig rules),
 	// "" when absent.
-	Class string
+	Class InversionClass
 }
 
 // DepthM returns TopAGLM − BaseAGLM in m (NaN when absent).
@@ -157,7 +166,7 @@ func (pr profile) inversionFrom(s layerSpan, n int, f thermo.SatVapFormula) Inve
 
 // classContext is what the class rules need beyond the layer itself.
 type classContext struct {
-	sunClass       string
+	sunClass       sun.Class
 	solarTimeH     float64   // local apparent solar time, h
 	surfaceWindMS  float64   // m/s
 	mixedLayerTops []float64 // m AGL
@@ -170,11 +179,11 @@ type classContext struct {
 // and the tops of the sounding's well-mixed layers in m AGL. Missing
 // inputs (NaN, unknown sun class) never satisfy a rule. An absent
 // inversion gives "".
-func ClassifyInversion(v Inversion, sunClass string, solarTimeH, surfaceWindMS float64, mixedLayerTopsAGLM []float64, cfg InversionClassConfig) string {
+func ClassifyInversion(v Inversion, sunClass sun.Class, solarTimeH, surfaceWindMS float64, mixedLayerTopsAGLM []float64, cfg InversionClassConfig) InversionClass {
 	return classify(v, classContext{sunClass, solarTimeH, surfaceWindMS, mixedLayerTopsAGLM}, cfg)
 }
 
-func classify(v Inversion, c classContext, cfg InversionClassConfig) string {
+func classify(v Inversion, c classContext, cfg InversionClassConfig) InversionClass {
 	if !v.Present {
 		return ""
 	}

@@ -37,7 +37,7 @@ type Method struct {
 	// with MixingHeightConfig.ByRegime, only those methods enter the
 	// consensus of a sounding in that regime (see ClassifyRegime and
 	// fitsRegime).
-	Regimes []string
+	Regimes []BLRegime
 	// Consensus is true when the method enters the default consensus
 	// (DefaultMixingHeightConfig).
 	Consensus bool
@@ -57,9 +57,9 @@ type Method struct {
 // Richardson and Liu–Liang methods are a proposal, no source: both are
 // defined in a near-neutral layer, the others find a residual top.
 var (
-	allRegimes        = []string{BLConvective, BLStable, BLNeutral}
-	convectiveRegimes = []string{BLConvective}
-	stableRegimes     = []string{BLStable}
+	allRegimes        = []BLRegime{BLConvective, BLStable, BLNeutral}
+	convectiveRegimes = []BLRegime{BLConvective}
+	stableRegimes     = []BLRegime{BLStable}
 )
 
 // methods is the registry, in output order. The consensus flags keep the
@@ -190,7 +190,7 @@ func (in *methodInput) richardson(name string, ric float64) MixingHeight {
 
 // crossingNote is the note of the parcel methods: "no_crossing" when
 // undefined.
-func crossingNote(status string) string {
+func crossingNote(status MixingHeightStatus) string {
 	if status == MixingHeightUndefined {
 		return "no_crossing"
 	}

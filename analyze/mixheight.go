@@ -8,17 +8,24 @@ import (
 	"github.com/sondeclim/sondeclim/analyze/stats"
 )
 
-// Mixing-height statuses (METHODS §4): every method reports one.
+// MixingHeightStatus says whether a mixing-height method found a height
+// (METHODS §4): every method, the parcel and the consensus report one.
+type MixingHeightStatus string
+
+// Mixing-height statuses.
 const (
-	MixingHeightOK        = ParcelOK        // a height was found below the ceiling
-	MixingHeightSurface   = ParcelSurface   // the method gives the ground: height 0
-	MixingHeightUndefined = ParcelUndefined // no result (no crossing, missing input)
+	MixingHeightOK        MixingHeightStatus = "ok"        // a height was found below the ceiling
+	MixingHeightSurface   MixingHeightStatus = "surface"   // the method gives the ground (the parcel is stable from the ground up): height 0
+	MixingHeightUndefined MixingHeightStatus = "undefined" // no result (no crossing below the ceiling, missing input, not analysable)
 )
+
+// Defined reports whether the status gives a height: ok or surface (0 m).
+func (s MixingHeightStatus) Defined() bool { return s == MixingHeightOK || s == MixingHeightSurface }
 
 // MixingHeightStatuses returns the mixing-height statuses in the order
 // above (the vocabulary of the status columns of the store).
-func MixingHeightStatuses() []string {
-	return []string{MixingHeightOK, MixingHeightSurface, MixingHeightUndefined}
+func MixingHeightStatuses() []MixingHeightStatus {
+	return []MixingHeightStatus{MixingHeightOK, MixingHeightSurface, MixingHeightUndefined}
 }
 
 // Mixing-height method names (the registry, methods.go, gives their order).
@@ -47,7 +54,7 @@ const (
 type MixingHeight struct {
 	Method     string  // the Name of a registered Method
 	HeightAGLM float64 // m AGL; 0 for surface, NaN for undefined
-	Status     string  // MixingHeightOK, MixingHeightSurface or MixingHeightUndefined
+	Status     MixingHeightStatus
 	// Note is a short snake_case reason for undefined results (e.g.
 	// "missing_wind", "no_crossing"), or a detail of an ok result (e.g.
 	// "ric=0.25", "regime=SBL;llj"); may be empty.
@@ -64,7 +71,7 @@ func undefinedMH(method, note string) MixingHeight {
 	return MixingHeight{Method: method, HeightAGLM: math.NaN(), Status: MixingHeightUndefined, Note: note, LevelSpacingM: math.NaN()}
 }
 
-func mhFrom(method string, h float64, status, note string) MixingHeight {
+func mhFrom(method string, h float64, status MixingHeightStatus, note string) MixingHeight {
 	if status == MixingHeightUndefined {
 		return undefinedMH(method, note)
 	}
@@ -121,7 +128,7 @@ type Consensus struct {
 	// (mean of the middle two for an even count), m AGL; 0 when none is ok
 	// but one is surface; NaN when all are undefined.
 	HeightAGLM float64
-	Status     string // ok, surface or undefined, as above
+	Status     MixingHeightStatus
 	// SpreadM is max − min of the ok heights, m (0 for a single one, NaN
 	// for none).
 	SpreadM float64
@@ -280,7 +287,7 @@ func BulkRichardsonNumbers(dst, zAGLM, thetaVK, uMS, vMS []float64, g float64, c
 // surface, a NaN Rib before the crossing gives undefined "missing_wind"; no
 // crossing at or below ceilingAGLM gives undefined "no_crossing". The
 // surface reference itself never counts, so the status is never surface.
-func RichardsonHeight(zAGLM, rib []float64, ric, ceilingAGLM float64) (heightAGLM float64, status, note string) {
+func RichardsonHeight(zAGLM, rib []float64, ric, ceilingAGLM float64) (heightAGLM float64, status MixingHeightStatus, note string) {
 	nan := math.NaN()
 	if len(zAGLM) != len(rib) || len(rib) < 2 || math.IsNaN(rib[0]) {
 		return nan, MixingHeightUndefined, "too_few_levels"

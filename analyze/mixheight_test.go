@@ -34,7 +34,7 @@ func TestBulkRichardson(t *testing.T) {
 		ric    float64
 		ustar  float64
 		want   float64
-		status string
+		status MixingHeightStatus
 		note   string
 	}{
 		{"Ric 0.25", 0.25, 0, 639.9, MixingHeightOK, "ric=0.25"},
@@ -235,7 +235,7 @@ func TestHeffter(t *testing.T) {
 		name   string
 		segs   [][2]float64
 		want   float64
-		status string
+		status MixingHeightStatus
 		note   string
 	}{
 		// Neutral to 1000 m, 8 K/km to 1400 m (Δθ 3.2 K), 3 K/km above: 1000 m.
@@ -324,10 +324,12 @@ func TestLiuLiang(t *testing.T) {
 		return 300 + 0.005*(z-800)
 	})
 	tests := []struct {
-		name          string
-		th, sp        []float64
-		want          float64
-		regime, st, n string
+		name   string
+		th, sp []float64
+		want   float64
+		regime LiuLiangRegime
+		st     MixingHeightStatus
+		n      string
 	}{
 		{"CBL", cbl, calm, 1350, RegimeConvective, MixingHeightOK, ""},
 		{"SBL thermal", sbl, calm, 200, RegimeStable, MixingHeightOK, "thermal"},

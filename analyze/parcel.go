@@ -2,16 +2,9 @@ package analyze
 
 import "math"
 
-// Parcel mixing-height statuses (METHODS §4).
-const (
-	ParcelOK        = "ok"        // a crossing was found below the ceiling
-	ParcelSurface   = "surface"   // the parcel is stable from the ground up: height 0
-	ParcelUndefined = "undefined" // no crossing below the ceiling, or not analysable
-)
-
 // Parcel is the parcel (Holzworth-type) mixing height of a sounding.
 type Parcel struct {
-	Status     string  // ParcelOK, ParcelSurface or ParcelUndefined
+	Status     MixingHeightStatus
 	HeightAGLM float64 // m AGL; 0 for surface, NaN for undefined
 	Theta0K    float64 // K; potential temperature of the lifted parcel
 }
@@ -24,14 +17,14 @@ type Parcel struct {
 // surface level and is not searched. Levels with NaN height or θ are
 // skipped.
 //
-// Status is ParcelSurface with height 0 when θ0 < θ of the first valid
-// level above the surface, ParcelUndefined with NaN when no crossing lies
+// Status is MixingHeightSurface with height 0 when θ0 < θ of the first valid
+// level above the surface, MixingHeightUndefined with NaN when no crossing lies
 // at or below ceilingAGLM (or fewer than two levels, NaN θ0, or mismatched
-// slices), else ParcelOK.
-func ParcelMixingHeight(zAGLM, thetaK []float64, theta0K, ceilingAGLM float64) (heightAGLM float64, status string) {
+// slices), else MixingHeightOK.
+func ParcelMixingHeight(zAGLM, thetaK []float64, theta0K, ceilingAGLM float64) (heightAGLM float64, status MixingHeightStatus) {
 	nan := math.NaN()
 	if len(zAGLM) != len(thetaK) || math.IsNaN(theta0K) {
-		return nan, ParcelUndefined
+		return nan, MixingHeightUndefined
 	}
 	prev := -1
 	for k := 1; k < len(zAGLM); k++ {
@@ -40,22 +33,22 @@ func ParcelMixingHeight(zAGLM, thetaK []float64, theta0K, ceilingAGLM float64) (
 			continue
 		}
 		if z > ceilingAGLM && (prev < 0 || th < theta0K) {
-			return nan, ParcelUndefined
+			return nan, MixingHeightUndefined
 		}
 		switch {
 		case prev < 0 && theta0K < th:
-			return 0, ParcelSurface
+			return 0, MixingHeightSurface
 		case th >= theta0K:
 			h := z
 			if prev >= 0 && th > thetaK[prev] {
 				h = zAGLM[prev] + (theta0K-thetaK[prev])/(th-thetaK[prev])*(z-zAGLM[prev])
 			}
 			if h > ceilingAGLM {
-				return nan, ParcelUndefined
+				return nan, MixingHeightUndefined
 			}
-			return h, ParcelOK
+			return h, MixingHeightOK
 		}
 		prev = k
 	}
-	return nan, ParcelUndefined
+	return nan, MixingHeightUndefined
 }

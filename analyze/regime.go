@@ -6,30 +6,33 @@ import (
 	"github.com/sondeclim/sondeclim/physics/sun"
 )
 
-// Boundary-layer regimes of a sounding (Result.Regime), the column
-// soundings.bl_regime. They decide which mixing-height methods may enter
-// the consensus (Method.Regimes, METHODS §4.6a).
+// BLRegime is the boundary-layer regime of a sounding (Result.Regime), the
+// column soundings.bl_regime. It decides which mixing-height methods may
+// enter the consensus (Method.Regimes, METHODS §4.6a).
+type BLRegime string
+
+// Boundary-layer regimes.
 const (
 	// BLConvective: the ground heats the air and mixes it upward; the
 	// mixing height is the top of the convective (or, near sunset, the
 	// decaying afternoon) mixed layer.
-	BLConvective = "convective"
+	BLConvective BLRegime = "convective"
 	// BLStable: a stable (nocturnal) boundary layer rests on the ground;
 	// the mixing height is its depth. The layer above it up to the
 	// previous day's capping inversion is the residual layer
 	// (Result.ResidualTopAGLM), not mixed from the ground.
-	BLStable = "stable"
+	BLStable BLRegime = "stable"
 	// BLNeutral: sun below the horizon but no stable layer at the ground
 	// (windy or overcast nights): a mechanically mixed, near-neutral
 	// layer, coupled with the residual layer above it.
-	BLNeutral = "neutral"
+	BLNeutral BLRegime = "neutral"
 	// BLUnknown: no sun class (no position) and no Liu–Liang regime; the
 	// consensus then uses every consensus method, as before the regimes.
-	BLUnknown = ""
+	BLUnknown BLRegime = ""
 )
 
 // BLRegimes lists the regimes a method may serve, in documentation order.
-var BLRegimes = []string{BLConvective, BLStable, BLNeutral}
+var BLRegimes = []BLRegime{BLConvective, BLStable, BLNeutral}
 
 // ClassifyRegime returns the boundary-layer regime of a sounding from its
 // sun class (package sun), whether a significant surface-based inversion
@@ -50,7 +53,7 @@ var BLRegimes = []string{BLConvective, BLStable, BLNeutral}
 //     neutral;
 //  4. without a sun class (no position): the Liu–Liang regime alone, CBL
 //     convective and NRL neutral; unknown when that is undefined too.
-func ClassifyRegime(sunClass string, sbiPresent bool, liuLiang string) string {
+func ClassifyRegime(sunClass sun.Class, sbiPresent bool, liuLiang LiuLiangRegime) BLRegime {
 	switch {
 	case sbiPresent || liuLiang == RegimeStable:
 		return BLStable
@@ -71,7 +74,7 @@ func ClassifyRegime(sunClass string, sbiPresent bool, liuLiang string) string {
 // regime admits every method) and, for the Liu–Liang method, its own
 // regime agrees — its SBL height only in the stable regime, its CBL/NRL
 // height only outside it (the two are different constructions, §4.4).
-func fitsRegime(m Method, g, liuLiang string) bool {
+func fitsRegime(m Method, g BLRegime, liuLiang LiuLiangRegime) bool {
 	if g == BLUnknown {
 		return true
 	}
@@ -88,7 +91,7 @@ func fitsRegime(m Method, g, liuLiang string) bool {
 
 // regimeConsensus appends to out the names in names whose methods fit
 // regime g, and returns it.
-func regimeConsensus(out, names []string, g, liuLiang string) []string {
+func regimeConsensus(out, names []string, g BLRegime, liuLiang LiuLiangRegime) []string {
 	for _, name := range names {
 		if m, ok := LookupMethod(name); ok && fitsRegime(m, g, liuLiang) {
 			out = append(out, name)

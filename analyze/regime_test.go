@@ -17,10 +17,10 @@ import (
 // regime decides.
 func TestClassifyRegime(t *testing.T) {
 	for _, c := range []struct {
-		sun  string
+		sun  sun.Class
 		sbi  bool
-		ll   string
-		want string
+		ll   LiuLiangRegime
+		want BLRegime
 	}{
 		{sun.Night, true, RegimeNeutral, BLStable},
 		{sun.Day, true, RegimeConvective, BLStable}, // an SBI by day is still a stable layer at the ground
@@ -39,8 +39,10 @@ func TestClassifyRegime(t *testing.T) {
 	}
 	// METHODS §4.6a: stable-layer methods at night, convective ones by day.
 	for _, c := range []struct {
-		method, regime, ll string
-		fits               bool
+		method string
+		regime BLRegime
+		ll     LiuLiangRegime
+		fits   bool
 	}{
 		{MethodSBITop, BLStable, RegimeStable, true},
 		{MethodSBITop, BLConvective, RegimeNeutral, false},

@@ -61,10 +61,10 @@ func TestClassifyInversion(t *testing.T) {
 	tests := []struct {
 		name     string
 		v        Inversion
-		sunClass string
+		sunClass sun.Class
 		lastH    float64
 		windMS   float64
-		want     string
+		want     InversionClass
 	}{
 		{"radiation at night", sbi, sun.Night, 3, 3, ClassRadiation},
 		{"radiation at low morning sun", sbi, sun.LowSun, 6.5, 5, ClassRadiation},
@@ -243,11 +243,11 @@ func TestTransportWind(t *testing.T) {
 	// 500 m is 2.5 m/s and to 1000 m 5 m/s, both conventions.
 	u := []float64{0, 5, 10, 10}
 	v := make([]float64, 4)
-	for _, conv := range []string{TransportScalar, TransportVector} {
-		near(t, conv+" 500", TransportWind(z, u, v, 500, conv), 2.5, 1e-12)
-		near(t, conv+" 1000", TransportWind(z, u, v, 1000, conv), 5, 1e-12)
+	for _, conv := range TransportConventions() {
+		near(t, string(conv)+" 500", TransportWind(z, u, v, 500, conv), 2.5, 1e-12)
+		near(t, string(conv)+" 1000", TransportWind(z, u, v, 1000, conv), 5, 1e-12)
 		// 1500 m: (∫0..1000 = 5000) + 500·10 = 10000 m²/s over 1500 m.
-		near(t, conv+" 1500", TransportWind(z, u, v, 1500, conv), 10000.0/1500, 1e-12)
+		near(t, string(conv)+" 1500", TransportWind(z, u, v, 1500, conv), 10000.0/1500, 1e-12)
 	}
 	// Westerly 5 m/s to 500 m, easterly 5 m/s from 1000 m: the scalar speed
 	// at the levels is 5 m/s throughout → 5 m/s; u integrates to

@@ -66,7 +66,7 @@ func TestSterlingPublishedClimatology(t *testing.T) {
 	key := func(h int, season string) string { return string(rune('0'+h/12)) + season }
 	cons, rib := map[string][]float64{}, map[string][]float64{}
 	bySun := map[string][]float64{}
-	regimes := map[string]int{}
+	regimes := map[BLRegime]int{}
 	for _, s := range all {
 		c := *s
 		c.ElevationM = elev

@@ -121,7 +121,7 @@ func TestSterling2016(t *testing.T) {
 	}
 	cfg := DefaultConfig()
 	var sbi, valid [24]int
-	var class = map[string]int{}
+	var class = map[sun.Class]int{}
 	rib := map[string][]float64{}
 	cons := map[string][]float64{}
 	for _, s := range all {

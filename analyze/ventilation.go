@@ -7,10 +7,13 @@ import "math"
 // 1 kt = 1852/3600 m/s and 1 ft = 0.3048 m exactly by definition).
 const KtFtPerM2S = 3600.0 / 1852 / 0.3048
 
+// VentilationUnit is the unit of a ventilation category table.
+type VentilationUnit string
+
 // Ventilation-table units.
 const (
-	UnitM2S  = "m2/s"
-	UnitKtFt = "kt*ft"
+	UnitM2S  VentilationUnit = "m2/s"
+	UnitKtFt VentilationUnit = "kt*ft"
 )
 
 // VentilationCategory is one row of a category table: values at or above
@@ -26,7 +29,7 @@ type VentilationCategory struct {
 // configuration and its Name is recorded with every result.
 type VentilationTable struct {
 	Name       string
-	Unit       string                // UnitM2S or UnitKtFt
+	Unit       VentilationUnit       // UnitM2S or UnitKtFt
 	Categories []VentilationCategory // ascending MinInclusive; the first should be 0
 	// Source names who set the thresholds. It does not change a result,
 	// so it is left out of the analysis parameters (and their hash).
@@ -85,7 +88,7 @@ type VentilationConfig struct {
 	// the Name of a registered Method (Methods).
 	HeightMethod string
 	// TransportWind is TransportScalar (default) or TransportVector.
-	TransportWind string
+	TransportWind TransportConvention
 	// Table categorises the index; default GenericVentilationTable.
 	Table VentilationTable
 }
@@ -100,14 +103,14 @@ func DefaultVentilationConfig() VentilationConfig {
 
 // Ventilation is the ventilation index of one sounding.
 type Ventilation struct {
-	HeightMethod     string  // mixing height used (VentilationConfig.HeightMethod)
-	MixingHeightAGLM float64 // m AGL; NaN when that height is undefined
-	TransportWind    string  // averaging convention
-	TransportWindMS  float64 // m/s, mean wind from the ground to the mixing height
-	IndexM2S         float64 // m²/s, MixingHeightAGLM × TransportWindMS
-	IndexKtFt        float64 // kt·ft, IndexM2S × KtFtPerM2S
-	Table            string  // name of the category table
-	Category         string  // label, "" when the index is NaN
+	HeightMethod     string              // mixing height used (VentilationConfig.HeightMethod)
+	MixingHeightAGLM float64             // m AGL; NaN when that height is undefined
+	TransportWind    TransportConvention // averaging convention
+	TransportWindMS  float64             // m/s, mean wind from the ground to the mixing height
+	IndexM2S         float64             // m²/s, MixingHeightAGLM × TransportWindMS
+	IndexKtFt        float64             // kt·ft, IndexM2S × KtFtPerM2S
+	Table            string              // name of the category table
+	Category         string              // label, "" when the index is NaN
 }
 
 // VentilationIndex returns VI = MH × U in m²/s for a mixing height mhM (m

@@ -85,7 +85,7 @@ func ParseVentilationTable(r io.Reader) (VentilationTable, error) {
 				}
 				t.Name = val
 			case "unit":
-				switch val {
+				switch VentilationUnit(val) {
 				case UnitM2S, "m²/s":
 					t.Unit = UnitM2S
 				case UnitKtFt, "kt·ft", "kt-ft":

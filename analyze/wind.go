@@ -7,15 +7,24 @@ import (
 	"github.com/sondeclim/sondeclim/sounding"
 )
 
-// Transport-wind averaging conventions (METHODS §5).
+// TransportConvention is a transport-wind averaging convention (METHODS §5),
+// the column soundings.transport_wind_method.
+type TransportConvention string
+
+// Transport-wind averaging conventions.
 const (
 	// TransportScalar is the height-weighted mean of the scalar speed,
 	// (1/MH)∫₀^MH |V| dz, trapezoid in z. The default.
-	TransportScalar = "scalar_mean"
+	TransportScalar TransportConvention = "scalar_mean"
 	// TransportVector is the speed of the height-weighted mean vector,
 	// |(1/MH)∫₀^MH V dz|, trapezoid in z on u and v.
-	TransportVector = "vector_mean"
+	TransportVector TransportConvention = "vector_mean"
 )
+
+// TransportWinds returns the conventions in the order above.
+func TransportConventions() []TransportConvention {
+	return []TransportConvention{TransportScalar, TransportVector}
+}
 
 // levelWind returns the wind components of a level in m/s, u = −s sin d,
 // v = −s cos d for speed s (m/s) and direction d (degrees, from), and
@@ -134,7 +143,7 @@ func (w windProfile) at(z float64) (u, v float64) {
 // level's speed. NaN when the profile does not reach topAGLM, when a wind
 // inside the layer is NaN, when topAGLM is NaN or negative, for an unknown
 // convention, or for unsorted or mismatched input.
-func TransportWind(zAGLM, uMS, vMS []float64, topAGLM float64, convention string) float64 {
+func TransportWind(zAGLM, uMS, vMS []float64, topAGLM float64, convention TransportConvention) float64 {
 	n := len(zAGLM)
 	if n == 0 || len(uMS) != n || len(vMS) != n || !(topAGLM >= 0) || !(topAGLM <= zAGLM[n-1]) ||
 		(convention != TransportScalar && convention != TransportVector) {

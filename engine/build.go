@@ -585,7 +585,7 @@ func (r *run) analysePart(all []*sounding.Sounding, observed map[*sounding.Sound
 		results[i] = res
 		srows[i] = res.sounding
 		if res.status != analyze.StatusOK {
-			stats.notAnalysable[res.status]++
+			stats.notAnalysable[string(res.status)]++
 		}
 	}
 	rows.Soundings = srows

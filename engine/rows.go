@@ -13,7 +13,7 @@ import (
 // afternoon pairing needs. Its other rows go to a schema.PartRows.
 type result struct {
 	sounding schema.SoundingRow
-	status   string
+	status   analyze.Status
 	analysis analyze.Result
 }
 
@@ -27,7 +27,7 @@ func analyzeOne(s *sounding.Sounding, rep qc.Report, cfg analyze.Config, useSusp
 		// Excluded by QC: still written, counted as attempted but not
 		// valid, with the QC reason as its analysis status.
 		res = analyze.Analyze(nil, cfg)
-		res.Status = "qc_" + rep.Status
+		res.Status = analyze.Status("qc_" + rep.Status)
 	}
 	row := schema.AppendSounding(out, s, rep, &res)
 	return result{sounding: row, status: res.Status, analysis: res}

@@ -126,7 +126,7 @@ func value(l *sounding.Level, v sounding.Var) float64 {
 // becomes missing for the later checks, a corrected one takes newValue.
 // A bad pressure removes the whole level. It reports whether the finding
 // was recorded.
-func (st *state) flag(level int, v sounding.Var, sev Flag, check string, val, newValue float64, format string, a ...any) bool {
+func (st *state) flag(level int, v sounding.Var, sev Flag, check CheckName, val, newValue float64, format string, a ...any) bool {
 	f := Finding{Level: level, Var: v, Check: check, Severity: sev, Value: val, NewValue: newValue,
 		Message: fmt.Sprintf(format, a...)}
 	if level < 0 || v >= AllVars {
@@ -182,7 +182,7 @@ func sev(bad bool) Flag {
 // sounding: values the archive itself removed, and humidity at very cold
 // temperatures, which nearly every sounding has. They are listed but do
 // not change the status or the counts.
-func routine(check string) bool { return check == CheckUpstream || check == CheckColdHumidity }
+func routine(check CheckName) bool { return check == CheckUpstream || check == CheckColdHumidity }
 
 // finish sets the status when no check set one: suspect when any finding
 // other than a routine one exists, else ok.
@@ -202,7 +202,7 @@ func (st *state) finish() {
 // reject sets a rejected status with a sounding-wide structure finding.
 func (st *state) reject(reason, format string, a ...any) {
 	st.flag(-1, AllVars, Bad, CheckStructure, nan, nan, format, a...)
-	st.rep.Status = "rejected:" + reason
+	st.rep.Status = rejected(reason)
 }
 
 // structure checks the sounding as a whole and reports whether the other

@@ -46,7 +46,7 @@ func diff(base, got []Finding) (added, removed []Finding) {
 type expect struct {
 	level    int
 	variable string
-	check    string
+	check    CheckName
 	severity Flag
 }
 

@@ -212,7 +212,7 @@ func (st *state) coverage() {
 		st.flag(-1, AllVars, Suspect, CheckCoverage, nan, nan,
 			"%d level(s) with pressure and temperature at or below %.0f hPa, %d needed",
 			low, c.CoverageLowPa/100, c.CoverageMinLevels)
-		st.rep.Status = "insufficient:few_low_levels"
+		st.rep.Status = insufficient("few_low_levels")
 		return
 	}
 	top := idx[len(idx)-1]
@@ -239,7 +239,7 @@ func (st *state) coverage() {
 	st.flag(-1, AllVars, Suspect, CheckCoverage, nan, nan,
 		"usable temperatures reach only %.1f hPa (%.0f m above ground); %.0f hPa or %.0f m needed",
 		pTop/100, agl, c.CoverageTopPa/100, c.CoverageTopAGLM)
-	st.rep.Status = "insufficient:shallow"
+	st.rep.Status = insufficient("shallow")
 }
 
 // mostlyBad rejects a sounding in which more than MaxBadTemperatureFrac of

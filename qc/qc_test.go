@@ -97,7 +97,7 @@ func TestIsothermalThickness(t *testing.T) {
 	}
 }
 
-func findingsOf(r Report, check string) []Finding {
+func findingsOf(r Report, check CheckName) []Finding {
 	var out []Finding
 	for _, f := range r.Findings {
 		if f.Check == check {
@@ -188,7 +188,7 @@ func TestGrossLimits(t *testing.T) {
 		name    string
 		edit    func(l *sounding.Level)
 		v       sounding.Var
-		check   string
+		check   CheckName
 		flagged bool
 	}{
 		{"T −95 °C accepted", func(l *sounding.Level) { l.TemperatureK = c0 - 95 }, sounding.VarTemperature, CheckGross, false},
@@ -260,7 +260,7 @@ func TestStructureAndCoverage(t *testing.T) {
 		name   string
 		s      *sounding.Sounding
 		cfg    func(*Config)
-		status string
+		status Status
 	}{
 		// Sources for the coverage rule: METHODS.md §6 "Depth / coverage"
 		// (≥ 500 hPa or 3 km, ≥ 3 levels below 700 hPa).

@@ -25,9 +25,9 @@ func collect(ss []*sounding.Sounding, cfg Config) *stats {
 		r := Check(s, cfg)
 		st.soundings++
 		st.levels += len(s.Levels)
-		st.status[strings.SplitN(r.Status, ":", 2)[0]+statusReason(r.Status)]++
+		st.status[strings.SplitN(string(r.Status), ":", 2)[0]+statusReason(string(r.Status))]++
 		for _, f := range r.Findings {
-			key := f.Check + "/" + f.Severity.String()
+			key := string(f.Check) + "/" + f.Severity.String()
 			if st.levelsBy[key] == nil {
 				st.levelsBy[key], st.soundingsBy[key] = map[[2]int]bool{}, map[int]bool{}
 			}

@@ -36,22 +36,32 @@ func (f Flag) String() string {
 	return fmt.Sprintf("flag(%d)", uint8(f))
 }
 
-// Names of the checks, as written in the check column of findings.
+// CheckName names a quality-control check, as written in the qc_check column
+// of findings.
+type CheckName string
+
+// Names of the checks.
 const (
-	CheckStructure      = "structure"                  // header, level count, surface level, any pressure at all
-	CheckUpstream       = "upstream_removed"           // the archive's own QC removed the value ("bad (upstream)")
-	CheckGross          = "gross_limit"                // value outside physical limits
-	CheckDewpoint       = "dewpoint_above_temperature" // Td > T + tolerance
-	CheckNearSurfWind   = "near_surface_wind"          // implausibly strong wind just above the ground
-	CheckPressureOrder  = "pressure_order"             // pressure not strictly decreasing
-	CheckHydrostatic    = "hydrostatic"                // reported heights inconsistent with temperatures
-	CheckHeightOrder    = "height_order"               // height not increasing
-	CheckSpike          = "temperature_spike"          // isolated temperature spike
-	CheckSuperadiabatic = "superadiabatic"             // superadiabatic layer above the surface layer
-	CheckColdHumidity   = "cold_humidity"              // humidity at very cold temperatures
-	CheckSurfPressure   = "surface_pressure"           // surface pressure vs station elevation
-	CheckCoverage       = "coverage"                   // not enough of the lower troposphere
+	CheckStructure      CheckName = "structure"                  // header, level count, surface level, any pressure at all
+	CheckUpstream       CheckName = "upstream_removed"           // the archive's own QC removed the value ("bad (upstream)")
+	CheckGross          CheckName = "gross_limit"                // value outside physical limits
+	CheckDewpoint       CheckName = "dewpoint_above_temperature" // Td > T + tolerance
+	CheckNearSurfWind   CheckName = "near_surface_wind"          // implausibly strong wind just above the ground
+	CheckPressureOrder  CheckName = "pressure_order"             // pressure not strictly decreasing
+	CheckHydrostatic    CheckName = "hydrostatic"                // reported heights inconsistent with temperatures
+	CheckHeightOrder    CheckName = "height_order"               // height not increasing
+	CheckSpike          CheckName = "temperature_spike"          // isolated temperature spike
+	CheckSuperadiabatic CheckName = "superadiabatic"             // superadiabatic layer above the surface layer
+	CheckColdHumidity   CheckName = "cold_humidity"              // humidity at very cold temperatures
+	CheckSurfPressure   CheckName = "surface_pressure"           // surface pressure vs station elevation
+	CheckCoverage       CheckName = "coverage"                   // not enough of the lower troposphere
 )
+
+// Checks returns the names of the checks in the order above (the
+// vocabulary of the qc_check column).
+func Checks() []CheckName {
+	return []CheckName{CheckStructure, CheckUpstream, CheckGross, CheckDewpoint, CheckNearSurfWind, CheckPressureOrder, CheckHydrostatic, CheckHeightOrder, CheckSpike, CheckSuperadiabatic, CheckColdHumidity, CheckSurfPressure, CheckCoverage}
+}
 
 // AllVars stands for "the whole level" or "the whole sounding" in a
 // Finding's Var.
@@ -65,8 +75,8 @@ type Finding struct {
 	// Var is the variable the finding is about, or AllVars for the whole
 	// level (Level ≥ 0) or the whole sounding (Level = −1).
 	Var      sounding.Var
-	Check    string // one of the Check… names
-	Severity Flag   // Suspect, Bad or Corrected
+	Check    CheckName // one of the Check… names
+	Severity Flag      // Suspect, Bad or Corrected
 	// Value is the value as observed, in the model's SI unit for Var
 	// (Pa, gpm, K, %, K, degrees, m/s, s); NaN when there is none
 	// (always for whole-level and whole-sounding findings).
@@ -88,19 +98,28 @@ func (f Finding) VariableName() string {
 	return "sounding"
 }
 
-// Sounding statuses. Status values other than these two carry a reason
-// after a colon: "insufficient:<reason>" (structurally sound but not enough
-// of the lower troposphere for boundary-layer statistics) and
-// "rejected:<reason>" (unusable).
+// Status is the quality-control status of a sounding (the column
+// soundings.qc_status): StatusOK, StatusSuspect, or a reason after a
+// colon: "insufficient:<reason>" (structurally sound but not enough of the
+// lower troposphere for boundary-layer statistics) and "rejected:<reason>"
+// (unusable).
+type Status string
+
+// Sounding statuses.
 const (
-	StatusOK      = "ok"      // no finding of this pipeline's checks
-	StatusSuspect = "suspect" // usable, but some values were flagged or corrected
+	StatusOK      Status = "ok"      // no finding of this pipeline's checks
+	StatusSuspect Status = "suspect" // usable, but some values were flagged or corrected
 )
+
+// insufficient and rejected return the status of a sounding that is not
+// usable, with its reason.
+func insufficient(reason string) Status { return Status("insufficient:" + reason) }
+func rejected(reason string) Status     { return Status("rejected:" + reason) }
 
 // Report is the quality-control result of one sounding.
 type Report struct {
 	// Status is ok, suspect, insufficient:<reason> or rejected:<reason>.
-	Status string
+	Status Status
 	// Flags holds one flag per level (same indices as the sounding's
 	// Levels) and variable.
 	Flags [][sounding.NumVars]Flag
@@ -137,7 +156,7 @@ func (r Report) Counts() (bad, suspect, corrected int) {
 // Reason returns the part of Status after the colon ("" for ok and
 // suspect).
 func (r Report) Reason() string {
-	_, after, _ := strings.Cut(r.Status, ":")
+	_, after, _ := strings.Cut(string(r.Status), ":")
 	return after
 }
 

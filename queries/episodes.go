@@ -98,12 +98,8 @@ func writeDayTables(ctx context.Context, db *sql.DB, days []analyze.DayRecord, c
 				DaysMissing: int32(e.DaysMissing), Soundings: int32(e.Soundings), OpenStart: e.OpenStart, OpenEnd: e.OpenEnd,
 				PeakHDMJ: e.PeakHeatDeficitJ / 1e6, LowestMHM: e.LowestAfternoonMHM, LowestVent: e.LowestVentilationM2S})
 			for _, d := range e.Days {
-				st := "met"
-				if d.Status != analyze.Yes {
-					st = "missing"
-				}
 				edRows = append(edRows, schema.EpisodeDayRow{StationID: e.StationID, Criterion: e.Criterion,
-					FirstDay: e.First, LocalDate: d.Date, Status: st})
+					FirstDay: e.First, LocalDate: d.Date, Status: string(d.StatusName())})
 			}
 		}
 	}
@@ -158,7 +154,7 @@ func dayRow(d analyze.DayRecord) schema.DayRow {
 		SBIPersists: d.SBIPersists(0).Bool(), MorningHDMJ: d.MorningHeatDeficitJ / 1e6,
 		AfternoonHDMJ: d.AfternoonHeatDeficitJ / 1e6, MaxHDMJ: d.MaxHeatDeficitJ / 1e6,
 		StableFraction: d.StableFraction, DeepStable: d.DeepStable.Bool(), AfternoonMHM: d.AfternoonMHM,
-		AfternoonMHFrom: d.AfternoonMHSource, AfternoonWindMS: d.AfternoonWindMS, AfternoonVentM2S: d.VentilationM2S}
+		AfternoonMHFrom: string(d.AfternoonMHSource), AfternoonWindMS: d.AfternoonWindMS, AfternoonVentM2S: d.VentilationM2S}
 }
 
 // materialize writes rows as a Parquet file with the table's documented

@@ -40,11 +40,11 @@ func macros() []string {
 
 // rankCase is a CASE expression giving values[i] the rank first+i and any
 // other value first+len(values).
-func rankCase(arg string, values []string, first int) string {
+func rankCase[E ~string](arg string, values []E, first int) string {
 	var b strings.Builder
 	fmt.Fprintf(&b, "CASE %s", arg)
 	for i, v := range values {
-		fmt.Fprintf(&b, " WHEN %s THEN %d", sqlString(v), first+i)
+		fmt.Fprintf(&b, " WHEN %s THEN %d", sqlString(string(v)), first+i)
 	}
 	fmt.Fprintf(&b, " ELSE %d END", first+len(values))
 	return b.String()

@@ -139,8 +139,8 @@ func AppendSounding(out *PartRows, s *sounding.Sounding, rep qc.Report, res *ana
 		SourceFormat:   s.Source.Format,
 		DeclaredLevels: int32(s.DeclaredLevels),
 		LevelCount:     int32(len(s.Levels)),
-		AnalysisStatus: res.Status,
-		QCStatus:       rep.Status,
+		AnalysisStatus: string(res.Status),
+		QCStatus:       string(rep.Status),
 		ConstantSet:    res.ConstantSet,
 
 		SurfacePressureHPa: math.NaN(), SurfaceTemperatureC: math.NaN(), SurfaceDewpointC: math.NaN(),
@@ -149,7 +149,7 @@ func AppendSounding(out *PartRows, s *sounding.Sounding, rep qc.Report, res *ana
 
 		SunElevationDeg: res.SunElevationDeg,
 		LocalSolarTimeH: res.LocalSolarTimeH,
-		SunClass:        res.SunClass,
+		SunClass:        string(res.SunClass),
 
 		SBITopAGLM: math.NaN(), SBITopPressHPa: math.NaN(), SBIStrengthK: math.NaN(), SBIGradient: math.NaN(),
 		InversionCount: int32(len(res.Inversions)),
@@ -159,19 +159,19 @@ func AppendSounding(out *PartRows, s *sounding.Sounding, rep qc.Report, res *ana
 		MixedThetaK: res.MixedLayer.ThetaK, MixedMixingRatio: res.MixedLayer.MixingRatioKgKg * gPerKg,
 		MixedLevels:    int32(res.MixedLayer.Levels),
 		ParcelMHM:      res.Parcel.HeightAGLM,
-		ParcelMHStatus: res.Parcel.Status,
+		ParcelMHStatus: string(res.Parcel.Status),
 
 		ConsensusMHM:     res.MixingHeightConsensus.HeightAGLM,
-		ConsensusStatus:  res.MixingHeightConsensus.Status,
+		ConsensusStatus:  string(res.MixingHeightConsensus.Status),
 		ConsensusSpreadM: res.MixingHeightConsensus.SpreadM,
 		ConsensusMethods: int32(res.MixingHeightConsensus.OK),
 		Unresolved:       res.MixingHeightConsensus.Unresolved,
-		LiuLiangRegime:   res.LiuLiangRegime,
-		BLRegime:         res.Regime,
+		LiuLiangRegime:   string(res.LiuLiangRegime),
+		BLRegime:         string(res.Regime),
 		ResidualTopAGLM:  res.ResidualTopAGLM,
 
 		TransportWindMS:  res.Ventilation.TransportWindMS,
-		TransportWindDef: res.Ventilation.TransportWind,
+		TransportWindDef: string(res.Ventilation.TransportWind),
 		VentilationM2S:   res.Ventilation.IndexM2S,
 		VentilationKtFt:  res.Ventilation.IndexKtFt,
 		VentilationCat:   res.Ventilation.Category,
@@ -202,10 +202,10 @@ func AppendSounding(out *PartRows, s *sounding.Sounding, rep qc.Report, res *ana
 			row.SBITopPressHPa = hPa(res.SBI.TopPressurePa)
 			row.SBIStrengthK = res.SBI.StrengthK
 			row.SBIGradient = res.SBI.GradientKPerKm()
-			row.SBIClass = res.SBI.Class
+			row.SBIClass = string(res.SBI.Class)
 		}
 		if ei := res.LowestElevated; ei.Present {
-			row.EIBaseAGLM, row.EITopAGLM, row.EIStrengthK, row.EIClass = ei.BaseAGLM, ei.TopAGLM, ei.StrengthK, ei.Class
+			row.EIBaseAGLM, row.EITopAGLM, row.EIStrengthK, row.EIClass = ei.BaseAGLM, ei.TopAGLM, ei.StrengthK, string(ei.Class)
 		}
 	}
 
@@ -221,7 +221,7 @@ func AppendSounding(out *PartRows, s *sounding.Sounding, rep qc.Report, res *ana
 			DepthM: v.DepthM(), StrengthK: v.StrengthK, GradientKPerKm: v.GradientKPerKm(),
 			ThetaDeltaK: v.ThetaDeltaK, DPDDeltaK: v.DewpointDepressionDeltaK, RHDeltaPct: v.RelHumidityDeltaPct,
 			WDeltaGKg: v.MixingRatioDeltaKgKg * gPerKg, TurningDeg: v.WindTurningDeg, Levels: int32(v.Levels),
-			TopAtCeiling: v.TopAtCeiling, Class: v.Class,
+			TopAtCeiling: v.TopAtCeiling, Class: string(v.Class),
 		})
 	}
 	for i, m := range res.MixedLayers {
@@ -236,7 +236,7 @@ func AppendSounding(out *PartRows, s *sounding.Sounding, rep qc.Report, res *ana
 	for _, h := range res.MixingHeights {
 		out.MixingHeights = append(out.MixingHeights, MixingHeightRow{
 			StationID: s.StationID, LaunchTime: row.LaunchTime, Year: row.Year, Method: h.Method,
-			HeightAGLM: h.HeightAGLM, Status: h.Status, Note: h.Note, LevelSpacingM: h.LevelSpacingM, Unresolved: h.Unresolved,
+			HeightAGLM: h.HeightAGLM, Status: string(h.Status), Note: h.Note, LevelSpacingM: h.LevelSpacingM, Unresolved: h.Unresolved,
 		})
 	}
 	return row
@@ -294,7 +294,7 @@ func appendFindingRows(findings []QCFindingRow, s *sounding.Sounding, rep qc.Rep
 		}
 		findings = append(findings, QCFindingRow{
 			StationID: s.StationID, LaunchTime: launch, Year: year, Index: int32(f.Level),
-			PressureHPa: p, Variable: f.VariableName(), Check: f.Check, Severity: f.Severity.String(),
+			PressureHPa: p, Variable: f.VariableName(), Check: string(f.Check), Severity: f.Severity.String(),
 			Value: qc.DisplayValue(f.Var, f.Value), Corrected: qc.DisplayValue(f.Var, f.NewValue), Message: f.Message,
 		})
 	}
@@ -321,7 +321,7 @@ func AppendDescent(out *DescentRows, s *sounding.Sounding, rep qc.Report, res *a
 		StationID: s.StationID, LaunchTime: s.LaunchTime.UTC(), Year: int32(s.NominalTime.Year()),
 		StartLatDeg: s.LatitudeDeg, StartLonDeg: s.LongitudeDeg,
 		SourceFile: s.Source.File, SourceMember: s.Source.Member, SourceFormat: s.Source.Format,
-		LevelCount: int32(len(s.Levels)), QCStatus: rep.Status,
+		LevelCount: int32(len(s.Levels)), QCStatus: string(rep.Status),
 		QCBad: int32(bad), QCSuspect: int32(suspect), QCCorrected: int32(corrected), ConstantSet: res.ConstantSet,
 	}
 	appendLevelRows(&out.Levels, s, rep, res, row.LaunchTime, row.Year)
@@ -335,8 +335,8 @@ func AppendDescent(out *DescentRows, s *sounding.Sounding, rep qc.Report, res *a
 func AfternoonRowOf(m SoundingRow, e analyze.AfternoonEstimate) AfternoonRow {
 	return AfternoonRow{
 		StationID: m.StationID, Year: m.Year, LocalDate: e.LocalDate, MorningLaunch: m.LaunchTime,
-		TmaxC: degC(e.TmaxK), TmaxSource: e.TmaxSource, HeightAGLM: e.MixingHeight.HeightAGLM,
-		Status: e.MixingHeight.Status, Note: e.MixingHeight.Note,
+		TmaxC: degC(e.TmaxK), TmaxSource: string(e.TmaxSource), HeightAGLM: e.MixingHeight.HeightAGLM,
+		Status: string(e.MixingHeight.Status), Note: e.MixingHeight.Note,
 	}
 }
 

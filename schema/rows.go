@@ -59,24 +59,24 @@ type SoundingRow struct {
 	QCBad          int32  `col:"qc_findings_bad" doc:"count; findings of severity bad (those values are not used)"`
 	QCSuspect      int32  `col:"qc_findings_suspect" doc:"count; findings of severity suspect (not used unless ingested with --use-suspect)"`
 	QCCorrected    int32  `col:"qc_findings_corrected" doc:"count; values corrected by quality control (used with their corrected value)"`
-	AnalysisStatus string `col:"analysis_status" doc:"ok, or the reason the sounding could not be analysed (e.g. insufficient_levels); such soundings count as attempted but not valid"`
+	AnalysisStatus string `col:"analysis_status" values:"analysis_status" doc:"{values}: ok when analysed, else the reason it could not be; or qc_ followed by qc_status when quality control excluded the sounding; soundings not ok count as attempted but not valid"`
 	ConstantSet    string `col:"constant_set" doc:"name of the thermodynamic constant set used for derived values"`
 
 	SunElevationDeg float64 `col:"sun_elevation_deg" doc:"degrees; geometric solar elevation at launch (Astronomical Almanac low-precision formulas)"`
 	LocalSolarTimeH float64 `col:"local_solar_time_h" doc:"h, 0-24; local apparent solar time at launch"`
-	SunClass        string  `col:"sun_class" doc:"sun at launch: day (above 10 deg), low_sun (0 to 10 deg), civil_twilight (0 to -6 deg), night (below -6 deg), or unknown (no position)"`
+	SunClass        string  `col:"sun_class" values:"sun_class" doc:"sun at launch: {values}; by default day above 10 deg, low_sun 0 to 10 deg, civil_twilight 0 to -6 deg, night below -6 deg, unknown without a position"`
 
 	SBIPresent       *bool   `col:"sbi_present" doc:"true when a surface-based temperature inversion is present; null when not analysable"`
 	SBITopAGLM       float64 `col:"sbi_top_agl_m" doc:"m above ground; top of the surface-based inversion"`
 	SBITopPressHPa   float64 `col:"sbi_top_pressure_hpa" doc:"hPa; pressure at the top of the surface-based inversion"`
 	SBIStrengthK     float64 `col:"sbi_strength_k" doc:"K; temperature at the inversion top minus temperature at its base"`
 	SBIGradient      float64 `col:"sbi_gradient_k_per_km" doc:"K/km; mean temperature gradient through the surface-based inversion"`
-	SBIClass         string  `col:"sbi_class" doc:"class of the surface-based inversion (radiation, subsidence, frontal, capping, unclassified)"`
+	SBIClass         string  `col:"sbi_class" values:"inversion_class" doc:"class of the surface-based inversion: {values} (documented rules, analyze.InversionClassConfig; a surface-based inversion is radiation or unclassified)"`
 	InversionCount   int32   `col:"inversion_count" doc:"count; inversion layers below the search ceiling (see the inversions table)"`
 	EIBaseAGLM       float64 `col:"ei_base_agl_m" doc:"m above ground; base of the lowest elevated inversion"`
 	EITopAGLM        float64 `col:"ei_top_agl_m" doc:"m above ground; top of the lowest elevated inversion"`
 	EIStrengthK      float64 `col:"ei_strength_k" doc:"K; temperature rise through the lowest elevated inversion"`
-	EIClass          string  `col:"ei_class" doc:"class of the lowest elevated inversion (subsidence, frontal, capping, unclassified)"`
+	EIClass          string  `col:"ei_class" values:"inversion_class" doc:"class of the lowest elevated inversion: {values} (an elevated inversion is never radiation)"`
 	MixedBaseAGLM    float64 `col:"mixed_layer_base_agl_m" doc:"m above ground; bottom of the lowest well-mixed layer (the surface, or the top of the surface-based inversion)"`
 	MixedTopAGLM     float64 `col:"mixed_layer_top_agl_m" doc:"m above ground; top of the lowest well-mixed layer"`
 	MixedThetaK      float64 `col:"mixed_layer_theta_k" doc:"K; pressure-weighted (mass-weighted) mean potential temperature of the mixed layer"`
@@ -89,11 +89,11 @@ type SoundingRow struct {
 	ConsensusSpreadM float64 `col:"mixing_height_spread_m" doc:"m; highest minus lowest of the consensus methods (those fitting bl_regime) whose status is ok"`
 	ConsensusMethods int32   `col:"mixing_height_methods_ok" doc:"count; methods in the consensus (those fitting bl_regime) whose status is ok"`
 	Unresolved       bool    `col:"mixing_height_unresolved" doc:"true when the sounding's level spacing around the consensus height is too coarse to resolve it"`
-	LiuLiangRegime   string  `col:"liu_liang_regime" doc:"boundary-layer regime by Liu and Liang (2010): CBL, NRL or SBL"`
-	BLRegime         string  `col:"bl_regime" doc:"boundary-layer regime that chooses the consensus methods: stable (surface-based inversion, or Liu-Liang SBL), convective (otherwise, sun above the horizon), neutral (otherwise, sun below it); empty when unknown (no position and no Liu-Liang regime)"`
+	LiuLiangRegime   string  `col:"liu_liang_regime" values:"liu_liang_regime" doc:"boundary-layer regime by Liu and Liang (2010): {values}"`
+	BLRegime         string  `col:"bl_regime" values:"bl_regime" doc:"boundary-layer regime that chooses the consensus methods, {values}: stable with a surface-based inversion or Liu-Liang SBL, else convective with the sun above the horizon, neutral with it below; empty when unknown (no position and no Liu-Liang regime)"`
 	ResidualTopAGLM  float64 `col:"residual_layer_top_agl_m" doc:"m above ground; top of the residual layer (the previous day's mixed layer left aloft) in the stable and neutral regimes: base of the lowest elevated inversion above the night's mixing height, else the Heffter height above it; not a mixing height; null by day or when none is found"`
 	TransportWindMS  float64 `col:"transport_wind_ms" doc:"m/s; mean wind from the ground to the mixing height used for ventilation"`
-	TransportWindDef string  `col:"transport_wind_method" doc:"averaging used for transport_wind_ms"`
+	TransportWindDef string  `col:"transport_wind_method" values:"transport_wind" doc:"averaging used for transport_wind_ms: {values}"`
 	VentilationM2S   float64 `col:"ventilation_index_m2s" doc:"m2/s; mixing height times transport wind"`
 	VentilationKtFt  float64 `col:"ventilation_index_ktft" doc:"kt*ft; ventilation index in knot-feet (1 m2/s = 6.37744 kt*ft)"`
 	VentilationCat   string  `col:"ventilation_category" doc:"category of ventilation_index_m2s in the table named by ventilation_table"`
@@ -157,7 +157,7 @@ type InversionRow struct {
 	TurningDeg     float64   `col:"wind_turning_deg" doc:"degrees; change of wind direction from base to top, veering (clockwise) positive"`
 	Levels         int32     `col:"levels" doc:"count; sounding levels from base to top inclusive"`
 	TopAtCeiling   bool      `col:"top_at_ceiling" doc:"true when the top is the highest level searched, so the layer may continue above"`
-	Class          string    `col:"class" doc:"radiation, subsidence, frontal, capping or unclassified (documented rules, analyze.InversionClassConfig)"`
+	Class          string    `col:"class" values:"inversion_class" doc:"{values} (documented rules, analyze.InversionClassConfig)"`
 }
 
 // MixedLayerRow is one row of the `mixed_layers` table: one well-mixed layer
@@ -204,7 +204,7 @@ type AfternoonRow struct {
 	LocalDate     time.Time `col:"local_date" doc:"local solar date (midnight UTC of that date)"`
 	MorningLaunch time.Time `col:"morning_launch_time" doc:"UTC; launch time of the morning sounding"`
 	TmaxC         float64   `col:"tmax_c" doc:"degC; maximum surface temperature of the day"`
-	TmaxSource    string    `col:"tmax_source" doc:"daily_maxima (user file), or later_sounding: not a maximum but the surface temperature of the same local day's later sounding (12-20 h local mean solar time; US 00 UTC launches are near or after sunset), which biases the height low, most in winter"`
+	TmaxSource    string    `col:"tmax_source" values:"tmax_source" doc:"{values}: daily_maxima from the user's file; later_sounding is not a maximum but the surface temperature of the same local day's later sounding (12-20 h local mean solar time; US 00 UTC launches are near or after sunset), which biases the height low, most in winter"`
 	HeightAGLM    float64   `col:"height_agl_m" doc:"m above ground; afternoon mixing height"`
 	Status        string    `col:"status" values:"mixing_height_status" doc:"{values}"`
 	Note          string    `col:"note" doc:"reason when undefined"`
@@ -257,8 +257,8 @@ type QCFindingRow struct {
 	Index       int32     `col:"level_index" doc:"0-based position of the level in the source order (as in levels.level_index); -1 for a finding about the whole sounding"`
 	PressureHPa float64   `col:"pressure_hpa" doc:"hPa; pressure of the level as reported, null for wind-only levels and whole-sounding findings"`
 	Variable    string    `col:"variable" doc:"variable the finding is about: pressure, height, temperature, relative_humidity, dewpoint_depression, wind_direction, wind_speed, elapsed_time; level for the whole level, sounding for the whole sounding"`
-	Check       string    `col:"qc_check" doc:"check that produced the finding: structure, upstream_removed, gross_limit, dewpoint_above_temperature, near_surface_wind, pressure_order, hydrostatic, height_order, temperature_spike, superadiabatic, cold_humidity, surface_pressure or coverage"`
-	Severity    string    `col:"severity" doc:"suspect, bad or corrected (bad values are never used; suspect ones only on request; corrected ones are used with corrected_value)"`
+	Check       string    `col:"qc_check" values:"qc_check" doc:"check that produced the finding: {values}"`
+	Severity    string    `col:"severity" values:"qc_severity" doc:"{values} (bad values are never used; suspect ones only on request; corrected ones are used with corrected_value)"`
 	Value       float64   `col:"value" doc:"the value as observed, in the display unit of its variable: hPa, gpm, degC, %, K (dewpoint depression), degrees, m/s or s; null when none"`
 	Corrected   float64   `col:"corrected_value" doc:"the corrected value in the same unit as value, for severity corrected; null otherwise"`
 	Message     string    `col:"message" doc:"what was wrong, for people, with the numbers the check used"`

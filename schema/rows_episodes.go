@@ -38,7 +38,7 @@ type DayRow struct {
 	StableFraction   float64 `col:"stable_layer_fraction" doc:"0-1; stable fraction of the lowest 1.5 km on the morning sounding (Wolyn and McKee 1989)"`
 	DeepStable       *bool   `col:"deep_stable_layer" doc:"true when stable_layer_fraction is at least 0.65 (Wolyn and McKee 1989); null when unknown"`
 	AfternoonMHM     float64 `col:"afternoon_mixing_height_m" doc:"m above ground; afternoon mixing height: Holzworth (afternoon_mixing) when defined, else the afternoon sounding's own parcel mixing height"`
-	AfternoonMHFrom  string  `col:"afternoon_mixing_height_source" doc:"holzworth or afternoon_parcel; empty when unknown"`
+	AfternoonMHFrom  string  `col:"afternoon_mixing_height_source" values:"afternoon_source" doc:"{values}; empty when unknown"`
 	AfternoonWindMS  float64 `col:"afternoon_transport_wind_ms" doc:"m/s; transport wind of the afternoon/evening sounding (mean wind from the ground to its mixing height)"`
 	AfternoonVentM2S float64 `col:"afternoon_ventilation_m2s" doc:"m2/s; afternoon_mixing_height_m times afternoon_transport_wind_ms"`
 }
@@ -73,7 +73,7 @@ type EpisodeDayRow struct {
 	Criterion string    `col:"criterion" doc:"rule of the episode"`
 	FirstDay  time.Time `col:"first_day" doc:"first day of the episode (joins episodes on station_id, criterion, first_day)"`
 	LocalDate time.Time `col:"local_date" doc:"the day (joins days on station_id, local_date)"`
-	Status    string    `col:"status" doc:"met (the day meets the rule) or missing (unknown, kept inside by the gap allowance)"`
+	Status    string    `col:"status" values:"episode_day_status" doc:"{values}: met when the day meets the rule, missing when unknown and kept inside by the gap allowance"`
 }
 
 // RuleMonthRow is one row of the `rule_months` table: how the days of one

@@ -5,6 +5,7 @@ import (
 	"strings"
 
 	"github.com/sondeclim/sondeclim/analyze"
+	"github.com/sondeclim/sondeclim/physics/sun"
 	"github.com/sondeclim/sondeclim/qc"
 	"github.com/sondeclim/sondeclim/sounding"
 )
@@ -27,8 +28,19 @@ var vocabularies = map[string]func() vocabulary{
 		return vocabulary{values: analyze.MethodNames(), doc: analyze.MethodsDoc()}
 	},
 	"mixing_height_status": func() vocabulary {
-		return vocabulary{values: analyze.MixingHeightStatuses()}
+		return vocabulary{values: strs(analyze.MixingHeightStatuses())}
 	},
+	"analysis_status":    func() vocabulary { return vocabulary{values: strs(analyze.Statuses())} },
+	"sun_class":          func() vocabulary { return vocabulary{values: strs(sun.Classes)} },
+	"inversion_class":    func() vocabulary { return vocabulary{values: strs(analyze.InversionClasses())} },
+	"liu_liang_regime":   func() vocabulary { return vocabulary{values: strs(analyze.LiuLiangRegimes())} },
+	"bl_regime":          func() vocabulary { return vocabulary{values: strs(analyze.BLRegimes)} },
+	"transport_wind":     func() vocabulary { return vocabulary{values: strs(analyze.TransportConventions())} },
+	"tmax_source":        func() vocabulary { return vocabulary{values: strs(analyze.TmaxSources())} },
+	"afternoon_source":   func() vocabulary { return vocabulary{values: strs(analyze.AfternoonSources())} },
+	"qc_check":           func() vocabulary { return vocabulary{values: strs(qc.Checks())} },
+	"episode_day_status": func() vocabulary { return vocabulary{values: strs(analyze.EpisodeDayStatuses())} },
+	"qc_severity":        func() vocabulary { return vocabulary{values: enumNames(qc.Suspect, qc.Corrected)} },
 	"level_kind": func() vocabulary {
 		return vocabulary{values: enumNames(sounding.KindSignificant, sounding.KindWindOnly), dict: true}
 	},
@@ -38,6 +50,15 @@ var vocabularies = map[string]func() vocabulary{
 	"qc_flag": func() vocabulary {
 		return vocabulary{values: enumNames(qc.Good, qc.Corrected), dict: true}
 	},
+}
+
+// strs returns the values of a string enum as plain strings, in order.
+func strs[E ~string](values []E) []string {
+	out := make([]string, len(values))
+	for i, v := range values {
+		out[i] = string(v)
+	}
+	return out
 }
 
 // enumNames returns the String of every value of an integer enum from

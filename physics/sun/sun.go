@@ -142,22 +142,26 @@ func ElevationDeg(t time.Time, latDeg, lonDeg float64) float64 {
 	return math.Asin(math.Max(-1, math.Min(1, s))) / deg
 }
 
-// Classes of a launch by solar elevation, in the trade's words: twilight
+// Class is the class of a launch by solar elevation (the column
+// soundings.sun_class), in the trade's words: twilight
 // is the sun below the horizon, civil twilight down to 6° below
 // (Astronomical Almanac definitions, as restated by glossaries and
 // observatory pages, e.g. metaglossary.com "civil twilight"); the sun low
 // above the horizon is not twilight.
+type Class string
+
+// Sun classes.
 const (
-	Day           = "day"            // sun higher than the low-sun band
-	LowSun        = "low_sun"        // sun above the horizon but low (default 0° to 10°)
-	CivilTwilight = "civil_twilight" // sun below the horizon, at most 6° (default)
-	Night         = "night"          // sun lower than civil twilight
-	Unknown       = "unknown"        // position or time unknown
+	Day           Class = "day"            // sun higher than the low-sun band
+	LowSun        Class = "low_sun"        // sun above the horizon but low (default 0° to 10°)
+	CivilTwilight Class = "civil_twilight" // sun below the horizon, at most 6° (default)
+	Night         Class = "night"          // sun lower than civil twilight
+	Unknown       Class = "unknown"        // position or time unknown
 )
 
 // Classes lists the sun classes from the highest sun to the lowest, then
 // Unknown: the order tables use.
-var Classes = []string{Day, LowSun, CivilTwilight, Night, Unknown}
+var Classes = []Class{Day, LowSun, CivilTwilight, Night, Unknown}
 
 // Thresholds bound the sun classes in degrees of geometric solar
 // elevation (DefaultThresholds):
@@ -189,7 +193,7 @@ func DefaultThresholds() Thresholds {
 // Classify returns Day when elevationDeg > DayAboveDeg, LowSun when it is
 // ≥ HorizonDeg, CivilTwilight when it is ≥ NightBelowDeg, Night below, and
 // Unknown for NaN.
-func (th Thresholds) Classify(elevationDeg float64) string {
+func (th Thresholds) Classify(elevationDeg float64) Class {
 	switch {
 	case math.IsNaN(elevationDeg):
 		return Unknown
@@ -205,4 +209,4 @@ func (th Thresholds) Classify(elevationDeg float64) string {
 
 // Below reports whether a class is one of the sun below the horizon
 // (civil twilight or night).
-func Below(class string) bool { return class == CivilTwilight || class == Night }
+func Below(class Class) bool { return class == CivilTwilight || class == Night }

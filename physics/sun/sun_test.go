@@ -110,7 +110,7 @@ func TestElevation(t *testing.T) {
 	th := DefaultThresholds()
 	tests := []struct {
 		h    float64
-		want string
+		want Class
 	}{{45, Day}, {10.5, Day}, {10, LowSun}, {0, LowSun}, {-0.1, CivilTwilight}, {-6, CivilTwilight},
 		{-6.1, Night}, {math.NaN(), Unknown}}
 	for _, tt := range tests {

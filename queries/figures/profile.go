@@ -478,7 +478,7 @@ var methodInk = []color.Color{
 func markedHeights(p *Profile) []MethodHeight {
 	var out []MethodHeight
 	for _, h := range append([]MethodHeight{p.Consensus}, p.Heights...) {
-		if h.Status == analyze.MixingHeightOK || h.Status == analyze.MixingHeightSurface {
+		if analyze.MixingHeightStatus(h.Status).Defined() {
 			if !math.IsNaN(h.HeightAGLM) {
 				out = append(out, h)
 			}
@@ -532,7 +532,7 @@ func drawHeightLabels(c draw.Canvas, dc draw.Canvas, p *plot.Plot, marked []Meth
 	for i, m := range marked {
 		name := analyze.MethodTitle(m.Method)
 		text := fmt.Sprintf("%s %.0f m", name, m.HeightAGLM)
-		if m.Status == analyze.MixingHeightSurface {
+		if analyze.MixingHeightStatus(m.Status) == analyze.MixingHeightSurface {
 			text = name + ": surface"
 		}
 		items[i] = item{at: trY(m.HeightAGLM), text: text, col: colors[i]}
@@ -632,7 +632,7 @@ func ProfileFigure(p *Profile) *Figure {
 		p.LaunchTime.UTC().Format("2006-01-02 15:04"), p.NominalTime.UTC().Format("2006-01-02"), p.NominalHour)
 	var undefined []string
 	for _, h := range p.Heights {
-		if h.Status != analyze.MixingHeightOK && h.Status != analyze.MixingHeightSurface {
+		if !analyze.MixingHeightStatus(h.Status).Defined() {
 			undefined = append(undefined, analyze.MethodTitle(h.Method))
 		}
 	}

@@ -132,7 +132,7 @@ func withRuleWords(t *queries.Table) *queries.Table {
 }
 
 // qcWords are the quality-control checks in words and what a finding does.
-var qcWords = map[string][2]string{
+var qcWords = map[qc.CheckName][2]string{
 	qc.CheckStructure:      {"structure of the report (header, level count, surface level)", "sounding not analysed"},
 	qc.CheckUpstream:       {"removed by the archive's own quality control", "value missing; routine"},
 	qc.CheckGross:          {"value outside physical limits", "value not used"},
@@ -154,7 +154,7 @@ func withQCWords(t *queries.Table) *queries.Table {
 	out := &queries.Table{Columns: append(slices.Clone(t.Columns), "check_words", "effect")}
 	for _, r := range t.Rows {
 		name := fmt.Sprint(r[i])
-		w, ok := qcWords[name]
+		w, ok := qcWords[qc.CheckName(name)]
 		if !ok {
 			w = [2]string{name, ""}
 		}
