@@ -277,8 +277,6 @@ func (r *Result) classifyInversions(pr profile, spans []layerSpan, n int, cfg Co
 func (r *Result) levelValues(s *sounding.Sounding, cfg Config) (p, t []float64) {
 	n := len(s.Levels)
 	c := cfg.Constants
-	h := FillHeights(s.Levels, s.ElevationM, c, cfg.SatVap)
-	r.HeightM, r.HeightDerived, r.HeightAnchors, r.StandardAnchor = h.HeightM, h.Derived, h.Anchors, h.StandardAnchor
 	buf := make([]float64, 6*n)
 	r.HeightAGLM, r.ThetaK, r.ThetaVK, r.MixingRatioKgKg = buf[:n], buf[n:2*n], buf[2*n:3*n], buf[3*n:4*n]
 	p, t = buf[4*n:5*n], buf[5*n:]
@@ -289,6 +287,8 @@ func (r *Result) levelValues(s *sounding.Sounding, cfg Config) (p, t []float64) 
 		r.ThetaK[i], r.MixingRatioKgKg[i] = th, w
 		r.ThetaVK[i] = thermo.VirtualPotentialTemperature(th, w, c.Epsilon)
 	}
+	h := fillHeights(s.Levels, s.ElevationM, c, cfg.SatVap, r.MixingRatioKgKg)
+	r.HeightM, r.HeightDerived, r.HeightAnchors, r.StandardAnchor = h.HeightM, h.Derived, h.Anchors, h.StandardAnchor
 	ground := s.ElevationM
 	if math.IsNaN(ground) || h.StandardAnchor {
 		ground = math.NaN()

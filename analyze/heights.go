@@ -1,7 +1,9 @@
 package analyze
 
 import (
+	"cmp"
 	"math"
+	"slices"
 	"sort"
 
 	"github.com/sondeclim/sondeclim/physics/thermo"
@@ -63,6 +65,15 @@ type Heights struct {
 // reported. Exact duplicate pressures get the same height. It never
 // panics; an empty input gives empty slices and StartIndex −1.
 func FillHeights(levels []sounding.Level, elevationM float64, c thermo.Constants, f thermo.SatVapFormula) Heights {
+	return fillHeights(levels, elevationM, c, f, nil)
+}
+
+// fillHeights is FillHeights with the levels' mixing ratios w in kg/kg
+// (indexed like levels, as levelValues computes them from the finite
+// dewpoint and pressure) when the caller has them, so that the
+// saturation vapour pressure of each level is computed once; nil: they
+// are computed here.
+func fillHeights(levels []sounding.Level, elevationM float64, c thermo.Constants, f thermo.SatVapFormula, w []float64) Heights {
 	n := len(levels)
 	h := Heights{HeightM: make([]float64, n), Derived: make([]bool, n), StartIndex: -1}
 	ord := make([]int, 0, n)
@@ -78,8 +89,10 @@ func FillHeights(levels []sounding.Level, elevationM float64, c thermo.Constants
 	if len(ord) == 0 {
 		return h
 	}
-	sort.SliceStable(ord, func(a, b int) bool { return levels[ord[a]].PressurePa > levels[ord[b]].PressurePa })
-	tv := virtualTemperatures(levels, ord, c, f)
+	if !slices.IsSortedFunc(ord, func(a, b int) int { return cmp.Compare(levels[b].PressurePa, levels[a].PressurePa) }) {
+		sort.SliceStable(ord, func(a, b int) bool { return levels[ord[a]].PressurePa > levels[ord[b]].PressurePa })
+	}
+	tv := virtualTemperatures(levels, ord, c, f, w)
 
 	if j0 := ord[0]; levels[j0].Kind == sounding.KindSurface && math.IsNaN(h.HeightM[j0]) && !math.IsNaN(elevationM) {
 		h.HeightM[j0], h.Derived[j0] = elevationM, true
@@ -133,10 +146,17 @@ func (h *Heights) integrate(levels []sounding.Level, ord []int, tv []float64, st
 // virtualTemperatures returns Tv in K for each position of ord, from T and
 // the dewpoint (Tv = T when the dewpoint is missing), interpolated in ln p
 // for levels without temperature, NaN where not bracketed.
-func virtualTemperatures(levels []sounding.Level, ord []int, c thermo.Constants, f thermo.SatVapFormula) []float64 {
+func virtualTemperatures(levels []sounding.Level, ord []int, c thermo.Constants, f thermo.SatVapFormula, w []float64) []float64 {
 	tv := make([]float64, len(ord))
 	for pos, j := range ord {
-		tv[pos] = virtualTemperature(levels[j], c, f)
+		l := &levels[j]
+		if w == nil || math.IsInf(l.DewpointK, 0) {
+			tv[pos] = virtualTemperature(*l, c, f)
+			continue
+		}
+		// The level's pressure is finite (ord holds no other), so w[j]
+		// is the mixing ratio virtualTemperature would compute.
+		tv[pos] = virtualTemperatureW(l.TemperatureK, w[j], c)
 	}
 	last := -1
 	for pos := range ord {
@@ -165,9 +185,17 @@ func virtualTemperature(l sounding.Level, c thermo.Constants, f thermo.SatVapFor
 	if !(l.TemperatureK > 0) || math.IsInf(l.TemperatureK, 0) {
 		return math.NaN()
 	}
-	w := thermo.MixingRatio(thermo.VapourPressureFromDewpoint(l.DewpointK, f), l.PressurePa, c.Epsilon)
-	if math.IsNaN(w) {
-		return l.TemperatureK
+	return virtualTemperatureW(l.TemperatureK, thermo.MixingRatio(thermo.VapourPressureFromDewpoint(l.DewpointK, f), l.PressurePa, c.Epsilon), c)
+}
+
+// virtualTemperatureW returns Tv in K for temperature tK and mixing ratio
+// w in kg/kg (Tv = T when w is NaN), NaN without T.
+func virtualTemperatureW(tK, w float64, c thermo.Constants) float64 {
+	if !(tK > 0) || math.IsInf(tK, 0) {
+		return math.NaN()
 	}
-	return thermo.VirtualTemperature(l.TemperatureK, w, c.Epsilon)
+	if math.IsNaN(w) {
+		return tK
+	}
+	return thermo.VirtualTemperature(tK, w, c.Epsilon)
 }

@@ -1,7 +1,9 @@
 package analyze
 
 import (
+	"cmp"
 	"math"
+	"slices"
 	"sort"
 
 	"github.com/sondeclim/sondeclim/physics/thermo"
@@ -30,7 +32,9 @@ func (r *Result) buildProfile(s *sounding.Sounding, p, t []float64, wp windProfi
 			idx = append(idx, i)
 		}
 	}
-	sort.SliceStable(idx, func(a, b int) bool { return p[idx[a]] > p[idx[b]] })
+	if !slices.IsSortedFunc(idx, func(a, b int) int { return cmp.Compare(p[b], p[a]) }) {
+		sort.SliceStable(idx, func(a, b int) bool { return p[idx[a]] > p[idx[b]] })
+	}
 	k := 0
 	for _, i := range idx {
 		if k > 0 && p[i] == p[idx[k-1]] {
@@ -47,8 +51,8 @@ func (r *Result) buildProfile(s *sounding.Sounding, p, t []float64, wp windProfi
 	for n, i := range idx {
 		pr.p[n], pr.t[n], pr.z[n] = p[i], t[i], r.HeightAGLM[i]
 		pr.td[n] = finite(s.Levels[i].DewpointK)
-		if u, v, ok := levelWind(s.Levels[i]); ok {
-			pr.u[n], pr.v[n] = u, v
+		if u := wp.lu[i]; !math.IsNaN(u) {
+			pr.u[n], pr.v[n] = u, wp.lv[i]
 		} else {
 			pr.u[n], pr.v[n] = wp.at(pr.z[n])
 		}

@@ -68,31 +68,43 @@ func TurningDeg(fromDeg, toDeg float64) float64 {
 }
 
 // windProfile holds every level with a height AGL and a usable wind,
-// sorted by height, duplicate heights dropped (first kept).
-type windProfile struct{ z, u, v []float64 }
+// sorted by height, duplicate heights dropped (first kept). lu and lv are
+// the wind components of each level of the sounding (indexed like its
+// Levels; NaN where the level has no height or no usable wind), so that
+// the thermodynamic profile reuses them.
+type windProfile struct{ z, u, v, lu, lv []float64 }
 
 func (r *Result) buildWindProfile(s *sounding.Sounding) windProfile {
+	m := len(s.Levels)
+	buf := make([]float64, 5*m)
+	w := windProfile{lu: buf[3*m : 4*m], lv: buf[4*m:]}
 	n := 0
 	for i, l := range s.Levels {
-		if l.WindSpeedMS >= 0 && l.WindSpeedMS <= 150 && l.WindDirectionDeg >= 0 && l.WindDirectionDeg <= 360 && !math.IsNaN(r.HeightAGLM[i]) {
+		u, v, ok := math.NaN(), math.NaN(), false
+		if !math.IsNaN(r.HeightAGLM[i]) {
+			u, v, ok = levelWind(l)
+		}
+		w.lu[i], w.lv[i] = u, v
+		if ok {
 			n++
 		}
 	}
-	buf := make([]float64, 3*n)
-	w := windProfile{z: buf[:0:n], u: buf[n : n : 2*n], v: buf[2*n : 2*n : 3*n]}
+	w.z, w.u, w.v = buf[:0:n], buf[n:n:2*n], buf[2*n:2*n:3*n]
+	// Levels in order of height need no sorting: the stable sort would
+	// leave them as they are (equal heights included, which are dropped
+	// below, the first kept).
 	sorted := true
-	for i, l := range s.Levels {
-		u, v, ok := levelWind(l)
-		if !ok || math.IsNaN(r.HeightAGLM[i]) {
+	for i := range s.Levels {
+		if math.IsNaN(w.lu[i]) {
 			continue
 		}
-		if k := len(w.z); k > 0 && r.HeightAGLM[i] <= w.z[k-1] {
+		if k := len(w.z); k > 0 && r.HeightAGLM[i] < w.z[k-1] {
 			sorted = false
 		}
-		w.z, w.u, w.v = append(w.z, r.HeightAGLM[i]), append(w.u, u), append(w.v, v)
+		w.z, w.u, w.v = append(w.z, r.HeightAGLM[i]), append(w.u, w.lu[i]), append(w.v, w.lv[i])
 	}
 	if !sorted {
-		sort.Stable(w)
+		w.sortStable()
 	}
 	k := 0
 	for i := range w.z {
@@ -104,6 +116,51 @@ func (r *Result) buildWindProfile(s *sounding.Sounding) windProfile {
 	}
 	w.z, w.u, w.v = w.z[:k], w.u[:k], w.v[:k]
 	return w
+}
+
+// sortStable sorts the profile by height, keeping levels of equal height
+// in their order. Real profiles come as a few runs already in order (the
+// archive's pressure levels, then its wind-only levels, each rising), so
+// adjacent runs are merged, pass by pass (a natural merge sort: the left
+// run's level first on equal heights, so the order is the one stable
+// order, as sort.Stable gives).
+func (w windProfile) sortStable() {
+	n := len(w.z)
+	bounds := []int{0}
+	for i := 1; i < n; i++ {
+		if w.z[i] < w.z[i-1] {
+			bounds = append(bounds, i)
+		}
+	}
+	bounds = append(bounds, n)
+	tmp := make([]float64, 3*n)
+	tz, tu, tv := tmp[:n], tmp[n:2*n], tmp[2*n:]
+	for len(bounds) > 2 {
+		next := bounds[:1]
+		for r := 0; r+1 < len(bounds); r += 2 {
+			lo, mid, hi := bounds[r], bounds[r+1], n
+			if r+2 < len(bounds) {
+				hi = bounds[r+2]
+			} else {
+				mid = hi // an odd run out: kept as it is
+			}
+			i, j := lo, mid
+			for k := lo; k < hi; k++ {
+				if j >= hi || (i < mid && w.z[i] <= w.z[j]) {
+					tz[k], tu[k], tv[k] = w.z[i], w.u[i], w.v[i]
+					i++
+				} else {
+					tz[k], tu[k], tv[k] = w.z[j], w.u[j], w.v[j]
+					j++
+				}
+			}
+			copy(w.z[lo:hi], tz[lo:hi])
+			copy(w.u[lo:hi], tu[lo:hi])
+			copy(w.v[lo:hi], tv[lo:hi])
+			next = append(next, hi)
+		}
+		bounds = next
+	}
 }
 
 func (w windProfile) Len() int           { return len(w.z) }
