@@ -19,12 +19,16 @@ func (pr profile) grid(n int, stepPa float64) grid {
 	buf := make([]float64, 4*m)
 	g := grid{p: buf[:m], z: buf[m : 2*m], theta: buf[2*m : 3*m], speed: buf[3*m:]}
 	k := 1
+	denK, den := 0, 0.0 // ln(p[k−1]/p[k]) of the bracket denK, computed once per bracket
 	for j := 0; j < m; j++ {
 		pj := pr.p[0] - float64(j)*stepPa
 		for k < n-1 && pr.p[k] > pj {
 			k++
 		}
-		f := math.Log(pr.p[k-1]/pj) / math.Log(pr.p[k-1]/pr.p[k])
+		if k != denK {
+			denK, den = k, math.Log(pr.p[k-1]/pr.p[k])
+		}
+		f := math.Log(pr.p[k-1]/pj) / den
 		lin := func(x []float64) float64 { return x[k-1] + f*(x[k]-x[k-1]) }
 		g.p[j], g.z[j], g.theta[j] = pj, lin(pr.z), lin(pr.theta)
 		g.speed[j] = math.Hypot(lin(pr.u), lin(pr.v))
