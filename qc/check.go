@@ -48,8 +48,11 @@ type state struct {
 	// flagged, the new value where corrected. p in Pa, z in gpm (reported
 	// heights only), t and td in K, dpd in K.
 	p, z, t, td, dpd []float64
-	elev             float64 // station elevation, gpm; NaN if unknown
-	surface          int     // index of the first surface level, −1 if none
+	// tv caches each level's virtual temperature with the working values
+	// it was computed from (see virtualTAt).
+	tv      tvCache
+	elev    float64 // station elevation, gpm; NaN if unknown
+	surface int     // index of the first surface level, −1 if none
 }
 
 func newState(s *sounding.Sounding, cfg Config) *state {
@@ -59,11 +62,13 @@ func newState(s *sounding.Sounding, cfg Config) *state {
 	}
 	n := len(s.Levels)
 	st.rep.Flags = make([][sounding.NumVars]Flag, n)
-	buf := make([]float64, 5*n)
-	st.p, st.z, st.t, st.td, st.dpd = buf[:n], buf[n:2*n], buf[2*n:3*n], buf[3*n:4*n], buf[4*n:]
+	buf := make([]float64, 9*n)
+	st.p, st.z, st.t, st.td, st.dpd = buf[:n], buf[n:2*n], buf[2*n:3*n], buf[3*n:4*n], buf[4*n:5*n]
+	st.tv = tvCache{t: buf[5*n : 6*n], td: buf[6*n : 7*n], p: buf[7*n : 8*n], tv: buf[8*n:]}
 	for i := range s.Levels {
 		l := &s.Levels[i]
 		st.p[i] = finite(l.PressurePa)
+		st.tv.p[i] = nan // nothing cached
 		st.z[i] = math.NaN()
 		if l.Status[sounding.VarHeight] == sounding.Reported {
 			st.z[i] = finite(l.HeightM)

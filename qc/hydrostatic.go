@@ -34,6 +34,37 @@ func (st *state) virtualT(tK, tdK, pPa float64) float64 {
 	return thermo.VirtualTemperature(tK, w, c.Epsilon)
 }
 
+// tvCache holds, per level, a virtual temperature (tv, K) and the
+// temperature, dewpoint and pressure it was computed from. The checks
+// integrate the hypsometric equation over the same levels several times
+// (each layer, its neighbours, the superadiabatic heights), each time
+// with the working values of the moment; a level whose values have not
+// changed since gets the same Tv without its saturation vapour pressure
+// (an exponential) being computed again.
+type tvCache struct{ t, td, p, tv []float64 }
+
+// virtualTAt returns the virtual temperature in K of level i for the
+// temperatures t and dewpoints td (the working ones or a trial) and the
+// working pressure: virtualT of those values, from the cache when they
+// are bit for bit the ones it was computed from. A level without pressure
+// is not cached (its Tv is T, cheap), so the NaN pressure an unused entry
+// holds never matches.
+func (st *state) virtualTAt(i int, t, td []float64) float64 {
+	tK, tdK, pPa := t[i], td[i], st.p[i]
+	if math.IsNaN(pPa) {
+		return st.virtualT(tK, tdK, pPa)
+	}
+	c := &st.tv
+	if same(c.p[i], pPa) && same(c.t[i], tK) && same(c.td[i], tdK) {
+		return c.tv[i]
+	}
+	v := st.virtualT(tK, tdK, pPa)
+	c.t[i], c.td[i], c.p[i], c.tv[i] = tK, tdK, pPa, v
+	return v
+}
+
+func same(a, b float64) bool { return math.Float64bits(a) == math.Float64bits(b) }
+
 // thickness returns the hypsometric thickness in m from level a up to level
 // b, integrating Tv by the trapezoid rule in ln p through every level
 // between them that has a pressure and a temperature (METHODS §1.6). t and
@@ -43,7 +74,7 @@ func (st *state) thickness(a, b int, t, td []float64) float64 {
 	if math.IsNaN(t[a]) || math.IsNaN(t[b]) {
 		return nan
 	}
-	sum, _ := st.thicknessFrom(a, b, t, td, st.virtualT(t[a], td[a], st.p[a]))
+	sum, _ := st.thicknessFrom(a, b, t, td, st.virtualTAt(a, t, td))
 	return sum
 }
 
@@ -57,12 +88,12 @@ func (st *state) thicknessFrom(a, b int, t, td []float64, tvA float64) (sum, tvB
 		if math.IsNaN(st.p[i]) || math.IsNaN(t[i]) {
 			continue
 		}
-		tv := st.virtualT(t[i], td[i], st.p[i])
+		tv := st.virtualTAt(i, t, td)
 		sum += thermo.Thickness(st.p[prev], st.p[i], tvPrev, tv, c.Rd, c.G0)
 		prev, tvPrev = i, tv
 	}
 	if prev != b { // b itself had no pressure
-		tvPrev = st.virtualT(t[b], td[b], st.p[b])
+		tvPrev = st.virtualTAt(b, t, td)
 	}
 	return sum, tvPrev
 }

@@ -19,7 +19,12 @@ func longestRun(idx []int, key func(i int) float64) []bool {
 	prev := make([]int, n)
 	for pos, i := range idx {
 		k := key(i)
-		l := sort.Search(len(tails), func(j int) bool { return key(idx[tails[j]]) >= k })
+		// Tails' keys increase, so a key above the last one extends the
+		// longest run (the common case: values in order) without a search.
+		l := len(tails)
+		if l > 0 && !(key(idx[tails[l-1]]) < k) {
+			l = sort.Search(len(tails), func(j int) bool { return key(idx[tails[j]]) >= k })
+		}
 		if l > 0 {
 			prev[pos] = tails[l-1]
 		} else {

@@ -54,12 +54,12 @@ func (st *state) heightsAGL(idx []int) []float64 {
 		z[0] = base
 	}
 	// Each level's virtual temperature is computed once along the chain.
-	tv := st.virtualT(st.t[idx[0]], st.td[idx[0]], st.p[idx[0]])
+	tv := st.virtualTAt(idx[0], st.t, st.td)
 	for n := 1; n < len(idx); n++ {
 		a, b := idx[n-1], idx[n]
 		if math.IsNaN(st.t[a]) || math.IsNaN(st.t[b]) {
 			z[n] = z[n-1] + nan
-			tv = st.virtualT(st.t[b], st.td[b], st.p[b])
+			tv = st.virtualTAt(b, st.t, st.td)
 			continue
 		}
 		var dz float64
