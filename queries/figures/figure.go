@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"fmt"
+	"image"
 	"image/color"
 	"io"
 	"math"
@@ -42,31 +43,44 @@ type Figure struct {
 	draw func(c draw.Canvas)
 }
 
-// Render writes the figure in format "png" or "svg". An unknown format is an
-// error and nothing is written.
+// Render writes the figure in format "png" or "svg". A PNG is an indexed-
+// colour image of at most PaletteSize colours at level PNGFast (see
+// RenderPNG). An unknown format is an error and nothing is written.
 func (f *Figure) Render(w io.Writer, format string) error {
-	var cv vg.CanvasWriterTo
 	switch format {
 	case "png":
-		cv = vgimg.PngCanvas{Canvas: vgimg.NewWith(vgimg.UseWH(f.Width, f.Height), vgimg.UseDPI(pngDPI),
-			vgimg.UseBackgroundColor(color.White))}
+		return f.RenderPNG(w, PNGFast)
 	case "svg":
-		cv = vgsvg.New(f.Width, f.Height)
+		cv := vgsvg.New(f.Width, f.Height)
+		dc := draw.New(cv)
+		// The SVG canvas has no background of its own.
+		dc.FillPolygon(color.White, []vg.Point{{X: 0, Y: 0}, {X: f.Width, Y: 0}, {X: f.Width, Y: f.Height}, {X: 0, Y: f.Height}})
+		f.draw(dc)
+		var buf bytes.Buffer
+		if _, err := cv.WriteTo(&buf); err != nil {
+			return fmt.Errorf("render %s as svg: %w", f.Name, err)
+		}
+		_, err := w.Write(buf.Bytes())
+		return err
 	default:
 		return fmt.Errorf("unknown image format %q (png or svg)", format)
 	}
-	dc := draw.New(cv)
-	if format == "svg" {
-		// The SVG canvas has no background of its own.
-		dc.FillPolygon(color.White, []vg.Point{{X: 0, Y: 0}, {X: f.Width, Y: 0}, {X: f.Width, Y: f.Height}, {X: 0, Y: f.Height}})
+}
+
+// RenderPNG writes the figure as a PNG at pngDPI with at most PaletteSize
+// colours (Quantize), compressed at zlib level (PNGFast, PNGSmallest, or
+// 1 to 9).
+func (f *Figure) RenderPNG(w io.Writer, level int) error {
+	cv := vgimg.NewWith(vgimg.UseWH(f.Width, f.Height), vgimg.UseDPI(pngDPI), vgimg.UseBackgroundColor(color.White))
+	f.draw(draw.New(cv))
+	img, ok := cv.Image().(*image.RGBA)
+	if !ok {
+		return fmt.Errorf("render %s as png: canvas is %T, not RGBA", f.Name, cv.Image())
 	}
-	f.draw(dc)
-	var buf bytes.Buffer
-	if _, err := cv.WriteTo(&buf); err != nil {
-		return fmt.Errorf("render %s as %s: %w", f.Name, format, err)
+	if err := writePalettePNG(w, Quantize(img, PaletteSize), level); err != nil {
+		return fmt.Errorf("render %s: %w", f.Name, err)
 	}
-	_, err := w.Write(buf.Bytes())
-	return err
+	return nil
 }
 
 // Colours of the figures. Hours take hourColors in order of nominal hour.

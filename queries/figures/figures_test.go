@@ -6,6 +6,7 @@ import (
 	"database/sql"
 	"encoding/xml"
 	"errors"
+	"image"
 	"image/png"
 	"math"
 	"os"
@@ -366,6 +367,8 @@ func checkImage(t *testing.T, name, format string, b []byte) {
 			t.Errorf("%s.png: %v", name, err)
 		} else if r := img.Bounds(); r.Dx() < 600 || r.Dy() < 400 {
 			t.Errorf("%s.png is only %dx%d", name, r.Dx(), r.Dy())
+		} else if p, ok := img.(*image.Paletted); !ok || len(p.Palette) > PaletteSize {
+			t.Errorf("%s.png is %T, not a palette image of at most %d colours", name, img, PaletteSize)
 		}
 	case "svg":
 		d := xml.NewDecoder(bytes.NewReader(b))
