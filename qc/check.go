@@ -76,11 +76,7 @@ func newState(s *sounding.Sounding, cfg Config) *state {
 		st.t[i] = finite(l.TemperatureK)
 		st.td[i] = finite(l.DewpointK)
 		st.dpd[i] = finite(l.DewpointDepressionK)
-		for v := range sounding.NumVars {
-			if math.IsNaN(value(l, v)) {
-				st.rep.Flags[i][v] = Missing
-			}
-		}
+		missingValues(&st.rep.Flags[i], l)
 		if l.Kind == sounding.KindSurface && st.surface < 0 {
 			st.surface = i
 		}
@@ -90,6 +86,29 @@ func newState(s *sounding.Sounding, cfg Config) *state {
 		st.elev = st.z[st.surface]
 	}
 	return st
+}
+
+// missingValues sets the flag of each variable of l whose value (as value
+// gives it) is NaN to Missing, variable by variable without value's switch
+// (newState does this for every variable of every level).
+func missingValues(fl *[sounding.NumVars]Flag, l *sounding.Level) {
+	set := func(v sounding.Var, x float64) {
+		if math.IsNaN(x) {
+			fl[v] = Missing
+		}
+	}
+	set(sounding.VarPressure, l.PressurePa)
+	set(sounding.VarHeight, l.HeightM)
+	set(sounding.VarTemperature, l.TemperatureK)
+	set(sounding.VarRelHumidity, l.RelHumidityPct)
+	dpd := l.DewpointDepressionK
+	if math.IsNaN(dpd) && !math.IsNaN(l.DewpointK) && !math.IsNaN(l.TemperatureK) {
+		dpd = l.TemperatureK - l.DewpointK // dewpoint given directly
+	}
+	set(sounding.VarDewpointDepression, dpd)
+	set(sounding.VarWindDirection, l.WindDirectionDeg)
+	set(sounding.VarWindSpeed, l.WindSpeedMS)
+	set(sounding.VarElapsedTime, l.ElapsedS)
 }
 
 // finite returns x, or NaN when x is ±Inf.
