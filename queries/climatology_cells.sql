@@ -10,7 +10,7 @@
 --
 -- One row per cell, ordered by station, period and time of day:
 --   n_soundings                    soundings attempted
---   n_valid                        soundings with analysis_status = 'ok'
+--   n_valid                        soundings with analysed(analysis_status)
 --   n_consensus_ok/_surface/_undefined  valid soundings by consensus status
 --   mixing_height_pNN_m            m above ground; percentiles 10/25/50/75/90 of
 --                                  the consensus mixing height of valid soundings,
@@ -58,9 +58,9 @@
         x.station_id, x.season, x.season_name, x.month, x.nominal_hour, x.sun_class,
         count(*) AS n_soundings,
         count(*) FILTER (WHERE x.valid) AS n_valid,
-        count(*) FILTER (WHERE x.valid AND x.consensus_status = 'ok') AS n_consensus_ok,
-        count(*) FILTER (WHERE x.valid AND x.consensus_status = 'surface') AS n_consensus_surface,
-        count(*) FILTER (WHERE x.valid AND x.consensus_status NOT IN ('ok', 'surface')) AS n_consensus_undefined,
+        count(*) FILTER (WHERE x.valid AND mh_ok(x.consensus_status)) AS n_consensus_ok,
+        count(*) FILTER (WHERE x.valid AND mh_surface(x.consensus_status)) AS n_consensus_surface,
+        count(*) FILTER (WHERE x.valid AND NOT mh_defined(x.consensus_status)) AS n_consensus_undefined,
         quantile_cont(x.consensus_m, [0.10, 0.25, 0.50, 0.75, 0.90]) FILTER (WHERE x.valid) AS mixing_height_q,
         count(*) FILTER (WHERE x.valid AND x.sbi_present)::DOUBLE / nullif(count(*) FILTER (WHERE x.valid), 0) AS sbi_frequency,
         quantile_cont(x.sbi_strength_k, 0.5) FILTER (WHERE x.valid AND x.sbi_present) AS sbi_median_strength_k,

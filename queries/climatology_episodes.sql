@@ -31,7 +31,7 @@ WITH d AS (
 ), met AS (
     SELECT ed.station_id, ed.criterion, dk.season, dk.month, count(*) AS days_in_episodes
     FROM episode_days ed JOIN dk USING (station_id, local_date)
-    WHERE ed.status = 'met'
+    WHERE day_met(ed.status)
     GROUP BY ALL
 ), judged AS (
     SELECT station_id, criterion,

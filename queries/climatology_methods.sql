@@ -43,7 +43,7 @@ m AS (
     FROM x
     UNION ALL
     SELECT x.cell, h.method, h.status,
-        CASE h.status WHEN 'surface' THEN 0.0 WHEN 'ok' THEN h.height_agl_m END
+        mixing_height_m(h.status, h.height_agl_m)
     FROM x
     JOIN mixing_heights h USING (station_id, launch_time)
 ),
@@ -51,9 +51,9 @@ c AS (
     SELECT
         cell, method,
         count(*) AS n_valid,
-        count(*) FILTER (WHERE status = 'ok') AS n_ok,
-        count(*) FILTER (WHERE status = 'surface') AS n_surface,
-        count(*) FILTER (WHERE status NOT IN ('ok', 'surface')) AS n_undefined,
+        count(*) FILTER (WHERE mh_ok(status)) AS n_ok,
+        count(*) FILTER (WHERE mh_surface(status)) AS n_surface,
+        count(*) FILTER (WHERE NOT mh_defined(status)) AS n_undefined,
         -- the five percentiles together: one copy of the values per cell
         quantile_cont(height_m, [0.10, 0.25, 0.50, 0.75, 0.90]) AS q
     FROM m

@@ -28,7 +28,7 @@
 -- null in season mode), nominal_hour (null in sun mode, and for the "other"
 -- cell), sun_class (null in hour mode); then per sounding: hour_given (the
 -- sounding's own nominal hour), calendar_month, launch_time, valid
--- (analysis_status = 'ok') and the per-sounding values the statistics use.
+-- (analysed(analysis_status)) and the per-sounding values the statistics use.
 -- Cost (600 station-years of the bench archive): the soundings files are
 -- read once (the MATERIALIZED member `s`, only the columns used here), and
 -- the station's mean latitude is an aggregate joined back, not a window
@@ -80,12 +80,9 @@ SELECT
     s.nominal_hour AS hour_given,
     s.month AS calendar_month,
     s.launch_time,
-    s.analysis_status = 'ok' AS valid,
+    analysed(s.analysis_status) AS valid,
     s.mixing_height_consensus_status AS consensus_status,
-    CASE s.mixing_height_consensus_status
-        WHEN 'surface' THEN 0.0
-        WHEN 'ok' THEN s.mixing_height_consensus_m
-    END AS consensus_m,
+    mixing_height_m(s.mixing_height_consensus_status, s.mixing_height_consensus_m) AS consensus_m,
     s.sbi_present,
     s.sbi_strength_k,
     s.sbi_top_agl_m,

@@ -178,7 +178,7 @@ func materialize[T any](ctx context.Context, db *sql.DB, dir, table string, rows
 func readDayObs(ctx context.Context, db *sql.DB) ([]analyze.DayObs, error) {
 	rows, err := db.QueryContext(ctx, `SELECT station_id, launch_time, longitude_deg, coalesce(sbi_present, false) AS sbi_present,
 		sbi_strength_k, heat_deficit_mj_m2, stable_layer_fraction, mixing_height_parcel_m, transport_wind_ms
-		FROM soundings WHERE analysis_status = 'ok'`)
+		FROM soundings WHERE analysed(analysis_status)`)
 	if err != nil {
 		if strings.Contains(err.Error(), "heat_deficit") || strings.Contains(err.Error(), "stable_layer") {
 			return nil, fmt.Errorf("queries: episodes: the store predates the heat-deficit columns; ingest the inputs again (sondeclim ingest --store DIR PATH...): %w", err)
@@ -212,8 +212,8 @@ func readDayObs(ctx context.Context, db *sql.DB) ([]analyze.DayObs, error) {
 // readHolzworth reads the defined afternoon (Holzworth) mixing heights.
 func readHolzworth(ctx context.Context, db *sql.DB) (map[analyze.DayKey]float64, error) {
 	rows, err := db.QueryContext(ctx, `SELECT station_id, local_date,
-		CASE WHEN status = 'surface' THEN 0 ELSE height_agl_m END AS height_agl_m
-		FROM afternoon_mixing WHERE status IN ('ok', 'surface')`)
+		mixing_height_m(status, height_agl_m) AS height_agl_m
+		FROM afternoon_mixing WHERE mh_defined(status)`)
 	if err != nil {
 		return nil, fmt.Errorf("queries: episodes: afternoon mixing heights: %w", err)
 	}

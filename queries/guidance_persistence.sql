@@ -35,7 +35,7 @@ WITH d AS (
 ), ep AS (
     SELECT station_id, local_date, true AS in_episode
     FROM episode_days
-    WHERE criterion = 'persistent_inversion_whiteman2001' AND status = 'met'
+    WHERE criterion = 'persistent_inversion_whiteman2001' AND day_met(status)
 )
 SELECT l.station_id, l.season, l.sbi_class,
     count(*) AS n_days,

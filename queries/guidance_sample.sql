@@ -43,16 +43,16 @@ morning AS (
         CASE WHEN m.sbi_present THEN len(list_filter($4::DOUBLE[], l -> l <= m.sbi_strength_k)) + 1 ELSE 0 END AS sbi_rank,
         a.tmax_c,
         a.status AS holzworth_status,
-        CASE a.status WHEN 'surface' THEN 0.0 WHEN 'ok' THEN a.height_agl_m END AS holzworth_m
+        mixing_height_m(a.status, a.height_agl_m) AS holzworth_m
     FROM afternoon_mixing a
     JOIN snd m ON m.station_id = a.station_id AND m.launch_time = a.morning_launch_time
-    WHERE m.analysis_status = 'ok' AND m.season_year BETWEEN $2 AND $3
+    WHERE analysed(m.analysis_status) AND m.season_year BETWEEN $2 AND $3
 ),
 afternoon AS (
     SELECT station_id, local_day, mixing_height_consensus_status AS status,
-        CASE mixing_height_consensus_status WHEN 'surface' THEN 0.0 WHEN 'ok' THEN mixing_height_consensus_m END AS height_m
+        mixing_height_m(mixing_height_consensus_status, mixing_height_consensus_m) AS height_m
     FROM snd
-    WHERE analysis_status = 'ok' AND lmst_h >= 12 AND lmst_h < 20
+    WHERE analysed(analysis_status) AND lmst_h >= 12 AND lmst_h < 20
     QUALIFY row_number() OVER (PARTITION BY station_id, local_day ORDER BY abs(lmst_h - 15), launch_time) = 1
 ),
 labelled AS (

@@ -1,6 +1,6 @@
 -- Ventilation category frequency by month and nominal hour.
 --
--- Source: the soundings view, valid soundings (analysis_status = 'ok').
+-- Source: the soundings view, valid soundings (analysed(analysis_status)).
 -- Parameters (bound):
 --   $1  VARCHAR[] station ids to keep (empty: all)
 --   $2  first and $3 last calendar year kept (inclusive)
@@ -17,7 +17,7 @@ WITH v AS (
     SELECT station_id, month, nominal_hour, ventilation_table, ventilation_index_m2s,
         coalesce(nullif(ventilation_category, ''), 'undefined') AS category
     FROM soundings
-    WHERE analysis_status = 'ok'
+    WHERE analysed(analysis_status)
         AND (len($1::VARCHAR[]) = 0 OR list_contains($1::VARCHAR[], station_id))
         AND year BETWEEN $2 AND $3
 ),

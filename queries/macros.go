@@ -6,6 +6,7 @@ import (
 
 	"github.com/sondeclim/sondeclim/analyze"
 	"github.com/sondeclim/sondeclim/physics/sun"
+	"github.com/sondeclim/sondeclim/qc"
 	"github.com/sondeclim/sondeclim/schema"
 )
 
@@ -23,6 +24,21 @@ import (
 //	                        null when lat is null or NaN (no hemisphere)
 //	sun_class_rank(c)       sort key of a sun class: sun.Classes order (day
 //	                        first), anything else last
+//
+// and the tests of status columns, so no SQL file types a status value by
+// hand (the values come from the Go enums; see DEVELOPERS.md):
+//
+//	analysed(s)             s (soundings.analysis_status) is analyze.StatusOK:
+//	                        a valid sounding
+//	qc_ok(s), qc_suspect(s) s (qc_status) is qc.StatusOK, qc.StatusSuspect
+//	mh_ok(s), mh_surface(s), mh_undefined(s)
+//	                        s (a mixing-height status column) is
+//	                        analyze.MixingHeightOK, …Surface, …Undefined
+//	mh_defined(s)           s is ok or surface: the status gives a height
+//	mixing_height_m(s, h)   the height of a mixing-height status s and
+//	                        height h (m): 0 for surface, h for ok, null
+//	                        otherwise
+//	day_met(s)              s (episode_days.status) is analyze.DayMet
 func macros() []string {
 	names := append([]string{analyze.HeightConsensus}, analyze.MethodNames()...)
 	north, south := map[string]string{}, map[string]string{}
@@ -35,6 +51,16 @@ func macros() []string {
 		"CREATE MACRO season_name(s, lat) AS CASE WHEN lat IS NULL OR isnan(lat) THEN NULL WHEN lat < 0 THEN " + mapCase("s", schema.Seasons, south) +
 			" ELSE " + mapCase("s", schema.Seasons, north) + " END",
 		"CREATE MACRO sun_class_rank(c) AS " + rankCase("c", sun.Classes, 1),
+		"CREATE MACRO analysed(s) AS s = " + sqlString(string(analyze.StatusOK)),
+		"CREATE MACRO qc_ok(s) AS s = " + sqlString(string(qc.StatusOK)),
+		"CREATE MACRO qc_suspect(s) AS s = " + sqlString(string(qc.StatusSuspect)),
+		"CREATE MACRO mh_ok(s) AS s = " + sqlString(string(analyze.MixingHeightOK)),
+		"CREATE MACRO mh_surface(s) AS s = " + sqlString(string(analyze.MixingHeightSurface)),
+		"CREATE MACRO mh_undefined(s) AS s = " + sqlString(string(analyze.MixingHeightUndefined)),
+		"CREATE MACRO mh_defined(s) AS s IN (" + sqlString(string(analyze.MixingHeightOK)) + ", " + sqlString(string(analyze.MixingHeightSurface)) + ")",
+		"CREATE MACRO mixing_height_m(s, h) AS CASE s WHEN " + sqlString(string(analyze.MixingHeightSurface)) + " THEN 0.0 WHEN " +
+			sqlString(string(analyze.MixingHeightOK)) + " THEN h END",
+		"CREATE MACRO day_met(s) AS s = " + sqlString(string(analyze.DayMet)),
 	}
 }
 

@@ -76,3 +76,38 @@ func TestSeasonAndSunMacros(t *testing.T) {
 		t.Errorf("sun classes %q (%v), want %q", got, err, want)
 	}
 }
+
+// TestStatusMacros checks the status macros against the values the store's
+// schema documents for those columns (sondeclim schema: analysis_status ok,
+// mixing-height status ok, surface or undefined with 0 m for surface,
+// episode_days.status met or missing). Scaffolding in part: the values are
+// the Go constants the macros are built from.
+func TestStatusMacros(t *testing.T) {
+	db, err := sql.Open("duckdb", "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer db.Close()
+	for _, m := range macros() {
+		if _, err := db.Exec(m); err != nil {
+			t.Fatalf("%s: %v", m, err)
+		}
+	}
+	for _, c := range []struct{ expr, want string }{
+		{"analysed('ok')", "true"}, {"analysed('no_levels')", "false"}, {"analysed('qc_rejected:x')", "false"},
+		{"qc_ok('ok')", "true"}, {"qc_suspect('suspect')", "true"}, {"qc_ok('insufficient:shallow')", "false"},
+		{"mh_ok('ok')", "true"}, {"mh_surface('surface')", "true"}, {"mh_undefined('undefined')", "true"},
+		{"mh_defined('ok') AND mh_defined('surface') AND NOT mh_defined('undefined')", "true"},
+		{"mixing_height_m('ok', 812.5)", "812.5"}, {"mixing_height_m('surface', 812.5)", "0.0"},
+		{"coalesce(mixing_height_m('undefined', 812.5)::VARCHAR, 'null')", "null"},
+		{"day_met('met')", "true"}, {"day_met('missing')", "false"},
+	} {
+		var got string
+		if err := db.QueryRow("SELECT (" + c.expr + ")::VARCHAR").Scan(&got); err != nil {
+			t.Fatalf("%s: %v", c.expr, err)
+		}
+		if got != c.want {
+			t.Errorf("%s = %s, want %s", c.expr, got, c.want)
+		}
+	}
+}

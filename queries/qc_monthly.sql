@@ -8,8 +8,8 @@
 --
 -- One row per station_id, year and month:
 --   n_soundings            soundings attempted (every row of the month)
---   n_ok                   qc_status = 'ok'
---   n_suspect              qc_status = 'suspect' (used, some values flagged)
+--   n_ok                   qc_ok(qc_status)
+--   n_suspect              qc_suspect(qc_status) (used, some values flagged)
 --   n_insufficient         qc_status starting with 'insufficient' (too little
 --                          of the lower troposphere)
 --   n_rejected             qc_status starting with 'rejected'
@@ -37,8 +37,8 @@ SELECT
     s.year,
     s.month,
     count(*) AS n_soundings,
-    count(*) FILTER (WHERE s.qc_status = 'ok') AS n_ok,
-    count(*) FILTER (WHERE s.qc_status = 'suspect') AS n_suspect,
+    count(*) FILTER (WHERE qc_ok(s.qc_status)) AS n_ok,
+    count(*) FILTER (WHERE qc_suspect(s.qc_status)) AS n_suspect,
     count(*) FILTER (WHERE starts_with(s.qc_status, 'insufficient')) AS n_insufficient,
     count(*) FILTER (WHERE starts_with(s.qc_status, 'rejected')) AS n_rejected,
     (count(*) FILTER (WHERE starts_with(s.qc_status, 'insufficient') OR starts_with(s.qc_status, 'rejected')))::DOUBLE

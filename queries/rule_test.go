@@ -148,6 +148,11 @@ func TestEpisodeClimatologyByHand(t *testing.T) {
 		t.Fatal(err)
 	}
 	defer db.Close()
+	for _, m := range macros() { // as Open does
+		if _, err := db.Exec(m); err != nil {
+			t.Fatalf("%s: %v", m, err)
+		}
+	}
 	Y, N, U := analyze.Yes, analyze.No, analyze.Unknown
 	var days []analyze.DayRecord
 	add := func(m time.Month, d int, dsl analyze.Tri) {

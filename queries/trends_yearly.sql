@@ -14,7 +14,7 @@
 --
 -- One row per station, season, nominal hour and season_year:
 --   n_soundings       soundings attempted
---   n_valid           soundings with analysis_status = 'ok'
+--   n_valid           soundings with analysed(analysis_status)
 --   n_values          valid soundings with a value of the metric
 --   value             the year's median of the metric (type 7), or the
 --                     fraction for sbi_frequency; null without values
@@ -23,10 +23,10 @@
 --                     input of the instrument/practice-change warning
 WITH s AS (
     SELECT station_id, season, nominal_hour, season_year, level_count,
-        analysis_status = 'ok' AS valid,
+        analysed(analysis_status) AS valid,
         CASE $4
-            WHEN 'mixing_height' THEN CASE mixing_height_consensus_status WHEN 'surface' THEN 0.0 WHEN 'ok' THEN mixing_height_consensus_m END
-            WHEN 'parcel_height' THEN CASE mixing_height_parcel_status WHEN 'surface' THEN 0.0 WHEN 'ok' THEN mixing_height_parcel_m END
+            WHEN 'mixing_height' THEN mixing_height_m(mixing_height_consensus_status, mixing_height_consensus_m)
+            WHEN 'parcel_height' THEN mixing_height_m(mixing_height_parcel_status, mixing_height_parcel_m)
             WHEN 'sbi_frequency' THEN CASE WHEN sbi_present THEN 1.0 WHEN NOT sbi_present THEN 0.0 END
             WHEN 'sbi_strength' THEN CASE WHEN sbi_present THEN sbi_strength_k END
             WHEN 'sbi_depth' THEN CASE WHEN sbi_present THEN sbi_top_agl_m END

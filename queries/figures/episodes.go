@@ -95,7 +95,7 @@ func loadEpisodeCalendars(ctx context.Context, db *sql.DB, station string) (map[
 	if err := years.Err(); err != nil {
 		return nil, fail(err)
 	}
-	rows, err := db.QueryContext(ctx, "SELECT station_id, criterion, local_date, status = 'met' AS met FROM episode_days "+
+	rows, err := db.QueryContext(ctx, "SELECT station_id, criterion, local_date, day_met(status) AS met FROM episode_days "+
 		"WHERE ($1 = '' OR station_id = $1) ORDER BY station_id, local_date, criterion", station)
 	if err != nil {
 		return nil, fail(err)

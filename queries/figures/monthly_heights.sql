@@ -8,7 +8,7 @@
 -- One query serves every station: a store's files are read once, not once
 -- per station.
 -- One row per station_id, month (1-12) and nominal_hour (h UTC) with at
--- least one valid sounding (analysis_status = 'ok'):
+-- least one valid sounding (analysed(analysis_status)):
 --   n_values     soundings whose status is ok or surface
 --   n_undefined  soundings whose status is undefined (counted, left out of
 --                the percentiles)
@@ -19,13 +19,13 @@ WITH raw AS (
     SELECT s.station_id, s.month, s.nominal_hour,
         s.mixing_height_consensus_status AS status, s.mixing_height_consensus_m AS h
     FROM soundings AS s
-    WHERE ($1 = '' OR s.station_id = $1) AND s.analysis_status = 'ok' AND $2 = 'consensus'
+    WHERE ($1 = '' OR s.station_id = $1) AND analysed(s.analysis_status) AND $2 = 'consensus'
     UNION ALL
     SELECT s.station_id, s.month, s.nominal_hour, m.status, m.height_agl_m AS h
     FROM soundings AS s
     JOIN mixing_heights AS m
         ON m.station_id = s.station_id AND m.launch_time = s.launch_time
-    WHERE ($1 = '' OR s.station_id = $1) AND ($1 = '' OR m.station_id = $1) AND s.analysis_status = 'ok' AND m.method = $2
+    WHERE ($1 = '' OR s.station_id = $1) AND ($1 = '' OR m.station_id = $1) AND analysed(s.analysis_status) AND m.method = $2
 ),
 v AS (
     SELECT
@@ -33,10 +33,7 @@ v AS (
         month,
         nominal_hour,
         status,
-        CASE status
-            WHEN 'surface' THEN 0.0
-            WHEN 'ok' THEN h
-        END AS height_m
+        mixing_height_m(status, h) AS height_m
     FROM raw
 )
 SELECT
@@ -44,7 +41,7 @@ SELECT
     month,
     nominal_hour,
     count(height_m) AS n_values,
-    count(*) FILTER (WHERE status = 'undefined' OR height_m IS NULL) AS n_undefined,
+    count(*) FILTER (WHERE mh_undefined(status) OR height_m IS NULL) AS n_undefined,
     quantile_cont(height_m, 0.10) AS p10_m,
     quantile_cont(height_m, 0.25) AS p25_m,
     quantile_cont(height_m, 0.50) AS p50_m,

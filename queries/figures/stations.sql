@@ -6,7 +6,7 @@
 --   first_time     earliest nominal_time (UTC)
 --   last_time      latest nominal_time (UTC)
 --   n_soundings    soundings attempted (every row)
---   n_valid        valid soundings (analysis_status = 'ok'), the ones the
+--   n_valid        valid soundings (analysed(analysis_status)), the ones the
 --                  climatology figures count
 SELECT
     station_id,
@@ -14,7 +14,7 @@ SELECT
     min(nominal_time) AS first_time,
     max(nominal_time) AS last_time,
     count(*) AS n_soundings,
-    count(*) FILTER (WHERE analysis_status = 'ok') AS n_valid
+    count(*) FILTER (WHERE analysed(analysis_status)) AS n_valid
 FROM soundings
 GROUP BY station_id
 ORDER BY station_id

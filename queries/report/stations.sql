@@ -11,7 +11,7 @@
 --                   0.01 degree and 1 m
 --   first_time      earliest nominal_time (UTC), last_time latest
 --   n_soundings     soundings in the store (every row)
---   n_valid         soundings analysed (analysis_status = 'ok')
+--   n_valid         soundings analysed (analysed(analysis_status))
 SELECT
     station_id,
     coalesce(arg_max(station_name, length(station_name)), '') AS station_name,
@@ -22,7 +22,7 @@ SELECT
     min(nominal_time) AS first_time,
     max(nominal_time) AS last_time,
     count(*) AS n_soundings,
-    count(*) FILTER (WHERE analysis_status = 'ok') AS n_valid
+    count(*) FILTER (WHERE analysed(analysis_status)) AS n_valid
 FROM soundings
 WHERE $1 = '' OR station_id = $1
 GROUP BY station_id
