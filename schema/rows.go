@@ -256,7 +256,7 @@ type QCFindingRow struct {
 	Year        int32     `col:"year" doc:"calendar year of the sounding's nominal time"`
 	Index       int32     `col:"level_index" doc:"0-based position of the level in the source order (as in levels.level_index); -1 for a finding about the whole sounding"`
 	PressureHPa float64   `col:"pressure_hpa" doc:"hPa; pressure of the level as reported, null for wind-only levels and whole-sounding findings"`
-	Variable    string    `col:"variable" doc:"variable the finding is about: pressure, height, temperature, relative_humidity, dewpoint_depression, wind_direction, wind_speed, elapsed_time; level for the whole level, sounding for the whole sounding"`
+	Variable    string    `col:"variable" values:"qc_variable" doc:"variable the finding is about: {values}; level for the whole level, sounding for the whole sounding"`
 	Check       string    `col:"qc_check" values:"qc_check" doc:"check that produced the finding: {values}"`
 	Severity    string    `col:"severity" values:"qc_severity" doc:"{values} (bad values are never used; suspect ones only on request; corrected ones are used with corrected_value)"`
 	Value       float64   `col:"value" doc:"the value as observed, in the display unit of its variable: hPa, gpm, degC, %, K (dewpoint depression), degrees, m/s or s; null when none"`

@@ -40,7 +40,10 @@ var vocabularies = map[string]func() vocabulary{
 	"afternoon_source":   func() vocabulary { return vocabulary{values: strs(analyze.AfternoonSources())} },
 	"qc_check":           func() vocabulary { return vocabulary{values: strs(qc.Checks())} },
 	"episode_day_status": func() vocabulary { return vocabulary{values: strs(analyze.EpisodeDayStatuses())} },
-	"qc_severity":        func() vocabulary { return vocabulary{values: enumNames(qc.Suspect, qc.Corrected)} },
+	"qc_variable": func() vocabulary {
+		return vocabulary{values: enumNames(sounding.VarPressure, sounding.NumVars-1)}
+	},
+	"qc_severity": func() vocabulary { return vocabulary{values: enumNames(qc.Suspect, qc.Corrected)} },
 	"level_kind": func() vocabulary {
 		return vocabulary{values: enumNames(sounding.KindSignificant, sounding.KindWindOnly), dict: true}
 	},
