@@ -543,7 +543,7 @@ func (r *run) buildPartition(key string, st *staged, prev *store.Partition) (_ *
 	for _, s := range all {
 		nLevels += len(s.Levels)
 	}
-	levels, err := schema.NewRows[schema.LevelRow](nLevels)
+	levels, err := schema.NewLevelColumns(nLevels)
 	if err != nil {
 		return nil, stats, nil, err
 	}

@@ -90,8 +90,9 @@ func (p *PartRows) Writer(table string) (Writer, error) {
 	return w, nil
 }
 
-// LevelAppender receives level rows: a *Rows[LevelRow] collects them for
-// writing, a *RowSlice[LevelRow] as structs.
+// LevelAppender receives level rows: a *LevelColumns fills them into the
+// columns of the levels file (appendLevelRows), a *Rows[LevelRow] collects
+// them for writing, a *RowSlice[LevelRow] as structs.
 type LevelAppender interface{ Append(LevelRow) }
 
 // RowSlice collects rows as a slice of structs.
@@ -243,45 +244,15 @@ func AppendSounding(out *PartRows, s *sounding.Sounding, rep qc.Report, res *ana
 }
 
 // appendLevelRows appends the level rows of sounding s (with its QC report
-// and analysis) to levels.
+// and analysis) to levels: straight into the columns of a *LevelColumns,
+// as LevelRow structs (levelRow) to any other collector.
 func appendLevelRows(levels LevelAppender, s *sounding.Sounding, rep qc.Report, res *analyze.Result, launch time.Time, year int32) {
-	flag := func(i int, v sounding.Var) string {
-		if i < len(rep.Flags) {
-			return rep.Flags[i][v].String()
-		}
-		return ""
+	if c, ok := levels.(*LevelColumns); ok {
+		c.appendLevels(s, rep, res, launch, year)
+		return
 	}
-	for i, l := range s.Levels {
-		levels.Append(LevelRow{
-			StationID:         s.StationID,
-			LaunchTime:        launch,
-			Year:              year,
-			Index:             int32(i),
-			Kind:              l.Kind.String(),
-			SourceLine:        int64(l.Line),
-			ElapsedS:          l.ElapsedS,
-			LatDispDeg:        l.LatDisplacementDeg,
-			LonDispDeg:        l.LonDisplacementDeg,
-			PressureHPa:       hPa(l.PressurePa),
-			HeightM:           res.HeightM[i],
-			HeightDerived:     res.HeightDerived[i],
-			HeightAGLM:        res.HeightAGLM[i],
-			TemperatureC:      degC(l.TemperatureK),
-			DewpointC:         degC(l.DewpointK),
-			RelHumidityPct:    l.RelHumidityPct,
-			WindDirDeg:        l.WindDirectionDeg,
-			WindSpeedMS:       l.WindSpeedMS,
-			ThetaK:            res.ThetaK[i],
-			MixingRatioGKg:    res.MixingRatioKgKg[i] * gPerKg,
-			TemperatureStatus: l.Status[sounding.VarTemperature].String(),
-			HeightStatus:      heightStatus(l, res.HeightDerived[i]),
-			HumidityStatus:    l.Status[sounding.VarDewpointDepression].String(),
-			PressureQC:        flag(i, sounding.VarPressure),
-			HeightQC:          flag(i, sounding.VarHeight),
-			TemperatureQC:     flag(i, sounding.VarTemperature),
-			HumidityQC:        flag(i, sounding.VarDewpointDepression),
-			WindQC:            flag(i, sounding.VarWindSpeed),
-		})
+	for i := range s.Levels {
+		levels.Append(levelRow(s, rep, res, launch, year, i))
 	}
 }
 
@@ -338,13 +309,6 @@ func AfternoonRowOf(m SoundingRow, e analyze.AfternoonEstimate) AfternoonRow {
 		TmaxC: degC(e.TmaxK), TmaxSource: string(e.TmaxSource), HeightAGLM: e.MixingHeight.HeightAGLM,
 		Status: string(e.MixingHeight.Status), Note: e.MixingHeight.Note,
 	}
-}
-
-func heightStatus(l sounding.Level, derived bool) string {
-	if derived {
-		return sounding.Derived.String()
-	}
-	return l.Status[sounding.VarHeight].String()
 }
 
 // padPerLevel makes the per-level slices as long as the sounding's levels

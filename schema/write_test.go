@@ -386,11 +386,13 @@ func BenchmarkWriteLevels(b *testing.B) {
 			LatDispDeg: math.NaN(), LonDispDeg: math.NaN()}
 	}
 	path := filepath.Join(b.TempDir(), "levels", "part.parquet")
+	cpu := processCPU()
 	for b.Loop() {
 		if err := WriteFile(path, TableLevels, rows, false); err != nil {
 			b.Fatal(err)
 		}
 	}
+	reportCPU(b, cpu)
 	b.ReportMetric(float64(len(rows)*b.N)/b.Elapsed().Seconds(), "rows/s")
 }
 

@@ -1,0 +1,348 @@
+package schema
+
+import (
+	"fmt"
+	"math"
+	"time"
+
+	"github.com/sondeclim/sondeclim/analyze"
+	"github.com/sondeclim/sondeclim/qc"
+	"github.com/sondeclim/sondeclim/sounding"
+)
+
+// LevelColumns collects the levels-table rows of one file column by
+// column, each column filled from the soundings in one pass over their
+// levels, without LevelRow structs in between. A station-year of
+// high-resolution soundings has some 130,000 levels: as rows of about 300
+// bytes each they were built, copied into a block and read back once per
+// column. The result is the file a slice of the same LevelRow values
+// gives (TestLevelColumnsEqualRows).
+type LevelColumns struct {
+	rows *Rows[LevelRow]
+	fill []levelFiller // per column of rows.cols
+}
+
+// levelFiller stores the values of one column for the levels of s at
+// positions base… of b (b already holds room for them).
+type levelFiller func(c *Column, b *colBuf, s *sounding.Sounding, rep qc.Report, res *analyze.Result, launch time.Time, year int32, base int) error
+
+// NewLevelColumns returns an empty LevelColumns with room for about
+// capacity levels before its columns grow.
+func NewLevelColumns(capacity int) (*LevelColumns, error) {
+	r, err := NewRows[LevelRow](capacity)
+	if err != nil {
+		return nil, err
+	}
+	l := &LevelColumns{rows: r, fill: make([]levelFiller, len(r.cols))}
+	for i := range r.cols {
+		f, err := levelFillerOf(&r.cols[i])
+		if err != nil {
+			return nil, err
+		}
+		l.fill[i] = f
+	}
+	return l, nil
+}
+
+// Append adds one level row given as a struct.
+func (l *LevelColumns) Append(row LevelRow) { l.rows.Append(row) }
+
+// Len returns the number of level rows collected.
+func (l *LevelColumns) Len() int { return l.rows.Len() }
+
+// WriteFile writes the collected rows (see WriteRows).
+func (l *LevelColumns) WriteFile(path, table string, sync bool) error {
+	return WriteRows(path, table, l.rows, sync)
+}
+
+func (l *LevelColumns) appendLevels(s *sounding.Sounding, rep qc.Report, res *analyze.Result, launch time.Time, year int32) {
+	r := l.rows
+	r.flush() // nothing pending unless Rows.Append was used as well
+	n := len(s.Levels)
+	if n == 0 {
+		return
+	}
+	base := r.n
+	for c := range r.cols {
+		r.bufs[c].grow(&r.cols[c], base+n)
+		if err := l.fill[c](&r.cols[c], r.bufs[c], s, rep, res, launch, year, base); err != nil && r.err == nil {
+			r.err = err
+		}
+	}
+	r.n = base + n
+}
+
+// levelRow is row i of the levels table for sounding s (with its QC
+// report and analysis): what every levelFiller below stores, column by
+// column.
+func levelRow(s *sounding.Sounding, rep qc.Report, res *analyze.Result, launch time.Time, year int32, i int) LevelRow {
+	l := &s.Levels[i]
+	return LevelRow{
+		StationID:         s.StationID,
+		LaunchTime:        launch,
+		Year:              year,
+		Index:             int32(i),
+		Kind:              l.Kind.String(),
+		SourceLine:        int64(l.Line),
+		ElapsedS:          l.ElapsedS,
+		LatDispDeg:        l.LatDisplacementDeg,
+		LonDispDeg:        l.LonDisplacementDeg,
+		PressureHPa:       hPa(l.PressurePa),
+		HeightM:           res.HeightM[i],
+		HeightDerived:     res.HeightDerived[i],
+		HeightAGLM:        res.HeightAGLM[i],
+		TemperatureC:      degC(l.TemperatureK),
+		DewpointC:         degC(l.DewpointK),
+		RelHumidityPct:    l.RelHumidityPct,
+		WindDirDeg:        l.WindDirectionDeg,
+		WindSpeedMS:       l.WindSpeedMS,
+		ThetaK:            res.ThetaK[i],
+		MixingRatioGKg:    res.MixingRatioKgKg[i] * gPerKg,
+		TemperatureStatus: l.Status[sounding.VarTemperature].String(),
+		HeightStatus:      heightStatusOf(l, res.HeightDerived[i]).String(),
+		HumidityStatus:    l.Status[sounding.VarDewpointDepression].String(),
+		PressureQC:        qcFlagName(rep, i, sounding.VarPressure),
+		HeightQC:          qcFlagName(rep, i, sounding.VarHeight),
+		TemperatureQC:     qcFlagName(rep, i, sounding.VarTemperature),
+		HumidityQC:        qcFlagName(rep, i, sounding.VarDewpointDepression),
+		WindQC:            qcFlagName(rep, i, sounding.VarWindSpeed),
+	}
+}
+
+// qcFlagName is the QC flag of variable v of level i, "" (null) when the
+// report has no flags for the level.
+func qcFlagName(rep qc.Report, i int, v sounding.Var) string {
+	if i < len(rep.Flags) {
+		return rep.Flags[i][v].String()
+	}
+	return ""
+}
+
+func heightStatusOf(l *sounding.Level, derived bool) sounding.Status {
+	if derived {
+		return sounding.Derived
+	}
+	return l.Status[sounding.VarHeight]
+}
+
+// levelFillerOf returns the filler of column c of the levels table; a
+// column without one is an error, so that a column added to LevelRow
+// cannot be left unfilled.
+func levelFillerOf(c *Column) (levelFiller, error) {
+	perLevel := func(value func(l *sounding.Level) float64) levelFiller {
+		return func(c *Column, b *colBuf, s *sounding.Sounding, _ qc.Report, _ *analyze.Result, _ time.Time, _ int32, base int) error {
+			for k := range s.Levels {
+				putFloat(b, base+k, value(&s.Levels[k]))
+			}
+			return nil
+		}
+	}
+	derived := func(values func(res *analyze.Result) []float64, scale float64) levelFiller {
+		return func(c *Column, b *colBuf, s *sounding.Sounding, _ qc.Report, res *analyze.Result, _ time.Time, _ int32, base int) error {
+			x := values(res)[:len(s.Levels)]
+			for k, v := range x {
+				if scale != 1 {
+					v *= scale
+				}
+				putFloat(b, base+k, v)
+			}
+			return nil
+		}
+	}
+	status := func(v sounding.Var) (levelFiller, error) {
+		tab, err := enumTable[sounding.Status](c)
+		return func(c *Column, b *colBuf, s *sounding.Sounding, _ qc.Report, _ *analyze.Result, _ time.Time, _ int32, base int) error {
+			for k := range s.Levels {
+				x := s.Levels[k].Status[v]
+				if tab[x] < 0 {
+					return enumError(c, x)
+				}
+				b.i16[base+k] = tab[x]
+			}
+			return nil
+		}, err
+	}
+	flag := func(v sounding.Var) (levelFiller, error) {
+		tab, err := enumTable[qc.Flag](c)
+		return func(c *Column, b *colBuf, s *sounding.Sounding, rep qc.Report, _ *analyze.Result, _ time.Time, _ int32, base int) error {
+			for k := range s.Levels {
+				if k >= len(rep.Flags) {
+					b.valid.null(base + k)
+					continue
+				}
+				x := rep.Flags[k][v]
+				if tab[x] < 0 {
+					return enumError(c, x)
+				}
+				b.i16[base+k] = tab[x]
+			}
+			return nil
+		}, err
+	}
+	want := func(kind fieldKind) error {
+		if c.kind != kind {
+			return fmt.Errorf("schema: levels column %s: kind %d, filler written for %d", c.Name, c.kind, kind)
+		}
+		return nil
+	}
+	switch c.Name {
+	case StationColumn:
+		return func(c *Column, b *colBuf, s *sounding.Sounding, _ qc.Report, _ *analyze.Result, _ time.Time, _ int32, base int) error {
+			var idx int32
+			if n := len(b.keys); n == 0 || s.StationID != b.keys[n-1] {
+				idx = b.keyIndex(s.StationID)
+			} else {
+				idx = int32(n - 1)
+			}
+			for k := range s.Levels {
+				b.i32[base+k] = idx
+			}
+			return nil
+		}, want(kindKey)
+	case "launch_time":
+		return func(c *Column, b *colBuf, s *sounding.Sounding, _ qc.Report, _ *analyze.Result, launch time.Time, _ int32, base int) error {
+			zero, us := launch.IsZero(), launch.UnixMicro()
+			for k := range s.Levels {
+				if zero {
+					b.valid.null(base + k)
+				} else {
+					b.i64[base+k] = us
+				}
+			}
+			return nil
+		}, want(kindTime)
+	case YearColumn:
+		return func(c *Column, b *colBuf, s *sounding.Sounding, _ qc.Report, _ *analyze.Result, _ time.Time, year int32, base int) error {
+			for k := range s.Levels {
+				b.i32[base+k] = year
+			}
+			return nil
+		}, want(kindInt32)
+	case "level_index":
+		return func(c *Column, b *colBuf, s *sounding.Sounding, _ qc.Report, _ *analyze.Result, _ time.Time, _ int32, base int) error {
+			for k := range s.Levels {
+				b.i32[base+k] = int32(k)
+			}
+			return nil
+		}, want(kindInt32)
+	case "level_kind":
+		tab, err := enumTable[sounding.LevelKind](c)
+		return func(c *Column, b *colBuf, s *sounding.Sounding, _ qc.Report, _ *analyze.Result, _ time.Time, _ int32, base int) error {
+			for k := range s.Levels {
+				x := s.Levels[k].Kind
+				if tab[x] < 0 {
+					return enumError(c, x)
+				}
+				b.i16[base+k] = tab[x]
+			}
+			return nil
+		}, err
+	case "source_line":
+		return func(c *Column, b *colBuf, s *sounding.Sounding, _ qc.Report, _ *analyze.Result, _ time.Time, _ int32, base int) error {
+			for k := range s.Levels {
+				b.i64[base+k] = int64(s.Levels[k].Line)
+			}
+			return nil
+		}, want(kindInt64)
+	case "elapsed_s":
+		return perLevel(func(l *sounding.Level) float64 { return l.ElapsedS }), want(kindFloat64)
+	case "latitude_displacement_deg":
+		return perLevel(func(l *sounding.Level) float64 { return l.LatDisplacementDeg }), want(kindFloat64)
+	case "longitude_displacement_deg":
+		return perLevel(func(l *sounding.Level) float64 { return l.LonDisplacementDeg }), want(kindFloat64)
+	case "pressure_hpa":
+		return perLevel(func(l *sounding.Level) float64 { return hPa(l.PressurePa) }), want(kindFloat64)
+	case "temperature_c":
+		return perLevel(func(l *sounding.Level) float64 { return degC(l.TemperatureK) }), want(kindFloat64)
+	case "dewpoint_c":
+		return perLevel(func(l *sounding.Level) float64 { return degC(l.DewpointK) }), want(kindFloat64)
+	case "relative_humidity_pct":
+		return perLevel(func(l *sounding.Level) float64 { return l.RelHumidityPct }), want(kindFloat64)
+	case "wind_direction_deg":
+		return perLevel(func(l *sounding.Level) float64 { return l.WindDirectionDeg }), want(kindFloat64)
+	case "wind_speed_ms":
+		return perLevel(func(l *sounding.Level) float64 { return l.WindSpeedMS }), want(kindFloat64)
+	case "height_m":
+		return derived(func(res *analyze.Result) []float64 { return res.HeightM }, 1), want(kindFloat64)
+	case "height_agl_m":
+		return derived(func(res *analyze.Result) []float64 { return res.HeightAGLM }, 1), want(kindFloat64)
+	case "theta_k":
+		return derived(func(res *analyze.Result) []float64 { return res.ThetaK }, 1), want(kindFloat64)
+	case "mixing_ratio_gkg":
+		return derived(func(res *analyze.Result) []float64 { return res.MixingRatioKgKg }, gPerKg), want(kindFloat64)
+	case "height_derived":
+		return func(c *Column, b *colBuf, s *sounding.Sounding, _ qc.Report, res *analyze.Result, _ time.Time, _ int32, base int) error {
+			for k, d := range res.HeightDerived[:len(s.Levels)] {
+				if d {
+					b.bits[(base+k)/8] |= 1 << ((base + k) % 8)
+				}
+			}
+			return nil
+		}, want(kindBool)
+	case "temperature_status":
+		return status(sounding.VarTemperature)
+	case "humidity_status":
+		return status(sounding.VarDewpointDepression)
+	case "height_status":
+		tab, err := enumTable[sounding.Status](c)
+		return func(c *Column, b *colBuf, s *sounding.Sounding, _ qc.Report, res *analyze.Result, _ time.Time, _ int32, base int) error {
+			for k := range s.Levels {
+				x := heightStatusOf(&s.Levels[k], res.HeightDerived[k])
+				if tab[x] < 0 {
+					return enumError(c, x)
+				}
+				b.i16[base+k] = tab[x]
+			}
+			return nil
+		}, err
+	case "pressure_qc":
+		return flag(sounding.VarPressure)
+	case "height_qc":
+		return flag(sounding.VarHeight)
+	case "temperature_qc":
+		return flag(sounding.VarTemperature)
+	case "humidity_qc":
+		return flag(sounding.VarDewpointDepression)
+	case "wind_qc":
+		return flag(sounding.VarWindSpeed)
+	}
+	return nil, fmt.Errorf("schema: levels column %s has no filler in levelFillerOf", c.Name)
+}
+
+// putFloat stores x at position pos of a float column, NaN as null.
+func putFloat(b *colBuf, pos int, x float64) {
+	if math.IsNaN(x) {
+		b.valid.null(pos)
+	} else {
+		b.f64[pos] = x
+	}
+}
+
+// uint8Enum is a typed enum whose String names its values in a column's
+// vocabulary.
+type uint8Enum interface {
+	~uint8
+	fmt.Stringer
+}
+
+// enumTable maps every value of the enum type E to its index in the
+// dictionary of column c, -1 for a value whose name is not in it.
+func enumTable[E uint8Enum](c *Column) (*[256]int16, error) {
+	if c.kind != kindEnum {
+		return nil, fmt.Errorf("schema: levels column %s is not a dictionary column", c.Name)
+	}
+	var tab [256]int16
+	for v := range 256 {
+		tab[v] = -1
+		if i, ok := c.enum[E(v).String()]; ok {
+			tab[v] = int16(i)
+		}
+	}
+	return &tab, nil
+}
+
+// enumError is the error of a value outside an enum column's list, as
+// fillColumn reports it.
+func enumError(c *Column, v fmt.Stringer) error {
+	return fmt.Errorf("column %s: value %q is not one of its enum values", c.Name, v.String())
+}

@@ -1,0 +1,173 @@
+package schema
+
+import (
+	"archive/zip"
+	"bytes"
+	"errors"
+	"io"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"github.com/sondeclim/sondeclim/analyze"
+	"github.com/sondeclim/sondeclim/ingest/archivev2"
+	"github.com/sondeclim/sondeclim/internal/realdata"
+	"github.com/sondeclim/sondeclim/qc"
+	"github.com/sondeclim/sondeclim/sounding"
+)
+
+// analysedSounding is a real sounding with its QC report and analysis.
+type analysedSounding struct {
+	s   *sounding.Sounding
+	rep qc.Report
+	res analyze.Result
+}
+
+// realAnalysed reads the real archive-v2 file name of ../shared/validation
+// (PROVENANCE.md) and checks and analyses each sounding as the engine does
+// (engine.analyzeOne).
+func realAnalysed(tb testing.TB, name string) []analysedSounding {
+	tb.Helper()
+	text := realdata.Text(tb, "archive-v2", name)
+	if strings.HasSuffix(name, ".zip") {
+		zr, err := zip.NewReader(bytes.NewReader(text), int64(len(text)))
+		if err != nil || len(zr.File) != 1 {
+			tb.Fatalf("%s: %v", name, err)
+		}
+		f, err := zr.File[0].Open()
+		if err != nil {
+			tb.Fatal(err)
+		}
+		if text, err = io.ReadAll(f); err != nil {
+			tb.Fatal(err)
+		}
+	}
+	rd := archivev2.NewReader(bytes.NewReader(text), name, "")
+	var out []analysedSounding
+	cfg, qcCfg := analyze.DefaultConfig(), qc.DefaultConfig()
+	for {
+		s, err := rd.Next()
+		if errors.Is(err, io.EOF) {
+			break
+		}
+		if err != nil {
+			continue // a rejected item; the readers' tests cover those
+		}
+		a := analysedSounding{s: s, rep: qc.Check(s, qcCfg)}
+		if a.rep.Usable() {
+			a.res = analyze.Analyze(qc.Apply(s, a.rep, false), cfg)
+		} else {
+			a.res = analyze.Analyze(nil, cfg)
+		}
+		padPerLevel(&a.res, len(s.Levels))
+		out = append(out, a)
+	}
+	if len(out) == 0 {
+		tb.Fatalf("%s: no soundings read", name)
+	}
+	return out
+}
+
+// TestLevelColumnsEqualRows: the levels file LevelColumns fills column by
+// column is byte for byte the file written from the LevelRow structs of
+// the same soundings, on real soundings (the 1950 portion of station
+// 74794, the Melbourne file and Sterling's 2016 high-resolution soundings
+// of PROVENANCE.md: missing values, QC flags of every kind, soundings QC
+// rejects), and a level kind outside the
+// column's vocabulary is still an error when writing. The structs are the
+// reference, so this guards the faster path against drifting from them.
+func TestLevelColumnsEqualRows(t *testing.T) {
+	for _, name := range []string{"USM00074794-data-1950-portion.txt", "AUM00011035-data.txt.gz", "USM00072403-data-beg2016.txt.zip"} {
+		all := realAnalysed(t, name)
+		var slice RowSlice[LevelRow]
+		cols, err := NewLevelColumns(10) // grows many times
+		if err != nil {
+			t.Fatal(err)
+		}
+		// A sounding without QC flags (nulls in the flag columns) and
+		// without a launch time (invented; unit scaffolding).
+		res := analyze.Analyze(nil, analyze.DefaultConfig())
+		padPerLevel(&res, 2)
+		all = append(all, analysedSounding{s: &sounding.Sounding{StationID: "ZQ1", Levels: make([]sounding.Level, 2)}, res: res})
+		flagged := 0
+		for i := range all {
+			a := &all[i]
+			launch, year := a.s.LaunchTime.UTC(), int32(a.s.NominalTime.Year())
+			appendLevelRows(&slice, a.s, a.rep, &a.res, launch, year)
+			appendLevelRows(cols, a.s, a.rep, &a.res, launch, year)
+			if len(a.rep.Flags) == 0 {
+				flagged++
+			}
+		}
+		if cols.Len() != len(slice) || len(slice) < 100 {
+			t.Fatalf("%s: %d level rows in columns, %d as structs", name, cols.Len(), len(slice))
+		}
+		dir := t.TempDir()
+		a, b := filepath.Join(dir, "a.parquet"), filepath.Join(dir, "b.parquet")
+		if err := WriteFile(a, TableLevels, []LevelRow(slice), false); err != nil {
+			t.Fatal(err)
+		}
+		if err := cols.WriteFile(b, TableLevels, false); err != nil {
+			t.Fatal(err)
+		}
+		ab, _ := os.ReadFile(a)
+		bb, _ := os.ReadFile(b)
+		if !bytes.Equal(ab, bb) {
+			t.Errorf("%s: files differ (%d and %d bytes)", name, len(ab), len(bb))
+		}
+		t.Logf("%s: %d levels, %d soundings without QC flags", name, len(slice), flagged)
+	}
+
+	s := &sounding.Sounding{StationID: "ZQ1", Levels: []sounding.Level{{Kind: sounding.LevelKind(9)}}}
+	res := analyze.Analyze(nil, analyze.DefaultConfig())
+	padPerLevel(&res, 1)
+	bad, _ := NewLevelColumns(0)
+	appendLevelRows(bad, s, qc.Report{}, &res, s.LaunchTime, 2003)
+	if err := bad.WriteFile(filepath.Join(t.TempDir(), "c.parquet"), TableLevels, false); err == nil || !strings.Contains(err.Error(), "kind(9)") {
+		t.Errorf("level kind outside the vocabulary: got %v", err)
+	}
+}
+
+// BenchmarkLevelColumns fills the levels columns of the real Sterling 2016
+// soundings (PROVENANCE.md: 662 soundings, 131,306 levels) and writes them as one file, as the engine
+// does for a station-year; BenchmarkLevelSlice does the same through
+// LevelRow structs, the way it was done before.
+func BenchmarkLevelColumns(b *testing.B) { benchLevels(b, true) }
+
+func BenchmarkLevelSlice(b *testing.B) { benchLevels(b, false) }
+
+func benchLevels(b *testing.B, columns bool) {
+	all := realAnalysed(b, "USM00072403-data-beg2016.txt.zip")
+	n := 0
+	for _, a := range all {
+		n += len(a.s.Levels)
+	}
+	path := filepath.Join(b.TempDir(), "levels.parquet")
+	ingestGC(b)
+	cpu := processCPU()
+	for b.Loop() {
+		var w interface {
+			Writer
+			LevelAppender
+		}
+		var err error
+		if columns {
+			w, err = NewLevelColumns(n)
+		} else {
+			w, err = NewRows[LevelRow](n)
+		}
+		if err != nil {
+			b.Fatal(err)
+		}
+		for i := range all {
+			a := &all[i]
+			appendLevelRows(w, a.s, a.rep, &a.res, a.s.LaunchTime.UTC(), int32(a.s.NominalTime.Year()))
+		}
+		if err := w.WriteFile(path, TableLevels, false); err != nil {
+			b.Fatal(err)
+		}
+	}
+	reportCPU(b, cpu)
+	b.ReportMetric(float64(n), "levels/op")
+}
