@@ -3,6 +3,7 @@ package qc
 import (
 	"fmt"
 	"math"
+	"slices"
 
 	"github.com/sondeclim/sondeclim/sounding"
 )
@@ -202,11 +203,17 @@ func sev(bad bool) Flag {
 	return Suspect
 }
 
-// routine reports whether findings of check say nothing new about the
-// sounding: values the archive itself removed, and humidity at very cold
-// temperatures, which nearly every sounding has. They are listed but do
-// not change the status or the counts.
-func routine(check CheckName) bool { return check == CheckUpstream || check == CheckColdHumidity }
+// RoutineChecks returns the checks whose findings say nothing new about
+// the sounding: values the archive itself removed, and humidity at very
+// cold temperatures, which nearly every sounding has. They are listed but
+// do not change the status (the SQL summaries leave them out too, through
+// the qc_routine macro of package queries).
+func RoutineChecks() []CheckName { return slices.Clone(routineChecks[:]) }
+
+var routineChecks = [...]CheckName{CheckUpstream, CheckColdHumidity}
+
+// routine reports whether check is one of RoutineChecks.
+func routine(check CheckName) bool { return slices.Contains(routineChecks[:], check) }
 
 // finish sets the status when no check set one: suspect when any finding
 // other than a routine one exists, else ok.

@@ -39,6 +39,11 @@ import (
 //	                        height h (m): 0 for surface, h for ok, null
 //	                        otherwise
 //	day_met(s)              s (episode_days.status) is analyze.DayMet
+//	severity_bad(s), severity_suspect(s), severity_corrected(s)
+//	                        s (qc_findings.severity) is qc.Bad, qc.Suspect,
+//	                        qc.Corrected
+//	qc_routine(c)           c (qc_findings.qc_check) is one of
+//	                        qc.RoutineChecks, whose findings do not count
 func macros() []string {
 	names := append([]string{analyze.HeightConsensus}, analyze.MethodNames()...)
 	north, south := map[string]string{}, map[string]string{}
@@ -61,6 +66,10 @@ func macros() []string {
 		"CREATE MACRO mixing_height_m(s, h) AS CASE s WHEN " + sqlString(string(analyze.MixingHeightSurface)) + " THEN 0.0 WHEN " +
 			sqlString(string(analyze.MixingHeightOK)) + " THEN h END",
 		"CREATE MACRO day_met(s) AS s = " + sqlString(string(analyze.DayMet)),
+		"CREATE MACRO severity_bad(s) AS s = " + sqlString(qc.Bad.String()),
+		"CREATE MACRO severity_suspect(s) AS s = " + sqlString(qc.Suspect.String()),
+		"CREATE MACRO severity_corrected(s) AS s = " + sqlString(qc.Corrected.String()),
+		"CREATE MACRO qc_routine(c) AS c IN (" + sqlList(qc.RoutineChecks()) + ")",
 	}
 }
 
@@ -86,6 +95,15 @@ func mapCase(arg string, keys []string, m map[string]string) string {
 	}
 	b.WriteString(" END")
 	return b.String()
+}
+
+// sqlList is values as a comma-separated list of SQL string literals.
+func sqlList[E ~string](values []E) string {
+	q := make([]string, len(values))
+	for i, v := range values {
+		q[i] = sqlString(string(v))
+	}
+	return strings.Join(q, ", ")
 }
 
 // sqlString quotes s as a SQL string literal.

@@ -80,7 +80,9 @@ func TestSeasonAndSunMacros(t *testing.T) {
 // TestStatusMacros checks the status macros against the values the store's
 // schema documents for those columns (sondeclim schema: analysis_status ok,
 // mixing-height status ok, surface or undefined with 0 m for surface,
-// episode_days.status met or missing). Scaffolding in part: the values are
+// episode_days.status met or missing; qc_findings.severity suspect, bad
+// or corrected; the routine checks the qc_findings doc and
+// queries/qc_by_check.sql name, upstream_removed and cold_humidity). Scaffolding in part: the values are
 // the Go constants the macros are built from.
 func TestStatusMacros(t *testing.T) {
 	db, err := sql.Open("duckdb", "")
@@ -101,6 +103,9 @@ func TestStatusMacros(t *testing.T) {
 		{"mixing_height_m('ok', 812.5)", "812.5"}, {"mixing_height_m('surface', 812.5)", "0.0"},
 		{"coalesce(mixing_height_m('undefined', 812.5)::VARCHAR, 'null')", "null"},
 		{"day_met('met')", "true"}, {"day_met('missing')", "false"},
+		{"severity_bad('bad') AND severity_suspect('suspect') AND severity_corrected('corrected')", "true"},
+		{"severity_bad('suspect')", "false"},
+		{"qc_routine('upstream_removed') AND qc_routine('cold_humidity') AND NOT qc_routine('hydrostatic')", "true"},
 	} {
 		var got string
 		if err := db.QueryRow("SELECT (" + c.expr + ")::VARCHAR").Scan(&got); err != nil {

@@ -28,7 +28,7 @@ SELECT
     count(DISTINCT f.launch_time) AS n_soundings,
     count(DISTINCT f.launch_time)::DOUBLE / nullif(max(p.n_station), 0) AS sounding_fraction,
     count(DISTINCT CASE WHEN f.level_index >= 0 THEN f.launch_time::VARCHAR || '#' || f.level_index::VARCHAR END) AS n_levels,
-    f.qc_check IN ('upstream_removed', 'cold_humidity') AS routine
+    qc_routine(f.qc_check) AS routine
 FROM qc_findings AS f
 LEFT JOIN per_station AS p USING (station_id)
 GROUP BY f.station_id, f.qc_check, f.severity

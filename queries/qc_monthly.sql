@@ -25,11 +25,11 @@ WITH s AS (
 ),
 f AS (
     SELECT station_id, launch_time,
-        count(*) FILTER (WHERE severity = 'bad') AS n_bad,
-        count(*) FILTER (WHERE severity = 'suspect') AS n_suspect,
-        count(*) FILTER (WHERE severity = 'corrected') AS n_corrected
+        count(*) FILTER (WHERE severity_bad(severity)) AS n_bad,
+        count(*) FILTER (WHERE severity_suspect(severity)) AS n_suspect,
+        count(*) FILTER (WHERE severity_corrected(severity)) AS n_corrected
     FROM qc_findings
-    WHERE qc_check NOT IN ('upstream_removed', 'cold_humidity')
+    WHERE NOT qc_routine(qc_check)
     GROUP BY station_id, launch_time
 )
 SELECT
