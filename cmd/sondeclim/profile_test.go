@@ -135,6 +135,10 @@ func TestProfileDemo(t *testing.T) {
 	if code != exitOK {
 		t.Fatalf("profile: exit %d\n%s", code, errs)
 	}
+	// Methods in words (analyze.MethodTitle), as the figures name them.
+	if !strings.Contains(out, "bulk Richardson (alternative)") || strings.Contains(out, "bulk_richardson_alt") {
+		t.Errorf("profile text names methods by code name:\n%s", out)
+	}
 	golden(t, "profile_demo.txt", strings.ReplaceAll(out, dir, "DIR"))
 }
 
