@@ -262,4 +262,3 @@ func jsonValue(v reflect.Value) any {
 	}
 	return v.Interface()
 }
-

@@ -17,7 +17,9 @@ import (
 // example leaves --station out for a one-station file).
 func TestOnlySounding(t *testing.T) {
 	t0 := time.Date(2016, 7, 1, 11, 3, 0, 0, time.UTC)
-	row := func(id string, at time.Time) schema.SoundingRow { return schema.SoundingRow{StationID: id, LaunchTime: at} }
+	row := func(id string, at time.Time) schema.SoundingRow {
+		return schema.SoundingRow{StationID: id, LaunchTime: at}
+	}
 	two := []schema.SoundingRow{row("B", t0), row("A", t0.Add(12*time.Hour))}
 	if _, _, err := OnlySounding(two, "f.txt", "", t0); err == nil || !strings.Contains(err.Error(), "f.txt holds 2 stations (A, B); choose one with --station") {
 		t.Errorf("two stations: %v", err)
