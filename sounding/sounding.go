@@ -231,3 +231,20 @@ type Key struct {
 
 // Key returns the sounding's identity.
 func (s *Sounding) Key() Key { return Key{s.StationID, s.LaunchTime, s.Descent} }
+
+// YearHeadHours is the length of a year's head, h: the soundings whose
+// nominal time lies this long after 00 UTC on 1 January can belong to the
+// previous year's last local solar day. Local mean solar time differs from
+// UTC by at most 12 h, so a local day that begins in one UTC year ends at
+// the latest 36 h after the next year begins.
+const YearHeadHours = 36
+
+// InYearHead reports whether t lies in the head of its UTC year (before
+// 12:00 UTC on 2 January). The store builds a station-year with the head
+// of the following year as context (the afternoon pairing of a local day
+// that straddles the new year), and readers that stage a year in pieces
+// keep its head apart so that this context is read without the rest.
+func InYearHead(t time.Time) bool {
+	t = t.UTC()
+	return t.Before(time.Date(t.Year(), time.January, 1, 0, 0, 0, 0, time.UTC).Add(YearHeadHours * time.Hour))
+}

@@ -6,6 +6,7 @@ import (
 	"io"
 
 	"github.com/sondeclim/sondeclim/ingest"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // Segment is a byte range of a station data file that holds consecutive
@@ -19,6 +20,10 @@ type Segment struct {
 	Size      int64 // bytes
 	FirstLine int   // 1-based line number of the range's first line
 	Headers   int   // header records in the range (soundings, good or bad)
+	// Head: the soundings' nominal times lie in the head of the year
+	// (sounding.InYearHead, the first 36 hours), which the store reads
+	// as context when it builds the previous year.
+	Head bool
 }
 
 // ErrNoHeaders is returned by Index for input in which no header record
@@ -28,7 +33,8 @@ var ErrNoHeaders = errors.New("archive-v2: no readable header record")
 // Index reads a station data file without decoding its levels and calls fn
 // with each segment, in file order, as soon as it is complete. Segments
 // tile the file: a new one starts at each header whose station or year
-// differs from the previous good header's. Lines that a Reader would
+// differs from the previous good header's, or that enters or leaves the
+// head of its year (Segment.Head). Lines that a Reader would
 // reject are kept in the segment they fall in, so reading the segment
 // reports them: data records before the first header belong to the first
 // segment, and a header that cannot be read (or is longer than a Reader
@@ -70,13 +76,13 @@ func Index(r io.Reader, fn func(Segment) error) error {
 		if line = ingest.TrimBOM(line); len(line) > 0 && line[0] == '#' {
 			header := trimEOL(line)
 			var id string
-			year, ok := 0, false
+			year, head, ok := 0, false, false
 			if !long && n <= maxLine {
 				if s, perr := parseHeader(header); perr == nil {
-					id, year, ok = s.StationID, s.NominalTime.Year(), true
+					id, year, head, ok = s.StationID, s.NominalTime.Year(), sounding.InYearHead(s.NominalTime), true
 				}
 			}
-			if ok && have && (id != cur.StationID || year != cur.Year) {
+			if ok && have && (id != cur.StationID || year != cur.Year || head != cur.Head) {
 				cur.Size = start - cur.Offset
 				if err := fn(cur); err != nil {
 					return err
@@ -84,7 +90,7 @@ func Index(r io.Reader, fn func(Segment) error) error {
 				cur = Segment{Offset: start, FirstLine: int(lineNo)}
 			}
 			if ok {
-				cur.StationID, cur.Year, have, started = id, year, true, true
+				cur.StationID, cur.Year, cur.Head, have, started = id, year, head, true, true
 			}
 			cur.Headers++
 		}

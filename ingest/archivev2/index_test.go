@@ -13,6 +13,7 @@ import (
 
 	"github.com/sondeclim/sondeclim/ingest"
 	"github.com/sondeclim/sondeclim/internal/realdata"
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // outcome is what a reader yields, in order: a sounding's key and levels,
@@ -20,6 +21,7 @@ import (
 type outcome struct {
 	station string
 	year    int
+	head    bool // in the head of its year (sounding.InYearHead)
 	line    int
 	levels  int
 	err     string
@@ -47,14 +49,15 @@ func outcomes(t testing.TB, rd *Reader) []outcome {
 			for _, l := range s.Levels {
 				levelLines += l.Line
 			}
-			out = append(out, outcome{station: s.StationID, year: s.NominalTime.Year(), line: s.Source.Line,
+			out = append(out, outcome{station: s.StationID, year: s.NominalTime.Year(), head: sounding.InYearHead(s.NominalTime), line: s.Source.Line,
 				levels: len(s.Levels)*1_000_000 + levelLines})
 		}
 	}
 }
 
 // bySegments reads in by Index and NewReaderAt and checks that the
-// segments tile the input, that each holds one station-year, and returns
+// segments tile the input, that each holds one station-year (its head, or
+// the rest of it), and returns
 // what the readers of the segments yield, in order.
 func bySegments(t testing.TB, in []byte) ([]outcome, []Segment, error) {
 	t.Helper()
@@ -77,8 +80,8 @@ func bySegments(t testing.TB, in []byte) ([]outcome, []Segment, error) {
 		}
 		got := outcomes(t, NewReaderAt(bytes.NewReader(in[sg.Offset:next]), "f", "", sg.FirstLine))
 		for _, o := range got {
-			if o.err == "" && (o.station != sg.StationID || o.year != sg.Year) {
-				t.Fatalf("segment %s %d yields a sounding of %s %d", sg.StationID, sg.Year, o.station, o.year)
+			if o.err == "" && (o.station != sg.StationID || o.year != sg.Year || o.head != sg.Head) {
+				t.Fatalf("segment %s %d (head %v) yields a sounding of %s %d (head %v)", sg.StationID, sg.Year, sg.Head, o.station, o.year, o.head)
 			}
 		}
 		out = append(out, got...)
@@ -120,7 +123,8 @@ func readValidation(t *testing.T, name string) []byte {
 // TestIndexRealFiles: on the real station files of ../shared/validation
 // (PROVENANCE.md), reading by segments equals reading whole, including the
 // truncated Barrow file's level-count error and the hour-99 headers of
-// Göteborg; Sterling from 2016 on splits into one segment per year.
+// Göteborg; Sterling from 2016 on splits into the head of its year and the
+// rest.
 func TestIndexRealFiles(t *testing.T) {
 	for _, name := range []string{"SWM00002527-data-hour99.txt", "USM00070026-data-truncated.txt",
 		"USM00074794-data-1950-portion.txt", "AUM00011035-data.txt.gz"} {
@@ -129,24 +133,32 @@ func TestIndexRealFiles(t *testing.T) {
 		})
 	}
 	t.Run("sterling", func(t *testing.T) {
-		// Sterling from 2016 holds one year: one segment with all its
-		// 662 soundings (the count the reader tests assert).
+		// Sterling from 2016 holds one year: its 662 soundings (the
+		// count the reader tests assert) in two segments, the head of the
+		// year (the headers of 1 January 00 and 12 UTC and 2 January 00
+		// UTC, before 2 January 12 UTC) and the rest.
 		segs := checkSame(t, sterlingBytes(t))
-		if len(segs) != 1 || segs[0].StationID != "USM00072403" || segs[0].Year != 2016 || segs[0].Headers != 662 {
-			t.Errorf("segments %+v, want one of USM00072403 2016 with 662 headers", segs)
+		if len(segs) != 2 || segs[0].StationID != "USM00072403" || segs[0].Year != 2016 || !segs[0].Head || segs[0].Headers != 3 ||
+			segs[1].Year != 2016 || segs[1].Head || segs[1].Headers != 659 {
+			t.Errorf("segments %+v, want USM00072403 2016 with 3 headers in its head and 659 after", segs)
 		}
 	})
 	t.Run("three files joined", func(t *testing.T) {
-		// Three stations and years one after the other: one segment each,
-		// with as many headers as lines starting with '#' whose columns
-		// 14-17 (YEAR, igra2-data-format.txt) name its year.
+		// Three stations and years one after the other: one station-year
+		// each (a head segment and the rest when the year's first 36 hours
+		// are there), with as many headers as lines starting with '#' whose
+		// columns 14-17 (YEAR, igra2-data-format.txt) name its year.
 		var in []byte
 		for _, name := range []string{"USM00070026-data-truncated.txt", "SWM00002527-data-hour99.txt", "AUM00011035-data.txt.gz"} {
 			in = append(in, readValidation(t, name)...)
 		}
 		segs := checkSame(t, in)
 		var got, want []string
-		for _, s := range segs {
+		for i, s := range segs {
+			if i > 0 && segs[i-1].StationID == s.StationID && segs[i-1].Year == s.Year && segs[i-1].Head && !s.Head {
+				got[len(got)-1] = fmt.Sprintf("%s %d %d", s.StationID, s.Year, segs[i-1].Headers+s.Headers)
+				continue
+			}
 			got = append(got, fmt.Sprintf("%s %d %d", s.StationID, s.Year, s.Headers))
 		}
 		for _, line := range strings.Split(string(in), "\n") {
