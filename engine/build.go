@@ -54,6 +54,8 @@ func (r *run) ingest(files []string, old *store.Manifest, full bool, paramsText 
 		return nil, err
 	}
 	read := map[string]bool{}
+	// covered: the station-years each input is staged for (nil: all).
+	covered := map[string]map[string]bool{}
 	affected := map[string]bool{}
 	named := map[string]bool{}
 	for _, f := range files {
@@ -64,6 +66,7 @@ func (r *run) ingest(files []string, old *store.Manifest, full bool, paramsText 
 			continue // the next run reads it
 		}
 		read[res.path] = true
+		covered[res.path] = nil
 		info := res.info
 		prev := old.Inputs[res.path]
 		if prev == nil && !full {
@@ -171,7 +174,7 @@ func (r *run) ingest(files []string, old *store.Manifest, full bool, paramsText 
 		if len(need) > 0 {
 			again := slices.Sorted(maps.Keys(need))
 			r.log.Info("re-reading unchanged inputs that share a rebuilt partition", "files", len(again))
-			againRes, err := r.stageInputs(again, st, affected)
+			againRes, err := r.stageInputs(again, st, func(string) map[string]bool { return affected })
 			if err != nil {
 				return nil, err
 			}
@@ -179,6 +182,7 @@ func (r *run) ingest(files []string, old *store.Manifest, full bool, paramsText 
 			// rebuild: its partitions are held as committed.
 			for _, res := range againRes {
 				if !res.deferred {
+					covered[res.path] = maps.Clone(affected)
 					continue
 				}
 				for _, k := range slices.Sorted(maps.Keys(affected)) {
@@ -188,6 +192,14 @@ func (r *run) ingest(files []string, old *store.Manifest, full bool, paramsText 
 					}
 				}
 			}
+		}
+	}
+	// The pairing across the new year: partitions whose next year's head
+	// changed are rebuilt, and the context of each partition to build is
+	// staged (context.go).
+	if !full {
+		if err := r.addNeighbours(st, affected, next, missing, covered, results); err != nil {
+			return nil, err
 		}
 	}
 	// A station-year is built in memory: its staged bytes are read whole
@@ -218,7 +230,11 @@ func (r *run) ingest(files []string, old *store.Manifest, full bool, paramsText 
 			}
 		}
 	}
-	r.sum.InputsRead = len(st.files)
+	distinct := map[string]bool{} // an input staged for its partitions and again for a context counts once
+	for _, f := range st.inputs {
+		distinct[f] = true
+	}
+	r.sum.InputsRead = len(distinct)
 	pauseAt("staged")
 
 	// Build every affected partition.
@@ -514,21 +530,25 @@ func (r *run) buildPartition(key string, st *staged, prev *store.Partition) (_ *
 	sortCopies(all)
 	// Each copy enters as the hash of its observation (which is also the
 	// sounding_hash of the copy that is kept) followed by its source
-	// position, so every sounding is encoded and hashed once.
+	// position, so every sounding is encoded and hashed once. The head of
+	// the next year, the context of the afternoon pairing (context.go),
+	// enters by its own identity.
+	next, _ := neighbourKey(key, 1)
+	context, contextHash, err := r.readHead(st, next)
+	if err != nil {
+		return nil, stats, nil, err
+	}
 	h := sha256.New()
 	h.Write([]byte(r.params))
 	var enc []byte
 	observed := make(map[*sounding.Sounding]string, len(all))
 	for _, s := range all {
-		enc = sounding.AppendBinary(enc[:0], s, false)
-		sum := sha256.Sum256(enc)
-		observed[s] = hex.EncodeToString(sum[:8])
-		h.Write(sum[:])
-		h.Write(sounding.AppendSourceBinary(enc[:0], s))
+		observed[s], enc = writeIdentity(h, s, enc)
 	}
+	h.Write([]byte("context " + contextHash))
 	hash := hex.EncodeToString(h.Sum(nil))
 	p := &store.Partition{ContentHash: hash, Files: map[string]string{},
-		Inputs: slices.Sorted(maps.Keys(contributors))}
+		Inputs: slices.Sorted(maps.Keys(contributors)), ContextHash: contextHash}
 	fileName := "part-" + hash[:16] + ".parquet"
 	for _, t := range schema.TableNames() {
 		p.Files[t] = filepath.Join(store.PartitionDir(t, station, year), fileName)
@@ -547,7 +567,7 @@ func (r *run) buildPartition(key string, st *staged, prev *store.Partition) (_ *
 	if err != nil {
 		return nil, stats, nil, err
 	}
-	rows := r.analysePart(all, observed, levels, stats)
+	rows := r.analysePart(all, context, observed, levels, stats)
 	p.Soundings = len(rows.Soundings)
 	if err := r.compareWithPrevious(prev, rows.Soundings, stats); err != nil {
 		return nil, stats, nil, err
@@ -558,8 +578,9 @@ func (r *run) buildPartition(key string, st *staged, prev *store.Partition) (_ *
 // analysePart checks, deduplicates and analyses the copies all of one
 // station-year (in sortCopies order; observed holds each copy's
 // observation hash) and returns the rows of its tables, the level rows
-// appended to levels.
-func (r *run) analysePart(all []*sounding.Sounding, observed map[*sounding.Sounding]string, levels schema.LevelAppender,
+// appended to levels. context holds the copies of the head of the next
+// station-year, which serve the afternoon pairing only (context.go).
+func (r *run) analysePart(all, context []*sounding.Sounding, observed map[*sounding.Sounding]string, levels schema.LevelAppender,
 	stats *buildStats) (rows schema.PartRows) {
 	all, descents := splitDescents(all)
 	t0 := time.Now()
@@ -589,7 +610,7 @@ func (r *run) analysePart(all []*sounding.Sounding, observed map[*sounding.Sound
 		}
 	}
 	rows.Soundings = srows
-	rows.Afternoon = afternoonRows(results, r.opt.DailyMaxima, r.pairing)
+	rows.Afternoon = afternoonRows(results, r.analyseContext(context), r.opt.DailyMaxima, r.pairing)
 	rows.Descents = r.analyseDescents(descents, observed)
 	r.stage("analysis", t0)
 	return rows

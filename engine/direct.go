@@ -68,7 +68,15 @@ func Analyse(ctx context.Context, paths []string, opt Options) (*schema.RowSet, 
 		}
 		var levels schema.RowSlice[schema.LevelRow]
 		stats := &buildStats{}
-		rows := r.analysePart(all, observed, &levels, stats)
+		var context []*sounding.Sounding // the head of the next year, as Run reads it (context.go)
+		if nk, ok := neighbourKey(k, 1); ok {
+			for _, s := range parts[nk] {
+				if sounding.InYearHead(s.NominalTime) {
+					context = append(context, s)
+				}
+			}
+		}
+		rows := r.analysePart(all, context, observed, &levels, stats)
 		out.Add(&rows)
 		r.sum.Soundings += len(rows.Soundings)
 		r.sum.DuplicatesMerged += stats.duplicates

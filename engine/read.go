@@ -39,6 +39,9 @@ type segment struct {
 	count     int    // soundings (spill) or header records (in place)
 	line      int    // in place: 1-based line of the range's first line in its member
 	member    string // in place: the archive member the range comes from
+	// head: every sounding of the segment lies in the head of its year
+	// (sounding.InYearHead), the context of the previous year's build.
+	head bool
 }
 
 // staged is what the reading phase leaves for the building phase: spill
@@ -70,9 +73,10 @@ type readResult struct {
 }
 
 // stageInputs reads files on a bounded pool and stages their soundings.
-// keep, when not nil, limits staging to the station-years it holds (used
-// to re-read unchanged inputs that share a partition with a changed one).
-func (r *run) stageInputs(files []string, st *staged, keep map[string]bool) ([]readResult, error) {
+// keep, when not nil, gives for each file the station-years to stage from
+// it (used to re-read unchanged inputs that share a partition with a
+// changed one, or that hold the context of one); a nil set stages all.
+func (r *run) stageInputs(files []string, st *staged, keep func(path string) map[string]bool) ([]readResult, error) {
 	results := make([]readResult, len(files))
 	g, ctx := errgroup.WithContext(r.ctx)
 	g.SetLimit(r.workers)
@@ -88,7 +92,11 @@ func (r *run) stageInputs(files []string, st *staged, keep map[string]bool) ([]r
 		st.stamp = append(st.stamp, store.Input{})
 		st.mu.Unlock()
 		g.Go(func() error {
-			res, err := r.stageFile(ctx, path, fi, spill, st, keep)
+			var only map[string]bool
+			if keep != nil {
+				only = keep(path)
+			}
+			res, err := r.stageFile(ctx, path, fi, spill, st, only)
 			if err != nil {
 				return err
 			}
@@ -377,7 +385,7 @@ func (ix *indexer) member(rd io.Reader, member string, base int64) error {
 		}
 		ix.parts[key] += sg.Headers
 		ix.segs = append(ix.segs, segment{file: ix.fi, off: base + sg.Offset, size: sg.Size, count: sg.Headers,
-			line: sg.FirstLine, member: member})
+			line: sg.FirstLine, member: member, head: sg.Head})
 		ix.keys = append(ix.keys, key)
 		return nil
 	})
@@ -548,7 +556,8 @@ func isWriteError(err error) bool {
 }
 
 // spillWriter appends encoded soundings to one spill file, recording one
-// segment per run of consecutive soundings of the same station-year. The
+// segment per run of consecutive soundings of the same station-year and
+// part of it (the head of the year, or the rest). The
 // soundings of the member being read are tentative until commit: a member
 // that turns out damaged (a zip CRC failure, a cut gzip stream) is taken
 // back whole or in part by drop, and its bytes in the spill file are then
@@ -565,6 +574,7 @@ type spillWriter struct {
 // spilled is one tentative sounding of a spill file.
 type spilled struct {
 	key       string
+	head      bool
 	off, size int64
 }
 
@@ -574,7 +584,7 @@ func (w *spillWriter) write(key string, s *sounding.Sounding) error {
 	if err != nil {
 		return &writeError{err}
 	}
-	w.pending = append(w.pending, spilled{key, w.off, int64(n)})
+	w.pending = append(w.pending, spilled{key, sounding.InYearHead(s.NominalTime), w.off, int64(n)})
 	w.off += int64(n)
 	return nil
 }
@@ -596,11 +606,11 @@ func (w *spillWriter) commit() {
 	var cur string
 	var seg segment
 	for _, p := range w.pending {
-		if p.key != cur || p.off != seg.off+seg.size {
+		if p.key != cur || p.head != seg.head || p.off != seg.off+seg.size {
 			if seg.count > 0 {
 				w.st.add(cur, seg)
 			}
-			cur, seg = p.key, segment{file: w.fi, off: p.off}
+			cur, seg = p.key, segment{file: w.fi, off: p.off, head: p.head}
 		}
 		seg.size += p.size
 		seg.count++

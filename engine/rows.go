@@ -2,6 +2,7 @@ package engine
 
 import (
 	"math"
+	"slices"
 
 	"github.com/sondeclim/sondeclim/analyze"
 	"github.com/sondeclim/sondeclim/qc"
@@ -36,11 +37,18 @@ func analyzeOne(s *sounding.Sounding, rep qc.Report, cfg analyze.Config, useSusp
 // afternoonRows pairs the morning soundings of one station-year with the
 // day's maximum temperature (a daily-maxima file when given, else the same
 // local day's afternoon sounding) and computes the afternoon mixing height
-// (Holzworth). The input is in launch-time order.
-func afternoonRows(results []result, maxima analyze.DailyMaxima, cfg analyze.PairingConfig) []schema.AfternoonRow {
-	days := make([]analyze.DaySounding, len(results))
-	for i := range results {
-		r := &results[i]
+// (Holzworth). results are the station-year's soundings, context those of
+// the head of the next year (context.go), both in launch-time order;
+// context soundings serve as afternoon soundings only, so the rows are
+// one per morning sounding of results.
+func afternoonRows(results, context []result, maxima analyze.DailyMaxima, cfg analyze.PairingConfig) []schema.AfternoonRow {
+	all := results
+	if len(context) > 0 {
+		all = append(slices.Clip(results), context...)
+	}
+	days := make([]analyze.DaySounding, len(all))
+	for i := range all {
+		r := &all[i]
 		days[i] = analyze.DaySounding{StationID: r.sounding.StationID, LaunchTime: r.sounding.LaunchTime,
 			LongitudeDeg: r.sounding.LongitudeDeg, Profile: r.analysis.Profile}
 		if r.status != analyze.StatusOK {
@@ -49,6 +57,9 @@ func afternoonRows(results []result, maxima analyze.DailyMaxima, cfg analyze.Pai
 	}
 	var rows []schema.AfternoonRow
 	for _, e := range analyze.PairAfternoon(days, maxima, cfg) {
+		if e.Morning >= len(results) {
+			continue // a morning of the next year: its own partition's row
+		}
 		rows = append(rows, schema.AfternoonRowOf(results[e.Morning].sounding, e))
 	}
 	return rows

@@ -115,6 +115,13 @@ type Partition struct {
 	Soundings int               `json:"soundings"`
 	// Inputs lists the input files whose soundings are in the partition.
 	Inputs []string `json:"inputs"`
+	// ContextHash identifies the soundings of the head of the following
+	// station-year (its first 36 hours, sounding.InYearHead) that the
+	// partition was built with, as context of the afternoon pairing of
+	// its last local day; "" when there were none. The following year's
+	// head changing makes this partition stale. It is part of
+	// ContentHash.
+	ContextHash string `json:"context_hash,omitempty"`
 	// Sums maps a table name to the size and SHA-256 of its file, so
 	// that a truncated, altered or missing file is detected (Damage).
 	// Partitions written before sums were recorded have none.
