@@ -49,10 +49,32 @@ func quantile(x []float64, q float64) float64 {
 // station-year with a different method cannot match a 25-year, many-site
 // median, so the check is the order of magnitude: the 00 UTC consensus
 // median within a factor of two of each figure (winter 375–1500 m, summer
-// 500–2000 m) and summer deeper than winter. In winter the 00 UTC launch
-// (19 EST) is after sunset: its current mixing (the consensus, stable or
-// neutral regime) is shallower than the layer mixed in the afternoon that
-// the published technique finds; our residual_layer_top is nearer that.
+// 500–2000 m) and summer deeper than winter.
+//
+// Why the winter figure is lower than 750 m. The paper calls its 00 UTC
+// depths "afternoon PBL depths" estimated by "a recently developed
+// technique" (abstract; the method section was not read): it seeks the
+// layer mixed during the day. At Sterling (77.49° W) the nominal 00 UTC
+// winter launches are released at 23:01–23:46 UTC (the file's release
+// times), 18:01–18:46 EST, about 17:50–18:35 local mean solar time, while
+// sunset at 39° N is at about 16:50 EST in late December and 17:55 EST at
+// the end of February (from memory; the Almanac sun elevations of the
+// analysis agree: every DJF 00 UTC launch has the sun below the horizon,
+// civil twilight or night). So no DJF 00 UTC sounding is in the convective
+// regime (sun above the horizon is required, regime.go), and the consensus
+// uses the stable methods (SBI top, bulk Richardson, Liu–Liang) where a
+// surface inversion or the Liu–Liang SBL is seen, and bulk Richardson and
+// Liu–Liang in the neutral regime otherwise: it measures the layer still
+// mixed from the ground after sunset, not the afternoon's. The afternoon
+// layer is left aloft as the residual layer, whose top (residual_layer_top)
+// is deeper. Checked: every DJF 00 UTC launch has the sun below the horizon
+// and none is convective, and the published 750 m lies between the
+// consensus median (current mixing) and the residual-layer-top median (the
+// day's mixed layer left aloft). Measured: 60 DJF 00 UTC soundings, 18
+// stable and 42 neutral; consensus median 465 m; residual-layer top median
+// about 1280 m (58 found); bulk Richardson 0.25 median 399 m, 0.5 median 693 m;
+// Heffter 1249 m where found (44; 16 surface). The numbers are not tuned
+// toward 750 m: the method choice follows the regime rules.
 //
 // Measured (go test -v): regime consensus medians 00 UTC DJF 465 m, JJA
 // 1167 m; 12 UTC DJF 294 m, JJA 246 m; sun below the horizon median
@@ -67,6 +89,10 @@ func TestSterlingPublishedClimatology(t *testing.T) {
 	cons, rib := map[string][]float64{}, map[string][]float64{}
 	bySun := map[string][]float64{}
 	regimes := map[BLRegime]int{}
+	var winterEvening struct {
+		n, sunUp, convective int
+		residualTops         []float64
+	}
 	for _, s := range all {
 		c := *s
 		c.ElevationM = elev
@@ -83,6 +109,18 @@ func TestSterlingPublishedClimatology(t *testing.T) {
 			season = "JJA"
 		}
 		regimes[r.Regime]++
+		if h == 0 && season == "DJF" {
+			winterEvening.n++
+			if !sun.Below(r.SunClass) {
+				winterEvening.sunUp++
+			}
+			if r.Regime == BLConvective {
+				winterEvening.convective++
+			}
+			if !math.IsNaN(r.ResidualTopAGLM) {
+				winterEvening.residualTops = append(winterEvening.residualTops, r.ResidualTopAGLM)
+			}
+		}
 		if mc := r.MixingHeightConsensus; mc.Status != MixingHeightUndefined {
 			for _, k := range []string{key(h, season), key(h, "all")} {
 				cons[k] = append(cons[k], mc.HeightAGLM)
@@ -138,5 +176,18 @@ func TestSterlingPublishedClimatology(t *testing.T) {
 	}
 	if m := median(cons["0JJA"]); !(m >= 500 && m <= 2000) {
 		t.Errorf("00 UTC JJA consensus median %.0f m, not within a factor 2 of 1000 m (Adv. Meteorol. 2017)", m)
+	}
+	// Why winter is below the published afternoon figure (see above): the
+	// launch is after sunset, so current mixing is measured, and the
+	// afternoon's layer is the residual layer aloft.
+	we := winterEvening
+	rlt := median(we.residualTops)
+	t.Logf("00 UTC DJF: %d soundings, %d with the sun up, %d convective; residual-layer top median %.0f m (n=%d)",
+		we.n, we.sunUp, we.convective, rlt, len(we.residualTops))
+	if we.n < 45 || we.sunUp != 0 || we.convective != 0 {
+		t.Errorf("00 UTC DJF: %d soundings, %d with the sun above the horizon, %d convective: want about 60, all after sunset, none convective", we.n, we.sunUp, we.convective)
+	}
+	if m := median(cons["0DJF"]); !(m < 750 && 750 < rlt) {
+		t.Errorf("00 UTC DJF: consensus median %.0f m and residual-layer top median %.0f m do not bracket the published afternoon 750 m (Adv. Meteorol. 2017)", m, rlt)
 	}
 }
