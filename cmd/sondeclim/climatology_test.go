@@ -420,7 +420,7 @@ func TestClimatologyVentilationKtFt(t *testing.T) {
 		t.Errorf("no category of the table's own in\n%s", out)
 	}
 	if code, _, errs := runCmd(t, "ingest", "--quiet", "--store", filepath.Join(dir, "s2"), "--ventilation-table", "no_such_table",
-		filepath.Join(v, "archive-v2", "AUM00011035-data.txt.gz")); code == exitOK || !strings.Contains(errs, "generic, nc_vis") {
+		filepath.Join(v, "archive-v2", "AUM00011035-data.txt.gz")); code != exitUsage || !strings.Contains(errs, "generic, nc_vis") {
 		t.Errorf("unknown table: exit %d, %s", code, errs)
 	}
 }

@@ -9,14 +9,11 @@ import (
 	"runtime"
 	"runtime/debug"
 	"runtime/pprof"
-	"sort"
 	"strings"
-	"text/tabwriter"
 
 	"github.com/sondeclim/sondeclim/analyze"
 	"github.com/sondeclim/sondeclim/engine"
 	"github.com/sondeclim/sondeclim/ingest"
-	"github.com/sondeclim/sondeclim/ingest/dailymax"
 	"github.com/sondeclim/sondeclim/ingest/formats"
 	"github.com/sondeclim/sondeclim/schema/store"
 )
@@ -86,7 +83,7 @@ error; 3 done, but some input was skipped (data lost).`,
 	wait := fs.Bool("wait", false, "wait for another ingest into the same store to finish instead of failing")
 	shard := fs.String("shard", "", "write only the stations of shard `K/N` (stations are assigned by a hash of their id)")
 	dailyMax := fs.String("daily-max", "", "CSV `file` of daily maximum temperatures (station_id,date,tmax_c; date local YYYY-MM-DD) for the afternoon (Holzworth) mixing height; without it, the same day's afternoon sounding is used")
-	ventTable := fs.String("ventilation-table", analyze.GenericVentilationTable().Name, "ventilation category `table`: a built-in name ("+ventilationTableNames()+") or a table file (format in the README, \"Ventilation categories\"); part of the analysis parameters, so a change rebuilds the store")
+	ventTable := fs.String("ventilation-table", analyze.GenericVentilationTable().Name, "ventilation category `table`: a built-in name ("+engine.VentilationTableNames()+") or a table file (format in the README, \"Ventilation categories\"); part of the analysis parameters, so a change rebuilds the store")
 	useSuspect := fs.Bool("use-suspect", false, "let the analysis use values quality control flags as suspect (bad values are never used)")
 	cpuProfile := fs.String("cpuprofile", "", "write a CPU profile to `file` (for performance work: go tool pprof FILE)")
 	summaryJSON := fs.String("summary-json", "", "write a machine-readable summary of the run to `file`")
@@ -117,24 +114,16 @@ error; 3 done, but some input was skipped (data lost).`,
 	}
 	opt := engine.Options{Workers: *workers, Format: *format, Log: log, Shard: sh, Full: *full, Verify: *verify, PruneMissing: *prune, InputBudget: *maxInput, RunBudget: *maxRun, MaxPartitionBytes: *maxPart, Wait: *wait, UseSuspect: *useSuspect}
 	if *dailyMax != "" {
-		f, err := os.Open(*dailyMax)
-		if err != nil {
+		if opt.DailyMaxima, err = engine.LoadDailyMaxima(*dailyMax); err != nil {
 			return fmt.Errorf("ingest: %w", err)
-		}
-		recs, err := dailymax.Read(f)
-		f.Close()
-		if err != nil {
-			return fmt.Errorf("ingest: daily maxima %s: %w", *dailyMax, err)
-		}
-		opt.DailyMaxima = analyze.DailyMaxima{}
-		for _, r := range recs {
-			opt.DailyMaxima[analyze.DayKey{StationID: r.StationID, Date: r.Date}] = r.TmaxK
 		}
 	}
 	if *ventTable != analyze.GenericVentilationTable().Name {
-		tab, err := loadVentilationTable(*ventTable)
+		// A table that cannot be read is the caller's wording, like an
+		// unknown built-in name: a usage error naming the file and line.
+		tab, err := engine.LoadVentilationTable(*ventTable)
 		if err != nil {
-			return fmt.Errorf("ingest: %w", err)
+			return fmt.Errorf("ingest: --ventilation-table: %v: %w", err, errUsage)
 		}
 		cfg := analyze.DefaultConfig()
 		cfg.Ventilation.Table = tab
@@ -172,7 +161,9 @@ error; 3 done, but some input was skipped (data lost).`,
 		}
 		return fmt.Errorf("ingest: %w", err)
 	}
-	printSummary(c, sum, *storeDir, *quiet)
+	if err := sum.WriteText(c.stdout, *storeDir, *quiet); err != nil {
+		return err
+	}
 	if *summaryJSON != "" {
 		if err := writeSummaryJSON(*summaryJSON, sum, nil); err != nil {
 			return fmt.Errorf("ingest: %w", err)
@@ -182,58 +173,6 @@ error; 3 done, but some input was skipped (data lost).`,
 		return errSkipped
 	}
 	return nil
-}
-
-// printSummary writes the run's summary to stdout (the store holds the
-// data; warnings went to stderr).
-func printSummary(c *ingestCmd, s *engine.Summary, store string, quiet bool) {
-	skipped := len(s.Skipped)
-	if !quiet {
-		tw := tabwriter.NewWriter(c.stdout, 0, 4, 2, ' ', 0)
-		row := func(k string, v any) { fmt.Fprintf(tw, "%s\t%v\n", k, v) }
-		row("input files", len(s.Inputs))
-		row("  unchanged since the last run", s.InputsUnchanged)
-		row("  read (files, members)", fmt.Sprintf("%d (%d)", s.InputsRead, s.Members))
-		if s.StationLists > 0 {
-			row("  station lists", s.StationLists)
-		}
-		row("soundings decoded", s.SoundingsRead)
-		if s.OtherShards > 0 {
-			row("  belonging to other shards", s.OtherShards)
-		}
-		row("  duplicates merged (station, launch)", s.DuplicatesMerged)
-		row("soundings new/replaced/unchanged/removed",
-			fmt.Sprintf("%d / %d / %d / %d", s.SoundingsNew, s.SoundingsReplaced, s.SoundingsUnchanged, s.SoundingsRemoved))
-		for _, k := range sortedKeys(s.NotAnalysable) {
-			row("  not analysable: "+k, s.NotAnalysable[k])
-		}
-		row("partitions written / unchanged", fmt.Sprintf("%d / %d", s.PartitionsWritten, s.PartitionsUnchanged))
-		if s.PartitionsDropped > 0 {
-			row("partitions dropped (--full)", s.PartitionsDropped)
-		}
-		row("levels written", s.Rows["levels"])
-		row("input items skipped", skipped)
-		by := s.SkippedByReason()
-		for _, k := range sortedKeys(by) {
-			row("  skipped: "+k, by[k])
-		}
-		if len(s.Notes) > 0 {
-			row("notes on input (no data lost)", len(s.Notes))
-			nb := map[string]int{}
-			for _, n := range s.Notes {
-				nb[n.Reason]++
-			}
-			for _, k := range sortedKeys(nb) {
-				row("  note: "+k, nb[k])
-			}
-		}
-		row("soundings in the store", s.Soundings)
-		row("elapsed", fmt.Sprintf("%.1f s", s.Elapsed.Seconds()))
-		tw.Flush()
-		fmt.Fprintf(c.stdout, "store: %s\n", store)
-	}
-	fmt.Fprintf(c.stdout, "ingest: %d soundings new, %d replaced; %d in the store; %d input items skipped, %d notes\n",
-		s.SoundingsNew, s.SoundingsReplaced, s.Soundings, skipped, len(s.Notes))
 }
 
 // writeSummaryJSON writes the run summary (or the error that stopped the
@@ -256,15 +195,6 @@ func writeSummaryJSON(path string, s *engine.Summary, runErr error) error {
 		return err
 	}
 	return os.WriteFile(path, append(b, '\n'), 0o644)
-}
-
-func sortedKeys(m map[string]int) []string {
-	var k []string
-	for n := range m {
-		k = append(k, n)
-	}
-	sort.Strings(k)
-	return k
 }
 
 // loadStations reads a station list; lines it cannot parse are logged.
@@ -307,34 +237,4 @@ func tuneGC() {
 	}
 	debug.SetMemoryLimit(ingestMemoryLimit)
 	debug.SetGCPercent(ingestGCPercent)
-}
-
-// ventilationTableNames lists the built-in ventilation tables, "a, b".
-func ventilationTableNames() string {
-	var names []string
-	for _, t := range analyze.BuiltinVentilationTables() {
-		names = append(names, t.Name)
-	}
-	return strings.Join(names, ", ")
-}
-
-// loadVentilationTable returns the built-in table called arg, or else the
-// table in the file arg; errors name the file and line.
-func loadVentilationTable(arg string) (analyze.VentilationTable, error) {
-	if t, ok := analyze.LookupVentilationTable(arg); ok {
-		return t, nil
-	}
-	f, err := os.Open(arg)
-	if err != nil {
-		return analyze.VentilationTable{}, fmt.Errorf("--ventilation-table %q is neither a built-in table (%s) nor a readable file: %w", arg, ventilationTableNames(), err)
-	}
-	defer f.Close()
-	t, err := analyze.ParseVentilationTable(f)
-	if err != nil {
-		if msg, ok := strings.CutPrefix(err.Error(), "line "); ok {
-			return t, fmt.Errorf("ventilation table %s:%s", arg, msg)
-		}
-		return t, fmt.Errorf("ventilation table %s: %w", arg, err)
-	}
-	return t, nil
 }
