@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"slices"
+	"sync"
 
 	"github.com/sondeclim/sondeclim/sounding"
 )
@@ -37,8 +38,16 @@ func Check(s *sounding.Sounding, cfg Config) Report {
 		st.mostlyBad()
 	}
 	st.finish()
+	if st.buf != nil {
+		workBufs.Put(st.buf)
+	}
 	return st.rep
 }
+
+// workBufs holds the working-value buffers (*[]float64) of finished Check
+// calls for the next ones: the report keeps none of them, and a fresh
+// buffer (72 bytes a level) was allocated and zeroed for every sounding.
+var workBufs sync.Pool
 
 // state is the working state of one Check call.
 type state struct {
@@ -52,8 +61,9 @@ type state struct {
 	// tv caches each level's virtual temperature with the working values
 	// it was computed from (see virtualTAt).
 	tv      tvCache
-	elev    float64 // station elevation, gpm; NaN if unknown
-	surface int     // index of the first surface level, −1 if none
+	elev    float64    // station elevation, gpm; NaN if unknown
+	surface int        // index of the first surface level, −1 if none
+	buf     *[]float64 // holds p, z, t, td, dpd and tv (from workBufs)
 }
 
 func newState(s *sounding.Sounding, cfg Config) *state {
@@ -63,7 +73,13 @@ func newState(s *sounding.Sounding, cfg Config) *state {
 	}
 	n := len(s.Levels)
 	st.rep.Flags = make([][sounding.NumVars]Flag, n)
-	buf := make([]float64, 9*n)
+	bp, _ := workBufs.Get().(*[]float64)
+	if bp == nil {
+		bp = new([]float64)
+	}
+	*bp = slices.Grow((*bp)[:0], 9*n)[:9*n]
+	st.buf = bp
+	buf := *bp
 	st.p, st.z, st.t, st.td, st.dpd = buf[:n], buf[n:2*n], buf[2*n:3*n], buf[3*n:4*n], buf[4*n:5*n]
 	st.tv = tvCache{t: buf[5*n : 6*n], td: buf[6*n : 7*n], p: buf[7*n : 8*n], tv: buf[8*n:]}
 	for i := range s.Levels {
