@@ -5,8 +5,6 @@ import (
 	"database/sql"
 	"fmt"
 	"io"
-	"os"
-	"path/filepath"
 	"strconv"
 	"strings"
 
@@ -260,31 +258,16 @@ func reportWriter(format string) (func(io.Writer, *queries.Table) error, string,
 	return nil, "", fmt.Errorf("unknown --format %q (text, csv, json or markdown): %w", format, errUsage)
 }
 
-// writeViews writes each view to dir/prefix-VIEW.ext and lists the files
-// on w.
+// writeViews writes each view to dir/prefix-VIEW.ext (queries.WriteViews)
+// and lists the files on w.
 func writeViews(w io.Writer, dir, prefix, ext string, views []string, table func(string) (*queries.Table, error),
 	write func(io.Writer, *queries.Table) error) error {
-	if err := os.MkdirAll(dir, 0o755); err != nil {
-		return fmt.Errorf("%s: %w", prefix, err)
+	files, err := queries.WriteViews(dir, prefix, ext, views, table, write)
+	for _, f := range files {
+		fmt.Fprintf(w, "%s\t%d rows\n", f.Path, f.Rows)
 	}
-	for _, v := range views {
-		t, err := table(v)
-		if err != nil {
-			return fmt.Errorf("%s: %w", prefix, err)
-		}
-		path := filepath.Join(dir, prefix+"-"+v+"."+ext)
-		f, err := os.Create(path)
-		if err != nil {
-			return fmt.Errorf("%s: %w", prefix, err)
-		}
-		err = write(f, t)
-		if cerr := f.Close(); err == nil {
-			err = cerr
-		}
-		if err != nil {
-			return fmt.Errorf("%s: write %s: %w", prefix, path, err)
-		}
-		fmt.Fprintf(w, "%s\t%d rows\n", path, len(t.Rows))
+	if err != nil {
+		return fmt.Errorf("%s: %w", prefix, err)
 	}
 	return nil
 }
