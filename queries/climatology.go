@@ -123,7 +123,8 @@ func (o ClimatologyOptions) sampleArgs() []any {
 
 // ClimatologyTables holds one climatology run: the statistics per cell,
 // per cell and mixing-height method, and per cell and ventilation
-// category. Table renders the views commands print.
+// category. Table renders the views commands print. A table the run was
+// not asked for (ClimatologyFor) is nil.
 type ClimatologyTables struct {
 	Options    ClimatologyOptions // with defaults filled in
 	Cells      *Table             // climatology_cells.sql
@@ -133,52 +134,90 @@ type ClimatologyTables struct {
 
 // ClimatologyOf computes the climatology of the soundings of db (see Open;
 // it needs the soundings, inversions and mixing_heights views) for the
-// options o. The columns are documented in climatology_cells.sql,
-// climatology_methods.sql and climatology_categories.sql; key columns
-// that the options leave empty (month in season mode, sun_class in hour
-// mode, …) are dropped.
+// options o: every table, for every view of ClimatologyViews. The columns
+// are documented in climatology_cells.sql, climatology_methods.sql and
+// climatology_categories.sql; key columns that the options leave empty
+// (month in season mode, sun_class in hour mode, …) are dropped.
 func ClimatologyOf(ctx context.Context, db *sql.DB, o ClimatologyOptions) (*ClimatologyTables, error) {
+	return ClimatologyFor(ctx, db, o, ClimatologyViews...)
+}
+
+// ClimatologyFor is ClimatologyOf computing only the tables that the
+// views named (of ClimatologyViews) are made of: the summary, inversions
+// and mixed views need the per-cell table alone, which is a third of the
+// work of the three. Table of a view whose tables were left out is an
+// error.
+func ClimatologyFor(ctx context.Context, db *sql.DB, o ClimatologyOptions, views ...string) (*ClimatologyTables, error) {
 	o, err := o.normalized()
 	if err != nil {
 		return nil, err
 	}
+	var cells, methods, categories bool
+	for _, v := range views {
+		switch v {
+		case "summary", "inversions", "mixed":
+			cells = true
+		case "mixing":
+			methods = true
+		case "ventilation":
+			cells, categories = true, true
+		case "all":
+			cells, methods, categories = true, true, true
+		default:
+			return nil, fmt.Errorf("unknown view %q (one of %s)", v, strings.Join(ClimatologyViews, ", "))
+		}
+	}
 	ct := &ClimatologyTables{Options: o}
+	sample, err := statement("climatology_sample.sql")
+	if err != nil {
+		return nil, err
+	}
+	// Each statement is the sample's WITH clause followed by its own
+	// members and SELECT. One statement alone reads the store's files
+	// itself, only the columns it uses: storing the sample first cost more
+	// than the statement (600 station-years of the bench archive, under
+	// load: the summary 3.7-4.2 s of CPU with the stored sample, 1.5-2.0 s
+	// without). Two or more share one temporary table of the sample, which
+	// costs less than reading the files again for each; their WITH clause
+	// then starts with an unused member that takes the sample's parameters,
+	// so every statement is bound with the same arguments.
 	args := o.sampleArgs()
-	// The three statements share one sample of soundings: it is built once
-	// as a temporary table on one connection (reading the store's files
-	// once), and each statement reads it.
+	limits := append(slices.Clone(args), int64(o.MinSoundings), int64(o.MinTail))
+	type part struct {
+		want bool
+		file string
+		args []any
+		dst  **Table
+	}
+	var run []part
+	for _, q := range []part{
+		{cells, "climatology_cells.sql", limits, &ct.Cells},
+		{methods, "climatology_methods.sql", limits, &ct.Methods},
+		{categories, "climatology_categories.sql", args, &ct.Categories},
+	} {
+		if q.want {
+			run = append(run, q)
+		}
+	}
 	conn, err := db.Conn(ctx)
 	if err != nil {
 		return nil, fmt.Errorf("%w", err)
 	}
 	defer conn.Close()
-	sample, err := statement("climatology_sample.sql")
-	if err != nil {
-		return nil, err
+	prefix := sample
+	if len(run) > 1 {
+		if _, err := conn.ExecContext(ctx, "CREATE OR REPLACE TEMP TABLE climatology_sample AS\n"+sample+"SELECT * FROM sample", args...); err != nil {
+			return nil, fmt.Errorf("climatology (climatology_sample.sql): %w", err)
+		}
+		defer conn.ExecContext(context.WithoutCancel(ctx), "DROP TABLE IF EXISTS climatology_sample")
+		prefix = "WITH parameters AS (SELECT $1, $2, $3, $4, $5, $6),\nsample AS (SELECT * FROM climatology_sample)\n"
 	}
-	if _, err := conn.ExecContext(ctx, "CREATE OR REPLACE TEMP TABLE sample AS\n"+sample, args...); err != nil {
-		return nil, fmt.Errorf("climatology (climatology_sample.sql): %w", err)
-	}
-	defer conn.ExecContext(context.WithoutCancel(ctx), "DROP TABLE IF EXISTS sample")
-	minN, minTail := int64(o.MinSoundings), int64(o.MinTail)
-	for _, q := range []struct {
-		file string
-		args []any
-		dst  **Table
-	}{
-		{"climatology_cells.sql", []any{o.By, minN, minTail}, &ct.Cells},
-		{"climatology_methods.sql", []any{minN, minTail}, &ct.Methods},
-		{"climatology_categories.sql", nil, &ct.Categories},
-	} {
+	for _, q := range run {
 		body, err := statement(q.file)
 		if err != nil {
 			return nil, err
 		}
-		// The bodies continue a WITH clause whose first member was the
-		// sample; the sample is now a table, so an empty first member
-		// stands in for it.
-		text := "WITH unused AS (SELECT 1)\n" + body
-		t, err := queryOn(ctx, conn, text, q.args...)
+		t, err := queryOn(ctx, conn, prefix+body, q.args...)
 		if err != nil {
 			return nil, fmt.Errorf("climatology (%s): %w", q.file, err)
 		}
@@ -191,7 +230,7 @@ func ClimatologyOf(ctx context.Context, db *sql.DB, o ClimatologyOptions) (*Clim
 // every station of db: the "summary" view of ClimatologyOf with default
 // options.
 func Climatology(ctx context.Context, db *sql.DB) (*Table, error) {
-	ct, err := ClimatologyOf(ctx, db, ClimatologyOptions{})
+	ct, err := ClimatologyFor(ctx, db, ClimatologyOptions{}, "summary")
 	if err != nil {
 		return nil, err
 	}
@@ -260,6 +299,14 @@ var cellKeys = []string{"station_id", "season", "season_name", "month", "nominal
 func (ct *ClimatologyTables) Table(name string) (*Table, error) {
 	cols := func(extra ...string) []string {
 		return append(append(slices.Clone(cellKeys), extra...), "note")
+	}
+	need := map[string][]*Table{"mixing": {ct.Methods}, "ventilation": {ct.Cells, ct.Categories},
+		"all": {ct.Cells, ct.Methods, ct.Categories}}[name]
+	if need == nil {
+		need = []*Table{ct.Cells}
+	}
+	if slices.Contains(need, nil) && slices.Contains(ClimatologyViews, name) {
+		return nil, fmt.Errorf("climatology view %s was not computed (ClimatologyFor)", name)
 	}
 	switch name {
 	case "summary":

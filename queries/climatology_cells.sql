@@ -2,13 +2,16 @@
 -- × time of day (nominal hour or sun class).
 --
 -- Source: the CTE `sample` (climatology_sample.sql, placed in front by Go).
--- Parameters (the sample is built first, with its own, as a temporary
--- table named sample):
---   $1  'season' or 'month', as $1 of climatology_sample.sql
---   $2  minimum valid soundings of a cell (METHODS §8: 15 per month, 45 per season)
---   $3  minimum values for p10/p90 (METHODS §8: 25)
+-- Parameters: $1-$6 those of climatology_sample.sql ($1 'season' or
+-- 'month'), then
+--   $7  minimum valid soundings of a cell (METHODS §8: 15 per month, 45 per season)
+--   $8  minimum values for p10/p90 (METHODS §8: 25)
 --
 -- One row per cell, ordered by station, period and time of day:
+--   season_name                    winter/spring/summer/autumn by the station's mean
+--                                  latitude over the soundings kept (< 0 flips the
+--                                  label, the code stays; null when unknown, since the
+--                                  hemisphere is then unknown); null in month mode
 --   n_soundings                    soundings attempted
 --   n_valid                        soundings with analysed(analysis_status)
 --   n_consensus_ok/_surface/_undefined  valid soundings by consensus status
@@ -43,8 +46,8 @@
 --   note                           empty, or the special hours the cell holds
 --                                  ("with 06 UTC"; "other hours: 06,18 UTC" for
 --                                  the cell of hours near no regular hour), and
---                                  why the cell is thin: "n_valid<$2",
---                                  "p10/p90 n<$3" (consensus heights), "month n<10"
+--                                  why the cell is thin: "n_valid<$7",
+--                                  "p10/p90 n<$8" (consensus heights), "month n<10"
 --                                  (season mode: a month of the season has fewer than
 --                                  10 valid soundings; METHODS §8)
 --
@@ -55,41 +58,46 @@
     -- Percentiles of one quantity are computed together (a list), which
     -- keeps one copy of the values per cell instead of one per percentile.
     SELECT
-        x.station_id, x.season, x.season_name, x.month, x.nominal_hour, x.sun_class,
+        x.station_id, x.season, x.month, x.nominal_hour, x.sun_class,
+        -- for the station's mean latitude (season_name, in c)
+        sum(x.latitude_deg) AS latitude_sum, count(x.latitude_deg) AS latitude_n,
         count(*) AS n_soundings,
-        count(*) FILTER (WHERE x.valid) AS n_valid,
-        count(*) FILTER (WHERE x.valid AND mh_ok(x.consensus_status)) AS n_consensus_ok,
-        count(*) FILTER (WHERE x.valid AND mh_surface(x.consensus_status)) AS n_consensus_surface,
-        count(*) FILTER (WHERE x.valid AND NOT mh_defined(x.consensus_status)) AS n_consensus_undefined,
-        quantile_cont(x.consensus_m, [0.10, 0.25, 0.50, 0.75, 0.90]) FILTER (WHERE x.valid) AS mixing_height_q,
-        count(*) FILTER (WHERE x.valid AND x.sbi_present)::DOUBLE / nullif(count(*) FILTER (WHERE x.valid), 0) AS sbi_frequency,
-        quantile_cont(x.sbi_strength_k, 0.5) FILTER (WHERE x.valid AND x.sbi_present) AS sbi_median_strength_k,
-        quantile_cont(x.sbi_top_agl_m, 0.5) FILTER (WHERE x.valid AND x.sbi_present) AS sbi_median_depth_m,
-        count(*) FILTER (WHERE x.valid AND coalesce(x.ei_class, '') <> '')::DOUBLE / nullif(count(*) FILTER (WHERE x.valid), 0) AS ei_frequency,
-        count(*) FILTER (WHERE x.valid AND x.ei_class = 'subsidence')::DOUBLE / nullif(count(*) FILTER (WHERE x.valid), 0) AS ei_subsidence_frequency,
-        count(*) FILTER (WHERE x.valid AND x.ei_class = 'frontal')::DOUBLE / nullif(count(*) FILTER (WHERE x.valid), 0) AS ei_frontal_frequency,
-        count(*) FILTER (WHERE x.valid AND x.ei_class = 'capping')::DOUBLE / nullif(count(*) FILTER (WHERE x.valid), 0) AS ei_capping_frequency,
-        count(*) FILTER (WHERE x.valid AND x.ei_class = 'unclassified')::DOUBLE / nullif(count(*) FILTER (WHERE x.valid), 0) AS ei_unclassified_frequency,
-        count(*) FILTER (WHERE x.valid AND x.ml_present)::DOUBLE / nullif(count(*) FILTER (WHERE x.valid), 0) AS ml_frequency,
-        quantile_cont(x.ml_depth_m, [0.25, 0.50, 0.75]) FILTER (WHERE x.valid AND x.ml_present) AS ml_depth_q,
-        quantile_cont(x.mixed_layer_theta_k, 0.5) FILTER (WHERE x.valid AND x.ml_present) AS ml_theta_median_k,
-        quantile_cont(x.mixed_layer_mixing_ratio_gkg, 0.5) FILTER (WHERE x.valid AND x.ml_present) AS ml_mixing_ratio_median_gkg,
-        count(x.ventilation_index_m2s) FILTER (WHERE x.valid) AS n_ventilation,
-        quantile_cont(x.transport_wind_ms, [0.25, 0.50, 0.75]) FILTER (WHERE x.valid) AS transport_wind_q,
-        quantile_cont(x.ventilation_index_m2s, [0.10, 0.25, 0.50, 0.75, 0.90]) FILTER (WHERE x.valid) AS ventilation_index_q,
+        count(CASE WHEN x.valid THEN 1 END) AS n_valid,
+        count(CASE WHEN x.valid AND mh_ok(x.consensus_status) THEN 1 END) AS n_consensus_ok,
+        count(CASE WHEN x.valid AND mh_surface(x.consensus_status) THEN 1 END) AS n_consensus_surface,
+        count(CASE WHEN x.valid AND NOT mh_defined(x.consensus_status) THEN 1 END) AS n_consensus_undefined,
+        quantile_cont(CASE WHEN x.valid THEN x.consensus_m END, [0.10, 0.25, 0.50, 0.75, 0.90]) AS mixing_height_q,
+        count(CASE WHEN x.valid AND x.sbi_present THEN 1 END)::DOUBLE / nullif(count(CASE WHEN x.valid THEN 1 END), 0) AS sbi_frequency,
+        quantile_cont(CASE WHEN x.valid AND x.sbi_present THEN x.sbi_strength_k END, 0.5) AS sbi_median_strength_k,
+        quantile_cont(CASE WHEN x.valid AND x.sbi_present THEN x.sbi_top_agl_m END, 0.5) AS sbi_median_depth_m,
+        count(CASE WHEN x.valid AND coalesce(x.ei_class, '') <> '' THEN 1 END)::DOUBLE / nullif(count(CASE WHEN x.valid THEN 1 END), 0) AS ei_frequency,
+        count(CASE WHEN x.valid AND x.ei_class = 'subsidence' THEN 1 END)::DOUBLE / nullif(count(CASE WHEN x.valid THEN 1 END), 0) AS ei_subsidence_frequency,
+        count(CASE WHEN x.valid AND x.ei_class = 'frontal' THEN 1 END)::DOUBLE / nullif(count(CASE WHEN x.valid THEN 1 END), 0) AS ei_frontal_frequency,
+        count(CASE WHEN x.valid AND x.ei_class = 'capping' THEN 1 END)::DOUBLE / nullif(count(CASE WHEN x.valid THEN 1 END), 0) AS ei_capping_frequency,
+        count(CASE WHEN x.valid AND x.ei_class = 'unclassified' THEN 1 END)::DOUBLE / nullif(count(CASE WHEN x.valid THEN 1 END), 0) AS ei_unclassified_frequency,
+        count(CASE WHEN x.valid AND x.ml_present THEN 1 END)::DOUBLE / nullif(count(CASE WHEN x.valid THEN 1 END), 0) AS ml_frequency,
+        quantile_cont(CASE WHEN x.valid AND x.ml_present THEN x.ml_depth_m END, [0.25, 0.50, 0.75]) AS ml_depth_q,
+        quantile_cont(CASE WHEN x.valid AND x.ml_present THEN x.mixed_layer_theta_k END, 0.5) AS ml_theta_median_k,
+        quantile_cont(CASE WHEN x.valid AND x.ml_present THEN x.mixed_layer_mixing_ratio_gkg END, 0.5) AS ml_mixing_ratio_median_gkg,
+        count(CASE WHEN x.valid THEN x.ventilation_index_m2s END) AS n_ventilation,
+        quantile_cont(CASE WHEN x.valid THEN x.transport_wind_ms END, [0.25, 0.50, 0.75]) AS transport_wind_q,
+        quantile_cont(CASE WHEN x.valid THEN x.ventilation_index_m2s END, [0.10, 0.25, 0.50, 0.75, 0.90]) AS ventilation_index_q,
         coalesce(string_agg(DISTINCT nullif(x.ventilation_table, ''), ',' ORDER BY nullif(x.ventilation_table, '')), '') AS ventilation_table,
         least(
-            count(*) FILTER (WHERE x.valid AND x.calendar_month % 3 = 0),
-            count(*) FILTER (WHERE x.valid AND x.calendar_month % 3 = 1),
-            count(*) FILTER (WHERE x.valid AND x.calendar_month % 3 = 2)) AS n_fewest_month,
+            count(CASE WHEN x.valid AND x.calendar_month % 3 = 0 THEN 1 END),
+            count(CASE WHEN x.valid AND x.calendar_month % 3 = 1 THEN 1 END),
+            count(CASE WHEN x.valid AND x.calendar_month % 3 = 2 THEN 1 END)) AS n_fewest_month,
         string_agg(DISTINCT lpad(x.hour_given::VARCHAR, 2, '0'), ',' ORDER BY lpad(x.hour_given::VARCHAR, 2, '0'))
             FILTER (WHERE x.nominal_hour IS DISTINCT FROM x.hour_given AND x.sun_class IS NULL) AS hours_pooled
     FROM sample x
-    GROUP BY ALL
+    GROUP BY x.station_id, x.season, x.month, x.nominal_hour, x.sun_class
 ),
 c AS (
     SELECT
-        station_id, season, season_name, month, nominal_hour, sun_class,
+        station_id, season,
+        CASE WHEN season IS NOT NULL THEN season_name(season,
+            sum(latitude_sum) OVER (PARTITION BY station_id) / nullif(sum(latitude_n) OVER (PARTITION BY station_id), 0)) END AS season_name,
+        month, nominal_hour, sun_class,
         n_soundings, n_valid, n_consensus_ok, n_consensus_surface, n_consensus_undefined,
         mixing_height_q[1] AS mixing_height_p10_m,
         mixing_height_q[2] AS mixing_height_p25_m,
@@ -124,8 +132,8 @@ SELECT
     concat_ws('; ',
         CASE WHEN hours_pooled IS NOT NULL AND nominal_hour IS NULL THEN 'other hours: ' || hours_pooled || ' UTC' END,
         CASE WHEN hours_pooled IS NOT NULL AND nominal_hour IS NOT NULL THEN 'with ' || hours_pooled || ' UTC' END,
-        CASE WHEN n_valid < $2 THEN 'n_valid<' || $2 END,
-        CASE WHEN n_consensus_ok + n_consensus_surface < $3 THEN 'p10/p90 n<' || $3 END,
+        CASE WHEN n_valid < $7 THEN 'n_valid<' || $7 END,
+        CASE WHEN n_consensus_ok + n_consensus_surface < $8 THEN 'p10/p90 n<' || $8 END,
         CASE WHEN $1 = 'season' AND n_fewest_month < 10 THEN 'month n<10' END) AS note
 FROM c
 ORDER BY

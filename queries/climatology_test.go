@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"reflect"
 	"slices"
 	"strings"
 	"testing"
@@ -339,5 +340,45 @@ func BenchmarkClimatology(b *testing.B) {
 		if _, err := Climatology(context.Background(), db); err != nil {
 			b.Fatal(err)
 		}
+	}
+}
+
+// TestClimatologyForViews checks that computing only the tables of some
+// views gives those views exactly as computing every table does (the
+// single-statement path reads the store, the several-statement path a
+// stored sample), and that a view left out is an error, not an empty table.
+func TestClimatologyForViews(t *testing.T) {
+	db := openStore(t, writeStore(t, t.TempDir(), handRows()))
+	ctx := context.Background()
+	full, err := ClimatologyOf(ctx, db, ClimatologyOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, views := range [][]string{{"summary"}, {"mixing"}, {"ventilation"}, {"inversions", "mixing"}} {
+		part, err := ClimatologyFor(ctx, db, ClimatologyOptions{}, views...)
+		if err != nil {
+			t.Fatalf("%v: %v", views, err)
+		}
+		for _, v := range ClimatologyViews {
+			want, _ := full.Table(v)
+			got, err := part.Table(v)
+			computed := slices.Contains(views, v) || (v != "mixing" && v != "ventilation" && v != "all" && part.Cells != nil)
+			if !computed {
+				if err == nil {
+					t.Errorf("%v: view %s not computed, but Table gave no error", views, v)
+				}
+				continue
+			}
+			if err != nil {
+				t.Errorf("%v: view %s: %v", views, v, err)
+				continue
+			}
+			if !reflect.DeepEqual(got, want) {
+				t.Errorf("%v: view %s differs from ClimatologyOf's:\n%v\nwant\n%v", views, v, got.Rows, want.Rows)
+			}
+		}
+	}
+	if _, err := ClimatologyFor(ctx, db, ClimatologyOptions{}, "weekly"); err == nil {
+		t.Error("unknown view: no error")
 	}
 }

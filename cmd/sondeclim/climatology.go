@@ -124,20 +124,25 @@ behind p10/p90, or (by season) a month with fewer than 10 valid soundings.
 	if len(*rules) > 0 {
 		return fmt.Errorf("climatology: --rule applies to --table episodes: %w", errUsage)
 	}
-	ct, err := queries.ClimatologyOf(ctx, db, opts)
+	people := *format == "text" || *format == "markdown"
+	views := []string{*view}
+	if *view == "all" && people {
+		views = []string{"summary", "mixing", "inversions", "mixed", "ventilation"}
+	}
+	if *out != "" {
+		views = queries.ClimatologyViews
+	}
+	// Only the tables of the views printed are computed; the summary's is
+	// always, since it tells whether the filters matched anything.
+	ct, err := queries.ClimatologyFor(ctx, db, opts, append([]string{"summary"}, views...)...)
 	if err != nil {
 		return fmt.Errorf("climatology: %w", err)
 	}
 	if sum, err := ct.Table("summary"); err == nil && len(sum.Rows) == 0 {
 		return noMatch(ctx, db, "climatology", stations, *years)
 	}
-	people := *format == "text" || *format == "markdown"
 	if *out != "" {
 		return writeViews(c.stdout, *out, "climatology", ext, queries.ClimatologyViews, ct.Table, write)
-	}
-	views := []string{*view}
-	if *view == "all" && people {
-		views = []string{"summary", "mixing", "inversions", "mixed", "ventilation"}
 	}
 	for i, v := range views {
 		t, err := ct.Table(v)
