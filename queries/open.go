@@ -252,3 +252,48 @@ var offline = []string{
 	"SET http_proxy = '127.0.0.1:9'",
 	"SET lock_configuration = true",
 }
+
+// Restrict narrows the table views of db, opened by Open on storeDir, to
+// the partitions of the given stations, so that a store-wide query reads
+// only their files (each file read costs its footer, and a store of many
+// thin stations has thousands). The rows of those stations are unchanged:
+// every store table is partitioned by station. Tables derived from the
+// views (AttachEpisodes) must be attached after Restrict. A table holding
+// no file of the stations keeps its columns and no rows. A store without a
+// manifest is left whole (its queries give the same rows, only slower).
+func Restrict(ctx context.Context, db *sql.DB, storeDir string, stations []string) error {
+	abs, err := filepath.Abs(storeDir)
+	if err != nil {
+		return fmt.Errorf("store %s: %w", storeDir, err)
+	}
+	listed, haveManifest, err := store.TableFiles(abs)
+	if err != nil || !haveManifest {
+		return err
+	}
+	tables, err := manifestTables(abs, listed)
+	if err != nil {
+		return err
+	}
+	keep := map[string]bool{}
+	for _, id := range stations {
+		keep[schema.StationKey+"="+store.EscapeStation(id)] = true
+	}
+	for _, t := range tables {
+		var files []string
+		for _, f := range t.files {
+			if keep[filepath.Base(filepath.Dir(filepath.Dir(f)))] { // TABLE/station=ID/year=YYYY/part-….parquet
+				files = append(files, f)
+			}
+		}
+		ddl := ""
+		if len(files) > 0 {
+			ddl = viewDDL(abs, table{name: t.name, partitioned: t.partitioned, files: files})
+		} else {
+			ddl = viewDDL(abs, table{name: t.name, partitioned: t.partitioned, files: t.files[:1]}) + " LIMIT 0"
+		}
+		if _, err := db.ExecContext(ctx, strings.Replace(ddl, "CREATE VIEW", "CREATE OR REPLACE VIEW", 1)); err != nil {
+			return fmt.Errorf("narrow view %s to %d stations: %w", t.name, len(stations), err)
+		}
+	}
+	return nil
+}

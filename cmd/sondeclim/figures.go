@@ -113,6 +113,10 @@ words. The file names are printed, one per line.`, figures.DefaultMinCount, quer
 	if err := os.MkdirAll(*out, 0o755); err != nil {
 		return fmt.Errorf("figures: %w", err)
 	}
+	// The store's files of other stations need not be read again.
+	if err := queries.Restrict(ctx, db, *store, figures.IDs(stations)); err != nil {
+		return fmt.Errorf("figures: %w", err)
+	}
 	data, err := figures.LoadStationData(ctx, db, stations, *method, true)
 	if err != nil {
 		return fmt.Errorf("figures: %w", err)

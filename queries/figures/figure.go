@@ -328,6 +328,15 @@ func SplitThin(stations []Station, minValid int) (drawn, thin []Station) {
 	return drawn, thin
 }
 
+// IDs returns the ids of stations, in order.
+func IDs(stations []Station) []string {
+	ids := make([]string, len(stations))
+	for i, st := range stations {
+		ids[i] = st.ID
+	}
+	return ids
+}
+
 // WriteFiles renders every figure in each format into dir as NAME.FORMAT,
 // at most workers at once (workers < 1 means 1), and returns the paths in
 // the order of figs and formats whatever the number of workers. Rendering
