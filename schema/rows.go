@@ -197,7 +197,9 @@ type MixingHeightRow struct {
 
 // AfternoonRow is one row of the `afternoon_mixing` table: the afternoon
 // mixing height of one local day by the Holzworth construction (the
-// morning sounding's profile and the day's maximum temperature).
+// morning sounding's profile and the day's maximum temperature). The row
+// of a local day is stored in the partition of its morning sounding's UTC
+// year, also where the day straddles the UTC new year (engine/context.go).
 type AfternoonRow struct {
 	StationID     string    `col:"station_id" doc:"station identifier"`
 	Year          int32     `col:"year" doc:"calendar year of the morning sounding's nominal time"`

@@ -53,7 +53,7 @@ var tables = []Table{
 		reflect.TypeFor[MixedLayerRow](), false, func(p *PartRows) Writer { return Slice(p.MixedLayers) }},
 	{TableMixingHeights, "One row per ascent and mixing-height method, whatever the status, so failures are counted rather than hidden.",
 		reflect.TypeFor[MixingHeightRow](), false, func(p *PartRows) Writer { return Slice(p.MixingHeights) }},
-	{TableAfternoon, "One row per station and local day with a morning ascent: the afternoon mixing height from the morning profile and the day's maximum temperature (Holzworth).",
+	{TableAfternoon, "One row per station and local day with a morning ascent: the afternoon mixing height from the morning profile and the day's maximum temperature (Holzworth). A local day is stored in the station-year partition of its morning ascent's UTC year, also where the day straddles the UTC new year (its afternoon ascent then falls in the next year).",
 		reflect.TypeFor[AfternoonRow](), false, func(p *PartRows) Writer { return Slice(p.Afternoon) }},
 	{TableQCFindings, "One row per quality-control finding: the check, the level and variable, the severity, the value and what was wrong. Soundings without findings have no rows.",
 		reflect.TypeFor[QCFindingRow](), false, func(p *PartRows) Writer { return Slice(p.QCFindings) }},
