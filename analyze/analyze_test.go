@@ -160,8 +160,14 @@ func TestParcelMixingHeight(t *testing.T) {
 		status MixingHeightStatus
 	}{
 		{"METHODS §9 1750 m", 295.2, 5000, 1750, MixingHeightOK},
-		// Rule of METHODS §4.1: θ0 < θ(first level above) → surface, 0.
-		{"stable from ground", 291.3, 5000, 0, MixingHeightSurface},
+		// Holzworth construction, linear in z from the surface: θ0 between
+		// θ_sfc (291 K) and θ(250 m) (291.6 K) crosses at
+		// (291.3 − 291)/2.4 K km⁻¹ = 125 m, below the first level.
+		{"below first level", 291.3, 5000, 125, MixingHeightOK},
+		// The parcel cannot rise (θ0 ≤ θ_sfc under a stable profile):
+		// surface, 0 (METHODS §4.1).
+		{"equal surface", 291.0, 5000, 0, MixingHeightSurface},
+		{"colder than surface", 290.5, 5000, 0, MixingHeightSurface},
 		// Equal to the first level: lowest height where θ ≥ θ0 is that level.
 		{"equal first level", 291.6, 5000, 250, MixingHeightOK},
 		// Crossing at 1750 m lies above a 1500 m ceiling.
@@ -181,6 +187,18 @@ func TestParcelMixingHeight(t *testing.T) {
 	th[4] = nan
 	if h, st := ParcelMixingHeight(z, th, 295.2, 5000); st != MixingHeightOK || math.Abs(h-1750) > 1e-6 {
 		t.Errorf("with NaN level: %v %q", h, st)
+	}
+	// A superadiabatic surface layer: a parcel at the surface θ (300 K)
+	// rises through it and meets θ = 300 K at 400 + 200·(300 − 299)/(301 −
+	// 299) = 500 m (linear in z, hand value).
+	zs, ts := []float64{0, 400, 600}, []float64{300, 299, 301}
+	if h, st := ParcelMixingHeight(zs, ts, 300, 5000); st != MixingHeightOK || math.Abs(h-500) > 1e-9 {
+		t.Errorf("superadiabatic surface layer: %v %q, want 500 ok", h, st)
+	}
+	// A NaN surface θ leaves no base to interpolate from: θ0 below the
+	// first valid level stays surface.
+	if h, st := ParcelMixingHeight(zs, []float64{nan, 301, 302}, 300.5, 5000); st != MixingHeightSurface || h != 0 {
+		t.Errorf("NaN surface: %v %q, want 0 surface", h, st)
 	}
 	if _, st := ParcelMixingHeight(z[:3], th, 295.2, 5000); st != MixingHeightUndefined {
 		t.Errorf("mismatched slices: %q", st)

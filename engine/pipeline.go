@@ -43,7 +43,7 @@ import (
 // DerivationVersion names the version of the derivation code. Bump it when
 // a change alters what is written for the same input, so that existing
 // stores re-derive their partitions on the next run.
-const DerivationVersion = 10
+const DerivationVersion = 11
 
 // Options configures a run. The zero value is usable: one worker per CPU,
 // the default analysis configuration, no logging, incremental, unsharded.
