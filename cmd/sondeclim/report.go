@@ -4,8 +4,11 @@ import (
 	"context"
 	"errors"
 	"fmt"
-	"github.com/sondeclim/sondeclim/queries/figures"
+	"os"
+	"runtime/pprof"
 	"time"
+
+	"github.com/sondeclim/sondeclim/queries/figures"
 
 	"github.com/sondeclim/sondeclim/engine"
 	"github.com/sondeclim/sondeclim/internal/buildinfo"
@@ -38,11 +41,14 @@ listed with their counts only. Method notes with references and the
 caution about use close it.
 
 The figures are written as PNG files into a folder beside the page
-(FILE-figures/, about 25 KB each, four per station); hand on the page and
-the folder together. --embed puts them inside the page instead, for one
-file (about a third larger). --station limits the report to one station;
+(FILE-figures/); hand on the page and the folder together. --embed puts
+them inside the page instead, for one file (the figures a third larger).
+Up to %d stations get four figures each (about 25 KB apiece); a report of
+more gets one per station, the monthly mixing height (about 14 KB), and
+its details folded, so that 100 stations come to about 3 MB; "sondeclim
+figures --station ID" draws the others. --station limits the report to one station;
 --method picks the mixing height of the monthly figure (consensus by
-default).`, report.DefaultMinSoundings),
+default).`, report.DefaultMinSoundings, report.FullFigureStations),
 		`  sondeclim report --store ./store --out report.html
   sondeclim report --store ./store --out sterling.html --station USM00072403 --embed`,
 		c.stderr)
@@ -52,6 +58,7 @@ default).`, report.DefaultMinSoundings),
 	method := fs.String("method", "", "mixing-height `method` of the monthly figure (default consensus)")
 	minN := fs.Int("min-soundings", report.DefaultMinSoundings, "valid soundings (`N`) a station needs for its section")
 	embed := fs.Bool("embed", false, "embed the figures in the page instead of writing them beside it")
+	cpuProfile := fs.String("cpuprofile", "", "write a CPU profile to `file` (for performance work: go tool pprof FILE)")
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
@@ -63,6 +70,17 @@ default).`, report.DefaultMinSoundings),
 	}
 	if *minN < 1 {
 		return fmt.Errorf("report: --min-soundings must be at least 1, got %d: %w", *minN, errUsage)
+	}
+	if *cpuProfile != "" {
+		f, err := os.Create(*cpuProfile)
+		if err != nil {
+			return fmt.Errorf("report: %w", err)
+		}
+		defer f.Close()
+		if err := pprof.StartCPUProfile(f); err != nil {
+			return fmt.Errorf("report: %w", err)
+		}
+		defer pprof.StopCPUProfile()
 	}
 	db, err := queries.Open(ctx, *dir)
 	if err != nil {

@@ -12,6 +12,8 @@ import (
 	"strings"
 	"testing"
 	"time"
+
+	"github.com/sondeclim/sondeclim/ingest/synth"
 )
 
 // chromium returns the path of a headless Chromium, or skips the test when
@@ -259,5 +261,58 @@ func TestReportStation(t *testing.T) {
 	}
 	if code, _, _ := runCmd(t, "report", "--store", store); code != exitUsage {
 		t.Errorf("report without --out: exit %d", code)
+	}
+}
+
+// TestReportSize checks the size goal of a report of many stations (a
+// 100-station store under 5 MB, page and figures, also with --embed) on
+// 12 invented stations of one year each: more than
+// report.FullFigureStations, so the report is in its compact form. Size
+// in bytes is a property of the output, not of the machine, so it may be
+// bounded; the bound is the goal's 50 KB per station less room for the
+// parts of the page that do not repeat per station.
+func TestReportSize(t *testing.T) {
+	dir := t.TempDir()
+	in := filepath.Join(dir, "in")
+	if err := os.Mkdir(in, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	const stations = 12
+	for i := range stations {
+		cfg := synth.DefaultConfig()
+		cfg.StationIndex, cfg.Years, cfg.Seed = i, 1, uint64(i+1)
+		if _, _, err := synth.WriteFile(in, cfg); err != nil {
+			t.Fatal(err)
+		}
+	}
+	store := filepath.Join(dir, "store")
+	if code, _, errs := runCmd(t, "ingest", "--quiet", "--store", store, in); code != exitOK {
+		t.Fatalf("ingest: exit %d\n%s", code, errs)
+	}
+	const perStation = 45_000 // bytes
+	for _, embed := range []bool{false, true} {
+		page := filepath.Join(dir, fmt.Sprintf("r-%v.html", embed))
+		args := []string{"report", "--store", store, "--out", page}
+		if embed {
+			args = append(args, "--embed")
+		}
+		code, out, errs := runCmd(t, args...)
+		if code != exitOK || !strings.Contains(out, fmt.Sprintf("%d stations with a section, 0 listed only, %d figures", stations, stations)) {
+			t.Fatalf("report (embed %v): exit %d, %q\n%s", embed, code, out, errs)
+		}
+		var total int64
+		files, _ := filepath.Glob(filepath.Join(dir, fmt.Sprintf("r-%v-figures", embed), "*.png"))
+		for _, f := range append(files, page) {
+			fi, err := os.Stat(f)
+			if err != nil {
+				t.Fatal(err)
+			}
+			total += fi.Size()
+		}
+		if total > stations*perStation {
+			t.Errorf("embed %v: %d bytes for %d stations, more than %d per station: 100 stations would pass 5 MB",
+				embed, total, stations, perStation)
+		}
+		t.Logf("embed %v: %d bytes, %d per station", embed, total, total/stations)
 	}
 }

@@ -4,7 +4,9 @@ import (
 	"bytes"
 	"context"
 	"fmt"
+	"image"
 	"image/color"
+	imagedraw "image/draw"
 	"io"
 	"math"
 	"os"
@@ -78,6 +80,22 @@ func (f *Figure) RenderPNG(w io.Writer, level int) error {
 		return fmt.Errorf("render %s: %w", f.Name, err)
 	}
 	return nil
+}
+
+// Image draws the figure at dpi dots per inch (Render's PNGs use 144)
+// on white and returns the pixels, for a caller that encodes them itself
+// (the report's palette PNGs), so that no PNG is encoded and decoded on
+// the way.
+func (f *Figure) Image(dpi float64) *image.RGBA {
+	cv := newPNGCanvas(f.Width, f.Height, int(dpi))
+	f.draw(draw.New(cv))
+	if cv.img != nil {
+		return cv.img
+	}
+	img := cv.Image()
+	rgba := image.NewRGBA(img.Bounds())
+	imagedraw.Draw(rgba, rgba.Bounds(), img, img.Bounds().Min, imagedraw.Src)
+	return rgba
 }
 
 // Colours of the figures. Hours take hourColors in order of nominal hour.

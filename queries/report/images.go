@@ -2,12 +2,8 @@ package report
 
 import (
 	"bytes"
-	"context"
-	"database/sql"
-	"fmt"
 	"image"
 	"image/color"
-	"image/draw"
 	"image/png"
 	"math"
 	"slices"
@@ -15,59 +11,65 @@ import (
 	"github.com/sondeclim/sondeclim/queries/figures"
 )
 
-// stationImages draws the climatology figures and the episode calendar
-// of st as compact PNGs (see compactPNG).
-func stationImages(ctx context.Context, db *sql.DB, st figures.Station, method string) ([]Image, error) {
-	figs, err := figures.StationFigures(ctx, db, st, method)
-	if err != nil {
-		return nil, err
+// Figure resolutions and palettes of the page. A figure is shown 960 CSS
+// pixels wide (a 10 inch figure at 96 per inch); fullDPI draws it at 1.5
+// device pixels per CSS pixel, sharp on high-density screens, compactDPI
+// at one, for reports of many stations where size matters more.
+const (
+	fullDPI    = 144
+	compactDPI = 96
+	// paletteSize is the number of colours a figure keeps, and
+	// compactPalette at compactDPI (measured on the figures of an
+	// invented station at 96 dpi: 64 colours 16 KB, 32 colours 14 KB,
+	// 16 colours 11 KB, and text edges visibly coarser below 32).
+	paletteSize    = 64
+	compactPalette = 32
+)
+
+// sectionImages draws the figures of one station from d (see
+// figures.LoadStationData, with the calendar) as palette PNGs: all of
+// them, or with compact only the monthly mixing-height figure at
+// compactDPI with compactPalette colours.
+func sectionImages(d figures.StationData, compact bool) ([]Image, error) {
+	figs := d.Figures()
+	dpi, colours := float64(fullDPI), paletteSize
+	if compact {
+		figs, dpi, colours = figs[:1], compactDPI, compactPalette
 	}
-	cal, err := figures.LoadEpisodeCalendar(ctx, db, st)
-	if err != nil {
-		return nil, err
-	}
-	figs = append(figs, figures.EpisodeCalendarFigure(cal))
 	var out []Image
 	for _, f := range figs {
-		var buf bytes.Buffer
-		if err := f.Render(&buf, "png"); err != nil {
-			return nil, err
-		}
-		b, err := compactPNG(buf.Bytes())
+		b, err := palettePNG(f.Image(dpi), colours)
 		if err != nil {
-			return nil, fmt.Errorf("figure %s: %w", f.Name, err)
+			return nil, err
 		}
 		out = append(out, Image{Title: f.Title, Name: f.Name, PNG: b, Width: int(math.Round(f.Width.Points() * 96 / 72))})
 	}
 	return out, nil
 }
 
-// paletteSize is the number of colours a compact figure keeps.
-const paletteSize = 64
-
-// compactPNG re-encodes a figure's PNG with a palette of its paletteSize
-// most used colours, each other colour replaced by the nearest of them
+// palettePNG encodes src as a PNG with a palette of its n most used
+// colours (n ≤ 256), each other colour replaced by the nearest of them
 // (no dithering). The figures are flat colours, lines and text on white,
 // whose other colours are the few pixels of anti-aliased edges, so the
-// image looks the same at about a third of the size (measured on the
-// demo's figures: 73 KB → 25 KB).
-func compactPNG(b []byte) ([]byte, error) {
-	src, err := png.Decode(bytes.NewReader(b))
-	if err != nil {
-		return nil, err
-	}
+// image looks the same at about a third of the size of a full-colour PNG
+// (measured on the demo's figures: 73 KB → 25 KB).
+func palettePNG(src *image.RGBA, n int) ([]byte, error) {
 	r := src.Bounds()
-	rgba, ok := src.(*image.RGBA)
-	if !ok {
-		rgba = image.NewRGBA(r)
-		draw.Draw(rgba, r, src, r.Min, draw.Src)
-	}
+	pixel := func(p []uint8) uint32 { return uint32(p[0])<<24 | uint32(p[1])<<16 | uint32(p[2])<<8 | uint32(p[3]) }
+	// Runs of one colour are the rule (white field, flat boxes), so a
+	// pixel equal to the one before skips the map.
 	counts := map[uint32]int{}
 	for y := 0; y < r.Dy(); y++ {
-		row := rgba.Pix[y*rgba.Stride : y*rgba.Stride+4*r.Dx()]
+		row := src.Pix[y*src.Stride : y*src.Stride+4*r.Dx()]
+		last, run := pixel(row), 0
 		for x := 0; x+3 < len(row); x += 4 {
-			counts[uint32(row[x])<<24|uint32(row[x+1])<<16|uint32(row[x+2])<<8|uint32(row[x+3])]++
+			if c := pixel(row[x : x+4]); c != last {
+				counts[last] += run
+				last, run = c, 0
+			}
+			run++
 		}
+		counts[last] += run
 	}
 	keys := make([]uint32, 0, len(counts))
 	for k := range counts {
@@ -84,7 +86,7 @@ func compactPNG(b []byte) ([]byte, error) {
 		}
 		return 1
 	})
-	n := min(len(keys), paletteSize)
+	n = min(len(keys), n, 256)
 	pal := make(color.Palette, n)
 	for i, k := range keys[:n] {
 		pal[i] = color.RGBA{uint8(k >> 24), uint8(k >> 16), uint8(k >> 8), uint8(k)}
@@ -95,11 +97,15 @@ func compactPNG(b []byte) ([]byte, error) {
 	}
 	dst := image.NewPaletted(r, pal)
 	for y := 0; y < r.Dy(); y++ {
-		row := rgba.Pix[y*rgba.Stride : y*rgba.Stride+4*r.Dx()]
+		row := src.Pix[y*src.Stride : y*src.Stride+4*r.Dx()]
 		out := dst.Pix[y*dst.Stride : y*dst.Stride+r.Dx()]
+		last := pixel(row) + 1 // differs from the first pixel
+		var li uint8
 		for x := range out {
-			p := row[4*x : 4*x+4]
-			out[x] = index[uint32(p[0])<<24|uint32(p[1])<<16|uint32(p[2])<<8|uint32(p[3])]
+			if c := pixel(row[4*x : 4*x+4]); c != last {
+				last, li = c, index[c]
+			}
+			out[x] = li
 		}
 	}
 	var out bytes.Buffer

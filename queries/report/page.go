@@ -17,6 +17,7 @@ import (
 var pageHTML string
 
 var page = template.Must(template.New("report").Funcs(template.FuncMap{
+	"alignCSS": alignCSS,
 	"plural": func(n int, one, many string) string {
 		if n == 1 {
 			return one

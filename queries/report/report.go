@@ -44,6 +44,14 @@ var stationsSQL string
 // below it cannot fill a single cell.
 const DefaultMinSoundings = queries.MinSeasonSoundings
 
+// FullFigureStations is the largest number of station sections whose
+// figures are all drawn, at fullDPI. A report of more stations shows
+// one figure per station, the monthly mixing height, at compactDPI, so
+// that the page and its figures stay a few megabytes (100 stations:
+// about 1 MB of figures instead of 9); "sondeclim figures" draws the
+// others.
+const FullFigureStations = 10
+
 // Options selects what a report covers and records what made it.
 type Options struct {
 	// Station restricts the report to one station id; empty means every
@@ -60,6 +68,9 @@ type Options struct {
 	// Embed puts the figures inside the page as data URIs; otherwise Save
 	// writes them as PNG files into a folder beside the page.
 	Embed bool
+	// FullFigureStations is the largest number of sections whose figures
+	// are all drawn; 0 means FullFigureStations.
+	FullFigureStations int
 
 	// What made the report, shown in its colophon.
 	Generated         time.Time // when it was written (UTC); zero: now
@@ -90,11 +101,17 @@ type Section struct {
 	Climatology Table
 	Images      []Image
 	Episodes    Table
+	// NoEpisodes names the rules with no episode in any season (their
+	// rows, all zeros, are left out of Episodes).
+	NoEpisodes  string
 	Persistence Table
 	Afternoon   Table
 	Trends      Table
-	QC          Table
-	Excluded    int // soundings excluded by quality control
+	// TrendsNote, when set, replaces the trends table: no season and
+	// hour has enough years to judge a trend.
+	TrendsNote string
+	QC         Table
+	Excluded   int // soundings excluded by quality control
 }
 
 // Report is the content of the page.
@@ -109,6 +126,11 @@ type Report struct {
 	MinSoundings int
 	Method       string
 	Embed        bool
+	// Compact is set when the report has more than FullFigureStations
+	// sections: one figure per station, the details folded.
+	Compact            bool
+	FullFigureStations int
+	MinTrendYears      int
 	// FigureDir is the folder of the figure files, relative to the page
 	// (Save sets it from the page's name).
 	FigureDir string
@@ -136,6 +158,9 @@ func Build(ctx context.Context, db *sql.DB, opt Options) (*Report, error) {
 	if opt.MinSoundings == 0 {
 		opt.MinSoundings = DefaultMinSoundings
 	}
+	if opt.FullFigureStations <= 0 {
+		opt.FullFigureStations = FullFigureStations
+	}
 	if opt.Generated.IsZero() {
 		opt.Generated = time.Now()
 	}
@@ -155,7 +180,8 @@ func Build(ctx context.Context, db *sql.DB, opt Options) (*Report, error) {
 	}
 	r := &Report{Caution: Caution, Method: opt.Method, Generated: opt.Generated.UTC().Format("2006-01-02 15:04 UTC"),
 		Version: opt.Version, Store: opt.StorePath, Schema: opt.SchemaVersion, Derivation: opt.DerivationVersion,
-		MinSoundings: opt.MinSoundings, Embed: opt.Embed}
+		MinSoundings: opt.MinSoundings, Embed: opt.Embed, FullFigureStations: opt.FullFigureStations,
+		MinTrendYears: queries.DefaultMinTrendYears}
 	if len(all) == 1 {
 		r.Title = "Boundary-layer climatology of " + all[0].Label()
 	} else {
@@ -193,14 +219,24 @@ func Build(ctx context.Context, db *sql.DB, opt Options) (*Report, error) {
 		r.Sections = append(r.Sections, sec)
 		drawn = append(drawn, st)
 	}
-	// The figures of the stations are drawn side by side, one station per
-	// processor; each lands in its own section, so the page does not
-	// depend on the order they finish in.
+	// One query per kind of figure for all the stations (per-station
+	// queries each read every file's footer). The figures are drawn side
+	// by side, one station per processor; each lands in its own section,
+	// so the page does not depend on the order they finish in.
+	data, err := figures.LoadStationData(ctx, db, drawn, opt.Method, true)
+	if err != nil {
+		return nil, err
+	}
+	compact := len(drawn) > opt.FullFigureStations
+	r.Compact = compact
 	g, gctx := errgroup.WithContext(ctx)
 	g.SetLimit(runtime.GOMAXPROCS(0))
-	for i, st := range drawn {
+	for i := range drawn {
 		g.Go(func() error {
-			im, err := stationImages(gctx, db, st, opt.Method)
+			if err := gctx.Err(); err != nil {
+				return err
+			}
+			im, err := sectionImages(data[i], compact)
 			r.Sections[i].Images = im
 			return err
 		})

@@ -136,6 +136,28 @@ func TestBuild(t *testing.T) {
 		t.Errorf("%d sections, %d figures, want 2 and 8", len(both.Sections), both.Figures())
 	}
 
+	// More sections than FullFigureStations: one figure per station, the
+	// details folded, and the page says where the others are made.
+	compact, err := Build(ctx, db, Options{MinSoundings: 1, FullFigureStations: 1, StorePath: "STORE"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if compact.Figures() != 2 || !compact.Compact {
+		t.Errorf("compact report: %d figures, want 1 per station", compact.Figures())
+	}
+	for _, sec := range compact.Sections {
+		if len(sec.Images) != 1 || !strings.Contains(sec.Images[0].Name, "mixing-height-monthly") {
+			t.Errorf("compact section %s: figures %v", sec.ID, sec.Images)
+		}
+	}
+	buf.Reset()
+	if err := compact.WriteHTML(&buf); err != nil {
+		t.Fatal(err)
+	}
+	if p := buf.String(); !strings.Contains(p, "sondeclim figures --store STORE --station XR002 --out DIR") || strings.Contains(p, "<details open>") {
+		t.Errorf("compact page does not point to the other figures or keeps its details open")
+	}
+
 	one, err := Build(ctx, db, Options{Station: "XR002", MinSoundings: 1})
 	if err != nil {
 		t.Fatal(err)

@@ -78,11 +78,70 @@ func (t *tables) fill(s *Section) {
 		return &queries.Table{}
 	}
 	s.Climatology = render(get(t.climatology), climatologyColumns)
-	s.Episodes = render(get(t.episodes), episodeColumns)
+	ep, none := withoutEmptyRules(get(t.episodes))
+	s.Episodes, s.NoEpisodes = render(ep, episodeColumns), strings.Join(none, ", ")
 	s.Persistence = render(get(t.persistence), persistenceColumns)
 	s.Afternoon = render(get(t.afternoon), afternoonColumns)
 	s.Trends = render(get(t.trends), trendColumns)
+	s.TrendsNote = trendsNote(get(t.trends))
 	s.QC = render(get(t.qc), qcColumns)
+}
+
+// withoutEmptyRules returns the episode rows of the rules that gave at
+// least one episode in some season, and the names (rule_words) of the
+// others, in the table's order.
+func withoutEmptyRules(t *queries.Table) (*queries.Table, []string) {
+	rule, n := slices.Index(t.Columns, "rule_words"), slices.Index(t.Columns, "n_episodes")
+	if rule < 0 || n < 0 {
+		return t, nil
+	}
+	total := map[string]int64{}
+	var order []string
+	for _, r := range t.Rows {
+		name := fmt.Sprint(r[rule])
+		if _, ok := total[name]; !ok {
+			order = append(order, name)
+		}
+		c, _ := r[n].(int64)
+		total[name] += c
+	}
+	out := &queries.Table{Columns: t.Columns}
+	for _, r := range t.Rows {
+		if total[fmt.Sprint(r[rule])] > 0 {
+			out.Rows = append(out.Rows, r)
+		}
+	}
+	var none []string
+	for _, name := range order {
+		if total[name] == 0 {
+			none = append(none, name)
+		}
+	}
+	return out, none
+}
+
+// trendsNote returns the sentence that replaces a station's trends table
+// when none of its rows has a slope to judge (every season and hour has
+// too few years), or "" when the table is worth showing.
+func trendsNote(t *queries.Table) string {
+	slope, years := slices.Index(t.Columns, "slope_per_decade"), slices.Index(t.Columns, "years")
+	if slope < 0 || years < 0 {
+		return ""
+	}
+	most := int64(0)
+	for _, r := range t.Rows {
+		if r[slope] != nil {
+			return ""
+		}
+		if y, _ := r[years].(int64); y > most {
+			most = y
+		}
+	}
+	words := "years of a season and hour meet"
+	if most == 1 {
+		words = "year of a season and hour meets"
+	}
+	return fmt.Sprintf("No trend is judged: at most %d %s the coverage rule; at least %d are wanted.", most, words, queries.DefaultMinTrendYears)
 }
 
 // ruleWords describes a built-in episode rule in words, with its

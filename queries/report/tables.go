@@ -2,6 +2,7 @@ package report
 
 import (
 	"fmt"
+	"html/template"
 	"math"
 	"slices"
 	"strconv"
@@ -17,9 +18,12 @@ type Table struct {
 	// two rows appears in the first only.
 	Head [][]Heading
 	Rows [][]string
-	// Class is each column's cell class: "text" (left-aligned words),
-	// "wrap" (words that may wrap, such as notes) or "" (numbers).
-	Class []string
+	// Align is the table's class attribute, which aligns its cells by
+	// column: "lN" left-aligns the words of column N (from 1), "wN" also
+	// lets them wrap (notes); other columns are numbers, right-aligned.
+	// One class on the table instead of one on every cell keeps a page
+	// of many stations small.
+	Align string
 }
 
 // Heading is one heading cell: words, the unit in brackets under them,
@@ -27,7 +31,7 @@ type Table struct {
 type Heading struct {
 	Text, Unit    string
 	Span, RowSpan int
-	Class         string // as the column's cells
+	Class         string // "text" or "wrap" as the column's cells, or ""
 }
 
 // column says how one column of a query result is shown: the heading in
@@ -41,21 +45,70 @@ type column struct {
 	show  func(v any) string // nil: by the column's unit suffix (cell)
 	wrap  bool               // text that may wrap (notes)
 	words bool               // words, not numbers: aligned left
+	// optional columns (notes) are left out when every cell is empty.
+	optional bool
 }
 
 // render turns the rows of t into a Table with the columns of spec;
-// columns t lacks show "–".
+// columns t lacks show "–", optional columns with no text are left out.
 func render(t *queries.Table, spec []column) Table {
-	out := Table{Class: make([]string, len(spec))}
-	idx := make([]int, len(spec))
+	cells := make([][]string, len(t.Rows))
+	for k := range cells {
+		cells[k] = make([]string, len(spec))
+	}
+	var kept []column
+	var keep []int
 	for i, c := range spec {
-		idx[i] = slices.Index(t.Columns, c.name)
+		idx := slices.Index(t.Columns, c.name)
+		empty := true
+		for k, r := range t.Rows {
+			var v any
+			if idx >= 0 {
+				v = r[idx]
+			}
+			if c.show != nil {
+				cells[k][i] = c.show(v)
+			} else {
+				cells[k][i] = cell(c.name, v)
+			}
+			empty = empty && cells[k][i] == ""
+		}
+		if !c.optional || !empty {
+			kept, keep = append(kept, c), append(keep, i)
+		}
+	}
+	out := Table{Head: headings(kept)}
+	var align []string
+	for i, c := range kept {
 		switch {
 		case c.wrap:
-			out.Class[i] = "wrap"
+			align = append(align, fmt.Sprintf("w%d", i+1))
 		case c.words:
-			out.Class[i] = "text"
+			align = append(align, fmt.Sprintf("l%d", i+1))
 		}
+	}
+	out.Align = strings.Join(align, " ")
+	for _, r := range cells {
+		row := make([]string, len(keep))
+		for j, i := range keep {
+			row[j] = r[i]
+		}
+		out.Rows = append(out.Rows, row)
+	}
+	return out
+}
+
+// headings returns the heading rows of the columns spec: one, or two
+// when some columns share a group heading.
+func headings(spec []column) [][]Heading {
+	class := func(c column) string {
+		switch {
+		case c.wrap:
+			return "wrap"
+		case c.words:
+			return "text"
+		}
+		return ""
 	}
 	grouped := slices.ContainsFunc(spec, func(c column) bool { return c.group != "" })
 	var top, second []Heading
@@ -66,7 +119,7 @@ func render(t *queries.Table, spec []column) Table {
 			if grouped {
 				rs = 2
 			}
-			top = append(top, Heading{Text: c.head, Unit: c.unit, Span: 1, RowSpan: rs, Class: out.Class[i]})
+			top = append(top, Heading{Text: c.head, Unit: c.unit, Span: 1, RowSpan: rs, Class: class(c)})
 			continue
 		}
 		j := i
@@ -77,27 +130,10 @@ func render(t *queries.Table, spec []column) Table {
 		top = append(top, Heading{Text: c.group, Span: j - i, RowSpan: 1})
 		i = j - 1
 	}
-	out.Head = [][]Heading{top}
 	if grouped {
-		out.Head = append(out.Head, second)
+		return [][]Heading{top, second}
 	}
-	for _, r := range t.Rows {
-		cells := make([]string, len(spec))
-		for i, c := range spec {
-			var v any
-			if idx[i] >= 0 {
-				v = r[idx[i]]
-			}
-			switch {
-			case c.show != nil:
-				cells[i] = c.show(v)
-			default:
-				cells[i] = cell(c.name, v)
-			}
-		}
-		out.Rows = append(out.Rows, cells)
-	}
-	return out
+	return [][]Heading{top}
 }
 
 // cell writes a value at the precision of its column's unit: heights
@@ -264,7 +300,7 @@ var (
 		{name: "sbi_frequency", group: "Surface-based inversion", head: "Frequency", unit: "%", show: percent},
 		{name: "sbi_median_strength_k", group: "Surface-based inversion", head: "Median strength", unit: "K"},
 		{name: "ventilation_index_p50_m2s", head: "Median ventilation index", unit: "m²/s"},
-		{name: "note", head: "Note", show: text, wrap: true},
+		{name: "note", head: "Note", show: text, wrap: true, optional: true},
 	}
 	episodeColumns = []column{
 		{name: "rule_words", head: "Rule", words: true},
@@ -289,7 +325,7 @@ var (
 		{name: "p_persists", head: "Probability", show: decimals(2)},
 		{name: "afternoon_mh_p50_m", head: "Median afternoon mixing height", unit: "m"},
 		{name: "n_in_episode", head: "Days in a persistent-inversion episode"},
-		{name: "note", head: "Note", show: text, wrap: true},
+		{name: "note", head: "Note", show: text, wrap: true, optional: true},
 	}
 	afternoonColumns = []column{
 		{name: "season_label", head: "Season", words: true},
@@ -300,14 +336,14 @@ var (
 		{name: "p_below_600m", group: "Probability of staying below", head: "600 m", show: decimals(2)},
 		{name: "p_below_1000m", group: "Probability of staying below", head: "1000 m", show: decimals(2)},
 		{name: "p_below_1500m", group: "Probability of staying below", head: "1500 m", show: decimals(2)},
-		{name: "note", head: "Note", show: text, wrap: true},
+		{name: "note", head: "Note", show: text, wrap: true, optional: true},
 	}
 	trendColumns = []column{
+		{name: "metric_words", head: "Quantity", words: true},
 		{name: "season_label", head: "Season", words: true},
 		{name: "nominal_hour", head: "Launch hour", unit: "UTC", show: hour},
-		{name: "metric_words", head: "Quantity", words: true},
 		{name: "years", head: "Years used"},
-		{name: "period", head: "Period", words: true},
+		{name: "period", head: "Period"},
 		{name: "median", head: "Median of yearly values", show: plain},
 		{name: "slope_per_decade", head: "Theil–Sen slope", unit: "per decade", show: plain},
 		{name: "mk_p", head: "Mann–Kendall p", show: decimals(2)},
@@ -345,6 +381,18 @@ var (
 	}
 )
 
+// alignCSS returns the style rules of the classes Table.Align uses,
+// for tables of up to 16 columns.
+func alignCSS() template.CSS {
+	var left, wrap []string
+	for i := 1; i <= 16; i++ {
+		left = append(left, fmt.Sprintf(".l%d td:nth-child(%d)", i, i))
+		wrap = append(wrap, fmt.Sprintf(".w%d td:nth-child(%d)", i, i))
+	}
+	return template.CSS(strings.Join(left, ", ") + " { text-align: left; }\n" +
+		strings.Join(wrap, ", ") + " { text-align: left; white-space: normal; min-width: 10em; }")
+}
+
 // percentOrLess writes a fraction as a whole percentage, "<1" for a
 // fraction above 0 that rounds to 0.
 func percentOrLess(v any) string {
@@ -358,9 +406,9 @@ func percentOrLess(v any) string {
 func sourceWords(v any) string {
 	switch fmt.Sprint(v) {
 	case "holzworth":
-		return "Holzworth (morning profile, maximum temperature)"
+		return "Holzworth"
 	case "later_sounding":
-		return "later sounding of the day"
+		return "later sounding"
 	}
 	return text(v)
 }
