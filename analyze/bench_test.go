@@ -1,8 +1,8 @@
 package analyze
 
 import (
+	"github.com/sondeclim/sondeclim/internal/benchcpu"
 	"math"
-	"syscall"
 	"testing"
 	"time"
 
@@ -88,7 +88,7 @@ func BenchmarkAnalyzeSterling(b *testing.B) {
 	}
 	cfg := DefaultConfig()
 	b.ReportAllocs()
-	cpu0 := cpuTime()
+	cpu0 := benchcpu.Used()
 	for b.Loop() {
 		for _, s := range ss {
 			if r := Analyze(s, cfg); r.Status == "" {
@@ -96,23 +96,5 @@ func BenchmarkAnalyzeSterling(b *testing.B) {
 			}
 		}
 	}
-	reportPerLevel(b, cpu0, levels)
-}
-
-// cpuTime returns the CPU time (user and system) the process has used.
-// On a loaded machine it measures the work better than the wall clock.
-func cpuTime() time.Duration {
-	var ru syscall.Rusage
-	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err != nil {
-		return 0
-	}
-	return time.Duration(ru.Utime.Nano() + ru.Stime.Nano())
-}
-
-// reportPerLevel reports the wall and CPU time per level of b's loop
-// (cpu0: cpuTime before it), over levels levels per iteration.
-func reportPerLevel(b *testing.B, cpu0 time.Duration, levels int) {
-	n := float64(b.N) * float64(levels)
-	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/n, "ns/level")
-	b.ReportMetric(float64((cpuTime()-cpu0).Nanoseconds())/n, "cpu-ns/level")
+	benchcpu.PerLevel(b, cpu0, levels)
 }

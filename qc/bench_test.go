@@ -1,9 +1,8 @@
 package qc
 
 import (
-	"syscall"
+	"github.com/sondeclim/sondeclim/internal/benchcpu"
 	"testing"
-	"time"
 )
 
 // BenchmarkCheckSterling runs every check on each sounding of the real
@@ -17,7 +16,7 @@ func BenchmarkCheckSterling(b *testing.B) {
 	}
 	cfg := DefaultConfig()
 	b.ReportAllocs()
-	cpu0 := cpuTime()
+	cpu0 := benchcpu.Used()
 	for b.Loop() {
 		for _, s := range ss {
 			if r := Check(s, cfg); r.Status == "" {
@@ -25,7 +24,7 @@ func BenchmarkCheckSterling(b *testing.B) {
 			}
 		}
 	}
-	reportPerLevel(b, cpu0, levels)
+	benchcpu.PerLevel(b, cpu0, levels)
 }
 
 // BenchmarkApplySterling applies each Sterling sounding's report, the
@@ -40,7 +39,7 @@ func BenchmarkApplySterling(b *testing.B) {
 		levels += len(s.Levels)
 	}
 	b.ReportAllocs()
-	cpu0 := cpuTime()
+	cpu0 := benchcpu.Used()
 	for b.Loop() {
 		for i, s := range ss {
 			if c := Apply(s, reps[i], false); len(c.Levels) != len(s.Levels) {
@@ -48,23 +47,5 @@ func BenchmarkApplySterling(b *testing.B) {
 			}
 		}
 	}
-	reportPerLevel(b, cpu0, levels)
-}
-
-// cpuTime returns the CPU time (user and system) the process has used.
-// On a loaded machine it measures the work better than the wall clock.
-func cpuTime() time.Duration {
-	var ru syscall.Rusage
-	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err != nil {
-		return 0
-	}
-	return time.Duration(ru.Utime.Nano() + ru.Stime.Nano())
-}
-
-// reportPerLevel reports the wall and CPU time per level of b's loop
-// (cpu0: cpuTime before it), over levels levels per iteration.
-func reportPerLevel(b *testing.B, cpu0 time.Duration, levels int) {
-	n := float64(b.N) * float64(levels)
-	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/n, "ns/level")
-	b.ReportMetric(float64((cpuTime()-cpu0).Nanoseconds())/n, "cpu-ns/level")
+	benchcpu.PerLevel(b, cpu0, levels)
 }

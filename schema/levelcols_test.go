@@ -4,6 +4,7 @@ import (
 	"archive/zip"
 	"bytes"
 	"errors"
+	"github.com/sondeclim/sondeclim/internal/benchcpu"
 	"io"
 	"os"
 	"path/filepath"
@@ -145,7 +146,7 @@ func benchLevels(b *testing.B, columns bool) {
 	}
 	path := filepath.Join(b.TempDir(), "levels.parquet")
 	ingestGC(b)
-	cpu := processCPU()
+	cpu := benchcpu.Used()
 	for b.Loop() {
 		var w interface {
 			Writer
@@ -168,6 +169,6 @@ func benchLevels(b *testing.B, columns bool) {
 			b.Fatal(err)
 		}
 	}
-	reportCPU(b, cpu)
+	benchcpu.PerOp(b, cpu)
 	b.ReportMetric(float64(n), "levels/op")
 }

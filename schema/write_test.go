@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"database/sql"
 	"fmt"
+	"github.com/sondeclim/sondeclim/internal/benchcpu"
 	"math"
 	"os"
 	"path/filepath"
@@ -386,13 +387,13 @@ func BenchmarkWriteLevels(b *testing.B) {
 			LatDispDeg: math.NaN(), LonDispDeg: math.NaN()}
 	}
 	path := filepath.Join(b.TempDir(), "levels", "part.parquet")
-	cpu := processCPU()
+	cpu := benchcpu.Used()
 	for b.Loop() {
 		if err := WriteFile(path, TableLevels, rows, false); err != nil {
 			b.Fatal(err)
 		}
 	}
-	reportCPU(b, cpu)
+	benchcpu.PerOp(b, cpu)
 	b.ReportMetric(float64(len(rows)*b.N)/b.Elapsed().Seconds(), "rows/s")
 }
 

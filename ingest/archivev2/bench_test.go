@@ -2,10 +2,9 @@ package archivev2
 
 import (
 	"bytes"
+	"github.com/sondeclim/sondeclim/internal/benchcpu"
 	"io"
-	"syscall"
 	"testing"
-	"time"
 )
 
 // sterlingLevels is the number of data records of the real Sterling 2016
@@ -19,7 +18,7 @@ func BenchmarkReadSterling(b *testing.B) {
 	text := sterlingBytes(b)
 	b.SetBytes(int64(len(text)))
 	b.ReportAllocs()
-	cpu0 := cpuTime()
+	cpu0 := benchcpu.Used()
 	for b.Loop() {
 		rd := NewReader(bytes.NewReader(text), "sterling", "")
 		n := 0
@@ -37,7 +36,7 @@ func BenchmarkReadSterling(b *testing.B) {
 			b.Fatalf("%d levels, want %d (PROVENANCE.md)", n, sterlingLevels)
 		}
 	}
-	reportPerLevel(b, cpu0, sterlingLevels)
+	benchcpu.PerLevel(b, cpu0, sterlingLevels)
 }
 
 // BenchmarkIndexSterling indexes the real Sterling 2016 file by
@@ -46,7 +45,7 @@ func BenchmarkIndexSterling(b *testing.B) {
 	text := sterlingBytes(b)
 	b.SetBytes(int64(len(text)))
 	b.ReportAllocs()
-	cpu0 := cpuTime()
+	cpu0 := benchcpu.Used()
 	for b.Loop() {
 		headers := 0
 		err := Index(bytes.NewReader(text), func(sg Segment) error {
@@ -60,23 +59,5 @@ func BenchmarkIndexSterling(b *testing.B) {
 			b.Fatal("no headers indexed")
 		}
 	}
-	reportPerLevel(b, cpu0, sterlingLevels)
-}
-
-// cpuTime returns the CPU time (user and system) the process has used.
-// On a loaded machine it measures the work better than the wall clock.
-func cpuTime() time.Duration {
-	var ru syscall.Rusage
-	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err != nil {
-		return 0
-	}
-	return time.Duration(ru.Utime.Nano() + ru.Stime.Nano())
-}
-
-// reportPerLevel reports the wall and CPU time per level of b's loop
-// (cpu0: cpuTime before it), over levels levels per iteration.
-func reportPerLevel(b *testing.B, cpu0 time.Duration, levels int) {
-	n := float64(b.N) * float64(levels)
-	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/n, "ns/level")
-	b.ReportMetric(float64((cpuTime()-cpu0).Nanoseconds())/n, "cpu-ns/level")
+	benchcpu.PerLevel(b, cpu0, sterlingLevels)
 }
