@@ -1,11 +1,11 @@
 package analyze
 
 import (
-	"github.com/sondeclim/sondeclim/internal/benchcpu"
 	"math"
 	"testing"
 	"time"
 
+	"github.com/sondeclim/sondeclim/internal/benchcpu"
 	"github.com/sondeclim/sondeclim/physics/thermo"
 	"github.com/sondeclim/sondeclim/sounding"
 )
@@ -82,10 +82,7 @@ func BenchmarkBulkStability100Levels(b *testing.B) {
 // level.
 func BenchmarkAnalyzeSterling(b *testing.B) {
 	ss := readSterling(b)
-	levels := 0
-	for _, s := range ss {
-		levels += len(s.Levels)
-	}
+	levels := benchcpu.Levels(ss)
 	cfg := DefaultConfig()
 	b.ReportAllocs()
 	cpu0 := benchcpu.Used()

@@ -1,8 +1,9 @@
 package qc
 
 import (
-	"github.com/sondeclim/sondeclim/internal/benchcpu"
 	"testing"
+
+	"github.com/sondeclim/sondeclim/internal/benchcpu"
 )
 
 // BenchmarkCheckSterling runs every check on each sounding of the real
@@ -10,10 +11,7 @@ import (
 // compares with the ingest's CPU time per level.
 func BenchmarkCheckSterling(b *testing.B) {
 	ss := sterling(b)
-	levels := 0
-	for _, s := range ss {
-		levels += len(s.Levels)
-	}
+	levels := benchcpu.Levels(ss)
 	cfg := DefaultConfig()
 	b.ReportAllocs()
 	cpu0 := benchcpu.Used()

@@ -4,7 +4,6 @@ import (
 	"archive/zip"
 	"bytes"
 	"errors"
-	"github.com/sondeclim/sondeclim/internal/benchcpu"
 	"io"
 	"os"
 	"path/filepath"
@@ -13,6 +12,7 @@ import (
 
 	"github.com/sondeclim/sondeclim/analyze"
 	"github.com/sondeclim/sondeclim/ingest/archivev2"
+	"github.com/sondeclim/sondeclim/internal/benchcpu"
 	"github.com/sondeclim/sondeclim/internal/realdata"
 	"github.com/sondeclim/sondeclim/qc"
 	"github.com/sondeclim/sondeclim/sounding"

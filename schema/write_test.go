@@ -4,7 +4,6 @@ import (
 	"bytes"
 	"database/sql"
 	"fmt"
-	"github.com/sondeclim/sondeclim/internal/benchcpu"
 	"math"
 	"os"
 	"path/filepath"
@@ -18,6 +17,7 @@ import (
 	"github.com/apache/arrow-go/v18/parquet/file"
 	"github.com/apache/arrow-go/v18/parquet/pqarrow"
 	_ "github.com/duckdb/duckdb-go/v2"
+	"github.com/sondeclim/sondeclim/internal/benchcpu"
 )
 
 func ptr[T any](v T) *T { return &v }

@@ -2,9 +2,10 @@ package archivev2
 
 import (
 	"bytes"
-	"github.com/sondeclim/sondeclim/internal/benchcpu"
 	"io"
 	"testing"
+
+	"github.com/sondeclim/sondeclim/internal/benchcpu"
 )
 
 // sterlingLevels is the number of data records of the real Sterling 2016

@@ -8,6 +8,8 @@ import (
 	"syscall"
 	"testing"
 	"time"
+
+	"github.com/sondeclim/sondeclim/sounding"
 )
 
 // Used returns the processor time (user and system) the process has used
@@ -33,4 +35,14 @@ func PerLevel(b *testing.B, start time.Duration, levels int) {
 // value) as the metric cpu-ns/op.
 func PerOp(b *testing.B, start time.Duration) {
 	b.ReportMetric(float64(Used()-start)/float64(b.N), "cpu-ns/op")
+}
+
+// Levels returns the number of levels in ss, the per-iteration count
+// PerLevel divides by when a benchmark handles every sounding of a file.
+func Levels(ss []*sounding.Sounding) int {
+	n := 0
+	for _, s := range ss {
+		n += len(s.Levels)
+	}
+	return n
 }
