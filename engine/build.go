@@ -20,6 +20,8 @@ import (
 	"golang.org/x/sync/semaphore"
 
 	"github.com/sondeclim/sondeclim/analyze"
+	"github.com/sondeclim/sondeclim/ingest"
+	"github.com/sondeclim/sondeclim/ingest/formats"
 	"github.com/sondeclim/sondeclim/qc"
 	"github.com/sondeclim/sondeclim/schema"
 	"github.com/sondeclim/sondeclim/schema/store"
@@ -201,6 +203,9 @@ func (r *run) ingest(files []string, old *store.Manifest, full bool, paramsText 
 		if err := r.addNeighbours(st, affected, next, missing, covered, results); err != nil {
 			return nil, err
 		}
+	}
+	if err := r.checkDailyMaxima(next, affected); err != nil {
+		return nil, err
 	}
 	// A station-year is built in memory: its staged bytes are read whole
 	// and decoded. One larger than the bound is refused (held as
@@ -610,7 +615,7 @@ func (r *run) analysePart(all, context []*sounding.Sounding, observed map[*sound
 		}
 	}
 	rows.Soundings = srows
-	rows.Afternoon = afternoonRows(results, r.analyseContext(context), r.opt.DailyMaxima, r.pairing)
+	rows.Afternoon = afternoonRows(results, r.analyseContext(context), r.opt.DailyMaxima.maxima(), r.pairing)
 	rows.Descents = r.analyseDescents(descents, observed)
 	r.stage("analysis", t0)
 	return rows
@@ -844,4 +849,69 @@ func (r *run) hold(k string, gone []string, results []readResult, next *store.Ma
 	r.skip(Skip{Where: from[0], Reason: "partition_held", Detail: fmt.Sprintf("partition %s is left as committed and %d sounding(s) read for it "+
 		"from %s are held back: rebuilding it needs %s, which cannot be read now. Restore it (or run with --prune-missing if it is gone); the next run reads them again",
 		k, held, strings.Join(from, ", "), strings.Join(gone, ", "))})
+}
+
+// checkDailyMaxima refuses a daily-maxima file that names a station (of
+// this shard) the run does not know: one with no partition in the store
+// or among this run's inputs, in no station list given and not in the
+// built-in list. Its maxima could match no sounding, most likely because
+// the id is mistyped or written in another scheme (a WMO number where the
+// soundings use the archive's id), and the afternoon heights would then
+// silently come from afternoon soundings instead. It runs after the
+// inputs are staged, before anything is built.
+func (r *run) checkDailyMaxima(next *store.Manifest, affected map[string]bool) error {
+	f := r.opt.DailyMaxima
+	if f == nil {
+		return nil
+	}
+	held := map[string]bool{}
+	for k := range affected {
+		held[stationOfKey(k)] = true
+	}
+	for k := range next.Partitions {
+		held[stationOfKey(k)] = true
+	}
+	builtin := formats.BuiltinStations()
+	var unknown []string
+	for id := range f.FirstLine {
+		if !r.opt.Shard.Owns(id) || held[id] {
+			continue
+		}
+		if _, ok := r.opt.Stations[id]; ok {
+			continue
+		}
+		if _, ok := builtin[id]; ok {
+			continue
+		}
+		unknown = append(unknown, id)
+	}
+	if len(unknown) == 0 {
+		return nil
+	}
+	slices.SortFunc(unknown, func(a, b string) int { return f.FirstLine[a] - f.FirstLine[b] })
+	ids := slices.Sorted(maps.Keys(held))
+	hold := "no soundings yet"
+	if len(ids) > 0 {
+		if len(ids) > 5 {
+			ids = append(ids[:5], "…")
+		}
+		hold = "soundings of " + strings.Join(ids, ", ")
+	}
+	more := ""
+	if len(unknown) > 1 {
+		more = fmt.Sprintf(" (and %d more unknown stations)", len(unknown)-1)
+	}
+	return &dailyMaximaError{fmt.Sprintf("daily maxima %s:%d: station %s is not known: no input, store partition or station list holds it%s; "+
+		"the store and inputs hold %s. Write station ids as the soundings do, or leave that station out",
+		f.Path, f.FirstLine[unknown[0]], ingest.Quote(unknown[0]), more, hold)}
+}
+
+// stationOfKey returns the station of a partition key "STATION/YEAR"
+// (store.PartitionKey).
+func stationOfKey(k string) string {
+	station, _, err := store.SplitPartitionKey(k)
+	if err != nil {
+		return k
+	}
+	return station
 }

@@ -1,11 +1,15 @@
 package engine
 
 import (
+	"bytes"
+	"encoding/csv"
+	"errors"
 	"fmt"
 	"os"
 	"strings"
 
 	"github.com/sondeclim/sondeclim/analyze"
+	"github.com/sondeclim/sondeclim/ingest"
 	"github.com/sondeclim/sondeclim/ingest/dailymax"
 )
 
@@ -13,24 +17,85 @@ import (
 // inputs: the daily maximum temperatures (--daily-max) and a ventilation
 // category table (--ventilation-table).
 
+// ErrDailyMaxima marks an error in the daily-maxima file (--daily-max):
+// absent, unreadable or malformed, or naming a station the run does not
+// know. It is the caller's input, not a failure of the run; the command
+// answers it as a usage error.
+var ErrDailyMaxima = errors.New("bad daily maxima")
+
+// dailyMaximaError is an error about the daily-maxima file; it is
+// ErrDailyMaxima and reads as its message alone.
+type dailyMaximaError struct{ msg string }
+
+func (e *dailyMaximaError) Error() string        { return e.msg }
+func (e *dailyMaximaError) Is(target error) bool { return target == ErrDailyMaxima }
+
+// DailyMaximaFile is a file of daily maximum temperatures as read by
+// LoadDailyMaxima.
+type DailyMaximaFile struct {
+	Path   string
+	Maxima analyze.DailyMaxima
+	// FirstLine maps a station id to the line of its first record (with
+	// or without a value), so that an error about the station names it.
+	FirstLine map[string]int
+}
+
+// maxima returns the lookup of f, nil for a nil f.
+func (f *DailyMaximaFile) maxima() analyze.DailyMaxima {
+	if f == nil {
+		return nil
+	}
+	return f.Maxima
+}
+
 // LoadDailyMaxima reads a CSV file of daily maximum temperatures
 // (ingest/dailymax: station_id,date,tmax_c) into the pairing's lookup.
-// Errors name the file (and the line, dailymax.Read).
-func LoadDailyMaxima(path string) (analyze.DailyMaxima, error) {
-	f, err := os.Open(path)
+// Errors wrap ErrDailyMaxima and name the file and, for a malformed
+// record, the line: "daily maxima FILE:LINE: reason".
+func LoadDailyMaxima(path string) (*DailyMaximaFile, error) {
+	b, err := os.ReadFile(path)
 	if err != nil {
-		return nil, err
+		return nil, &dailyMaximaError{fmt.Sprintf("daily maxima %s: cannot be read: %v", path, err)}
 	}
-	defer f.Close()
-	recs, err := dailymax.Read(f)
+	recs, err := dailymax.Read(bytes.NewReader(b))
 	if err != nil {
-		return nil, fmt.Errorf("daily maxima %s: %w", path, err)
+		return nil, &dailyMaximaError{placeError("daily maxima", path, err)}
 	}
-	m := analyze.DailyMaxima{}
+	f := &DailyMaximaFile{Path: path, Maxima: analyze.DailyMaxima{}, FirstLine: map[string]int{}}
 	for _, r := range recs {
-		m[analyze.DayKey{StationID: r.StationID, Date: r.Date}] = r.TmaxK
+		f.Maxima[analyze.DayKey{StationID: r.StationID, Date: r.Date}] = r.TmaxK
+		f.FirstLine[r.StationID] = 0
 	}
-	return m, nil
+	// The records carry no line; find each station's first one the way
+	// the reader found it (the file has just been read without error).
+	cr := csv.NewReader(ingest.LineEnds(bytes.NewReader(b)))
+	cr.FieldsPerRecord = 3
+	cr.TrimLeadingSpace = true
+	for {
+		rec, err := cr.Read()
+		if err != nil {
+			break
+		}
+		if n, ok := f.FirstLine[rec[0]]; ok && n == 0 {
+			f.FirstLine[rec[0]], _ = cr.FieldPos(0)
+		}
+	}
+	return f, nil
+}
+
+// placeError writes a reader's error about a file as "WHAT FILE:LINE:
+// reason" when the reader named a line ("line N: reason", or the CSV
+// reader's "record on line N: ..."), else "WHAT FILE: reason".
+func placeError(what, path string, err error) string {
+	var pe *csv.ParseError
+	if errors.As(err, &pe) {
+		return fmt.Sprintf("%s %s:%d: %v", what, path, pe.Line, pe.Err)
+	}
+	msg := strings.TrimPrefix(err.Error(), what+": ")
+	if rest, ok := strings.CutPrefix(msg, "line "); ok {
+		return fmt.Sprintf("%s %s:%s", what, path, rest)
+	}
+	return fmt.Sprintf("%s %s: %s", what, path, msg)
 }
 
 // VentilationTableNames lists the built-in ventilation tables, "a, b".

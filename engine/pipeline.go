@@ -103,9 +103,10 @@ type Options struct {
 	// values are never used).
 	UseSuspect bool
 	// DailyMaxima supplies daily maximum temperatures for the afternoon
-	// (Holzworth) mixing height; nil uses the afternoon soundings' surface
-	// temperatures only.
-	DailyMaxima analyze.DailyMaxima
+	// (Holzworth) mixing height (LoadDailyMaxima); nil uses the afternoon
+	// soundings' surface temperatures only. A station of the file that the
+	// run does not know stops the run (checkDailyMaxima).
+	DailyMaxima *DailyMaximaFile
 	// Pairing sets the local-time windows of the afternoon pairing; nil
 	// means analyze.DefaultPairingConfig(). It is one of the analysis
 	// parameters: a change rebuilds every partition.
@@ -279,7 +280,7 @@ func Run(ctx context.Context, storeDir string, paths []string, opt Options) (*Su
 		UseSuspect        bool
 		DailyMaxima       string
 		Pairing           analyze.PairingConfig
-	}{store.Version, DerivationVersion, r.cfg, r.qcCfg, opt.UseSuspect, maximaDigest(opt.DailyMaxima), r.pairing})
+	}{store.Version, DerivationVersion, r.cfg, r.qcCfg, opt.UseSuspect, maximaDigest(opt.DailyMaxima.maxima()), r.pairing})
 	if err != nil {
 		return nil, fmt.Errorf("encode parameters: %w", err)
 	}

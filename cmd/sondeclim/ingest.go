@@ -3,6 +3,7 @@ package main
 import (
 	"context"
 	"encoding/json"
+	"errors"
 	"fmt"
 	"log/slog"
 	"os"
@@ -82,7 +83,7 @@ error; 3 done, but some input was skipped (data lost).`,
 	verify := fs.Bool("verify", false, "check the SHA-256 of every store file the run would leave alone (always: presence and size) and rebuild damaged partitions")
 	wait := fs.Bool("wait", false, "wait for another ingest into the same store to finish instead of failing")
 	shard := fs.String("shard", "", "write only the stations of shard `K/N` (stations are assigned by a hash of their id)")
-	dailyMax := fs.String("daily-max", "", "CSV `file` of daily maximum temperatures (station_id,date,tmax_c; date local YYYY-MM-DD) for the afternoon (Holzworth) mixing height; without it, the same day's afternoon sounding is used")
+	dailyMax := fs.String("daily-max", "", "CSV `file` of daily maximum temperatures (station_id,date,tmax_c; date local YYYY-MM-DD) for the afternoon (Holzworth) mixing height; without it, the same day's afternoon sounding is used. Station ids as in the soundings: a station the run knows nowhere (no soundings, no station list) is refused")
 	ventTable := fs.String("ventilation-table", analyze.GenericVentilationTable().Name, "ventilation category `table`: a built-in name ("+engine.VentilationTableNames()+") or a table file (format in the README, \"Ventilation categories\"); part of the analysis parameters, so a change rebuilds the store")
 	useSuspect := fs.Bool("use-suspect", false, "let the analysis use values quality control flags as suspect (bad values are never used)")
 	cpuProfile := fs.String("cpuprofile", "", "write a CPU profile to `file` (for performance work: go tool pprof FILE)")
@@ -114,8 +115,10 @@ error; 3 done, but some input was skipped (data lost).`,
 	}
 	opt := engine.Options{Workers: *workers, Format: *format, Log: log, Shard: sh, Full: *full, Verify: *verify, PruneMissing: *prune, InputBudget: *maxInput, RunBudget: *maxRun, MaxPartitionBytes: *maxPart, Wait: *wait, UseSuspect: *useSuspect}
 	if *dailyMax != "" {
+		// A maxima file that cannot be used is the caller's input, like a
+		// bad --ventilation-table: a usage error naming the file and line.
 		if opt.DailyMaxima, err = engine.LoadDailyMaxima(*dailyMax); err != nil {
-			return fmt.Errorf("ingest: %w", err)
+			return fmt.Errorf("ingest: --daily-max: %v: %w", err, errUsage)
 		}
 	}
 	if *ventTable != analyze.GenericVentilationTable().Name {
@@ -153,6 +156,9 @@ error; 3 done, but some input was skipped (data lost).`,
 	}
 	tuneGC()
 	sum, err := engine.Run(ctx, *storeDir, fs.Args(), opt)
+	if errors.Is(err, engine.ErrDailyMaxima) {
+		err = fmt.Errorf("--daily-max: %v: %w", err, errUsage) // a station of the file the run does not know
+	}
 	if err != nil {
 		if *summaryJSON != "" {
 			if werr := writeSummaryJSON(*summaryJSON, nil, err); werr != nil {
@@ -185,6 +191,8 @@ func writeSummaryJSON(path string, s *engine.Summary, runErr error) error {
 		Summary  *engine.Summary `json:"summary,omitempty"`
 	}{OK: runErr == nil, Summary: s}
 	switch {
+	case errors.Is(runErr, errUsage):
+		v.ExitCode, v.Error = exitUsage, runErr.Error()
 	case runErr != nil:
 		v.ExitCode, v.Error = exitFailure, runErr.Error()
 	case len(s.Skipped) > 0:

@@ -403,7 +403,7 @@ func TestDailyMaxima(t *testing.T) {
 		t.Errorf("afternoon rows from the daily maxima:\n%s", out)
 	}
 	code, _, errs = runCmd(t, "ingest", "--store", s, "--daily-max", filepath.Join(t.TempDir(), "absent.csv"), in)
-	if code != exitFailure || !strings.Contains(errs, "absent.csv") {
+	if code != exitUsage || !strings.Contains(errs, "absent.csv") {
 		t.Errorf("missing maxima file: exit %d, %q", code, errs)
 	}
 }
