@@ -2,6 +2,7 @@ package qc
 
 import (
 	"math"
+	"slices"
 
 	"github.com/sondeclim/sondeclim/physics/thermo"
 	"github.com/sondeclim/sondeclim/sounding"
@@ -147,16 +148,18 @@ func (st *state) readingTol(l *layer, t []float64) float64 {
 //   - A failing layer that no pattern explains makes one value suspect,
 //     chosen from which neighbouring layers pass (see singleLayer).
 func (st *state) hydrostatic() {
-	var anchors []int
+	anchors := st.sc.idx[:0]
 	for i := range st.p {
 		if !math.IsNaN(st.p[i]) && !math.IsNaN(st.z[i]) {
 			anchors = append(anchors, i)
 		}
 	}
+	st.sc.idx = anchors
 	if len(anchors) < 2 {
 		return
 	}
-	layers := make([]layer, len(anchors)-1)
+	layers := slices.Grow(st.sc.layers[:0], len(anchors)-1)[:len(anchors)-1]
+	st.sc.layers = layers
 	for j := range layers {
 		layers[j] = layer{a: anchors[j], b: anchors[j+1]}
 		st.evaluate(&layers[j], st.t, st.td)
@@ -279,8 +282,9 @@ func (st *state) signFlip(k int, lo, hi *layer) (float64, bool) {
 	if outside(flipped, st.cfg.MinTemperatureK, st.cfg.MaxTemperatureK) {
 		return nan, false
 	}
-	t := append([]float64(nil), st.t...)
-	td := append([]float64(nil), st.td...)
+	t := append(st.sc.t[:0], st.t...)
+	td := append(st.sc.td[:0], st.td...)
+	st.sc.t, st.sc.td = t, td
 	t[k] = flipped
 	if !math.IsNaN(st.dpd[k]) {
 		td[k] = flipped - st.dpd[k]

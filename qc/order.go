@@ -2,6 +2,7 @@ package qc
 
 import (
 	"math"
+	"slices"
 	"sort"
 
 	"github.com/sondeclim/sondeclim/sounding"
@@ -12,11 +13,11 @@ import (
 // increasing subsequence of key(x) (patience method, O(n log n)). Of
 // equally long subsequences it keeps the one that ends on the smallest
 // keys, so for two adjacent values in the wrong order the earlier one is
-// left out.
-func longestRun(idx []int, key func(i int) float64) []bool {
+// left out. The mask lives in sc (sc.keep) until the next call.
+func longestRun(sc *scratch, idx []int, key func(i int) float64) []bool {
 	n := len(idx)
-	tails := make([]int, 0, n) // positions in idx of the smallest tail of each length
-	prev := make([]int, n)
+	tails := sc.tails[:0] // positions in idx of the smallest tail of each length
+	prev := slices.Grow(sc.prev[:0], n)[:n]
 	for pos, i := range idx {
 		k := key(i)
 		// Tails' keys increase, so a key above the last one extends the
@@ -36,7 +37,10 @@ func longestRun(idx []int, key func(i int) float64) []bool {
 			tails[l] = pos
 		}
 	}
-	keep := make([]bool, n)
+	sc.tails, sc.prev = tails, prev
+	keep := slices.Grow(sc.keep[:0], n)[:n]
+	clear(keep)
+	sc.keep = keep
 	if len(tails) == 0 {
 		return keep
 	}
@@ -53,13 +57,14 @@ func longestRun(idx []int, key func(i int) float64) []bool {
 // aligned with the source), so an out-of-order level is dropped even when
 // its height shows it only changed places; the message says so.
 func (st *state) pressureOrder() {
-	var idx []int
+	idx := st.sc.idx[:0]
 	for i, p := range st.p {
 		if !math.IsNaN(p) {
 			idx = append(idx, i)
 		}
 	}
-	keep := longestRun(idx, func(i int) float64 { return -st.p[i] })
+	st.sc.idx = idx
+	keep := longestRun(st.sc, idx, func(i int) float64 { return -st.p[i] })
 	last := -1 // previous kept level
 	for pos, i := range idx {
 		if keep[pos] {
@@ -128,7 +133,7 @@ func sameLevel(a, b *sounding.Level) bool {
 // reported heights are rounded to whole metres and closely spaced levels
 // can share one.
 func (st *state) heightOrder() {
-	var withP, withoutP []int
+	withP, withoutP := st.sc.idx[:0], st.sc.idx2[:0]
 	for i, z := range st.z {
 		switch {
 		case math.IsNaN(z):
@@ -138,6 +143,7 @@ func (st *state) heightOrder() {
 			withP = append(withP, i)
 		}
 	}
+	st.sc.idx, st.sc.idx2 = withP, withoutP
 	st.heightRun(withP)
 	st.heightRun(withoutP)
 }
@@ -146,7 +152,7 @@ func (st *state) heightOrder() {
 func (st *state) heightRun(idx []int) {
 	// Non-decreasing: make equal heights strictly increasing by a tiny
 	// tie-breaker on the position (heights are whole or tenth metres).
-	keep := longestRun(idx, func(i int) float64 { return st.z[i] + 1e-6*float64(i)/float64(len(st.z)+1) })
+	keep := longestRun(st.sc, idx, func(i int) float64 { return st.z[i] + 1e-6*float64(i)/float64(len(st.z)+1) })
 	for pos, i := range idx {
 		if !keep[pos] {
 			st.flag(i, sounding.VarHeight, Bad, CheckHeightOrder, st.z[i], nan,

@@ -1,8 +1,10 @@
 package qc
 
 import (
-	"github.com/sondeclim/sondeclim/physics/sun"
 	"math"
+	"slices"
+
+	"github.com/sondeclim/sondeclim/physics/sun"
 
 	"github.com/sondeclim/sondeclim/physics/thermo"
 	"github.com/sondeclim/sondeclim/sounding"
@@ -10,14 +12,16 @@ import (
 
 // thermoLevels returns the indices of the levels with a usable pressure and
 // temperature, in source order (pressures strictly decreasing after
-// pressureOrder).
+// pressureOrder). The list lives in the scratch (sc.idx) until the next
+// check that walks levels.
 func (st *state) thermoLevels() []int {
-	var idx []int
+	idx := st.sc.idx[:0]
 	for i := range st.p {
 		if !math.IsNaN(st.p[i]) && !math.IsNaN(st.t[i]) {
 			idx = append(idx, i)
 		}
 	}
+	st.sc.idx = idx
 	return idx
 }
 
@@ -44,9 +48,12 @@ func (st *state) spikes() {
 
 // heightsAGL returns hypsometric heights above the lowest level of idx, in
 // m, for the levels of idx, plus the height of that lowest level above the
-// station (0 when unknown).
+// station (0 when unknown). The heights live in the scratch (sc.z) until
+// the next call.
 func (st *state) heightsAGL(idx []int) []float64 {
-	z := make([]float64, len(idx))
+	z := slices.Grow(st.sc.z[:0], len(idx))[:len(idx)]
+	clear(z)
+	st.sc.z = z
 	if len(idx) == 0 {
 		return z
 	}
@@ -198,7 +205,7 @@ func (st *state) usableThermo(i int) bool {
 // insufficient:few_low_levels or insufficient:shallow.
 func (st *state) coverage() {
 	c := st.cfg
-	var idx []int
+	idx := st.sc.idx[:0]
 	low := 0
 	for i := range st.s.Levels {
 		if st.usableThermo(i) {
@@ -208,6 +215,7 @@ func (st *state) coverage() {
 			}
 		}
 	}
+	st.sc.idx = idx
 	if low < c.CoverageMinLevels {
 		st.flag(-1, AllVars, Suspect, CheckCoverage, nan, nan,
 			"%d level(s) with pressure and temperature at or below %.0f hPa, %d needed",
