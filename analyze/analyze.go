@@ -144,8 +144,21 @@ type Result struct {
 // lifted from the surface level's temperature plus Parcel.ExcessK at the
 // surface pressure.
 func Analyze(s *sounding.Sounding, cfg Config) Result {
+	return analyze(s, cfg, nil)
+}
+
+// analyze is Analyze, with the working memory and the configuration's
+// labels of a when a is not nil.
+func analyze(s *sounding.Sounding, cfg Config, a *Analyzer) Result {
 	nan := math.NaN()
-	r := Result{Status: StatusOK, ConstantSet: cfg.Constants.ID(), SatVap: cfg.SatVap.String(),
+	var sc *scratch
+	var constantSet, satVap, heatRef string
+	if a != nil {
+		sc, constantSet, satVap, heatRef = &a.sc, a.constantSet, a.satVap, a.heatRef
+	} else {
+		constantSet, satVap, heatRef = cfg.Constants.ID(), cfg.SatVap.String(), cfg.HeatDeficit.Label()
+	}
+	r := Result{Status: StatusOK, ConstantSet: constantSet, SatVap: satVap,
 		SurfaceIndex: -1, CeilingAGLM: nan, LowestLevelAGLM: nan, SurfacePressurePa: nan,
 		SBI: noInversion(), MixedLayer: noMixedLayer(),
 		Parcel:          Parcel{Status: MixingHeightUndefined, HeightAGLM: nan, Theta0K: nan},
@@ -156,7 +169,7 @@ func Analyze(s *sounding.Sounding, cfg Config) Result {
 			TransportWind: cfg.Ventilation.TransportWind, TransportWindMS: nan, IndexM2S: nan, IndexKtFt: nan,
 			Table: cfg.Ventilation.Table.Name},
 		Profile:        ParcelProfile{SurfacePressurePa: nan, SurfaceTemperatureK: nan, CeilingAGLM: nan},
-		HeatDeficit:    HeatDeficitResult{Reference: cfg.HeatDeficit.Label(), TopAGLM: nan, JPerM2: nan},
+		HeatDeficit:    HeatDeficitResult{Reference: heatRef, TopAGLM: nan, JPerM2: nan},
 		StableFraction: nan,
 	}
 	r.MixingHeights = make([]MixingHeight, len(methods))
@@ -178,12 +191,12 @@ func Analyze(s *sounding.Sounding, cfg Config) Result {
 		r.Status = StatusNoLevels
 		return r
 	}
-	p, t := r.levelValues(s, cfg)
-	wp := r.buildWindProfile(s)
+	p, t := r.levelValues(s, cfg, sc)
+	wp := r.buildWindProfile(s, sc)
 	if len(wp.z) > 0 && wp.z[0] <= cfg.MaxSurfaceGapM {
 		r.SurfaceWindMS = math.Hypot(wp.u[0], wp.v[0])
 	}
-	pr := r.buildProfile(s, p, t, wp)
+	pr := r.buildProfile(s, p, t, wp, sc)
 	if len(pr.idx) == 0 {
 		r.Status = StatusNoThermoLevels
 		return r
@@ -210,9 +223,9 @@ func Analyze(s *sounding.Sounding, cfg Config) Result {
 	r.Profile = ParcelProfile{SurfacePressurePa: pr.p[0], SurfaceTemperatureK: pr.t[0], CeilingAGLM: zc,
 		Kappa: cfg.Constants.Kappa, P0Pa: cfg.Constants.P0Pa, HeightAGLM: pr.z, ThetaK: pr.theta}
 
-	r.bulkStability(pr, cfg)
+	r.bulkStability(pr, cfg, heatRef != "")
 
-	spans := findInversions(pr.z, pr.t, n, cfg.Inversion)
+	spans := findInversionsIn(sc.layerSpans(n), pr.z, pr.t, n, cfg.Inversion, sc)
 	mlBase := 0
 	if len(spans) > 0 && spans[0].base == 0 {
 		mlBase = spans[0].top
@@ -225,18 +238,22 @@ func Analyze(s *sounding.Sounding, cfg Config) Result {
 	c := cfg.Constants
 	r.Parcel.Theta0K = thermo.PotentialTemperature(pr.t[0]+cfg.Parcel.ExcessK, pr.p[0], c.Kappa, c.P0Pa)
 	r.Parcel.HeightAGLM, r.Parcel.Status = ParcelMixingHeight(pr.z, pr.theta, r.Parcel.Theta0K, zc)
-	r.mixingHeights(pr, n, cfg)
+	var in *methodInput
+	if a != nil {
+		in = &a.in
+	}
+	r.mixingHeights(pr, n, cfg, in, sc)
 	r.ventilation(wp, cfg)
 	return r
 }
 
 // bulkStability fills HeatDeficit, StableFraction and DeepStable from the
 // whole thermodynamic profile (not limited by the search ceiling).
-func (r *Result) bulkStability(pr profile, cfg Config) {
+func (r *Result) bulkStability(pr profile, cfg Config, labelled bool) {
 	c := cfg.Constants
 	i := pr.idx[0]
 	ground := r.HeightM[i] - r.HeightAGLM[i]
-	top := cfg.HeatDeficit.TopAGL(pr.z, pr.p, ground)
+	top := cfg.HeatDeficit.topAGL(pr.z, pr.p, ground, labelled)
 	r.HeatDeficit.TopAGLM = top
 	r.HeatDeficit.JPerM2 = HeatDeficit(pr.z, pr.p, pr.t, pr.theta, top, c.Cpd, c.Rd)
 	sl := cfg.StableLayer
@@ -274,12 +291,12 @@ func (r *Result) classifyInversions(pr profile, spans []layerSpan, n int, cfg Co
 
 // levelValues fills the per-level slices and returns the levels' pressures
 // and temperatures (Inf treated as missing).
-func (r *Result) levelValues(s *sounding.Sounding, cfg Config) (p, t []float64) {
+func (r *Result) levelValues(s *sounding.Sounding, cfg Config, sc *scratch) (p, t []float64) {
 	n := len(s.Levels)
 	c := cfg.Constants
-	buf := make([]float64, 6*n)
-	r.HeightAGLM, r.ThetaK, r.ThetaVK, r.MixingRatioKgKg = buf[:n], buf[n:2*n], buf[2*n:3*n], buf[3*n:4*n]
-	p, t = buf[4*n:5*n], buf[5*n:]
+	buf := make([]float64, 4*n)
+	r.HeightAGLM, r.ThetaK, r.ThetaVK, r.MixingRatioKgKg = buf[:n:n], buf[n:2*n:2*n], buf[2*n:3*n:3*n], buf[3*n:]
+	p, t = sc.floats(n), sc.floats(n)
 	for i, l := range s.Levels {
 		p[i], t[i] = finite(l.PressurePa), finite(l.TemperatureK)
 		th := thermo.PotentialTemperature(t[i], p[i], c.Kappa, c.P0Pa)
@@ -287,7 +304,7 @@ func (r *Result) levelValues(s *sounding.Sounding, cfg Config) (p, t []float64) 
 		r.ThetaK[i], r.MixingRatioKgKg[i] = th, w
 		r.ThetaVK[i] = thermo.VirtualPotentialTemperature(th, w, c.Epsilon)
 	}
-	h := fillHeights(s.Levels, s.ElevationM, c, cfg.SatVap, r.MixingRatioKgKg)
+	h := fillHeights(s.Levels, s.ElevationM, c, cfg.SatVap, r.MixingRatioKgKg, sc)
 	r.HeightM, r.HeightDerived, r.HeightAnchors, r.StandardAnchor = h.HeightM, h.Derived, h.Anchors, h.StandardAnchor
 	ground := s.ElevationM
 	if math.IsNaN(ground) || h.StandardAnchor {

@@ -78,17 +78,17 @@ func BenchmarkBulkStability100Levels(b *testing.B) {
 
 // BenchmarkAnalyzeSterling analyses every sounding of the real Sterling
 // 2016 file (PROVENANCE.md; about 198 levels each, as read, without
-// quality control); ns/level compares with the ingest's CPU time per
-// level.
+// quality control) with one Analyzer, as an ingest worker does; ns/level
+// compares with the ingest's CPU time per level.
 func BenchmarkAnalyzeSterling(b *testing.B) {
 	ss := readSterling(b)
 	levels := benchcpu.Levels(ss)
-	cfg := DefaultConfig()
+	a := NewAnalyzer(DefaultConfig())
 	b.ReportAllocs()
 	cpu0 := benchcpu.Used()
 	for b.Loop() {
 		for _, s := range ss {
-			if r := Analyze(s, cfg); r.Status == "" {
+			if r := a.Analyze(s); r.Status == "" {
 				b.Fatal("no status")
 			}
 		}

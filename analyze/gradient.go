@@ -11,12 +11,12 @@ type grid struct{ p, z, theta, speed []float64 }
 // … down to the highest searched level, interpolating z, θ and the wind
 // components linearly in ln p (speed from the interpolated components; NaN
 // where a bracketing wind is missing).
-func (pr profile) grid(n int, stepPa float64) grid {
+func (pr profile) grid(n int, stepPa float64, sc *scratch) grid {
 	if n < 2 || !(stepPa > 0) {
 		return grid{}
 	}
 	m := int((pr.p[0]-pr.p[n-1])/stepPa) + 1
-	buf := make([]float64, 4*m)
+	buf := sc.floats(4 * m)
 	g := grid{p: buf[:m], z: buf[m : 2*m], theta: buf[2*m : 3*m], speed: buf[3*m:]}
 	k := 1
 	denK, den := 0, 0.0 // ln(p[k−1]/p[k]) of the bracket denK, computed once per bracket

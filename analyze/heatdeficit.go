@@ -60,7 +60,12 @@ func (c HeatDeficitConfig) Label() string {
 // unknown ground for a sea-level reference, pressure level outside the
 // profile).
 func (c HeatDeficitConfig) TopAGL(zAGLM, pPa []float64, groundMSLM float64) float64 {
-	if c.Label() == "" {
+	return c.topAGL(zAGLM, pPa, groundMSLM, c.Label() != "")
+}
+
+// topAGL is TopAGL, told whether c has a Label (is valid).
+func (c HeatDeficitConfig) topAGL(zAGLM, pPa []float64, groundMSLM float64, labelled bool) float64 {
+	if !labelled {
 		return math.NaN()
 	}
 	switch c.Reference {

@@ -65,18 +65,18 @@ type Heights struct {
 // reported. Exact duplicate pressures get the same height. It never
 // panics; an empty input gives empty slices and StartIndex −1.
 func FillHeights(levels []sounding.Level, elevationM float64, c thermo.Constants, f thermo.SatVapFormula) Heights {
-	return fillHeights(levels, elevationM, c, f, nil)
+	return fillHeights(levels, elevationM, c, f, nil, nil)
 }
 
 // fillHeights is FillHeights with the levels' mixing ratios w in kg/kg
 // (indexed like levels, as levelValues computes them from the finite
 // dewpoint and pressure) when the caller has them, so that the
 // saturation vapour pressure of each level is computed once; nil: they
-// are computed here.
-func fillHeights(levels []sounding.Level, elevationM float64, c thermo.Constants, f thermo.SatVapFormula, w []float64) Heights {
+// are computed here; its working slices come from sc.
+func fillHeights(levels []sounding.Level, elevationM float64, c thermo.Constants, f thermo.SatVapFormula, w []float64, sc *scratch) Heights {
 	n := len(levels)
 	h := Heights{HeightM: make([]float64, n), Derived: make([]bool, n), StartIndex: -1}
-	ord := make([]int, 0, n)
+	ord := sc.ints(n)
 	for i, l := range levels {
 		h.HeightM[i] = l.HeightM
 		if math.IsInf(l.HeightM, 0) {
@@ -92,7 +92,7 @@ func fillHeights(levels []sounding.Level, elevationM float64, c thermo.Constants
 	if !slices.IsSortedFunc(ord, func(a, b int) int { return cmp.Compare(levels[b].PressurePa, levels[a].PressurePa) }) {
 		sort.SliceStable(ord, func(a, b int) bool { return levels[ord[a]].PressurePa > levels[ord[b]].PressurePa })
 	}
-	tv := virtualTemperatures(levels, ord, c, f, w)
+	tv := virtualTemperatures(sc.floats(len(ord)), levels, ord, c, f, w)
 
 	if j0 := ord[0]; levels[j0].Kind == sounding.KindSurface && math.IsNaN(h.HeightM[j0]) && !math.IsNaN(elevationM) {
 		h.HeightM[j0], h.Derived[j0] = elevationM, true
@@ -118,6 +118,15 @@ func fillHeights(levels []sounding.Level, elevationM float64, c thermo.Constants
 		return h
 	}
 	h.StartIndex = ord[start]
+	anchors := 0 // the levels that will re-anchor: a usable Tv and a reported height
+	for pos, j := range ord {
+		if pos != start && !math.IsNaN(tv[pos]) && !math.IsNaN(h.HeightM[j]) {
+			anchors++
+		}
+	}
+	if anchors > 0 {
+		h.Anchors = make([]HeightAnchor, 0, anchors)
+	}
 	h.integrate(levels, ord, tv, start, +1, c)
 	h.integrate(levels, ord, tv, start, -1, c)
 	return h
@@ -145,9 +154,9 @@ func (h *Heights) integrate(levels []sounding.Level, ord []int, tv []float64, st
 
 // virtualTemperatures returns Tv in K for each position of ord, from T and
 // the dewpoint (Tv = T when the dewpoint is missing), interpolated in ln p
-// for levels without temperature, NaN where not bracketed.
-func virtualTemperatures(levels []sounding.Level, ord []int, c thermo.Constants, f thermo.SatVapFormula, w []float64) []float64 {
-	tv := make([]float64, len(ord))
+// for levels without temperature, NaN where not bracketed, written into tv
+// (as long as ord).
+func virtualTemperatures(tv []float64, levels []sounding.Level, ord []int, c thermo.Constants, f thermo.SatVapFormula, w []float64) []float64 {
 	for pos, j := range ord {
 		l := &levels[j]
 		if w == nil || math.IsInf(l.DewpointK, 0) {

@@ -97,7 +97,12 @@ type layerSpan struct{ base, top int }
 // MinDepthM, and MinLevelsFine in finely resolved profiles; see
 // InversionConfig). NaN temperatures break runs.
 func findInversions(z, t []float64, n int, cfg InversionConfig) []layerSpan {
-	var runs []layerSpan
+	return findInversionsIn(nil, z, t, n, cfg, nil)
+}
+
+// findInversionsIn is findInversions, appending the layers to runs (empty)
+// and taking its working slices from sc.
+func findInversionsIn(runs []layerSpan, z, t []float64, n int, cfg InversionConfig, sc *scratch) []layerSpan {
 	for k := 0; k+1 < n; k++ {
 		d := t[k+1] - t[k]
 		inverted := d > cfg.MinPairDeltaK || (cfg.IsothermalAsInversion && d == 0)
@@ -119,7 +124,7 @@ func findInversions(z, t []float64, n int, cfg InversionConfig) []layerSpan {
 		merged = append(merged, r)
 	}
 	minLevels := 2
-	if cfg.MinLevelsFine > 2 && medianSpacing(z, n) < cfg.FineSpacingM {
+	if cfg.MinLevelsFine > 2 && medianSpacing(z, n, sc) < cfg.FineSpacingM {
 		minLevels = cfg.MinLevelsFine
 	}
 	kept := merged[:0]
@@ -133,11 +138,11 @@ func findInversions(z, t []float64, n int, cfg InversionConfig) []layerSpan {
 
 // medianSpacing returns the median height difference in m between
 // consecutive levels among the first n of z (NaN for fewer than 2).
-func medianSpacing(z []float64, n int) float64 {
+func medianSpacing(z []float64, n int, sc *scratch) float64 {
 	if n < 2 {
 		return math.NaN()
 	}
-	d := make([]float64, 0, n-1)
+	d := sc.floats(n - 1)[:0]
 	for k := 0; k+1 < n; k++ {
 		d = append(d, z[k+1]-z[k])
 	}

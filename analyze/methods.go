@@ -153,6 +153,7 @@ type methodInput struct {
 	pr  profile
 	n   int
 	cfg Config
+	sc  *scratch // working memory of the grids and Richardson numbers
 
 	grids []steppedGrid // pressure grids computed so far
 	rib   []float64     // bulk Richardson numbers of the first n levels; nil until needed
@@ -170,7 +171,7 @@ func (in *methodInput) gridOf(stepPa float64) grid {
 			return sg.g
 		}
 	}
-	g := in.pr.grid(in.n, stepPa)
+	g := in.pr.grid(in.n, stepPa, in.sc)
 	in.grids = append(in.grids, steppedGrid{stepPa, g})
 	return g
 }
@@ -180,7 +181,7 @@ func (in *methodInput) gridOf(stepPa float64) grid {
 func (in *methodInput) richardson(name string, ric float64) MixingHeight {
 	pr, n, cfg := in.pr, in.n, in.cfg
 	if in.rib == nil {
-		in.rib = make([]float64, n)
+		in.rib = in.sc.floats(n)
 		BulkRichardsonNumbers(in.rib, pr.z[:n], pr.thetav[:n], pr.u[:n], pr.v[:n], cfg.Constants.G0, cfg.Richardson)
 	}
 	rc := math.Min(cfg.Richardson.CeilingAGLM, in.r.CeilingAGLM)

@@ -312,12 +312,16 @@ func RichardsonHeight(zAGLM, rib []float64, ric, ceilingAGLM float64) (heightAGL
 
 // mixingHeights fills MixingHeights (one entry per registered method, in
 // registry order), LiuLiangRegime, Regime, MixingHeightConsensus and
-// ResidualTopAGLM from the profile's first n (searched) levels.
-func (r *Result) mixingHeights(pr profile, n int, cfg Config) {
-	in := methodInput{r: r, pr: pr, n: n, cfg: cfg}
+// ResidualTopAGLM from the profile's first n (searched) levels. in, when
+// not nil, is reused (its grids' slice kept), and sc is the working memory.
+func (r *Result) mixingHeights(pr profile, n int, cfg Config, in *methodInput, sc *scratch) {
+	if in == nil {
+		in = &methodInput{}
+	}
+	*in = methodInput{r: r, pr: pr, n: n, cfg: cfg, sc: sc, grids: in.grids[:0]}
 	mh := r.MixingHeights
 	for i, m := range methods {
-		mh[i] = m.height(&in)
+		mh[i] = m.height(in)
 		if mh[i].Status == MixingHeightOK {
 			mh[i].LevelSpacingM = pr.levelSpacing(mh[i].HeightAGLM, n)
 			mh[i].Unresolved = cfg.MixingHeight.resolve(mh[i].HeightAGLM, mh[i].LevelSpacingM)

@@ -25,8 +25,10 @@ type profile struct {
 	u, v   []float64 // m/s, wind components (from the level, else interpolated in z), NaN where missing
 }
 
-func (r *Result) buildProfile(s *sounding.Sounding, p, t []float64, wp windProfile) profile {
-	var idx []int
+// buildProfile returns the thermodynamic profile of s, its slices from sc
+// except z and θ, which the Result keeps (Result.Profile).
+func (r *Result) buildProfile(s *sounding.Sounding, p, t []float64, wp windProfile, sc *scratch) profile {
+	idx := sc.ints(len(p))
 	for i := range p {
 		if p[i] > 0 && t[i] > 0 && !math.IsInf(p[i], 0) && !math.IsInf(t[i], 0) && !math.IsNaN(r.HeightAGLM[i]) {
 			idx = append(idx, i)
@@ -45,9 +47,11 @@ func (r *Result) buildProfile(s *sounding.Sounding, p, t []float64, wp windProfi
 	}
 	idx = idx[:k]
 	pr := profile{idx: idx}
-	buf := make([]float64, 9*k)
-	pr.p, pr.t, pr.z, pr.theta, pr.thetav, pr.w = buf[:k], buf[k:2*k], buf[2*k:3*k], buf[3*k:4*k], buf[4*k:5*k], buf[5*k:6*k]
-	pr.td, pr.u, pr.v = buf[6*k:7*k], buf[7*k:8*k], buf[8*k:]
+	kept := make([]float64, 2*k)
+	pr.z, pr.theta = kept[:k:k], kept[k:]
+	buf := sc.floats(7 * k)
+	pr.p, pr.t, pr.thetav, pr.w = buf[:k], buf[k:2*k], buf[2*k:3*k], buf[3*k:4*k]
+	pr.td, pr.u, pr.v = buf[4*k:5*k], buf[5*k:6*k], buf[6*k:]
 	for n, i := range idx {
 		pr.p[n], pr.t[n], pr.z[n] = p[i], t[i], r.HeightAGLM[i]
 		pr.td[n] = finite(s.Levels[i].DewpointK)

@@ -74,9 +74,9 @@ func TurningDeg(fromDeg, toDeg float64) float64 {
 // the thermodynamic profile reuses them.
 type windProfile struct{ z, u, v, lu, lv []float64 }
 
-func (r *Result) buildWindProfile(s *sounding.Sounding) windProfile {
+func (r *Result) buildWindProfile(s *sounding.Sounding, sc *scratch) windProfile {
 	m := len(s.Levels)
-	buf := make([]float64, 5*m)
+	buf := sc.floats(5 * m)
 	w := windProfile{lu: buf[3*m : 4*m], lv: buf[4*m:]}
 	n := 0
 	for i, l := range s.Levels {
@@ -104,7 +104,7 @@ func (r *Result) buildWindProfile(s *sounding.Sounding) windProfile {
 		w.z, w.u, w.v = append(w.z, r.HeightAGLM[i]), append(w.u, w.lu[i]), append(w.v, w.lv[i])
 	}
 	if !sorted {
-		w.sortStable()
+		w.sortStableIn(sc)
 	}
 	k := 0
 	for i := range w.z {
@@ -124,16 +124,19 @@ func (r *Result) buildWindProfile(s *sounding.Sounding) windProfile {
 // adjacent runs are merged, pass by pass (a natural merge sort: the left
 // run's level first on equal heights, so the order is the one stable
 // order, as sort.Stable gives).
-func (w windProfile) sortStable() {
+func (w windProfile) sortStable() { w.sortStableIn(nil) }
+
+// sortStableIn is sortStable with its working slices from sc.
+func (w windProfile) sortStableIn(sc *scratch) {
 	n := len(w.z)
-	bounds := []int{0}
+	bounds := append(sc.ints(n+1), 0)
 	for i := 1; i < n; i++ {
 		if w.z[i] < w.z[i-1] {
 			bounds = append(bounds, i)
 		}
 	}
 	bounds = append(bounds, n)
-	tmp := make([]float64, 3*n)
+	tmp := sc.floats(3 * n)
 	tz, tu, tv := tmp[:n], tmp[n:2*n], tmp[2*n:]
 	for len(bounds) > 2 {
 		next := bounds[:1]

@@ -603,8 +603,9 @@ func (r *run) analysePart(all, context []*sounding.Sounding, observed map[*sound
 	rows = schema.PartRows{Levels: levels,
 		MixingHeights: make([]schema.MixingHeightRow, 0, len(kept)*len(analyze.Methods()))}
 	srows := make([]schema.SoundingRow, len(kept))
+	az := analyze.NewAnalyzer(r.cfg) // one per station-year: its working memory is reused by every sounding
 	for i, d := range kept {
-		res := analyzeOne(d.s, reports[d.s], r.cfg, r.opt.UseSuspect, &rows)
+		res := analyzeOne(d.s, reports[d.s], az, r.opt.UseSuspect, &rows)
 		res.sounding.SoundingHash = observed[d.s]
 		res.sounding.DuplicatesMerged = int32(d.merged)
 		res.sounding.DuplicateChoice = d.reason
@@ -615,7 +616,7 @@ func (r *run) analysePart(all, context []*sounding.Sounding, observed map[*sound
 		}
 	}
 	rows.Soundings = srows
-	rows.Afternoon = afternoonRows(results, r.analyseContext(context), r.opt.DailyMaxima.maxima(), r.pairing)
+	rows.Afternoon = afternoonRows(results, r.analyseContext(context, az), r.opt.DailyMaxima.maxima(), r.pairing)
 	rows.Descents = r.analyseDescents(descents, observed)
 	r.stage("analysis", t0)
 	return rows
@@ -654,11 +655,12 @@ func (r *run) analyseDescents(descents []*sounding.Sounding, observed map[*sound
 		reports[s] = qc.Check(s, r.qcCfg)
 	}
 	kept, _ := deduplicate(descents, reports)
+	az := analyze.NewAnalyzer(r.cfg)
 	for _, d := range kept {
 		rep := reports[d.s]
-		res := analyze.Analyze(nil, r.cfg)
+		res := az.Analyze(nil)
 		if rep.Usable() {
-			res = analyze.Analyze(qc.Apply(d.s, rep, r.opt.UseSuspect), r.cfg)
+			res = az.Analyze(qc.Apply(d.s, rep, r.opt.UseSuspect))
 		}
 		schema.AppendDescent(&out, d.s, rep, &res)
 		row := &out.Descents[len(out.Descents)-1]

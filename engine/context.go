@@ -11,6 +11,7 @@ import (
 	"maps"
 	"slices"
 
+	"github.com/sondeclim/sondeclim/analyze"
 	"github.com/sondeclim/sondeclim/ingest"
 	"github.com/sondeclim/sondeclim/ingest/archivev2"
 	"github.com/sondeclim/sondeclim/qc"
@@ -128,8 +129,8 @@ func headHash(all []*sounding.Sounding) string {
 // analyseContext checks, deduplicates and analyses the ascents among the
 // context copies ctx (the head of the next station-year) as that
 // station-year's own build does, for the afternoon pairing only: no rows
-// are kept.
-func (r *run) analyseContext(ctx []*sounding.Sounding) []result {
+// are kept. az is the station-year's Analyzer.
+func (r *run) analyseContext(ctx []*sounding.Sounding, az *analyze.Analyzer) []result {
 	ascents, _ := splitDescents(ctx)
 	if len(ascents) == 0 {
 		return nil
@@ -142,7 +143,7 @@ func (r *run) analyseContext(ctx []*sounding.Sounding) []result {
 	scratch := schema.PartRows{Levels: discardLevels{}}
 	out := make([]result, len(kept))
 	for i, d := range kept {
-		out[i] = analyzeOne(d.s, reports[d.s], r.cfg, r.opt.UseSuspect, &scratch)
+		out[i] = analyzeOne(d.s, reports[d.s], az, r.opt.UseSuspect, &scratch)
 		scratch = schema.PartRows{Levels: discardLevels{}}
 	}
 	return out

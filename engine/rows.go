@@ -19,15 +19,16 @@ type result struct {
 }
 
 // analyzeOne runs the analysis of one sounding, using only the values its
-// quality control allows, and appends its rows to out.
-func analyzeOne(s *sounding.Sounding, rep qc.Report, cfg analyze.Config, useSuspect bool, out *schema.PartRows) result {
+// quality control allows, with the worker's Analyzer az, and appends its
+// rows to out.
+func analyzeOne(s *sounding.Sounding, rep qc.Report, az *analyze.Analyzer, useSuspect bool, out *schema.PartRows) result {
 	var res analyze.Result
 	if rep.Usable() {
-		res = analyze.Analyze(qc.Apply(s, rep, useSuspect), cfg)
+		res = az.Analyze(qc.Apply(s, rep, useSuspect))
 	} else {
 		// Excluded by QC: still written, counted as attempted but not
 		// valid, with the QC reason as its analysis status.
-		res = analyze.Analyze(nil, cfg)
+		res = az.Analyze(nil)
 		res.Status = analyze.Status("qc_" + rep.Status)
 	}
 	row := schema.AppendSounding(out, s, rep, &res)

@@ -35,10 +35,21 @@ func interpLogP(p, v []float64, target float64) float64 {
 }
 
 // validDecreasing drops levels where p or x is NaN (or p ≤ 0) and reports
-// whether the remainder is strictly decreasing in p.
+// whether the remainder is strictly decreasing in p. When no level is
+// dropped the input itself is returned (callers only read it).
 func validDecreasing(pPa, x []float64) (p, v []float64, ok bool) {
 	if len(pPa) != len(x) {
 		return nil, nil, false
+	}
+	whole := true
+	for i := range pPa {
+		if !(pPa[i] > 0 && !math.IsNaN(x[i]) && !math.IsInf(pPa[i], 0)) || i > 0 && !(pPa[i] < pPa[i-1]) {
+			whole = false
+			break
+		}
+	}
+	if whole {
+		return pPa, x, true
 	}
 	p = make([]float64, 0, len(pPa))
 	v = make([]float64, 0, len(pPa))

@@ -1,0 +1,121 @@
+package analyze
+
+import (
+	"bufio"
+	"errors"
+	"fmt"
+	"io"
+	"io/fs"
+	"math/rand"
+	"path/filepath"
+	"testing"
+
+	"github.com/sondeclim/sondeclim/ingest"
+	"github.com/sondeclim/sondeclim/ingest/formats"
+	"github.com/sondeclim/sondeclim/ingest/input"
+	"github.com/sondeclim/sondeclim/internal/realdata"
+	"github.com/sondeclim/sondeclim/sounding"
+)
+
+// readValidation returns every sounding of every real validation file
+// (../shared/validation, all formats; PROVENANCE.md), in file order,
+// skipping the test when the folder is absent. Rejected items are left
+// out; a file no format detects (PROVENANCE.md itself) is passed over.
+func readValidation(t *testing.T) []*sounding.Sounding {
+	t.Helper()
+	dir := realdata.Dir(t)
+	var out []*sounding.Sounding
+	err := filepath.WalkDir(dir, func(path string, d fs.DirEntry, err error) error {
+		if err != nil || d.IsDir() || filepath.Ext(path) == ".md" {
+			return err
+		}
+		return input.Each(path, 0, func(member string, r io.Reader) error {
+			br := bufio.NewReaderSize(r, 4096)
+			prefix, _ := br.Peek(4096)
+			rd, err := formats.Open("", prefix, br, path, member, formats.Options{})
+			if errors.Is(err, ingest.ErrUnknownInput) {
+				return nil
+			} else if err != nil {
+				return err
+			}
+			for {
+				s, err := rd.Next()
+				var pe *ingest.ParseError
+				switch {
+				case errors.Is(err, io.EOF):
+					return nil
+				case errors.As(err, &pe):
+					continue
+				case err != nil:
+					return err
+				}
+				out = append(out, s)
+			}
+		})
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return out
+}
+
+// TestAnalyzerReuse guards the reuse of an Analyzer's working memory: every
+// real validation sounding analysed by one long-lived Analyzer, in file
+// order, reversed, shuffled, and interleaved with soundings that stop the
+// analysis early or have no levels, gives the Result that a fresh
+// analysis (Analyze) gives, bit for bit. The reference is the same code
+// without reuse, so this checks only that nothing leaks from one sounding
+// to the next; the science is checked by the other tests.
+func TestAnalyzerReuse(t *testing.T) {
+	ss := readValidation(t)
+	if len(ss) < 100 {
+		t.Fatalf("only %d validation soundings read", len(ss))
+	}
+	cfg := DefaultConfig()
+	show := func(r Result) string { return fmt.Sprintf("%+v", r) } // %v prints every float exactly (shortest form that reads back the same bits)
+	want := make(map[*sounding.Sounding]string, len(ss))
+	levels := 0
+	for _, s := range ss {
+		want[s] = show(Analyze(s, cfg))
+		levels += len(s.Levels)
+	}
+	t.Logf("%d soundings, %d levels", len(ss), levels)
+	tiny := &sounding.Sounding{Levels: ss[0].Levels[:1], ElevationM: ss[0].ElevationM}
+	want[tiny] = show(Analyze(tiny, cfg))
+	empty := &sounding.Sounding{}
+	want[empty] = show(Analyze(empty, cfg))
+
+	reversed := make([]*sounding.Sounding, len(ss))
+	for i, s := range ss {
+		reversed[len(ss)-1-i] = s
+	}
+	shuffled := append([]*sounding.Sounding(nil), ss...)
+	rand.New(rand.NewSource(16)).Shuffle(len(shuffled), func(i, j int) { shuffled[i], shuffled[j] = shuffled[j], shuffled[i] })
+	var mixed []*sounding.Sounding
+	for i, s := range shuffled {
+		mixed = append(mixed, s)
+		if i%7 == 0 {
+			mixed = append(mixed, tiny, nil, empty)
+		}
+	}
+	a := NewAnalyzer(cfg)
+	for name, order := range map[string][]*sounding.Sounding{"file": ss, "reversed": reversed, "shuffled": shuffled, "mixed": mixed} {
+		bad := 0
+		for i, s := range order {
+			got := show(a.Analyze(s))
+			w, ok := want[s]
+			if s == nil {
+				w, ok = show(Analyze(nil, cfg)), true
+			}
+			if !ok || got != w {
+				bad++
+				if bad <= 3 {
+					t.Errorf("%s order, sounding %d (%v): reused Analyzer differs from a fresh analysis\n got %.300s\nwant %.300s", name, i, s != nil, got, w)
+				}
+			}
+		}
+		if bad > 0 {
+			t.Errorf("%s order: %d of %d soundings differ", name, bad, len(order))
+		}
+	}
+}
