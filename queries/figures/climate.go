@@ -259,6 +259,16 @@ func hoursShown[T any](cells []T, hour func(T) int, n func(T) int, minCount int)
 	return hours
 }
 
+// hourKeys returns the legend keys of the nominal hours shown, in their
+// colours.
+func hourKeys(hours []int) []legendKey {
+	keys := make([]legendKey, len(hours))
+	for i, h := range hours {
+		keys[i] = legendKey{Label: fmt.Sprintf("%02d UTC", h), Fill: hourColor(i)}
+	}
+	return keys
+}
+
 // slot returns the centre and width, in month units, of the i-th of k
 // side-by-side marks within a month.
 func slot(month, i, k int) (centre, width float64) {
@@ -325,16 +335,14 @@ func MonthlyHeightsFigure(m *MonthlyHeights, minCount int) *Figure {
 		_, _, _, ymax := s.DataRange()
 		p.Y.Max = ymax * 1.08
 	}
-	for i, h := range hours {
-		p.Legend.Add(fmt.Sprintf("%02d UTC", h), swatch{hourColor(i)})
-	}
 	caption := fmt.Sprintf("Box: 25th to 75th percentile; white line: median; whiskers: 10th to 90th percentile (Hyndman-Fan type 7). "+
 		"Surface counts as 0 m; undefined heights are left out. Cells with fewer than %d values are not drawn.", minCount)
+	cp := withCaption(p, caption, hourKeys(hours)...)
 	return &Figure{
 		Name:  safeName(m.Station.ID + "-mixing-height-monthly-" + m.Method),
 		Title: strings.ReplaceAll(title, "\n", ", "),
 		Width: 10 * vg.Inch, Height: 5.5 * vg.Inch,
-		draw: withCaption(p, caption),
+		draw: cp.draw, captioned: cp,
 	}
 }
 
@@ -426,16 +434,14 @@ func SBIFrequencyFigure(f *SBIFrequency, minCount int) *Figure {
 		p.Add(&note{FX: 0.5, FY: 0.55, Text: fmt.Sprintf("no month and hour has %d or more valid soundings", minCount),
 			Style: centred(textStyle(11))})
 	}
-	for i, h := range hours {
-		p.Legend.Add(fmt.Sprintf("%02d UTC", h), swatch{hourColor(i)})
-	}
 	caption := fmt.Sprintf("Share of valid soundings whose temperature rises from the surface level upward; the number above a bar is the percentage. "+
 		"Cells with fewer than %d valid soundings are not drawn.", minCount)
+	cp := withCaption(p, caption, hourKeys(hours)...)
 	return &Figure{
 		Name:  safeName(f.Station.ID + "-sbi-frequency-monthly"),
 		Title: strings.ReplaceAll(title, "\n", ", "),
 		Width: 10 * vg.Inch, Height: 5.5 * vg.Inch,
-		draw: withCaption(p, caption),
+		draw: cp.draw, captioned: cp,
 	}
 }
 

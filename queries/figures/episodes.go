@@ -192,6 +192,7 @@ func EpisodeCalendarFigure(c *EpisodeCalendar) *Figure {
 	}
 	caption := "Stripes per year, top down: " + strings.Join(key, ", ") +
 		". A mark per local day inside an episode; pale: a missing day kept inside."
+	cp := withCaption(p, caption)
 	height := 3*vg.Inch + vg.Length(last-first+1)*0.32*vg.Inch
 	if height > 20*vg.Inch {
 		height = 20 * vg.Inch
@@ -200,6 +201,6 @@ func EpisodeCalendarFigure(c *EpisodeCalendar) *Figure {
 		Name:  safeName(c.Station.ID + "-episode-calendar"),
 		Title: strings.ReplaceAll(title, "\n", ", "),
 		Width: 10 * vg.Inch, Height: height,
-		draw: withCaption(p, caption),
+		draw: cp.draw, captioned: cp,
 	}
 }

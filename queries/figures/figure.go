@@ -41,6 +41,9 @@ type Figure struct {
 	Width, Height vg.Length
 
 	draw func(c draw.Canvas)
+	// captioned is the figure's plot and parts when it is drawn with
+	// withCaption (tests check their layout); nil otherwise.
+	captioned *captioned
 }
 
 // Render writes the figure in format "png" or "svg". A PNG is an indexed-
@@ -98,7 +101,8 @@ func (f *Figure) Image(dpi float64) *image.RGBA {
 	return rgba
 }
 
-// Colours of the figures. Hours take hourColors in order of nominal hour.
+// Colours of the figures. Hours take hourColors in order of nominal hour;
+// eight are distinct, enough for 3-hourly launches.
 var (
 	ink         = color.RGBA{0x22, 0x2b, 0x36, 0xff}
 	gridInk     = color.RGBA{0xd5, 0xdb, 0xe1, 0xff}
@@ -114,6 +118,9 @@ var (
 		color.RGBA{0x6a, 0x8f, 0x3a, 0xff},
 		color.RGBA{0x8e, 0x5a, 0x9b, 0xff},
 		color.RGBA{0x7a, 0x7a, 0x7a, 0xff},
+		color.RGBA{0x1f, 0x8a, 0x8a, 0xff}, // a station with more hours than five (3-hourly launches)
+		color.RGBA{0xa8, 0x32, 0x4a, 0xff},
+		color.RGBA{0xc9, 0xa2, 0x27, 0xff},
 	}
 	seasonColors = map[string]color.Color{
 		"DJF": color.RGBA{0x3b, 0x6e, 0xa5, 0xff},
@@ -254,14 +261,6 @@ func (s *shapes) DataRange() (xmin, xmax, ymin, ymax float64) {
 	return xmin, xmax, ymin, ymax
 }
 
-// swatch is a legend entry drawn as a filled square.
-type swatch struct{ fill color.Color }
-
-func (s swatch) Thumbnail(c *draw.Canvas) {
-	r := c.Rectangle
-	c.FillPolygon(s.fill, []vg.Point{r.Min, {X: r.Max.X, Y: r.Min.Y}, r.Max, {X: r.Min.X, Y: r.Max.Y}})
-}
-
 // note draws a line of text at a fixed position of the data area, given as
 // fractions of its width and height (0,0 = bottom left).
 type note struct {
@@ -282,17 +281,6 @@ func textStyle(size float64) draw.TextStyle {
 		Color:   ink,
 		Font:    font.From(plot.DefaultFont, vg.Points(size)),
 		Handler: plot.DefaultTextHandler,
-	}
-}
-
-// withCaption returns a drawing of p with its legend in the top right corner
-// beside the title and a one-line caption under the plot.
-func withCaption(p *plot.Plot, caption string) func(draw.Canvas) {
-	p.Legend.Top = true
-	p.Legend.YOffs = vg.Points(24)
-	return func(c draw.Canvas) {
-		p.Draw(draw.Crop(c, vg.Points(4), -vg.Points(8), vg.Points(18), 0))
-		c.FillText(textStyle(8), vg.Point{X: c.Min.X + vg.Points(8), Y: c.Min.Y + vg.Points(5)}, caption)
 	}
 }
 
