@@ -413,18 +413,9 @@ func SBIFrequencyFigure(f *SBIFrequency, minCount int) *Figure {
 	}
 	title := "Surface-based inversion frequency by month and launch hour\n" + f.Station.Label()
 	p := newPlot(title, "month", "soundings with a surface-based inversion (%)")
-	hours := hoursShown(f.Cells, func(c FrequencyCell) int { return c.Hour }, func(c FrequencyCell) int { return c.Valid }, minCount)
-	s := &shapes{}
-	for _, c := range f.Cells {
-		i := indexOf(hours, c.Hour)
-		if i < 0 || c.Valid < minCount {
-			continue
-		}
-		x, w := slot(c.Month, i, len(hours))
-		pct := 100 * c.Frequency()
-		s.Rects = append(s.Rects, rect{X0: x - w/2, X1: x + w/2, Y0: 0, Y1: pct, Fill: hourColor(i)})
-		s.Labels = append(s.Labels, label{X: x, Y: pct, Text: fmt.Sprintf("%.0f", pct)})
-	}
+	const width = 10 * vg.Inch
+	s, hours := frequencyShapes(f, minCount, width)
+	numbered := len(s.Labels) > 0
 	p.Add(s)
 	p.X.Min, p.X.Max = 0.5, 12.5
 	p.X.Tick.Marker = monthTicks()
@@ -434,15 +425,45 @@ func SBIFrequencyFigure(f *SBIFrequency, minCount int) *Figure {
 		p.Add(&note{FX: 0.5, FY: 0.55, Text: fmt.Sprintf("no month and hour has %d or more valid soundings", minCount),
 			Style: centred(textStyle(11))})
 	}
-	caption := fmt.Sprintf("Share of valid soundings whose temperature rises from the surface level upward; the number above a bar is the percentage. "+
-		"Cells with fewer than %d valid soundings are not drawn.", minCount)
+	caption := "Share of valid soundings whose temperature rises from the surface level upward"
+	if numbered {
+		caption += "; the number above a bar is the percentage"
+	}
+	caption += fmt.Sprintf(". Cells with fewer than %d valid soundings are not drawn.", minCount)
 	cp := withCaption(p, caption, hourKeys(hours)...)
 	return &Figure{
 		Name:  safeName(f.Station.ID + "-sbi-frequency-monthly"),
 		Title: strings.ReplaceAll(title, "\n", ", "),
-		Width: 10 * vg.Inch, Height: 5.5 * vg.Inch,
+		Width: width, Height: 5.5 * vg.Inch,
 		draw: cp.draw, captioned: cp,
 	}
+}
+
+// frequencyShapes returns the bars of the frequency figure of f, drawn
+// width wide, and the hours shown: per month and nominal hour with at
+// least minCount valid soundings, a bar of the percentage in the hour's
+// colour, and its number above it when that fits (see below).
+func frequencyShapes(f *SBIFrequency, minCount int, width vg.Length) (*shapes, []int) {
+	hours := hoursShown(f.Cells, func(c FrequencyCell) int { return c.Hour }, func(c FrequencyCell) int { return c.Valid }, minCount)
+	// A bar's number goes above it only when the widest, "100", fits in
+	// the bar's slot: with many hours the numbers ran into each other.
+	// The data area is the page less about an inch of axis and margins.
+	_, slotW := slot(1, 0, max(len(hours), 1))
+	numbered := centred(textStyle(labelPt)).Width("100") <= vg.Length(slotW/0.8/12)*(width-vg.Inch)
+	s := &shapes{}
+	for _, c := range f.Cells {
+		i := indexOf(hours, c.Hour)
+		if i < 0 || c.Valid < minCount {
+			continue
+		}
+		x, w := slot(c.Month, i, len(hours))
+		pct := 100 * c.Frequency()
+		s.Rects = append(s.Rects, rect{X0: x - w/2, X1: x + w/2, Y0: 0, Y1: pct, Fill: hourColor(i)})
+		if numbered {
+			s.Labels = append(s.Labels, label{X: x, Y: pct, Text: fmt.Sprintf("%.0f", pct)})
+		}
+	}
+	return s, hours
 }
 
 // SBIStrength holds the strengths of a station's surface-based inversions

@@ -203,6 +203,9 @@ type shapes struct {
 	Labels   []label
 }
 
+// labelPt is the font size of a label, points.
+const labelPt = 7.5
+
 // label is a short text centred just above a point in data coordinates.
 type label struct {
 	X, Y float64
@@ -226,7 +229,7 @@ func (s *shapes) Plot(c draw.Canvas, p *plot.Plot) {
 		sty := draw.LineStyle{Color: g.Color, Width: g.Width, Dashes: g.Dashes}
 		c.StrokeLines(sty, c.ClipLinesXY([]vg.Point{{X: trX(g.X0), Y: trY(g.Y0)}, {X: trX(g.X1), Y: trY(g.Y1)}})...)
 	}
-	sty := centred(textStyle(7.5))
+	sty := centred(textStyle(labelPt))
 	for _, l := range s.Labels {
 		pt := vg.Point{X: trX(l.X), Y: trY(l.Y) + vg.Points(2)}
 		if c.Contains(pt) {

@@ -9,6 +9,7 @@ import (
 	"time"
 
 	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
 
 	"github.com/sondeclim/sondeclim/analyze"
 )
@@ -37,7 +38,9 @@ func TestLegendClearOfTitle(t *testing.T) {
 						f.Cells = append(f.Cells, FrequencyCell{Month: month, Hour: h, Valid: 30, SBI: 29})
 					}
 				}
-				for _, fig := range []*Figure{MonthlyHeightsFigure(m, 15), SBIFrequencyFigure(f, 15)} {
+				freq := SBIFrequencyFigure(f, 15)
+				checkBarNumbers(t, freq, f, n)
+				for _, fig := range []*Figure{MonthlyHeightsFigure(m, 15), freq} {
 					what := fmt.Sprintf("%s, %d hours, name %q", fig.Name, n, name)
 					checkLayout(t, what, fig, n)
 					if keep != "" && n == 8 && name == names[2] && method == methods[0] {
@@ -53,6 +56,33 @@ func TestLegendClearOfTitle(t *testing.T) {
 				}
 			}
 		}
+	}
+}
+
+// checkBarNumbers checks that the numbers above the bars of a frequency
+// figure do not run into each other: each is narrower than the distance
+// between neighbouring bars as drawn (the data area taken from the plot's
+// own layout). When they are left out, the caption does not promise them.
+func checkBarNumbers(t *testing.T, fig *Figure, f *SBIFrequency, hours int) {
+	t.Helper()
+	s, _ := frequencyShapes(f, 15, fig.Width)
+	cp := fig.captioned
+	l := cp.layout(vg.Rectangle{Max: vg.Point{X: fig.Width, Y: fig.Height}})
+	data := cp.plot.DataCanvas(draw.Canvas{Rectangle: l.Plot})
+	step := vg.Length(0.8/float64(hours)/12) * data.Size().X // points between neighbouring bars
+	sty := centred(textStyle(labelPt))
+	for _, lb := range s.Labels {
+		if w := sty.Width(lb.Text); w > step {
+			t.Errorf("%s, %d hours: number %q is %v wide, bars %v apart", fig.Name, hours, lb.Text, w, step)
+			break
+		}
+	}
+	promised := strings.Contains(cp.caption, "number above a bar")
+	if promised != (len(s.Labels) > 0) {
+		t.Errorf("%s, %d hours: %d numbers drawn, caption promises them: %v", fig.Name, hours, len(s.Labels), promised)
+	}
+	if hours <= 2 && len(s.Labels) == 0 {
+		t.Errorf("%s, %d hours: no numbers above the bars", fig.Name, hours)
 	}
 }
 
