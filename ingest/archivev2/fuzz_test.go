@@ -14,8 +14,10 @@ import (
 )
 
 // FuzzReader checks that any input ends in io.EOF without panicking, that
-// every other error is an *ingest.ParseError, and that every sounding
-// agrees with its header's level count.
+// every other error is an *ingest.ParseError, that every sounding
+// agrees with its header's level count, and that the reader gives the same
+// soundings and errors with the general level parser alone as with the
+// fast path (sameReading).
 func FuzzReader(f *testing.F) {
 	f.Add([]byte(hdrA + "\n" + lvSfc + "\n" + lvStd + "\n" + hdrB + "\n" + lvSfc + "\n"))
 	f.Add([]byte(lvSfc + "\n" + hdrB + "\r\n" + lvSfc))
@@ -40,6 +42,7 @@ func FuzzReader(f *testing.F) {
 		f.Add(sterlingBytes(f)[:4096])
 	}
 	f.Fuzz(func(t *testing.T, in []byte) {
+		sameReading(t, "fuzz", in)
 		rd := NewReader(bytes.NewReader(in), "fuzz", "")
 		// Each call consumes at least one line, so the number of calls is
 		// bounded by the number of lines (a CR of its own ends one too)

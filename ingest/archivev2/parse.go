@@ -1,8 +1,10 @@
 package archivev2
 
 import (
+	"encoding/binary"
 	"fmt"
 	"math"
+	"math/bits"
 	"strings"
 	"time"
 
@@ -224,8 +226,20 @@ func nominalAndLaunch(y int, m time.Month, d, hour, relMin int) (nominal, launch
 //
 // The level is filled where it lies (a level is about 140 bytes; returning
 // it by value and copying it into the sounding cost a tenth of the
-// reading time on the real Sterling file).
+// reading time on the real Sterling file). Records of the common form go
+// through parseLevelFast, all others through parseLevelGeneral, which
+// gives the same level and reports what is wrong.
 func parseLevel(lv *sounding.Level, line []byte) error {
+	if parseLevelFast(lv, line) {
+		return nil
+	}
+	return parseLevelGeneral(lv, line)
+}
+
+// parseLevelGeneral is parseLevel for any line: it reads the fields one by
+// one and reports the first bad one. parseLevel calls it for the lines
+// parseLevelFast does not take.
+func parseLevelGeneral(lv *sounding.Level, line []byte) error {
 	*lv = sounding.NewLevel()
 	if len(line) < 51 {
 		return badLevel("%d characters, want at least 51", len(line))
@@ -339,4 +353,159 @@ func setValue(dst *float64, raw int, scale, off float64) sounding.Status {
 	}
 	*dst = x
 	return sounding.Reported
+}
+
+// parseLevelFast reads the common data record, in which every field is
+// right-aligned (spaces, an optional minus sign, then digits up to the
+// field's last column), the separating columns are blank, the flags blank,
+// 'A' or 'B', and the level type valid. It fills lv as parseLevelGeneral
+// would and returns true, or returns false, leaving lv to be overwritten,
+// for any other line, which the general path then reads (and rejects with
+// its message where it is bad). TestFastLevelMatchesGeneral and
+// FuzzFastLevel check the two paths against each other.
+//
+// Each field is read from the eight bytes that end at its last column as
+// one 64-bit word, with no loop over its characters (fixedWords).
+func parseLevelFast(lv *sounding.Level, line []byte) bool {
+	if len(line) < 51 {
+		return false
+	}
+	line = line[:51]
+	if line[2]|line[8]|line[33]|line[39]|line[45] != ' ' ||
+		line[2]&line[8]&line[33]&line[39]&line[45] != ' ' {
+		return false
+	}
+	t1, t2 := line[0], line[1]
+	if t1 < '0' || t1 > '3' || t2 < '0' || t2 > '2' || (t1 == '0' && t2 != '1') {
+		return false
+	}
+	pf, zf, tf := line[15], line[21], line[27]
+	if !flagOK(pf) || !flagOK(zf) || !flagOK(tf) {
+		return false
+	}
+	var raw [8]int
+	if !fixedFields((*[51]byte)(line), &raw) {
+		return false
+	}
+	et, pr, gh, te, rh, dd, wd, ws := raw[0], raw[1], raw[2], raw[3], raw[4], raw[5], raw[6], raw[7]
+
+	*lv = sounding.NewLevel()
+	switch {
+	case t2 == '1':
+		lv.Kind = sounding.KindSurface
+	case t1 == '1':
+		lv.Kind = sounding.KindStandard
+	case t1 == '2':
+		lv.Kind = sounding.KindSignificant
+	default:
+		lv.Kind = sounding.KindWindOnly
+	}
+	lv.Tropopause = t2 == '2'
+	if pf != ' ' {
+		lv.UpstreamTier[sounding.VarPressure] = pf
+	}
+	if zf != ' ' {
+		lv.UpstreamTier[sounding.VarHeight] = zf
+	}
+	if tf != ' ' {
+		lv.UpstreamTier[sounding.VarTemperature] = tf
+	}
+	lv.Status[sounding.VarPressure] = setValue(&lv.PressurePa, pr, 1, 0)
+	lv.Status[sounding.VarHeight] = setValue(&lv.HeightM, gh, 1, 0)
+	lv.Status[sounding.VarTemperature] = setValue(&lv.TemperatureK, te, 10, thermo.ZeroCelsiusK)
+	lv.Status[sounding.VarRelHumidity] = setValue(&lv.RelHumidityPct, rh, 10, 0)
+	lv.Status[sounding.VarDewpointDepression] = setValue(&lv.DewpointDepressionK, dd, 10, 0)
+	lv.Status[sounding.VarWindDirection] = setValue(&lv.WindDirectionDeg, wd, 1, 0)
+	lv.Status[sounding.VarWindSpeed] = setValue(&lv.WindSpeedMS, ws, 10, 0)
+	switch et {
+	case codeMissing:
+		lv.Status[sounding.VarElapsedTime] = sounding.Missing
+	case codeRemoved:
+		lv.Status[sounding.VarElapsedTime] = sounding.RemovedUpstream
+	default:
+		lv.ElapsedS = float64(et/100*60 + et%100)
+		lv.Status[sounding.VarElapsedTime] = sounding.Reported
+	}
+	if lv.Status[sounding.VarTemperature] == sounding.Reported &&
+		lv.Status[sounding.VarDewpointDepression] == sounding.Reported {
+		lv.DewpointK = lv.TemperatureK - lv.DewpointDepressionK
+	}
+	return true
+}
+
+func flagOK(f byte) bool { return f == ' ' || f == 'A' || f == 'B' }
+
+// The bytes each integer field of a data record takes of the eight that
+// end at its last column, in column order (ETIME, PRESS, GPH, TEMP, RH,
+// DPDP, WDIR, WSPD: fixedFields reads the eight bytes ending at 0-based
+// index 8, 15, 21, 27, 33, 39, 45 and 51).
+var fieldMask = [8]uint64{fieldBytes(5), fieldBytes(6), fieldBytes(5), fieldBytes(5),
+	fieldBytes(5), fieldBytes(5), fieldBytes(5), fieldBytes(5)}
+
+// fieldBytes is the mask of the top w bytes of a word (w from 1 to 7).
+func fieldBytes(w uint) uint64 { return ^uint64(0) << (8 * (8 - w)) }
+
+// fixedFields reads the eight integer fields of a data record into raw by
+// fixedWords' rule and reports whether every one was of that form.
+func fixedFields(line *[51]byte, raw *[8]int) bool {
+	le := binary.LittleEndian
+	u := [8]uint64{le.Uint64(line[0:8]), le.Uint64(line[7:15]), le.Uint64(line[13:21]), le.Uint64(line[19:27]),
+		le.Uint64(line[25:33]), le.Uint64(line[31:39]), le.Uint64(line[37:45]), le.Uint64(line[43:51])}
+	return fixedWords(&u, &fieldMask, raw) == 0
+}
+
+// Byte-wise constants of fixedWords: each repeats one byte eight times.
+const (
+	ones  = 0x0101010101010101
+	bit4s = 0x10 * ones
+)
+
+// fixedWords reads eight right-aligned integer fields into raw: field k
+// takes the bytes mask[k] (fieldBytes of its width, 1 to 7 characters) of
+// u[k], the eight bytes that end at its last character as a little-endian
+// word, so the field's last character is the word's top byte. A field
+// must be spaces, then an optional '-', then at least one digit up to its
+// end; bad is nonzero when any field is of another form (blank,
+// left-aligned, '+', embedded spaces, other bytes), which atoi may still
+// read. Where a field is of that form its value is atoi's. The fields are
+// tested without branching and the caller decides once.
+//
+// A byte is a digit when its high nibble is 3 and its low nibble at most 9;
+// the highest non-digit byte ends the run of digits, and the digits'
+// values are combined pairwise by three multiplications (two digits, then
+// four, then eight).
+func fixedWords(u *[8]uint64, mask *[8]uint64, raw *[8]int) (bad uint64) {
+	for k := range 8 {
+		u, field := u[k], mask[k]
+		// Bit 4 of each byte of nd is set where the byte is not a digit,
+		// and in the byte just below the field (a sentinel).
+		hi := (u & (0xf0 * ones)) ^ (0x30 * ones)
+		nd := (((hi >> 4) + 0x0f*ones) | ((u & (0x0f * ones)) + 0x06*ones)) & field
+		nd = (nd | (^field ^ ^field>>8)) & bit4s
+		bad |= nd >> 56 // the last character is not a digit
+		// The highest non-digit byte p has its bit 4 at 8p+4, so z =
+		// 56-8p, and the bytes up to p are the low 64-z bits.
+		z := uint(bits.LeadingZeros64(nd)) & 56
+		below := ^uint64(0) >> z
+		lead := u & field & below
+		spaces := 0x20 * ones & field & below
+		minus := spaces ^ (0x20^'-')<<56>>z
+		// lead must be all spaces, or spaces and a minus sign just
+		// before the digits.
+		bad |= uint64(b2u(lead != spaces && lead != minus))
+		d := u&^below - 0x30*ones&^below // digit values, most significant first
+		d = (d * (10<<8 + 1)) >> 8 & (0x00ff00ff00ff00ff)
+		d = (d * (100<<16 + 1)) >> 16 & (0x0000ffff0000ffff)
+		d = (d * (10000<<32 + 1)) >> 32
+		neg := -int(b2u(lead == minus)) // all ones for a negative value
+		raw[k] = (int(d) ^ neg) - neg
+	}
+	return bad
+}
+
+func b2u(b bool) uint {
+	if b {
+		return 1
+	}
+	return 0
 }

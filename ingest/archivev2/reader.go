@@ -77,6 +77,10 @@ type Reader struct {
 	havePending bool
 
 	long []byte // holds the kept prefix of an over-long line
+
+	// general makes the reader parse every level with parseLevelGeneral,
+	// for the tests that check the fast path against it.
+	general bool
 }
 
 // NewReader returns a reader of the station data file r. The file and
@@ -199,7 +203,11 @@ func (r *Reader) Next() (*sounding.Sounding, error) {
 		}
 		s.Levels = s.Levels[:len(s.Levels)+1]
 		lv := &s.Levels[len(s.Levels)-1]
-		if err := parseLevel(lv, line); err != nil {
+		parse := parseLevel
+		if r.general {
+			parse = parseLevelGeneral
+		}
+		if err := parse(lv, line); err != nil {
 			s.Levels = s.Levels[:len(s.Levels)-1]
 			badLine, badErr = r.line, err
 			continue
