@@ -9,7 +9,7 @@ func PotentialTemperature(tK, pPa, kappa, p0Pa float64) float64 {
 	if !(pPa > 0) {
 		return math.NaN()
 	}
-	return tK * math.Pow(p0Pa/pPa, kappa)
+	return tK * powFrac(p0Pa/pPa, kappa)
 }
 
 // TemperatureFromPotentialTemperature returns T = θ (p/p0)^κ in K, the
@@ -19,7 +19,22 @@ func TemperatureFromPotentialTemperature(thetaK, pPa, kappa, p0Pa float64) float
 	if !(pPa > 0) {
 		return math.NaN()
 	}
-	return thetaK * math.Pow(pPa/p0Pa, kappa)
+	return thetaK * powFrac(pPa/p0Pa, kappa)
+}
+
+// powFrac returns math.Pow(x, y), bit for bit. For 0 < y < 0.5 (κ is about
+// 0.286) it is the one step the standard library's Pow takes for such a y,
+// Exp(y Log x) (math/pow.go: the fractional part is y itself, the integer
+// part is 0, so its squaring loop does nothing and Ldexp(a, 0) returns a),
+// without the special-case tests, Modf, Frexp and Ldexp around it, for
+// x > 0 (the ratio of two pressures): there Pow's special cases agree,
+// x = 1 gives Exp(0) = 1 and x = +Inf gives +Inf. Zero, negative and NaN x
+// go to Pow. TestPowFrac checks the two against each other.
+func powFrac(x, y float64) float64 {
+	if y > 0 && y < 0.5 && x > 0 {
+		return math.Exp(y * math.Log(x))
+	}
+	return math.Pow(x, y)
 }
 
 // VirtualTemperature returns Tv = T (w + ε)/(ε (1 + w)) in K for temperature
