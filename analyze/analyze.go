@@ -297,7 +297,8 @@ func (r *Result) levelValues(s *sounding.Sounding, cfg Config, sc *scratch) (p, 
 	buf := make([]float64, 4*n)
 	r.HeightAGLM, r.ThetaK, r.ThetaVK, r.MixingRatioKgKg = buf[:n:n], buf[n:2*n:2*n], buf[2*n:3*n:3*n], buf[3*n:]
 	p, t = sc.floats(n), sc.floats(n)
-	for i, l := range s.Levels {
+	for i := range s.Levels {
+		l := &s.Levels[i]
 		p[i], t[i] = finite(l.PressurePa), finite(l.TemperatureK)
 		th := thermo.PotentialTemperature(t[i], p[i], c.Kappa, c.P0Pa)
 		w := thermo.MixingRatio(thermo.VapourPressureFromDewpoint(finite(l.DewpointK), cfg.SatVap), p[i], c.Epsilon)

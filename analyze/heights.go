@@ -77,7 +77,8 @@ func fillHeights(levels []sounding.Level, elevationM float64, c thermo.Constants
 	n := len(levels)
 	h := Heights{HeightM: make([]float64, n), Derived: make([]bool, n), StartIndex: -1}
 	ord := sc.ints(n)
-	for i, l := range levels {
+	for i := range levels {
+		l := &levels[i]
 		h.HeightM[i] = l.HeightM
 		if math.IsInf(l.HeightM, 0) {
 			h.HeightM[i] = math.NaN()

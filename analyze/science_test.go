@@ -106,7 +106,7 @@ func TestTurningDeg(t *testing.T) {
 	// Direction of the components of a west wind (from 270°): u = +s.
 	l := sounding.NewLevel()
 	l.WindSpeedMS, l.WindDirectionDeg = 10, 270
-	u, v, _ := levelWind(l)
+	u, v, _ := levelWind(&l)
 	near(t, "u", u, 10, 1e-12)
 	near(t, "v", v, 0, 1e-12)
 	near(t, "dir", windDirection(u, v), 270, 1e-9)

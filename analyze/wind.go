@@ -30,7 +30,7 @@ func TransportConventions() []TransportConvention {
 // v = −s cos d for speed s (m/s) and direction d (degrees, from), and
 // whether both speed and direction are usable (0 ≤ s ≤ 150 m/s,
 // 0 ≤ d ≤ 360°). A calm (s = 0) gives u = v = 0.
-func levelWind(l sounding.Level) (u, v float64, ok bool) {
+func levelWind(l *sounding.Level) (u, v float64, ok bool) {
 	s, d := l.WindSpeedMS, l.WindDirectionDeg
 	if !(s >= 0 && s <= 150) || !(d >= 0 && d <= 360) {
 		return math.NaN(), math.NaN(), false
@@ -78,33 +78,33 @@ func (r *Result) buildWindProfile(s *sounding.Sounding, sc *scratch) windProfile
 	m := len(s.Levels)
 	buf := sc.floats(5 * m)
 	w := windProfile{lu: buf[3*m : 4*m], lv: buf[4*m:]}
-	n := 0
-	for i, l := range s.Levels {
-		u, v, ok := math.NaN(), math.NaN(), false
-		if !math.IsNaN(r.HeightAGLM[i]) {
-			u, v, ok = levelWind(l)
-		}
-		w.lu[i], w.lv[i] = u, v
-		if ok {
-			n++
-		}
-	}
-	w.z, w.u, w.v = buf[:0:n], buf[n:n:2*n], buf[2*n:2*n:3*n]
+	z, u, v := buf[:m], buf[m:2*m], buf[2*m:3*m]
 	// Levels in order of height need no sorting: the stable sort would
 	// leave them as they are (equal heights included, which are dropped
-	// below, the first kept).
-	sorted := true
+	// below, the first kept); without equal heights nothing is dropped.
+	n, sorted, equal := 0, true, false
+	hz := r.HeightAGLM[:m]
 	for i := range s.Levels {
-		if math.IsNaN(w.lu[i]) {
+		ui, vi, ok := math.NaN(), math.NaN(), false
+		if !math.IsNaN(hz[i]) {
+			ui, vi, ok = levelWind(&s.Levels[i])
+		}
+		w.lu[i], w.lv[i] = ui, vi
+		if !ok {
 			continue
 		}
-		if k := len(w.z); k > 0 && r.HeightAGLM[i] < w.z[k-1] {
-			sorted = false
+		if n > 0 {
+			sorted = sorted && !(hz[i] < z[n-1])
+			equal = equal || hz[i] == z[n-1]
 		}
-		w.z, w.u, w.v = append(w.z, r.HeightAGLM[i]), append(w.u, w.lu[i]), append(w.v, w.lv[i])
+		z[n], u[n], v[n] = hz[i], ui, vi
+		n++
 	}
+	w.z, w.u, w.v = z[:n:n], u[:n:n], v[:n:n]
 	if !sorted {
 		w.sortStableIn(sc)
+	} else if !equal {
+		return w
 	}
 	k := 0
 	for i := range w.z {
