@@ -231,8 +231,7 @@ func analyze(s *sounding.Sounding, cfg Config, a *Analyzer) Result {
 		mlBase = spans[0].top
 	}
 	allowSA := !cfg.MixedLayer.SuperadiabaticDayOnly || r.SunClass == sun.Day
-	r.MixedLayers = pr.mixedLayers(mlBase, n, cfg.MixedLayer, allowSA)
-	r.MixedLayer = pr.mixedLayer(mlBase, n, cfg.MixedLayer, allowSA)
+	r.MixedLayers, r.MixedLayer = pr.mixedLayersFrom(mlBase, n, cfg.MixedLayer, allowSA)
 	r.classifyInversions(pr, spans, n, cfg)
 
 	c := cfg.Constants

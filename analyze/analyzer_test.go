@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"io/fs"
+	"math"
 	"math/rand"
 	"path/filepath"
 	"testing"
@@ -116,6 +117,29 @@ func TestAnalyzerReuse(t *testing.T) {
 		}
 		if bad > 0 {
 			t.Errorf("%s order: %d of %d soundings differ", name, bad, len(order))
+		}
+	}
+}
+
+// TestSpanMatchesMinMax checks span.with, which calls math.Min and
+// math.Max only where a bound can change, against math.Min and math.Max
+// applied to every value (the definition), bit for bit, on sequences of
+// signed zeros, infinities, NaN and ordinary values.
+func TestSpanMatchesMinMax(t *testing.T) {
+	negZero := math.Copysign(0, -1)
+	vals := []float64{0, negZero, 1, -1, math.Inf(1), math.Inf(-1), math.NaN(), 1e-300, -2.5, 300.125}
+	rng := rand.New(rand.NewSource(3))
+	for trial := 0; trial < 20000; trial++ {
+		s, lo, hi := newSpan(), math.Inf(1), math.Inf(-1)
+		for k := 0; k < 1+rng.Intn(6); k++ {
+			v := vals[rng.Intn(len(vals))]
+			s = s.with(v)
+			if !math.IsNaN(v) {
+				lo, hi = math.Min(lo, v), math.Max(hi, v)
+			}
+			if math.Float64bits(s.lo) != math.Float64bits(lo) || math.Float64bits(s.hi) != math.Float64bits(hi) {
+				t.Fatalf("trial %d: span (%v, %v), math.Min/Max give (%v, %v)", trial, s.lo, s.hi, lo, hi)
+			}
 		}
 	}
 }

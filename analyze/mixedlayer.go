@@ -43,8 +43,22 @@ type span struct{ lo, hi float64 }
 func newSpan() span { return span{math.Inf(1), math.Inf(-1)} }
 
 func (s span) with(v float64) span {
-	if !math.IsNaN(v) {
-		s.lo, s.hi = math.Min(s.lo, v), math.Max(s.hi, v)
+	// What math.Min and math.Max give: for a non-NaN v and bounds that
+	// are never NaN, Min(lo, v) is v when v < lo and lo when v > lo or
+	// v == lo ≠ 0 (equal non-zero floats have the same bits); only zeros
+	// of either sign need Min's own rule (and Max's alike).
+	if v != v {
+		return s
+	}
+	if v < s.lo {
+		s.lo = v
+	} else if v == 0 && s.lo == 0 {
+		s.lo = math.Min(s.lo, v)
+	}
+	if v > s.hi {
+		s.hi = v
+	} else if v == 0 && s.hi == 0 {
+		s.hi = math.Max(s.hi, v)
 	}
 	return s
 }
@@ -132,9 +146,21 @@ func levelMassMean(p, x []float64) float64 {
 // next search starts at the level above its top, otherwise at the next
 // level. Layers therefore never overlap.
 func (pr profile) mixedLayers(start, n int, cfg MixedLayerConfig, allowSA bool) []MixedLayer {
-	var out []MixedLayer
+	out, _ := pr.mixedLayersFrom(start, n, cfg, allowSA)
+	return out
+}
+
+// mixedLayersFrom is mixedLayers, also returning mixedLayer(start, …),
+// which it grows first anyway.
+func (pr profile) mixedLayersFrom(start, n int, cfg MixedLayerConfig, allowSA bool) (out []MixedLayer, first MixedLayer) {
+	if start >= n-1 {
+		return nil, pr.mixedLayer(start, n, cfg, allowSA)
+	}
 	for b := start; b < n-1; {
 		ml := pr.mixedLayer(b, n, cfg, allowSA)
+		if b == start {
+			first = ml
+		}
 		if !ml.Found {
 			b++
 			continue
@@ -142,5 +168,5 @@ func (pr profile) mixedLayers(start, n int, cfg MixedLayerConfig, allowSA bool) 
 		out = append(out, ml)
 		b += ml.Levels
 	}
-	return out
+	return out, first
 }
