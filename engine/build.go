@@ -255,6 +255,9 @@ func (r *run) ingest(files []string, old *store.Manifest, full bool, paramsText 
 	if err != nil {
 		return nil, err
 	}
+	if r.memStage != nil {
+		r.sum.heldAtEnd = r.memStage.used.Load()
+	}
 	// The staged copies are no longer needed; remove them before the sync
 	// below, which would otherwise write them to disk for nothing.
 	if err := os.RemoveAll(r.staging); err != nil {
@@ -340,6 +343,7 @@ func (r *run) buildAll(keys []string, st *staged, old *store.Manifest) ([]*store
 	// side by side.
 	limit := r.partitionLimit()
 	inMemory := semaphore.NewWeighted(limit)
+	st.countUses(keys, r.memStage)
 	for i, k := range keys {
 		analysing.Go(func() error {
 			if ctx.Err() != nil {
@@ -350,6 +354,7 @@ func (r *run) buildAll(keys []string, st *staged, old *store.Manifest) ([]*store
 				return context.Cause(ctx)
 			}
 			p, stats, write, err := r.buildPartition(k, st, old.Partitions[k])
+			st.release(k, r.memStage)
 			if err != nil {
 				inMemory.Release(weight)
 				return fail(k, err)
@@ -462,27 +467,32 @@ func (s *Summary) add(b buildStats) {
 	s.Files = append(s.Files, b.files...)
 }
 
-// readSegment reads the bytes of one segment from its staged file (a
-// spill file, or an input or decompressed copy read in place, which must
-// still be the file that was indexed). Files are opened per segment, not
+// readSegment returns the bytes of one segment: a slice of its file's
+// text when that is held in memory (never to be written to), or else
+// read from its staged file (a spill file, or an input or decompressed
+// copy read in place, which must still be the file that was indexed) into
+// buf, which is returned for reuse. Files are opened per segment, not
 // held open for the run, so that archives of many thousands of files stay
 // within the process's file limit.
-func readSegment(st *staged, sg segment, buf []byte) ([]byte, error) {
+func readSegment(st *staged, sg segment, buf []byte) (data, scratch []byte, err error) {
+	if text := st.heldBytes(sg.file); text != nil {
+		return text[sg.off : sg.off+sg.size : sg.off+sg.size], buf, nil
+	}
 	fh, err := os.Open(st.files[sg.file])
 	if err != nil {
-		return nil, err
+		return nil, buf, err
 	}
 	defer fh.Close()
 	if st.inPlace[sg.file] {
 		if err := sameAsIndexed(fh, st.stamp[sg.file]); err != nil {
-			return nil, err
+			return nil, buf, err
 		}
 	}
 	buf = slices.Grow(buf[:0], int(sg.size))[:sg.size]
 	if _, err := fh.ReadAt(buf, sg.off); err != nil {
-		return nil, fmt.Errorf("read staged input %s: %w", st.inputs[sg.file], err)
+		return nil, buf, fmt.Errorf("read staged input %s: %w", st.inputs[sg.file], err)
 	}
-	return buf, nil
+	return buf, buf, nil
 }
 
 // buildPartition rebuilds one station-year from its staged soundings: it
@@ -498,24 +508,24 @@ func (r *run) buildPartition(key string, st *staged, prev *store.Partition) (_ *
 	}
 	var all []*sounding.Sounding
 	contributors := map[string]bool{}
-	var buf []byte
+	var buf, data []byte
 	for _, sg := range st.byPart[key] {
 		if st.dropped[sg.file] {
 			continue
 		}
-		if buf, err = readSegment(st, sg, buf); err != nil {
+		if data, buf, err = readSegment(st, sg, buf); err != nil {
 			return nil, stats, nil, err
 		}
 		contributors[st.inputs[sg.file]] = true
 		if st.inPlace[sg.file] {
-			got, err := r.readInPlace(buf, st.inputs[sg.file], sg)
+			got, err := r.readInPlace(data, st.inputs[sg.file], sg)
 			if err != nil {
 				return nil, stats, nil, err
 			}
 			all = append(all, got...)
 			continue
 		}
-		rest := buf
+		rest := data
 		for range sg.count {
 			s, tail, err := sounding.DecodeBinary(rest)
 			if err != nil {

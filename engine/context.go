@@ -68,17 +68,17 @@ func writeIdentity(h hash.Hash, s *sounding.Sounding, enc []byte) (string, []byt
 // counted and reported by the build of k itself.
 func (r *run) readHead(st *staged, k string) ([]*sounding.Sounding, string, error) {
 	var out []*sounding.Sounding
-	var buf []byte
+	var buf, data []byte
 	var err error
 	for _, sg := range st.byPart[k] {
 		if !sg.head || st.dropped[sg.file] {
 			continue
 		}
-		if buf, err = readSegment(st, sg, buf); err != nil {
+		if data, buf, err = readSegment(st, sg, buf); err != nil {
 			return nil, "", err
 		}
 		if st.inPlace[sg.file] {
-			rd := archivev2.NewReaderAt(bytes.NewReader(buf), st.inputs[sg.file], sg.member, sg.line)
+			rd := archivev2.NewReaderAt(bytes.NewReader(data), st.inputs[sg.file], sg.member, sg.line)
 			for {
 				s, err := rd.Next()
 				if err == io.EOF {
@@ -98,7 +98,7 @@ func (r *run) readHead(st *staged, k string) ([]*sounding.Sounding, string, erro
 			}
 			continue
 		}
-		rest := buf
+		rest := data
 		for range sg.count {
 			s, tail, err := sounding.DecodeBinary(rest)
 			if err != nil {

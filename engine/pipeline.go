@@ -70,6 +70,11 @@ type Options struct {
 	// The station-years built at once hold at most as much together. 0
 	// means DefaultMaxPartitionBytes.
 	MaxPartitionBytes int64
+	// StagingMemoryBytes bounds the decompressed archive-v2 text of gzip
+	// and zip inputs held in memory instead of a copy in the staging
+	// folder, all inputs together; past it, text is staged on disk. 0 means
+	// DefaultStagingMemoryBytes, a negative value none in memory.
+	StagingMemoryBytes int64
 	// RunBudget bounds the decompressed bytes of all compressed inputs of
 	// the run; inputs left when it is used up are reported and read by
 	// the next run. 0 means DefaultRunBudget.
@@ -175,6 +180,14 @@ type Summary struct {
 	StageSeconds map[string]float64 `json:"stage_seconds"`
 	ElapsedS     float64            `json:"elapsed_s"`
 	Elapsed      time.Duration      `json:"-"`
+
+	// stagedInMemory and stagedOnDisk count the archive-v2 inputs whose
+	// text was held in memory and read from a file (the input itself or a
+	// decompressed copy); heldAtEnd is the staging memory still charged
+	// once every station-year was built (0 unless an input was read
+	// for no build). For tests.
+	stagedInMemory, stagedOnDisk int
+	heldAtEnd                    int64
 }
 
 // SkippedByReason counts Skipped by reason.
@@ -201,6 +214,7 @@ type run struct {
 	staging string
 
 	runBudget *input.Budget
+	memStage  *memBudget      // in-memory staging of archive-v2 text (stagemem.go); nil: none
 	damaged   map[string]bool // partitions whose committed files are damaged: rebuilt, never kept
 
 	mu        sync.Mutex // guards sum.Skipped, sum.Notes, sum.Members, sum.SoundingsRead, filesRead
@@ -240,6 +254,7 @@ func newRun(ctx context.Context, storeDir string, files []string, opt Options) *
 	if r.runBudget.Limit <= 0 {
 		r.runBudget.Limit = DefaultRunBudget
 	}
+	r.memStage = r.stagingMemory()
 	if r.workers <= 0 {
 		r.workers = runtime.NumCPU()
 	}

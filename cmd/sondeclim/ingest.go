@@ -79,6 +79,7 @@ error; 3 done, but some input was skipped (data lost).`,
 	maxInput := fs.Int64("max-input-bytes", engine.DefaultInputBudget, "decompressed-size budget of one compressed input, all its members together, `bytes` (over it: skipped)")
 	maxRun := fs.Int64("max-run-bytes", engine.DefaultRunBudget, "decompressed-size budget of all compressed inputs of the run, `bytes` (inputs left over are reported and read by the next run)")
 	maxPart := fs.Int64("max-partition-bytes", engine.DefaultMaxPartitionBytes, "largest station-year to build, staged `bytes`, archive-v2 text counted twice (it is built in memory, about 5 times this at the peak; larger ones are reported and left as committed; the station-years built at once hold at most this together)")
+	stageMem := fs.Int64("staging-memory-bytes", engine.DefaultStagingMemoryBytes, "decompressed archive-v2 text of gzip and zip inputs held in memory instead of a copy in the staging folder, all inputs together, `bytes` (past it: on disk; 0: always on disk)")
 	prune := fs.Bool("prune-missing", false, "remove the soundings of inputs ingested before that are gone now (without it they stay, with a note)")
 	verify := fs.Bool("verify", false, "check the SHA-256 of every store file the run would leave alone (always: presence and size) and rebuild damaged partitions")
 	wait := fs.Bool("wait", false, "wait for another ingest into the same store to finish instead of failing")
@@ -113,7 +114,10 @@ error; 3 done, but some input was skipped (data lost).`,
 	if err != nil {
 		return fmt.Errorf("ingest: %v: %w", err, errUsage)
 	}
-	opt := engine.Options{Workers: *workers, Format: *format, Log: log, Shard: sh, Full: *full, Verify: *verify, PruneMissing: *prune, InputBudget: *maxInput, RunBudget: *maxRun, MaxPartitionBytes: *maxPart, Wait: *wait, UseSuspect: *useSuspect}
+	opt := engine.Options{Workers: *workers, Format: *format, Log: log, Shard: sh, Full: *full, Verify: *verify, PruneMissing: *prune, InputBudget: *maxInput, RunBudget: *maxRun, MaxPartitionBytes: *maxPart, StagingMemoryBytes: *stageMem, Wait: *wait, UseSuspect: *useSuspect}
+	if *stageMem == 0 {
+		opt.StagingMemoryBytes = -1 // the engine's 0 is its default
+	}
 	if *dailyMax != "" {
 		// A maxima file that cannot be used is the caller's input, like a
 		// bad --ventilation-table: a usage error naming the file and line.
