@@ -11,8 +11,9 @@ import (
 
 // ParcelProfile is the part of an analysed sounding that the afternoon
 // (Holzworth) mixing height needs: the potential-temperature profile and
-// the surface values. Its slices share memory with the Result; treat them
-// as read-only.
+// the surface values. Its slices are the caller's even when the Result
+// came from an Analyzer (which reuses the Result's other slices); treat
+// them as read-only.
 type ParcelProfile struct {
 	SurfacePressurePa   float64   // Pa
 	SurfaceTemperatureK float64   // K

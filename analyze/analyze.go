@@ -32,7 +32,8 @@ func Statuses() []Status {
 // Result holds the diagnostics of one sounding. Per-level slices are
 // aligned 1:1 with the sounding's Levels (same index) and hold NaN where a
 // value cannot be computed; they are filled as far as possible even when
-// Status is not StatusOK.
+// Status is not StatusOK. The slices of a Result from an Analyzer are
+// overwritten by its next analysis (Analyzer.Analyze), except Profile's.
 type Result struct {
 	Status      Status
 	ConstantSet string // thermo.Constants.ID() of the set used
@@ -172,7 +173,7 @@ func analyze(s *sounding.Sounding, cfg Config, a *Analyzer) Result {
 		HeatDeficit:    HeatDeficitResult{Reference: heatRef, TopAGLM: nan, JPerM2: nan},
 		StableFraction: nan,
 	}
-	r.MixingHeights = make([]MixingHeight, len(methods))
+	r.MixingHeights = sc.mixingHeights(len(methods))
 	for i, m := range methods {
 		r.MixingHeights[i] = undefinedMH(m.Name, "not_analysed")
 	}
@@ -231,8 +232,9 @@ func analyze(s *sounding.Sounding, cfg Config, a *Analyzer) Result {
 		mlBase = spans[0].top
 	}
 	allowSA := !cfg.MixedLayer.SuperadiabaticDayOnly || r.SunClass == sun.Day
-	r.MixedLayers, r.MixedLayer = pr.mixedLayersFrom(mlBase, n, cfg.MixedLayer, allowSA)
-	r.classifyInversions(pr, spans, n, cfg)
+	r.MixedLayers, r.MixedLayer = pr.mixedLayersFrom(sc.mixedLayers(), mlBase, n, cfg.MixedLayer, allowSA)
+	r.MixedLayers = sc.keepMixedLayers(r.MixedLayers)
+	r.classifyInversions(pr, spans, n, cfg, sc)
 
 	c := cfg.Constants
 	r.Parcel.Theta0K = thermo.PotentialTemperature(pr.t[0]+cfg.Parcel.ExcessK, pr.p[0], c.Kappa, c.P0Pa)
@@ -261,7 +263,7 @@ func (r *Result) bulkStability(pr profile, cfg Config, labelled bool) {
 }
 
 // classifyInversions fills Inversions, SBI and LowestElevated.
-func (r *Result) classifyInversions(pr profile, spans []layerSpan, n int, cfg Config) {
+func (r *Result) classifyInversions(pr profile, spans []layerSpan, n int, cfg Config, sc *scratch) {
 	if len(spans) == 0 {
 		return
 	}
@@ -271,7 +273,7 @@ func (r *Result) classifyInversions(pr profile, spans []layerSpan, n int, cfg Co
 	for _, m := range r.MixedLayers {
 		ctx.mixedLayerTops = append(ctx.mixedLayerTops, m.TopAGLM)
 	}
-	r.Inversions = make([]Inversion, len(spans))
+	r.Inversions = sc.inversions(len(spans))
 	for i, sp := range spans {
 		v := pr.inversionFrom(sp, n, cfg.SatVap)
 		v.Class = classify(v, ctx, cfg.Inversion.Classes)
@@ -293,7 +295,7 @@ func (r *Result) classifyInversions(pr profile, spans []layerSpan, n int, cfg Co
 func (r *Result) levelValues(s *sounding.Sounding, cfg Config, sc *scratch) (p, t []float64) {
 	n := len(s.Levels)
 	c := cfg.Constants
-	buf := make([]float64, 4*n)
+	buf := sc.floats(4 * n)
 	r.HeightAGLM, r.ThetaK, r.ThetaVK, r.MixingRatioKgKg = buf[:n:n], buf[n:2*n:2*n], buf[2*n:3*n:3*n], buf[3*n:]
 	p, t = sc.floats(n), sc.floats(n)
 	for i := range s.Levels {

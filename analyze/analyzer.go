@@ -3,11 +3,12 @@ package analyze
 import "github.com/sondeclim/sondeclim/sounding"
 
 // Analyzer analyses soundings one after another with one configuration,
-// keeping its working memory (the wind, thermodynamic and gridded
-// profiles, the height integration's order and virtual temperatures, the
-// Richardson numbers) from one sounding to the next, so that analysing a
-// sounding allocates little more than what its Result keeps. Its results
-// are those of Analyze with the same configuration, bit for bit.
+// keeping its memory (the wind, thermodynamic and gridded profiles, the
+// height integration's order and virtual temperatures, the Richardson
+// numbers, and the Result's own slices) from one sounding to the next, so
+// that analysing a sounding allocates little more than the profile the
+// Result hands on (Result.Profile). Its results are those of Analyze with
+// the same configuration, bit for bit.
 //
 // An Analyzer is not safe for concurrent use: give each worker its own.
 type Analyzer struct {
@@ -25,26 +26,99 @@ func NewAnalyzer(cfg Config) *Analyzer {
 }
 
 // Analyze computes the diagnostics of one sounding, as the function
-// Analyze does with the Analyzer's configuration. The Result is the
-// caller's: nothing in it is reused by a later call.
+// Analyze does with the Analyzer's configuration.
+//
+// The Result's slices (HeightM, HeightDerived, HeightAGLM, ThetaK,
+// ThetaVK, MixingRatioKgKg, HeightAnchors, Inversions, MixedLayers and
+// MixingHeights) are the Analyzer's: they hold this sounding's values
+// until the next call, which overwrites them. Read or copy them before
+// then. Result.Profile is the exception: its slices are the caller's, so
+// that profiles can be kept for the afternoon pairing.
 func (a *Analyzer) Analyze(s *sounding.Sounding) Result {
 	a.sc.reset()
 	return analyze(s, a.cfg, a)
 }
 
-// scratch is the working memory of an analysis: slices handed out for one
-// sounding and taken back, all at once, before the next (reset). Nothing
-// a Result keeps comes from it. A nil *scratch allocates each slice.
+// scratch is the memory of an analysis: slices handed out for one
+// sounding and taken back, all at once, before the next (reset). The
+// Result's slices come from it too, except Result.Profile's. A nil
+// *scratch allocates each slice.
 type scratch struct {
-	f     arena[float64]
-	i     arena[int]
-	spans arena[layerSpan]
+	f       arena[float64]
+	i       arena[int]
+	b       arena[bool]
+	spans   arena[layerSpan]
+	anchors arena[HeightAnchor]
+	inv     arena[Inversion]
+	mh      arena[MixingHeight]
+	mixed   []MixedLayer // the mixed layers of the last sounding, kept for its room
 }
 
 func (sc *scratch) reset() {
 	sc.f.reset()
 	sc.i.reset()
+	sc.b.reset()
 	sc.spans.reset()
+	sc.anchors.reset()
+	sc.inv.reset()
+	sc.mh.reset()
+}
+
+// bools returns n false values.
+func (sc *scratch) bools(n int) []bool {
+	if sc == nil {
+		return make([]bool, n)
+	}
+	b := sc.b.take(n)
+	clear(b)
+	return b
+}
+
+// heightAnchors returns an empty slice of anchors with room for n.
+func (sc *scratch) heightAnchors(n int) []HeightAnchor {
+	if sc == nil {
+		return make([]HeightAnchor, 0, n)
+	}
+	return sc.anchors.take(n)[:0]
+}
+
+// inversions returns n inversions, not cleared.
+func (sc *scratch) inversions(n int) []Inversion {
+	if sc == nil {
+		return make([]Inversion, n)
+	}
+	return sc.inv.take(n)
+}
+
+// mixingHeights returns n mixing heights, not cleared.
+func (sc *scratch) mixingHeights(n int) []MixingHeight {
+	if sc == nil {
+		return make([]MixingHeight, n)
+	}
+	return sc.mh.take(n)
+}
+
+// mixedLayers returns an empty slice to append mixed layers to, with the
+// room the last sounding's grew (keepMixedLayers).
+func (sc *scratch) mixedLayers() []MixedLayer {
+	if sc == nil {
+		return nil
+	}
+	return sc.mixed[:0]
+}
+
+// keepMixedLayers keeps the room of out, the slice mixedLayers returned
+// with the layers appended, and returns the layers (nil for none) with no
+// room beyond them.
+func (sc *scratch) keepMixedLayers(out []MixedLayer) []MixedLayer {
+	if len(out) == 0 {
+		return nil
+	}
+	if sc == nil {
+		return out
+	}
+	sc.mixed = out
+	return out[:len(out):len(out)]
 }
 
 // floats returns n float64s, not cleared: the caller writes each before

@@ -75,7 +75,7 @@ func FillHeights(levels []sounding.Level, elevationM float64, c thermo.Constants
 // are computed here; its working slices come from sc.
 func fillHeights(levels []sounding.Level, elevationM float64, c thermo.Constants, f thermo.SatVapFormula, w []float64, sc *scratch) Heights {
 	n := len(levels)
-	h := Heights{HeightM: make([]float64, n), Derived: make([]bool, n), StartIndex: -1}
+	h := Heights{HeightM: sc.floats(n), Derived: sc.bools(n), StartIndex: -1}
 	ord := sc.ints(n)
 	for i := range levels {
 		l := &levels[i]
@@ -126,7 +126,7 @@ func fillHeights(levels []sounding.Level, elevationM float64, c thermo.Constants
 		}
 	}
 	if anchors > 0 {
-		h.Anchors = make([]HeightAnchor, 0, anchors)
+		h.Anchors = sc.heightAnchors(anchors)
 	}
 	h.integrate(levels, ord, tv, start, +1, c)
 	h.integrate(levels, ord, tv, start, -1, c)

@@ -146,15 +146,16 @@ func levelMassMean(p, x []float64) float64 {
 // next search starts at the level above its top, otherwise at the next
 // level. Layers therefore never overlap.
 func (pr profile) mixedLayers(start, n int, cfg MixedLayerConfig, allowSA bool) []MixedLayer {
-	out, _ := pr.mixedLayersFrom(start, n, cfg, allowSA)
+	out, _ := pr.mixedLayersFrom(nil, start, n, cfg, allowSA)
 	return out
 }
 
-// mixedLayersFrom is mixedLayers, also returning mixedLayer(start, …),
-// which it grows first anyway.
-func (pr profile) mixedLayersFrom(start, n int, cfg MixedLayerConfig, allowSA bool) (out []MixedLayer, first MixedLayer) {
+// mixedLayersFrom is mixedLayers, appending the layers to out (empty) and
+// also returning mixedLayer(start, …), which it grows first anyway.
+func (pr profile) mixedLayersFrom(out []MixedLayer, start, n int, cfg MixedLayerConfig, allowSA bool) ([]MixedLayer, MixedLayer) {
+	var first MixedLayer
 	if start >= n-1 {
-		return nil, pr.mixedLayer(start, n, cfg, allowSA)
+		return out, pr.mixedLayer(start, n, cfg, allowSA)
 	}
 	for b := start; b < n-1; {
 		ml := pr.mixedLayer(b, n, cfg, allowSA)

@@ -11,16 +11,18 @@ import (
 )
 
 // result is one analysed sounding: its soundings-table row and what the
-// afternoon pairing needs. Its other rows go to a schema.PartRows.
+// afternoon pairing needs (the profile, whose slices are the caller's; the
+// rest of an Analyzer's Result is overwritten by its next sounding). Its
+// other rows go to a schema.PartRows.
 type result struct {
 	sounding schema.SoundingRow
 	status   analyze.Status
-	analysis analyze.Result
+	profile  analyze.ParcelProfile
 }
 
 // analyzeOne runs the analysis of one sounding, using only the values its
 // quality control allows, with the worker's Analyzer az, and appends its
-// rows to out.
+// rows to out, which it does before az analyses another sounding.
 func analyzeOne(s *sounding.Sounding, rep qc.Report, az *analyze.Analyzer, useSuspect bool, out *schema.PartRows) result {
 	var res analyze.Result
 	if rep.Usable() {
@@ -32,7 +34,7 @@ func analyzeOne(s *sounding.Sounding, rep qc.Report, az *analyze.Analyzer, useSu
 		res.Status = analyze.Status("qc_" + rep.Status)
 	}
 	row := schema.AppendSounding(out, s, rep, &res)
-	return result{sounding: row, status: res.Status, analysis: res}
+	return result{sounding: row, status: res.Status, profile: res.Profile}
 }
 
 // afternoonRows pairs the morning soundings of one station-year with the
@@ -51,7 +53,7 @@ func afternoonRows(results, context []result, maxima analyze.DailyMaxima, cfg an
 	for i := range all {
 		r := &all[i]
 		days[i] = analyze.DaySounding{StationID: r.sounding.StationID, LaunchTime: r.sounding.LaunchTime,
-			LongitudeDeg: r.sounding.LongitudeDeg, Profile: r.analysis.Profile}
+			LongitudeDeg: r.sounding.LongitudeDeg, Profile: r.profile}
 		if r.status != analyze.StatusOK {
 			days[i].LongitudeDeg = math.NaN() // not analysable: neither morning nor afternoon
 		}
