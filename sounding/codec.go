@@ -4,6 +4,7 @@ import (
 	"encoding/binary"
 	"errors"
 	"math"
+	"slices"
 	"time"
 )
 
@@ -44,36 +45,60 @@ func AppendBinary(b []byte, s *Sounding, source bool) []byte {
 		b = append(b, 0)
 	}
 	b = binary.AppendUvarint(b, uint64(len(s.Levels)))
+	// Room for every level at its longest, reserved once; each level is
+	// then written by index into the reserved bytes instead of by a chain
+	// of appends (AppendBinary ran about a third of a microsecond per
+	// level, each level hashed once per ingest).
+	b = slices.Grow(b, len(s.Levels)*maxLevelBytes)
 	for i := range s.Levels {
-		l := &s.Levels[i]
-		b = append(b, byte(l.Kind), flags(l.Tropopause, false, false))
-		// A bitmap says which of the eleven values are present (not NaN);
-		// only those follow, since archive levels miss many of them. The
-		// displacements came last, so a level without them is encoded as
-		// before they existed (and its hash is unchanged).
-		vals := [...]float64{l.ElapsedS, l.PressurePa, l.HeightM, l.TemperatureK, l.DewpointK,
-			l.DewpointDepressionK, l.RelHumidityPct, l.WindDirectionDeg, l.WindSpeedMS,
-			l.LatDisplacementDeg, l.LonDisplacementDeg}
-		var present uint16
-		for k, v := range vals {
-			if !math.IsNaN(v) {
-				present |= 1 << k
-			}
-		}
-		b = binary.LittleEndian.AppendUint16(b, present)
-		for k, v := range vals {
-			if present&(1<<k) != 0 {
-				b = appendFloat(b, v)
-			}
-		}
-		for v := range NumVars {
-			b = append(b, byte(l.Status[v]), l.UpstreamTier[v])
-		}
-		if source {
-			b = binary.AppendVarint(b, int64(l.Line))
-		}
+		b = appendLevel(b, &s.Levels[i], source)
 	}
 	return b
+}
+
+// maxLevelBytes bounds the encoding of one level: kind and flags, the
+// bitmap, eleven values, status and tier of each variable, and the line
+// as a varint.
+const maxLevelBytes = 2 + 2 + 11*8 + 2*int(NumVars) + binary.MaxVarintLen64
+
+// appendLevel appends the encoding of one level: kind, flags, a bitmap of
+// the eleven values present (not NaN), those values, the status and tier
+// of each variable, and with source the line.
+//
+// A bitmap says which of the eleven values are present; only those
+// follow, since archive levels miss many of them. The displacements came
+// last, so a level without them is encoded as before they existed (and
+// its hash is unchanged).
+func appendLevel(b []byte, l *Level, source bool) []byte {
+	n := len(b)
+	b = slices.Grow(b, maxLevelBytes)[:n+maxLevelBytes]
+	e := b[n : n+maxLevelBytes]
+	e[0], e[1] = byte(l.Kind), flags(l.Tropopause, false, false)
+	// Every value's bits are written at the next free place; the place
+	// advances past them only when the value is present (not NaN), so an
+	// absent value is overwritten by the next one or left beyond the end.
+	at, present := 4, uint16(0)
+	at, present = putValue(e, at, present, 0, l.ElapsedS)
+	at, present = putValue(e, at, present, 1, l.PressurePa)
+	at, present = putValue(e, at, present, 2, l.HeightM)
+	at, present = putValue(e, at, present, 3, l.TemperatureK)
+	at, present = putValue(e, at, present, 4, l.DewpointK)
+	at, present = putValue(e, at, present, 5, l.DewpointDepressionK)
+	at, present = putValue(e, at, present, 6, l.RelHumidityPct)
+	at, present = putValue(e, at, present, 7, l.WindDirectionDeg)
+	at, present = putValue(e, at, present, 8, l.WindSpeedMS)
+	at, present = putValue(e, at, present, 9, l.LatDisplacementDeg)
+	at, present = putValue(e, at, present, 10, l.LonDisplacementDeg)
+	binary.LittleEndian.PutUint16(e[2:4], present)
+	st := (*[2 * NumVars]byte)(e[at : at+2*int(NumVars)])
+	for v := range NumVars {
+		st[2*v], st[2*v+1] = byte(l.Status[v]), l.UpstreamTier[v]
+	}
+	at += 2 * int(NumVars)
+	if source {
+		at += binary.PutVarint(e[at:], int64(l.Line))
+	}
+	return b[:n+at]
 }
 
 // AppendSourceBinary appends the source position of s and of its levels:
@@ -87,6 +112,18 @@ func AppendSourceBinary(b []byte, s *Sounding) []byte {
 		b = binary.AppendVarint(b, int64(s.Levels[i].Line))
 	}
 	return b
+}
+
+// putValue writes the bits of v at e[at:] and returns the place after it
+// with bit k of present set when v is present (not NaN), or at and present
+// unchanged otherwise.
+func putValue(e []byte, at int, present uint16, k uint, v float64) (int, uint16) {
+	binary.LittleEndian.PutUint64(e[at:], math.Float64bits(v))
+	var p int
+	if v == v {
+		p = 1
+	}
+	return at + 8*p, present | uint16(p)<<k
 }
 
 func flags(a, b, c bool) byte {
