@@ -1,7 +1,7 @@
 package archivev2
 
 import (
-	"bufio"
+	"bytes"
 	"errors"
 	"io"
 
@@ -45,64 +45,156 @@ var ErrNoHeaders = errors.New("archive-v2: no readable header record")
 // Index reads only the header records in full, so it runs at close to the
 // speed of splitting lines; it exists so that callers can find a file's
 // station-years first and decode each one later, from the file itself.
+//
+// The input is read in chunks of indexChunk bytes and searched for '#' (a
+// header is the only line that starts with it) and line ends with the
+// standard library's vectorised byte search, instead of line by line.
 func Index(r io.Reader, fn func(Segment) error) error {
-	br := bufio.NewReaderSize(ingest.LineEnds(r), 1<<20)
-	var (
-		off, lineNo int64
-		cur         Segment
-		have        bool // cur has a key
-		started     bool // some good header was seen
-	)
-	cur.FirstLine = 1
+	ix := indexer{fn: fn, hdr: make([]byte, 0, maxLine+1), lineNo: 1}
+	ix.cur.FirstLine = 1
+	rd := ingest.LineEnds(r)
+	buf := make([]byte, indexChunk)
 	for {
-		start := off
-		line, err := br.ReadSlice('\n')
-		n := int64(len(line))
-		long := false
-		for err == bufio.ErrBufferFull {
-			long = true
-			var more []byte
-			more, err = br.ReadSlice('\n')
-			n += int64(len(more))
-		}
-		if n == 0 && err == io.EOF {
-			break
-		}
-		if err != nil && err != io.EOF {
-			return err
-		}
-		off += n
-		lineNo++
-		if line = ingest.TrimBOM(line); len(line) > 0 && line[0] == '#' {
-			header := trimEOL(line)
-			var id string
-			year, head, ok := 0, false, false
-			if !long && n <= maxLine {
-				if s, perr := parseHeader(header); perr == nil {
-					id, year, head, ok = s.StationID, s.NominalTime.Year(), sounding.InYearHead(s.NominalTime), true
-				}
+		n, err := rd.Read(buf)
+		if n > 0 {
+			if ferr := ix.scan(buf[:n]); ferr != nil {
+				return ferr
 			}
-			if ok && have && (id != cur.StationID || year != cur.Year || head != cur.Head) {
-				cur.Size = start - cur.Offset
-				if err := fn(cur); err != nil {
-					return err
-				}
-				cur = Segment{Offset: start, FirstLine: int(lineNo)}
-			}
-			if ok {
-				cur.StationID, cur.Year, cur.Head, have, started = id, year, head, true, true
-			}
-			cur.Headers++
 		}
 		if err == io.EOF {
 			break
 		}
+		if err != nil {
+			return err
+		}
 	}
-	if !started {
+	if ix.state == lineHeader {
+		if err := ix.header(); err != nil {
+			return err
+		}
+	}
+	if !ix.started {
 		return ErrNoHeaders
 	}
-	cur.Size = off - cur.Offset
-	return fn(cur)
+	ix.cur.Size = ix.off - ix.cur.Offset
+	return fn(ix.cur)
+}
+
+// indexChunk is the size of the reads Index makes.
+const indexChunk = 1 << 20
+
+// What Index knows of the line it is in.
+const (
+	lineFresh  = iota // at the start of a line, or inside a proper prefix of BOM
+	lineHeader        // the line is a header ('#', after at most one BOM)
+	lineOther         // any other line
+)
+
+// indexer is the state of Index between chunks.
+type indexer struct {
+	fn  func(Segment) error
+	cur Segment
+	// off is the bytes scanned so far; lineNo and lineOff the 1-based
+	// number and the offset of the line being scanned.
+	off, lineOff int64
+	lineNo       int
+	state        int
+	have         bool   // cur has a key
+	started      bool   // some good header was seen
+	hdr          []byte // the header line's first bytes (up to maxLine+1)
+	hdrLen       int64  // the header line's length, line end included
+	bom          int    // bytes of a BOM seen at the start of a fresh line
+}
+
+// scan consumes one chunk c of the input.
+func (ix *indexer) scan(c []byte) error {
+	base := ix.off
+	ix.off += int64(len(c))
+	for i := 0; i < len(c); {
+		switch ix.state {
+		case lineFresh:
+			// Decide from the line's first bytes: '#' or BOM then '#'.
+			b := c[i]
+			switch {
+			case b == '#' && (ix.bom == 0 || ix.bom == len(ingest.BOM)):
+				ix.state, ix.hdr, ix.hdrLen = lineHeader, ix.hdr[:0], int64(ix.bom)
+				ix.hdr = append(ix.hdr, ingest.BOM[:ix.bom]...)
+				continue
+			case ix.bom < len(ingest.BOM) && b == ingest.BOM[ix.bom]:
+				ix.bom++
+				i++
+				continue
+			}
+			ix.state = lineOther
+		case lineOther:
+			// Lines up to the next '#' are all other lines; the line
+			// holding the '#' is a header if it starts there (after at
+			// most one BOM).
+			rest := c[i:]
+			k := bytes.IndexByte(rest, '#')
+			if k < 0 {
+				k = len(rest)
+			}
+			last := bytes.LastIndexByte(rest[:k], '\n')
+			if last < 0 {
+				if k == len(rest) {
+					return nil // the line goes on into the next chunk
+				}
+				i += k + 1 // a '#' inside this other line
+				continue
+			}
+			ix.lineNo += bytes.Count(rest[:last], []byte{'\n'}) + 1
+			ix.lineOff = base + int64(i+last+1)
+			ix.state, ix.bom = lineFresh, 0
+			i += last + 1
+		case lineHeader:
+			rest := c[i:]
+			e := bytes.IndexByte(rest, '\n')
+			end := e + 1
+			if e < 0 {
+				end = len(rest)
+			}
+			if room := maxLine + 1 - len(ix.hdr); room > 0 {
+				ix.hdr = append(ix.hdr, rest[:min(end, room)]...)
+			}
+			ix.hdrLen += int64(end)
+			i += end
+			if e < 0 {
+				return nil
+			}
+			if err := ix.header(); err != nil {
+				return err
+			}
+			ix.lineNo++
+			ix.lineOff = base + int64(i)
+			ix.state, ix.bom = lineFresh, 0
+		}
+	}
+	return nil
+}
+
+// header handles a complete header line (ix.hdr, ix.hdrLen bytes long) as
+// Index does.
+func (ix *indexer) header() error {
+	var id string
+	year, head, ok := 0, false, false
+	if ix.hdrLen <= maxLine {
+		if s, perr := parseHeader(trimEOL(ingest.TrimBOM(ix.hdr))); perr == nil {
+			id, year, head, ok = s.StationID, s.NominalTime.Year(), sounding.InYearHead(s.NominalTime), true
+		}
+	}
+	if ok && ix.have && (id != ix.cur.StationID || year != ix.cur.Year || head != ix.cur.Head) {
+		ix.cur.Size = ix.lineOff - ix.cur.Offset
+		if err := ix.fn(ix.cur); err != nil {
+			return err
+		}
+		ix.cur = Segment{Offset: ix.lineOff, FirstLine: ix.lineNo}
+	}
+	if ok {
+		ix.cur.StationID, ix.cur.Year, ix.cur.Head, ix.have, ix.started = id, year, head, true, true
+	}
+	ix.cur.Headers++
+	return nil
 }
 
 func trimEOL(b []byte) []byte {
