@@ -1,9 +1,7 @@
 package analyze
 
 import (
-	"cmp"
 	"math"
-	"slices"
 	"sort"
 
 	"github.com/sondeclim/sondeclim/physics/thermo"
@@ -77,6 +75,7 @@ func fillHeights(levels []sounding.Level, elevationM float64, c thermo.Constants
 	n := len(levels)
 	h := Heights{HeightM: sc.floats(n), Derived: sc.bools(n), StartIndex: -1}
 	ord := sc.ints(n)
+	sorted := true // the pressures taken are finite and positive: in order is p[previous] ≥ p[next]
 	for i := range levels {
 		l := &levels[i]
 		h.HeightM[i] = l.HeightM
@@ -84,13 +83,16 @@ func fillHeights(levels []sounding.Level, elevationM float64, c thermo.Constants
 			h.HeightM[i] = math.NaN()
 		}
 		if l.PressurePa > 0 && !math.IsInf(l.PressurePa, 0) {
+			if k := len(ord); k > 0 {
+				sorted = sorted && levels[ord[k-1]].PressurePa >= l.PressurePa
+			}
 			ord = append(ord, i)
 		}
 	}
 	if len(ord) == 0 {
 		return h
 	}
-	if !slices.IsSortedFunc(ord, func(a, b int) int { return cmp.Compare(levels[b].PressurePa, levels[a].PressurePa) }) {
+	if !sorted {
 		sort.SliceStable(ord, func(a, b int) bool { return levels[ord[a]].PressurePa > levels[ord[b]].PressurePa })
 	}
 	tv := virtualTemperatures(sc.floats(len(ord)), levels, ord, c, f, w)

@@ -1,9 +1,7 @@
 package analyze
 
 import (
-	"cmp"
 	"math"
-	"slices"
 	"sort"
 
 	"github.com/sondeclim/sondeclim/physics/thermo"
@@ -29,21 +27,33 @@ type profile struct {
 // except z and θ, which the Result keeps (Result.Profile).
 func (r *Result) buildProfile(s *sounding.Sounding, p, t []float64, wp windProfile, sc *scratch) profile {
 	idx := sc.ints(len(p))
+	// The pressures taken are finite and positive, so "in order" is
+	// p[previous] ≥ p[next]; levels in order need no (stable) sort, and
+	// without a repeated pressure none is dropped.
+	sorted, equal := true, false
 	for i := range p {
 		if p[i] > 0 && t[i] > 0 && !math.IsInf(p[i], 0) && !math.IsInf(t[i], 0) && !math.IsNaN(r.HeightAGLM[i]) {
+			if n := len(idx); n > 0 {
+				q := p[idx[n-1]]
+				sorted = sorted && q >= p[i]
+				equal = equal || q == p[i]
+			}
 			idx = append(idx, i)
 		}
 	}
-	if !slices.IsSortedFunc(idx, func(a, b int) int { return cmp.Compare(p[b], p[a]) }) {
+	if !sorted {
 		sort.SliceStable(idx, func(a, b int) bool { return p[idx[a]] > p[idx[b]] })
 	}
-	k := 0
-	for _, i := range idx {
-		if k > 0 && p[i] == p[idx[k-1]] {
-			continue
+	k := len(idx)
+	if !sorted || equal {
+		k = 0
+		for _, i := range idx {
+			if k > 0 && p[i] == p[idx[k-1]] {
+				continue
+			}
+			idx[k] = i
+			k++
 		}
-		idx[k] = i
-		k++
 	}
 	idx = idx[:k]
 	pr := profile{idx: idx}

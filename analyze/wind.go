@@ -106,9 +106,12 @@ func (r *Result) buildWindProfile(s *sounding.Sounding, sc *scratch) windProfile
 	} else if !equal {
 		return w
 	}
-	k := 0
-	for i := range w.z {
-		if k > 0 && w.z[i] == w.z[k-1] {
+	k := min(1, len(w.z)) // up to the first repeated height, each level stays where it is
+	for k < len(w.z) && w.z[k] != w.z[k-1] {
+		k++
+	}
+	for i := k; i < len(w.z); i++ {
+		if w.z[i] == w.z[k-1] {
 			continue
 		}
 		w.z[k], w.u[k], w.v[k] = w.z[i], w.u[i], w.v[i]
