@@ -35,8 +35,27 @@ func levelWind(l *sounding.Level) (u, v float64, ok bool) {
 	if !(s >= 0 && s <= 150) || !(d >= 0 && d <= 360) {
 		return math.NaN(), math.NaN(), false
 	}
-	sd, cd := math.Sincos(d * math.Pi / 180)
+	sd, cd := sincosDeg(d)
 	return -s * sd, -s * cd, true
+}
+
+// sincosWhole holds math.Sincos(d·π/180) for the whole degrees d = 0…360,
+// the directions most sources report.
+var sincosWhole = func() (t [361][2]float64) {
+	for i := range t {
+		t[i][0], t[i][1] = math.Sincos(float64(i) * math.Pi / 180)
+	}
+	return t
+}()
+
+// sincosDeg returns math.Sincos(d·π/180) for a direction d in degrees
+// (0 ≤ d ≤ 360), from the table for whole degrees (the same expression on
+// the same bits, computed once), else computed.
+func sincosDeg(d float64) (sin, cos float64) {
+	if i := int(d); float64(i) == d && i >= 0 && i <= 360 {
+		return sincosWhole[i][0], sincosWhole[i][1]
+	}
+	return math.Sincos(d * math.Pi / 180)
 }
 
 // windDirection returns the direction the wind blows from, in degrees
