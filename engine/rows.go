@@ -3,6 +3,7 @@ package engine
 import (
 	"math"
 	"slices"
+	"sync"
 
 	"github.com/sondeclim/sondeclim/analyze"
 	"github.com/sondeclim/sondeclim/qc"
@@ -20,13 +21,24 @@ type result struct {
 	profile  analyze.ParcelProfile
 }
 
+// appliedCopies holds the QC-applied copies (*sounding.Sounding) that
+// analyzeOne analyses, one sounding's memory serving the next: the copy
+// is read only by the Analyzer, whose Result holds slices of its own and
+// nothing of its input.
+var appliedCopies sync.Pool
+
 // analyzeOne runs the analysis of one sounding, using only the values its
 // quality control allows, with the worker's Analyzer az, and appends its
 // rows to out, which it does before az analyses another sounding.
 func analyzeOne(s *sounding.Sounding, rep qc.Report, az *analyze.Analyzer, useSuspect bool, out *schema.PartRows) result {
 	var res analyze.Result
 	if rep.Usable() {
-		res = az.Analyze(qc.Apply(s, rep, useSuspect))
+		c, _ := appliedCopies.Get().(*sounding.Sounding)
+		if c == nil {
+			c = new(sounding.Sounding)
+		}
+		res = az.Analyze(qc.ApplyInto(c, s, rep, useSuspect))
+		appliedCopies.Put(c)
 	} else {
 		// Excluded by QC: still written, counted as attempted but not
 		// valid, with the QC reason as its analysis status.

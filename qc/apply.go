@@ -33,14 +33,28 @@ func Apply(s *sounding.Sounding, r Report, useSuspect bool) *sounding.Sounding {
 	if s == nil {
 		return nil
 	}
-	c := *s
-	c.Levels = append([]sounding.Level(nil), s.Levels...)
+	return ApplyInto(new(sounding.Sounding), s, r, useSuspect)
+}
+
+// ApplyInto is Apply writing the copy into dst, whose Levels' memory it
+// reuses when large enough, and returns dst (nil for a nil s). Everything
+// dst held before is overwritten; dst must not be s. A caller that
+// analyses one copy at a time can so keep one copy's memory instead of
+// allocating and zeroing every sounding's levels again; the copy is
+// valid until dst is next used.
+func ApplyInto(dst, s *sounding.Sounding, r Report, useSuspect bool) *sounding.Sounding {
+	if s == nil {
+		return nil
+	}
+	levels := dst.Levels[:0]
+	*dst = *s
+	dst.Levels = append(levels, s.Levels...)
+	c := dst
 	aligned := len(r.Flags) == len(c.Levels)
-	drop := func(f Flag) bool { return f == Bad || (f == Suspect && !useSuspect) }
 	for i := range c.Levels {
 		l := &c.Levels[i]
-		if aligned {
-			applyLevel(l, r.Flags[i], drop)
+		if aligned && unusable(&r.Flags[i]) {
+			applyLevel(l, r.Flags[i], useSuspect)
 		}
 		if l.RelHumidityPct > 100 {
 			l.RelHumidityPct = 100
@@ -59,11 +73,25 @@ func Apply(s *sounding.Sounding, r Report, useSuspect bool) *sounding.Sounding {
 			}
 		}
 	}
-	return &c
+	return c
 }
 
-// applyLevel sets the values of l that drop rejects to NaN.
-func applyLevel(l *sounding.Level, fl [sounding.NumVars]Flag, drop func(Flag) bool) {
+// unusable reports whether any flag of fl is Suspect, Bad or Corrected:
+// whether applyLevel may have anything to drop. Good (0) and Missing (1)
+// have no bit above the lowest and the others have one, so one test of
+// the flags or-ed together tells.
+func unusable(fl *[sounding.NumVars]Flag) bool {
+	var or Flag
+	for _, f := range fl {
+		or |= f
+	}
+	return or&^1 != 0
+}
+
+// applyLevel sets the values of l whose flag is Bad, or Suspect unless
+// useSuspect, to NaN.
+func applyLevel(l *sounding.Level, fl [sounding.NumVars]Flag, useSuspect bool) {
+	drop := func(f Flag) bool { return f == Bad || (f == Suspect && !useSuspect) }
 	if drop(fl[sounding.VarPressure]) {
 		l.PressurePa, l.TemperatureK, l.DewpointK = nan, nan, nan
 		l.DewpointDepressionK, l.RelHumidityPct = nan, nan

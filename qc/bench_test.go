@@ -3,6 +3,8 @@ package qc
 import (
 	"testing"
 
+	"github.com/sondeclim/sondeclim/sounding"
+
 	"github.com/sondeclim/sondeclim/internal/benchcpu"
 )
 
@@ -41,6 +43,29 @@ func BenchmarkApplySterling(b *testing.B) {
 	for b.Loop() {
 		for i, s := range ss {
 			if c := Apply(s, reps[i], false); len(c.Levels) != len(s.Levels) {
+				b.Fatal("levels lost")
+			}
+		}
+	}
+	benchcpu.PerLevel(b, cpu0, levels)
+}
+
+// BenchmarkApplyIntoSterling is BenchmarkApplySterling with one reused
+// copy, as the engine applies reports.
+func BenchmarkApplyIntoSterling(b *testing.B) {
+	ss := sterling(b)
+	cfg := DefaultConfig()
+	reps := make([]Report, len(ss))
+	for i, s := range ss {
+		reps[i] = Check(s, cfg)
+	}
+	levels := benchcpu.Levels(ss)
+	dst := new(sounding.Sounding)
+	b.ReportAllocs()
+	cpu0 := benchcpu.Used()
+	for b.Loop() {
+		for i, s := range ss {
+			if c := ApplyInto(dst, s, reps[i], false); len(c.Levels) != len(s.Levels) {
 				b.Fatal("levels lost")
 			}
 		}

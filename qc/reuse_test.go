@@ -7,6 +7,7 @@ import (
 	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"reflect"
 	"sync"
 	"testing"
 
@@ -213,5 +214,159 @@ func TestScratchReuse(t *testing.T) {
 	wg.Wait()
 	if errs[0]+errs[1] > 0 {
 		t.Errorf("Check through the pool: %d reports differ from fresh memory", errs[0]+errs[1])
+	}
+}
+
+// applyBefore is Apply as it was before ApplyInto (every level copied
+// into a new slice, applyLevel on every level of an aligned report),
+// kept to check that the reusing version gives the same copies.
+// Scaffolding: the code's own earlier form, not an outside source.
+func applyBefore(s *sounding.Sounding, r Report, useSuspect bool) *sounding.Sounding {
+	if s == nil {
+		return nil
+	}
+	c := *s
+	c.Levels = append([]sounding.Level(nil), s.Levels...)
+	aligned := len(r.Flags) == len(c.Levels)
+	for i := range c.Levels {
+		l := &c.Levels[i]
+		if aligned {
+			applyLevel(l, r.Flags[i], useSuspect)
+		}
+		if l.RelHumidityPct > 100 {
+			l.RelHumidityPct = 100
+		}
+	}
+	if aligned {
+		for _, f := range r.Findings {
+			if f.Severity == Corrected && f.Level >= 0 && f.Level < len(c.Levels) && f.Var == sounding.VarTemperature &&
+				r.Flags[f.Level][f.Var] == Corrected {
+				l := &c.Levels[f.Level]
+				l.TemperatureK = f.NewValue
+				l.Status[sounding.VarTemperature] = sounding.Derived
+				if l.Status[sounding.VarDewpointDepression] == sounding.Reported && !math.IsNaN(l.DewpointDepressionK) {
+					l.DewpointK = f.NewValue - l.DewpointDepressionK
+				}
+			}
+		}
+	}
+	return &c
+}
+
+// sameBits reports whether a and b hold the same values, floats compared
+// bit for bit (so NaN equals NaN and −0 differs from 0), pointers by
+// address.
+func sameBits(a, b reflect.Value) bool {
+	switch a.Kind() {
+	case reflect.Float64, reflect.Float32:
+		return math.Float64bits(a.Float()) == math.Float64bits(b.Float())
+	case reflect.Struct:
+		for i := range a.NumField() {
+			if !sameBits(a.Field(i), b.Field(i)) {
+				return false
+			}
+		}
+		return true
+	case reflect.Array:
+		for i := range a.Len() {
+			if !sameBits(a.Index(i), b.Index(i)) {
+				return false
+			}
+		}
+		return true
+	case reflect.Slice:
+		if a.Len() != b.Len() || a.IsNil() != b.IsNil() {
+			return false
+		}
+		for i := range a.Len() {
+			if !sameBits(a.Index(i), b.Index(i)) {
+				return false
+			}
+		}
+		return true
+	case reflect.Pointer, reflect.Map, reflect.Func, reflect.Chan, reflect.UnsafePointer:
+		return a.Pointer() == b.Pointer()
+	case reflect.Interface:
+		return a.IsNil() == b.IsNil() && (a.IsNil() || sameBits(a.Elem(), b.Elem()))
+	case reflect.String:
+		return a.String() == b.String()
+	case reflect.Bool:
+		return a.Bool() == b.Bool()
+	case reflect.Int, reflect.Int8, reflect.Int16, reflect.Int32, reflect.Int64:
+		return a.Int() == b.Int()
+	}
+	return a.Uint() == b.Uint()
+}
+
+// TestApplyIntoReuse: ApplyInto with one reused copy gives, for every
+// real validation sounding (PROVENANCE.md) and copies with invented
+// faults, in shuffled order and with both settings of useSuspect, the
+// same copy as Apply and as Apply's earlier form (applyBefore), bit for
+// bit, and leaves the source unchanged. The reused copy's levels are
+// poisoned between calls. Scaffolding for the reuse, as
+// TestScratchReuse; what Apply drops is tested in TestApply.
+func TestApplyIntoReuse(t *testing.T) {
+	ss := realSoundings(t)
+	ss = append(ss, perturbed(ss)...)
+	cfg := DefaultConfig()
+	reps := make([]Report, len(ss))
+	for i, s := range ss {
+		reps[i] = Check(s, cfg)
+	}
+	order := rand.New(rand.NewPCG(3, 16)).Perm(len(ss))
+	dst := new(sounding.Sounding)
+	bad, dropped := 0, 0
+	for n, i := range order {
+		s, useSuspect := ss[i], n%3 == 0
+		before := clone(s)
+		want := applyBefore(s, reps[i], useSuspect)
+		for k := range dst.Levels[:cap(dst.Levels)] {
+			dst.Levels[:cap(dst.Levels)][k] = sounding.Level{PressurePa: 1e300, Kind: 9, Line: -7}
+		}
+		dst.StationID = "poisoned"
+		got := ApplyInto(dst, s, reps[i], useSuspect)
+		plain := Apply(s, reps[i], useSuspect)
+		if got != dst {
+			t.Fatal("ApplyInto did not return dst")
+		}
+		for k := range want.Levels {
+			if !sameBits(reflect.ValueOf(want.Levels[k]), reflect.ValueOf(s.Levels[k])) {
+				dropped++
+			}
+		}
+		w, g, p := *want, *got, *plain
+		ok := sameBits(reflect.ValueOf(w.Levels), reflect.ValueOf(g.Levels)) &&
+			sameBits(reflect.ValueOf(w.Levels), reflect.ValueOf(p.Levels))
+		w.Levels, g.Levels, p.Levels = nil, nil, nil
+		ok = ok && sameBits(reflect.ValueOf(w), reflect.ValueOf(g)) && sameBits(reflect.ValueOf(w), reflect.ValueOf(p)) &&
+			sameBits(reflect.ValueOf(*before).FieldByName("Levels"), reflect.ValueOf(*s).FieldByName("Levels"))
+		if !ok {
+			if bad++; bad <= 3 {
+				t.Errorf("sounding %d (%s %s, useSuspect %v): copies differ", i, s.StationID, s.LaunchTime, useSuspect)
+			}
+		}
+	}
+	if dropped == 0 {
+		t.Error("no level changed by Apply: the test compares nothing but copies")
+	}
+	if ApplyInto(dst, nil, Report{}, false) != nil {
+		t.Error("ApplyInto of nil: want nil")
+	}
+}
+
+// TestUnusable: the word test of ApplyInto agrees with the flags' meaning
+// for each flag alone at each variable.
+func TestUnusable(t *testing.T) {
+	for v := range sounding.NumVars {
+		for _, f := range []Flag{Good, Missing, Suspect, Bad, Corrected} {
+			var fl [sounding.NumVars]Flag
+			for k := range fl {
+				fl[k] = Missing
+			}
+			fl[v] = f
+			if got, want := unusable(&fl), f == Suspect || f == Bad || f == Corrected; got != want {
+				t.Errorf("%s at %s: unusable %v, want %v", f, v, got, want)
+			}
+		}
 	}
 }
