@@ -159,7 +159,15 @@ func analyze(s *sounding.Sounding, cfg Config, a *Analyzer) Result {
 	} else {
 		constantSet, satVap, heatRef = cfg.Constants.ID(), cfg.SatVap.String(), cfg.HeatDeficit.Label()
 	}
-	r := Result{Status: StatusOK, ConstantSet: constantSet, SatVap: satVap,
+	// r is the Analyzer's own when there is one: the method input keeps
+	// a pointer to it, which would otherwise move every Result to the heap.
+	var r *Result
+	if a != nil {
+		r = &a.res
+	} else {
+		r = new(Result)
+	}
+	*r = Result{Status: StatusOK, ConstantSet: constantSet, SatVap: satVap,
 		SurfaceIndex: -1, CeilingAGLM: nan, LowestLevelAGLM: nan, SurfacePressurePa: nan,
 		SBI: noInversion(), MixedLayer: noMixedLayer(),
 		Parcel:          Parcel{Status: MixingHeightUndefined, HeightAGLM: nan, Theta0K: nan},
@@ -187,10 +195,10 @@ func analyze(s *sounding.Sounding, cfg Config, a *Analyzer) Result {
 	switch {
 	case !cfg.valid():
 		r.Status = StatusInvalidConfig
-		return r
+		return *r
 	case s == nil || len(s.Levels) == 0:
 		r.Status = StatusNoLevels
-		return r
+		return *r
 	}
 	p, t := r.levelValues(s, cfg, sc)
 	wp := r.buildWindProfile(s, sc)
@@ -200,14 +208,14 @@ func analyze(s *sounding.Sounding, cfg Config, a *Analyzer) Result {
 	pr := r.buildProfile(s, p, t, wp, sc)
 	if len(pr.idx) == 0 {
 		r.Status = StatusNoThermoLevels
-		return r
+		return *r
 	}
 	r.SurfaceIndex = pr.idx[0]
 	r.LowestLevelAGLM = pr.z[0]
 	r.surfacePressure(s, pr, cfg)
 	if !math.IsNaN(s.ElevationM) && !r.StandardAnchor && pr.z[0] > cfg.MaxSurfaceGapM {
 		r.Status = StatusNoSurfaceLevel
-		return r
+		return *r
 	}
 	covered := 0
 	for _, pk := range pr.p {
@@ -217,7 +225,7 @@ func analyze(s *sounding.Sounding, cfg Config, a *Analyzer) Result {
 	}
 	if covered < cfg.MinLevels {
 		r.Status = StatusTooFewLevels
-		return r
+		return *r
 	}
 	zc, n := pr.ceiling(cfg)
 	r.CeilingAGLM = zc
@@ -245,7 +253,7 @@ func analyze(s *sounding.Sounding, cfg Config, a *Analyzer) Result {
 	}
 	r.mixingHeights(pr, n, cfg, in, sc)
 	r.ventilation(wp, cfg)
-	return r
+	return *r
 }
 
 // bulkStability fills HeatDeficit, StableFraction and DeepStable from the

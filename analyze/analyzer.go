@@ -17,6 +17,7 @@ type Analyzer struct {
 	constantSet, satVap, heatRef string
 	sc                           scratch
 	in                           methodInput
+	res                          Result // the Result being filled (Analyze returns a copy)
 }
 
 // NewAnalyzer returns an Analyzer for the configuration cfg.
