@@ -64,7 +64,7 @@ var scratches sync.Pool
 // needs and overwritten) before use, so no value of an earlier sounding
 // is read. Each slice has one user at a time; the comments name them.
 type scratch struct {
-	work        []float64 // the state's p, z, t, td, dpd and tv cache (9 floats a level)
+	work        []float64 // the state's p, z, t, td, dpd, tv and ln caches (12 floats a level)
 	idx         []int     // the levels a check walks: pressureOrder, hydrostatic's anchors, spikes, superadiabatic, coverage; heightOrder's levels with a pressure
 	idx2        []int     // heightOrder's levels without a pressure
 	tails, prev []int     // longestRun
@@ -84,8 +84,10 @@ type state struct {
 	// heights only), t and td in K, dpd in K.
 	p, z, t, td, dpd []float64
 	// tv caches each level's virtual temperature with the working values
-	// it was computed from (see virtualTAt).
+	// it was computed from (see virtualTAt); ln the logarithms of the
+	// pressure ratios of neighbouring levels (see lnRatio).
 	tv      tvCache
+	ln      lnCache
 	elev    float64 // station elevation, gpm; NaN if unknown
 	surface int     // index of the first surface level, −1 if none
 	sc      *scratch
@@ -102,14 +104,16 @@ func newStateIn(s *sounding.Sounding, cfg Config, sc *scratch) *state {
 	}
 	n := len(s.Levels)
 	st.rep.Flags = make([][sounding.NumVars]Flag, n)
-	sc.work = slices.Grow(sc.work[:0], 9*n)[:9*n]
+	sc.work = slices.Grow(sc.work[:0], 12*n)[:12*n]
 	buf := sc.work
 	st.p, st.z, st.t, st.td, st.dpd = buf[:n], buf[n:2*n], buf[2*n:3*n], buf[3*n:4*n], buf[4*n:5*n]
-	st.tv = tvCache{t: buf[5*n : 6*n], td: buf[6*n : 7*n], p: buf[7*n : 8*n], tv: buf[8*n:]}
+	st.tv = tvCache{t: buf[5*n : 6*n], td: buf[6*n : 7*n], p: buf[7*n : 8*n], tv: buf[8*n : 9*n]}
+	st.ln = lnCache{pa: buf[9*n : 10*n], pb: buf[10*n : 11*n], ln: buf[11*n:]}
 	for i := range s.Levels {
 		l := &s.Levels[i]
 		st.p[i] = finite(l.PressurePa)
 		st.tv.p[i] = nan // nothing cached
+		st.ln.pa[i] = nan
 		st.z[i] = math.NaN()
 		if l.Status[sounding.VarHeight] == sounding.Reported {
 			st.z[i] = finite(l.HeightM)

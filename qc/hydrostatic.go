@@ -64,6 +64,30 @@ func (st *state) virtualTAt(i int, t, td []float64) float64 {
 	return v
 }
 
+// lnCache holds, per level b, ln(pa/pb) (ln) with the pressures pa of
+// the level below it and pb of b it was computed from. The hydrostatic
+// layers, the spike interpolation and the superadiabatic heights all take
+// the logarithm of the pressure ratio of the same neighbouring levels.
+type lnCache struct{ pa, pb, ln []float64 }
+
+// lnRatio returns math.Log(p[a]/p[b]) of the working pressures, from the
+// cache when it holds the logarithm of those two pressures, bit for bit
+// (the same operation on the same bits gives the same result). NaN
+// pressures are not cached, so an unused entry (keys NaN) never matches.
+func (st *state) lnRatio(a, b int) float64 {
+	pa, pb := st.p[a], st.p[b]
+	if math.IsNaN(pa) || math.IsNaN(pb) {
+		return math.Log(pa / pb)
+	}
+	c := &st.ln
+	if same(c.pa[b], pa) && same(c.pb[b], pb) {
+		return c.ln[b]
+	}
+	v := math.Log(pa / pb)
+	c.pa[b], c.pb[b], c.ln[b] = pa, pb, v
+	return v
+}
+
 func same(a, b float64) bool { return math.Float64bits(a) == math.Float64bits(b) }
 
 // thickness returns the hypsometric thickness in m from level a up to level
@@ -90,7 +114,11 @@ func (st *state) thicknessFrom(a, b int, t, td []float64, tvA float64) (sum, tvB
 			continue
 		}
 		tv := st.virtualTAt(i, t, td)
-		sum += thermo.Thickness(st.p[prev], st.p[i], tvPrev, tv, c.Rd, c.G0)
+		if pa, pb := st.p[prev], st.p[i]; !(pa > 0) || !(pb > 0) {
+			sum += nan // as thermo.Thickness
+		} else {
+			sum += thermo.ThicknessLn(st.lnRatio(prev, i), tvPrev, tv, c.Rd, c.G0)
+		}
 		prev, tvPrev = i, tv
 	}
 	if prev != b { // b itself had no pressure

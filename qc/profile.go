@@ -34,7 +34,7 @@ func (st *state) spikes() {
 	idx := st.thermoLevels()
 	for n := 1; n+1 < len(idx); n++ {
 		a, k, b := idx[n-1], idx[n], idx[n+1]
-		f := math.Log(st.p[a]/st.p[k]) / math.Log(st.p[a]/st.p[b])
+		f := st.lnRatio(a, k) / math.Log(st.p[a]/st.p[b])
 		d := st.t[k] - (st.t[a] + f*(st.t[b]-st.t[a]))
 		up, dn := st.t[k]-st.t[a], st.t[k]-st.t[b]
 		if math.Abs(d) > st.cfg.SpikeK && (up > 0) == (d > 0) && (dn > 0) == (d > 0) && up != 0 && dn != 0 {

@@ -65,5 +65,12 @@ func Thickness(p1Pa, p2Pa, tv1K, tv2K, rd, g0 float64) float64 {
 	if !(p1Pa > 0) || !(p2Pa > 0) {
 		return math.NaN()
 	}
-	return rd / g0 * 0.5 * (tv1K + tv2K) * math.Log(p1Pa/p2Pa)
+	return ThicknessLn(math.Log(p1Pa/p2Pa), tv1K, tv2K, rd, g0)
+}
+
+// ThicknessLn is Thickness with ln(p1/p2) given (lnRatio), for callers
+// that integrate over the same pair of pressures more than once and keep
+// the logarithm: the same operations as Thickness on positive pressures.
+func ThicknessLn(lnRatio, tv1K, tv2K, rd, g0 float64) float64 {
+	return rd / g0 * 0.5 * (tv1K + tv2K) * lnRatio
 }
