@@ -26,7 +26,8 @@ func (c *climatologyCmd) Run(ctx context.Context, args []string) error {
 Boundary-layer climatology of a store, one row per cell: station × period
 (--by season: DJF, MAM, JJA, SON, named winter/spring/summer/autumn, the
 names flipped south of the equator; --by month: 1-12) × time of day (--time
-hour: nominal hour UTC; --time sun: day, low_sun, civil_twilight or night at launch).
+hour: nominal hour UTC; --time sun: day, low_sun, civil_twilight or night
+at launch).
 
 Views (--table):
   summary      soundings attempted and valid, consensus mixing height
@@ -68,7 +69,7 @@ behind p10/p90, or (by season) a month with fewer than 10 valid soundings.
 		c.stderr)
 	store := fs.String("store", "", "store `directory` written by sondeclim ingest")
 	by := fs.String("by", "season", "`period` of a cell: season or month")
-	tod := fs.String("time", "hour", "time of day of a cell: hour (nominal, UTC) or sun (sun class)")
+	tod := fs.String("time", "hour", "`kind` of time of day of a cell: hour (nominal hour, UTC) or sun (sun class at launch: day, low_sun, civil_twilight, night)")
 	var stations stationList
 	fs.Var(&stations, "station", "station `ID` to include (repeat or comma-separate; default all)")
 	years := fs.String("years", "", "`range` of years to include, e.g. 1991-2020 or 2016 (by season: the season's year, December counting with the following DJF)")

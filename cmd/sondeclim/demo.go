@@ -36,7 +36,7 @@ run gives the same numbers); the station and its setting do not exist.`,
 	dir := fs.String("dir", "demo-out", "`directory` for the generated archive (DIR/archive) and store (DIR/store)")
 	years := fs.Int("years", 5, "number of years to generate")
 	seed := fs.Uint64("seed", 1, "random seed of the invented weather")
-	workers := fs.Int("workers", runtime.NumCPU(), "soundings analysed at once")
+	workers := fs.Int("workers", runtime.NumCPU(), "files read, station-years analysed and written at once, as ingest --workers (results do not depend on it)")
 	logFormat := logFlag(fs)
 	if err := parseFlags(fs, args); err != nil {
 		return err

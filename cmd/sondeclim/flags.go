@@ -8,6 +8,8 @@ import (
 	"fmt"
 	"io"
 	"log/slog"
+	"math"
+	"strconv"
 	"strings"
 
 	"github.com/sondeclim/sondeclim/analyze"
@@ -24,8 +26,13 @@ func newFlags(name, synopsis, about, examples string, out io.Writer) *flag.FlagS
 	fs := flag.NewFlagSet(name, flag.ContinueOnError)
 	fs.SetOutput(out)
 	fs.Usage = func() {
-		fmt.Fprintf(out, "Usage: sondeclim %s %s\n\n%s\n\nFlags:\n", name, synopsis, strings.TrimSpace(about))
-		fs.PrintDefaults()
+		fmt.Fprintf(out, "%s\n\n%s\n", strings.TrimSpace("Usage: sondeclim "+name+" "+synopsis), strings.TrimSpace(about))
+		n := 0
+		fs.VisitAll(func(*flag.Flag) { n++ })
+		if n > 0 {
+			fmt.Fprintf(out, "\nFlags:\n")
+			fs.PrintDefaults()
+		}
 		if examples != "" {
 			fmt.Fprintf(out, "\nExamples:\n%s\n", strings.TrimRight(examples, "\n"))
 		}
@@ -63,6 +70,69 @@ func parseFlags(fs *flag.FlagSet, args []string) error {
 		return fmt.Errorf("%s: %v: %w", fs.Name(), err, errUsage)
 	}
 	return nil
+}
+
+// byteSize is a flag value of a size in bytes, given as a whole number of
+// bytes or of KiB, MiB, GiB or TiB ("8GiB", "512 MiB"), and printed in
+// the largest of those units that divides it, so that a default reads
+// "8GiB" rather than 8589934592.
+type byteSize int64
+
+var byteUnits = []struct {
+	name string
+	size int64
+}{{"TiB", 1 << 40}, {"GiB", 1 << 30}, {"MiB", 1 << 20}, {"KiB", 1 << 10}}
+
+func (b *byteSize) String() string {
+	for _, u := range byteUnits {
+		if n := int64(*b); n >= u.size && n%u.size == 0 {
+			return fmt.Sprintf("%d%s", n/u.size, u.name)
+		}
+	}
+	return fmt.Sprint(int64(*b))
+}
+
+func (b *byteSize) Set(s string) error {
+	num, mult := strings.TrimSpace(s), int64(1)
+	for _, u := range byteUnits {
+		if v, ok := strings.CutSuffix(num, u.name); ok {
+			num, mult = strings.TrimSpace(v), u.size
+			break
+		}
+	}
+	n, err := strconv.ParseInt(num, 10, 64)
+	if err != nil || n < 0 || n > math.MaxInt64/mult {
+		return fmt.Errorf("want a whole number of bytes, KiB, MiB, GiB or TiB, e.g. 8GiB")
+	}
+	*b = byteSize(n * mult)
+	return nil
+}
+
+// byteSizeFlag defines a byteSize flag with a default of def bytes.
+func byteSizeFlag(fs *flag.FlagSet, name string, def int64, usage string) *byteSize {
+	b := byteSize(def)
+	fs.Var(&b, name, usage)
+	return &b
+}
+
+// wrapList writes items comma-separated on lines of at most width
+// characters, each line starting with indent, and ends with a full stop.
+func wrapList(items []string, width int, indent string) string {
+	var b strings.Builder
+	line := indent
+	for i, it := range items {
+		sep := ", "
+		if i == len(items)-1 {
+			sep = "."
+		}
+		if len(line) > len(indent) && len(line)+len(it)+len(sep) > width {
+			b.WriteString(strings.TrimRight(line, " ") + "\n")
+			line = indent
+		}
+		line += it + sep
+	}
+	b.WriteString(line)
+	return b.String()
 }
 
 // caution is printed under every report for people.

@@ -38,9 +38,9 @@ ratio, inversions with their class, well-mixed layers with mass-weighted
 means, mixing height by seven methods and their consensus, transport wind
 and ventilation index. Tables (see "sondeclim schema"): soundings, levels,
 inversions, mixed_layers, mixing_heights, afternoon_mixing, qc_findings;
-partitioned by station and year. A PATH may be a file, a directory (walked recursively) or
-a glob; plain, .gz and .zip inputs are read as streams. The format is
-detected from the content (--format overrides).
+partitioned by station and year. A PATH may be a file, a directory
+(walked recursively) or a glob; plain, .gz and .zip inputs are read as
+streams. The format is detected from the content (--format overrides).
 
 The run's summary goes to stdout; warnings and progress go to stderr.
 Input that cannot be read is reported on stderr as file:line: reason, and
@@ -76,15 +76,15 @@ error; 3 done, but some input was skipped (data lost).`,
 	noBuiltin := fs.Bool("no-builtin-stations", false, "do not complete station metadata from the built-in list (the archive's public station list, 2,879 stations)")
 	quiet := fs.Bool("quiet", false, "print only warnings and the summary's last line (for schedulers)")
 	full := fs.Bool("full", false, "ignore what was ingested before and rebuild every partition from the inputs given")
-	maxInput := fs.Int64("max-input-bytes", engine.DefaultInputBudget, "decompressed-size budget of one compressed input, all its members together, `bytes` (over it: skipped)")
-	maxRun := fs.Int64("max-run-bytes", engine.DefaultRunBudget, "decompressed-size budget of all compressed inputs of the run, `bytes` (inputs left over are reported and read by the next run)")
-	maxPart := fs.Int64("max-partition-bytes", engine.DefaultMaxPartitionBytes, "largest station-year to build, staged `bytes`, archive-v2 text counted twice (it is built in memory, about 5 times this at the peak; larger ones are reported and left as committed; the station-years built at once hold at most this together)")
-	stageMem := fs.Int64("staging-memory-bytes", engine.DefaultStagingMemoryBytes, "decompressed archive-v2 text of gzip and zip inputs held in memory instead of a copy in the staging folder, all inputs together, `bytes` (past it: on disk; 0: always on disk)")
+	maxInput := byteSizeFlag(fs, "max-input-bytes", engine.DefaultInputBudget, "decompressed-size budget of one compressed input, all its members together, `size` in bytes or with KiB, MiB, GiB, TiB (over it: skipped)")
+	maxRun := byteSizeFlag(fs, "max-run-bytes", engine.DefaultRunBudget, "decompressed-size budget of all compressed inputs of the run, `size` in bytes or with KiB, MiB, GiB, TiB (inputs left over are reported and read by the next run)")
+	maxPart := byteSizeFlag(fs, "max-partition-bytes", engine.DefaultMaxPartitionBytes, "largest station-year to build, staged `size` in bytes or with KiB, MiB, GiB, TiB, archive-v2 text counted twice (it is built in memory, about 5 times this at the peak; larger ones are reported and left as committed; the station-years built at once hold at most this together)")
+	stageMem := byteSizeFlag(fs, "staging-memory-bytes", engine.DefaultStagingMemoryBytes, "decompressed archive-v2 text of gzip and zip inputs held in memory instead of a copy in the staging folder, all inputs together, `size` in bytes or with KiB, MiB, GiB, TiB (past it: on disk; 0: always on disk)")
 	prune := fs.Bool("prune-missing", false, "remove the soundings of inputs ingested before that are gone now (without it they stay, with a note)")
 	verify := fs.Bool("verify", false, "check the SHA-256 of every store file the run would leave alone (always: presence and size) and rebuild damaged partitions")
 	wait := fs.Bool("wait", false, "wait for another ingest into the same store to finish instead of failing")
 	shard := fs.String("shard", "", "write only the stations of shard `K/N` (stations are assigned by a hash of their id)")
-	dailyMax := fs.String("daily-max", "", "CSV `file` of daily maximum temperatures (station_id,date,tmax_c; date local YYYY-MM-DD) for the afternoon (Holzworth) mixing height; without it, the same day's afternoon sounding is used. Station ids as in the soundings: a station the run knows nowhere (no soundings, no station list) is refused")
+	dailyMax := fs.String("daily-max", "", "CSV `file` of daily maximum temperatures (station_id,date,tmax_c: tmax_c in °C, date YYYY-MM-DD the station's local solar day, as afternoon_mixing.local_date) for the afternoon (Holzworth) mixing height; without it, the same day's afternoon sounding is used. Station ids as in the soundings: a station the run knows nowhere (no soundings, no station list) is refused")
 	ventTable := fs.String("ventilation-table", analyze.GenericVentilationTable().Name, "ventilation category `table`: a built-in name ("+engine.VentilationTableNames()+") or a table file (format in the README, \"Ventilation categories\"); part of the analysis parameters, so a change rebuilds the store")
 	useSuspect := fs.Bool("use-suspect", false, "let the analysis use values quality control flags as suspect (bad values are never used)")
 	cpuProfile := fs.String("cpuprofile", "", "write a CPU profile to `file` (for performance work: go tool pprof FILE)")
@@ -114,7 +114,7 @@ error; 3 done, but some input was skipped (data lost).`,
 	if err != nil {
 		return fmt.Errorf("ingest: %v: %w", err, errUsage)
 	}
-	opt := engine.Options{Workers: *workers, Format: *format, Log: log, Shard: sh, Full: *full, Verify: *verify, PruneMissing: *prune, InputBudget: *maxInput, RunBudget: *maxRun, MaxPartitionBytes: *maxPart, StagingMemoryBytes: *stageMem, Wait: *wait, UseSuspect: *useSuspect}
+	opt := engine.Options{Workers: *workers, Format: *format, Log: log, Shard: sh, Full: *full, Verify: *verify, PruneMissing: *prune, InputBudget: int64(*maxInput), RunBudget: int64(*maxRun), MaxPartitionBytes: int64(*maxPart), StagingMemoryBytes: int64(*stageMem), Wait: *wait, UseSuspect: *useSuspect}
 	if *stageMem == 0 {
 		opt.StagingMemoryBytes = -1 // the engine's 0 is its default
 	}

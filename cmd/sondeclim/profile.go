@@ -32,8 +32,9 @@ potential temperature and mixing ratio and the flags of quality control.
 The sounding is the one whose launch or nominal time is nearest to --time
 (UTC) within --within. With --file the sounding files are read through the
 same readers and analysis as "sondeclim ingest" (in memory, without a
-store), so the values are identical to those a store would hold; --station and --time
-may be left out when the file holds one station or one sounding.
+store), so the values are identical to those a store would hold;
+--station and --time may be left out when the file holds one station or
+one sounding.
 
 Level flags: "z derived" is a height filled by hypsometric integration;
 "T removed_upstream" a value the archive's own QC removed; "T suspect",
@@ -46,7 +47,7 @@ Level flags: "z derived" is a height filled by hypsometric integration;
 	file := fs.String("file", "", "sounding `file` to read directly (any input format ingest reads)")
 	station := fs.String("station", "", "station `id`")
 	at := fs.String("time", "", "UTC `time` of the sounding: 2016-07-01T12, 2016-07-01T11:03 or RFC 3339")
-	within := fs.Duration("within", 3*time.Hour, "largest distance between --time and the launch or nominal `time`")
+	within := fs.Duration("within", 3*time.Hour, "largest distance between --time and the launch or nominal time, a `duration` such as 90m or 6h")
 	format := fs.String("format", "text", "output `format`: text or json")
 	figure := fs.String("figure", "", "also draw the sounding to `FILE` (.png or .svg)")
 	if err := parseFlags(fs, args); err != nil {

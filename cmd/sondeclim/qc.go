@@ -45,7 +45,7 @@ counted elsewhere. Text prints all three; csv and json print one (--table).`,
 		c.stderr)
 	store := fs.String("store", "", "store `directory` written by sondeclim ingest")
 	format := fs.String("format", "text", "output `format`: text, csv or json")
-	table := fs.String("table", "all", "`summary` to print: all (text only), checks, months or worst")
+	table := fs.String("table", "all", "summary to print, by `name`: all (text only), checks, months or worst")
 	worst := fs.Int("worst", 10, "number of soundings `N` listed by the worst summary")
 	if err := parseFlags(fs, args); err != nil {
 		return err

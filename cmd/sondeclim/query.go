@@ -23,9 +23,9 @@ func (c *queryCmd) Run(ctx context.Context, args []string) error {
 Run one SQL statement (DuckDB dialect) over a store. Each table of the store
 is visible as a view of the same name: soundings (one row per sounding) and
 levels (one row per level), and so on (sondeclim schema lists them). The
-tables days, episodes, episode_days and rule_months are computed over each station's
-whole record when the SQL names them. Use "-" as the SQL to read it from
-stdin.
+tables days, episodes, episode_days and rule_months are computed over
+each station's whole record when the SQL names them. Use "-" as the SQL
+to read it from stdin.
 
 The SQL is yours and runs with your own file access: like any DuckDB
 session it can read and write files you can (COPY ... TO, read_csv), so run

@@ -46,9 +46,9 @@ them inside the page instead, for one file (the figures a third larger).
 Up to %d stations get four figures each (about 25 KB apiece); a report of
 more gets one per station, the monthly mixing height (about 14 KB), and
 its details folded, so that 100 stations come to about 3 MB; "sondeclim
-figures --station ID" draws the others. --station limits the report to one station;
---method picks the mixing height of the monthly figure (consensus by
-default).`, report.DefaultMinSoundings, report.FullFigureStations),
+figures --station ID" draws the others. --station limits the report to
+one station; --method picks the mixing height of the monthly figure
+(consensus by default).`, report.DefaultMinSoundings, report.FullFigureStations),
 		`  sondeclim report --store ./store --out report.html
   sondeclim report --store ./store --out sterling.html --station USM00072403 --embed`,
 		c.stderr)

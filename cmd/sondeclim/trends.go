@@ -37,7 +37,8 @@ in the record and about years in which the station's median number of
 levels per sounding jumps by more than 30 %: a sign of an instrument or
 reporting change that can pass for a trend. The test assumes independent
 years. --yearly prints the yearly values the trends are computed from.
-Metrics: `+strings.Join(metrics, ", ")+`.`,
+Metrics (--metric):
+`+wrapList(metrics, 74, "  "),
 		`  sondeclim trends --store ./store
   sondeclim trends --store ./store --metric sbi_frequency --station USM00072403 --years 1991-2020
   sondeclim trends --store ./store --min-per-year 60 --format csv > trends.csv
