@@ -9,6 +9,7 @@ import (
 	"runtime"
 
 	"github.com/sondeclim/sondeclim/engine"
+	"github.com/sondeclim/sondeclim/ingest"
 	"github.com/sondeclim/sondeclim/ingest/synth"
 	"github.com/sondeclim/sondeclim/queries"
 )
@@ -66,7 +67,11 @@ run gives the same numbers); the station and its setting do not exist.`,
 	}
 	log.Info("invented archive written", "station", st.ID, "name", st.Name, "soundings", n, "file", path)
 
-	sum, err := engine.Run(ctx, store, []string{path}, engine.Options{Workers: *workers, Log: log})
+	// The archive's station files carry position but no name; the name
+	// comes from a station list, here the invented station's own, so the
+	// store, figures and report name it as the demo's text does.
+	stations := map[string]ingest.Station{st.ID: {Name: st.Name, LatitudeDeg: st.LatitudeDeg, LongitudeDeg: st.LongitudeDeg, ElevationM: st.ElevationM}}
+	sum, err := engine.Run(ctx, store, []string{path}, engine.Options{Workers: *workers, Log: log, Stations: stations})
 	if err != nil {
 		return fmt.Errorf("demo: %w", err)
 	}
