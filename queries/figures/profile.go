@@ -636,7 +636,7 @@ func ProfileFigure(p *Profile) *Figure {
 			undefined = append(undefined, analyze.MethodTitle(h.Method))
 		}
 	}
-	caption := "Shaded: inversions (amber) and well-mixed layers (blue). Lines: mixing height by method; solid black: consensus (median of methods with status ok)."
+	caption := "Shaded: inversions (amber) and well-mixed layers (blue). Lines: mixing height by method; solid black: consensus (median of the heights of the methods that suit the sounding's regime)."
 	if len(undefined) > 0 {
 		caption += " Undefined: " + strings.Join(undefined, ", ") + "."
 	}
