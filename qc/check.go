@@ -310,10 +310,30 @@ func (st *state) structure() bool {
 // bad ("bad (upstream)", METHODS §6).
 func (st *state) upstream() {
 	for i := range st.s.Levels {
+		if !anyRemoved(&st.s.Levels[i].Status) {
+			continue // the common case: one word test instead of eight
+		}
 		for v := range sounding.NumVars {
 			if st.s.Levels[i].Status[v] == sounding.RemovedUpstream {
 				st.flag(i, v, Bad, CheckUpstream, nan, nan, "%s removed by the source's own quality control", v)
 			}
 		}
 	}
+}
+
+// The eight statuses of a level fit one 64-bit word (anyRemoved).
+var _ [8 - sounding.NumVars]struct{}
+var _ [sounding.NumVars - 8]struct{}
+
+// anyRemoved reports whether any of a level's statuses is RemovedUpstream.
+// It reads the eight one-byte statuses as one little-endian word, XORs
+// each byte with RemovedUpstream and tests for a zero byte with the
+// borrow trick (w − 0x01…01) &^ w & 0x80…80, which is non-zero exactly
+// when some byte of w is zero.
+func anyRemoved(st *[sounding.NumVars]sounding.Status) bool {
+	w := uint64(st[0]) | uint64(st[1])<<8 | uint64(st[2])<<16 | uint64(st[3])<<24 |
+		uint64(st[4])<<32 | uint64(st[5])<<40 | uint64(st[6])<<48 | uint64(st[7])<<56
+	const ones, highs = 0x0101010101010101, 0x8080808080808080
+	w ^= ones * uint64(sounding.RemovedUpstream)
+	return (w-ones)&^w&highs != 0
 }

@@ -59,7 +59,7 @@ func (st *state) gross() {
 // the dewpoint is above the temperature; above the maximum is a gross
 // error. Both are bad and attached to the dewpoint depression.
 func (st *state) humidity(i int) {
-	c := st.cfg
+	c := &st.cfg // not a copy: humidity runs for every level
 	dpd := st.dpd[i]
 	if math.IsNaN(dpd) && !math.IsNaN(st.td[i]) {
 		dpd = st.t[i] - st.td[i] // dewpoint given directly; NaN when T is

@@ -27,7 +27,7 @@ func (st *state) virtualT(tK, tdK, pPa float64) float64 {
 	if math.IsNaN(tdK) {
 		return tK
 	}
-	c := st.cfg.Constants
+	c := &st.cfg.Constants
 	w := thermo.MixingRatio(thermo.VapourPressureFromDewpoint(tdK, st.cfg.SatVap), pPa, c.Epsilon)
 	if math.IsNaN(w) {
 		return tK
@@ -107,7 +107,7 @@ func (st *state) thickness(a, b int, t, td []float64) float64 {
 // (tvA, K); it also returns the virtual temperature at b, so that a chain
 // of layers computes each level's once.
 func (st *state) thicknessFrom(a, b int, t, td []float64, tvA float64) (sum, tvB float64) {
-	c := st.cfg.Constants
+	c := &st.cfg.Constants
 	prev, tvPrev := a, tvA
 	for i := a + 1; i <= b; i++ {
 		if math.IsNaN(st.p[i]) || math.IsNaN(t[i]) {
@@ -146,7 +146,7 @@ func (st *state) readingTol(l *layer, t []float64) float64 {
 	if !(dp > 0) {
 		return 0
 	}
-	c := st.cfg.Constants
+	c := &st.cfg.Constants
 	tm := (t[l.a] + t[l.b]) / 2
 	return c.Rd * tm / c.G0 * (dp/st.p[l.a] + dp/st.p[l.b])
 }

@@ -370,3 +370,33 @@ func TestUnusable(t *testing.T) {
 		}
 	}
 }
+
+// TestAnyRemoved compares the one-word test with the plain definition
+// (some status equals RemovedUpstream) for every combination of the four
+// defined statuses at the eight variables, and for random bytes beyond
+// them.
+func TestAnyRemoved(t *testing.T) {
+	var st [sounding.NumVars]sounding.Status
+	check := func() {
+		want := false
+		for _, x := range st {
+			want = want || x == sounding.RemovedUpstream
+		}
+		if got := anyRemoved(&st); got != want {
+			t.Fatalf("%v: anyRemoved %v, want %v", st, got, want)
+		}
+	}
+	for c := range 1 << (2 * sounding.NumVars) {
+		for v := range st {
+			st[v] = sounding.Status(c >> (2 * v) & 3)
+		}
+		check()
+	}
+	rng := rand.New(rand.NewPCG(1, 2))
+	for range 100000 {
+		for v := range st {
+			st[v] = sounding.Status(rng.UintN(256))
+		}
+		check()
+	}
+}
