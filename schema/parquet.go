@@ -1,0 +1,649 @@
+package schema
+
+import (
+	"bufio"
+	"encoding/base64"
+	"encoding/binary"
+	"fmt"
+	"math/bits"
+	"reflect"
+	"sync"
+
+	"github.com/apache/arrow-go/v18/arrow/flight"
+	"github.com/apache/arrow-go/v18/arrow/memory"
+	"github.com/klauspost/compress/snappy"
+	"github.com/klauspost/compress/zstd"
+)
+
+// The store's own Parquet writer: it writes the filled column buffers of a
+// Rows straight to the file, without Arrow arrays or the general Parquet
+// writer in between, which cost about a quarter of an ingest's processor
+// time for the levels table alone. The file holds what the general writer
+// (encode, write.go) wrote: the same schema (physical, converted and
+// logical types, repetition), key-value metadata (the schema version, the
+// table name and the Arrow schema under ARROW:schema), row groups of
+// rowGroupRows rows, statistics (min, max, null count) for statsColumns,
+// dictionary pages for the text columns, and the same encodings
+// (BYTE_STREAM_SPLIT floats, DELTA_BINARY_PACKED integers and times, PLAIN
+// booleans, RLE_DICTIONARY text) and compression. Each column chunk is one
+// data page (version 1) after its dictionary page, if any.
+//
+// The structures follow apache/parquet-format's src/main/thrift/parquet.thrift
+// (FileMetaData, SchemaElement, RowGroup, ColumnChunk, ColumnMetaData,
+// Statistics, PageHeader, DataPageHeader, DictionaryPageHeader, KeyValue,
+// ColumnOrder) and its Encodings.md; the field ids below are that file's.
+
+// Parquet enum values (parquet.thrift).
+const (
+	ptBoolean   = 0 // Type
+	ptInt32     = 1
+	ptInt64     = 2
+	ptDouble    = 5
+	ptByteArray = 6
+
+	ctUTF8            = 0 // ConvertedType
+	ctTimestampMicros = 10
+	ctInt32Converted  = 17
+	ctInt64Converted  = 18
+
+	repRequired = 0 // FieldRepetitionType
+	repOptional = 1
+
+	encPlain         = 0 // Encoding
+	encRLE           = 3
+	encDeltaBinary   = 5
+	encRLEDictionary = 8
+	encByteStream    = 9
+
+	codecSnappy = 1 // CompressionCodec
+	codecZstd   = 6
+
+	pageData       = 0 // PageType
+	pageDictionary = 2
+)
+
+// createdBy names the writer in the footer, in the "application version
+// x.y.z" form readers parse.
+const createdBy = "sondeclim version 1.0.0"
+
+// dictionaryLimit is the size of a text column's dictionary page beyond
+// which the column chunk is written PLAIN instead (the general writer's
+// default dictionary page limit, 1 MiB).
+const dictionaryLimit = 1 << 20
+
+// ownWriterKinds are the column kinds the writer handles; statistics are
+// written for integers, times and text.
+func ownWriterSupports(cols []Column) bool {
+	for i := range cols {
+		c := &cols[i]
+		switch c.kind {
+		case kindFloat64, kindBool, kindPtrBool:
+			if statsColumns[c.Name] {
+				return false
+			}
+		case kindInt32, kindPtrInt32, kindInt64, kindTime, kindEnum, kindKey, kindString, kindPtrString:
+		default:
+			return false
+		}
+	}
+	return true
+}
+
+// chunkMeta is what the footer records of one column chunk.
+type chunkMeta struct {
+	phys                     int32
+	enc                      int32 // encoding of the data page
+	dict                     bool  // a dictionary page comes first
+	start, dataOff           int64 // file offsets of the chunk and of its data page
+	uncompressed, compressed int64 // sizes of its pages with their headers
+	stats                    []byte
+}
+
+// pqWriter is the working memory of writing files, reused from one file to
+// the next through pqWriters.
+type pqWriter struct {
+	w        *bufio.Writer
+	pos      int64
+	codec    int32
+	raw      []byte // a page before compression
+	comp     []byte // a page compressed
+	dictRaw  []byte
+	idx      []uint32
+	i32      []int32
+	i64      []int64
+	hdr      compact
+	stats    compact
+	footer   compact
+	groups   [][]chunkMeta
+	groupRow []int
+	strIdx   map[string]int32
+	strList  []string
+}
+
+var pqWriters = sync.Pool{New: func() any { return &pqWriter{strIdx: map[string]int32{}} }}
+
+// zstdEncoders are encoders at the level the general writer used
+// (compression level 1, klauspost's fastest), with its options.
+var zstdEncoders = sync.Pool{New: func() any {
+	e, err := zstd.NewWriter(nil, zstd.WithZeroFrames(true), zstd.WithEncoderLevel(zstd.EncoderLevelFromZstd(1)),
+		zstd.WithEncoderConcurrency(1), zstd.WithAllLitEntropyCompression(true))
+	if err != nil {
+		panic(err) // only for invalid options, which these are not
+	}
+	return e
+}}
+
+// fileMetaKey identifies the key-value metadata of a table's files.
+type fileMetaKey struct {
+	table string
+	row   reflect.Type
+}
+
+// kvCache holds the key-value metadata of each table's files (the Arrow
+// schema's serialization costs more than a small file's data).
+var kvCache sync.Map // fileMetaKey → [][2]string
+
+// keyValues returns the key-value metadata the general writer stores: the
+// Arrow schema's metadata (version, table) and the Arrow schema itself,
+// IPC-serialized and base64-encoded under ARROW:schema, as pqarrow's
+// WithStoreSchema writes it.
+func keyValues(table string, row reflect.Type, cols []Column) [][2]string {
+	k := fileMetaKey{table, row}
+	if v, ok := kvCache.Load(k); ok {
+		return v.([][2]string)
+	}
+	sc := arrowSchema(table, cols)
+	md := sc.Metadata()
+	var kv [][2]string
+	for i, key := range md.Keys() {
+		kv = append(kv, [2]string{key, md.Values()[i]})
+	}
+	ser := flight.SerializeSchema(sc, memory.DefaultAllocator)
+	kv = append(kv, [2]string{"ARROW:schema", base64.StdEncoding.EncodeToString(ser)})
+	kvCache.Store(k, kv)
+	return kv
+}
+
+// writeParquet writes the n rows held in bufs (one per column of cols) as
+// a Parquet file of table to w. compact selects zstd (else Snappy).
+func writeParquet(w *bufio.Writer, table string, row reflect.Type, cols []Column, bufs []*colBuf, n int, zstdCodec bool) error {
+	pw := pqWriters.Get().(*pqWriter)
+	defer func() {
+		pw.w = nil
+		pqWriters.Put(pw)
+	}()
+	pw.w, pw.pos, pw.codec = w, 0, codecSnappy
+	if zstdCodec {
+		pw.codec = codecZstd
+	}
+	pw.groups, pw.groupRow = pw.groups[:0], pw.groupRow[:0]
+	pw.write([]byte("PAR1"))
+	for lo := 0; lo < n; lo += rowGroupRows {
+		hi := min(lo+rowGroupRows, n)
+		g := make([]chunkMeta, len(cols))
+		for i := range cols {
+			if err := pw.column(&g[i], &cols[i], bufs[i], lo, hi); err != nil {
+				return err
+			}
+		}
+		pw.groups = append(pw.groups, g)
+		pw.groupRow = append(pw.groupRow, hi-lo)
+	}
+	f := &pw.footer
+	f.reset()
+	pw.fileMetaData(f, cols, n, keyValues(table, row, cols))
+	pw.write(f.b)
+	var tail [8]byte
+	binary.LittleEndian.PutUint32(tail[:], uint32(len(f.b)))
+	copy(tail[4:], "PAR1")
+	pw.write(tail[:])
+	return nil
+}
+
+func (pw *pqWriter) write(b []byte) {
+	pw.w.Write(b) // a bufio.Writer keeps its first error for Flush
+	pw.pos += int64(len(b))
+}
+
+// compress returns raw compressed with the file's codec.
+func (pw *pqWriter) compress(raw []byte) []byte {
+	if pw.codec == codecZstd {
+		e := zstdEncoders.Get().(*zstd.Encoder)
+		pw.comp = e.EncodeAll(raw, pw.comp[:0])
+		zstdEncoders.Put(e)
+	} else {
+		pw.comp = snappy.Encode(pw.comp[:cap(pw.comp)], raw)
+	}
+	return pw.comp
+}
+
+// page writes one page: its header (from header, given the sizes) and raw
+// compressed, and counts both in m.
+func (pw *pqWriter) page(m *chunkMeta, raw []byte, header func(h *compact, uncompressed, compressed int32)) {
+	comp := pw.compress(raw)
+	h := &pw.hdr
+	h.reset()
+	header(h, int32(len(raw)), int32(len(comp)))
+	h.b = append(h.b, 0) // the PageHeader's stop field
+	pw.write(h.b)
+	pw.write(comp)
+	m.uncompressed += int64(len(h.b) + len(raw))
+	m.compressed += int64(len(h.b) + len(comp))
+}
+
+// column writes the chunk of rows lo..hi of column c (values in b).
+func (pw *pqWriter) column(m *chunkMeta, c *Column, b *colBuf, lo, hi int) error {
+	n := hi - lo
+	m.start = pw.pos
+	nulls := 0
+	var valid []byte // the validity bitmap, when some row is null
+	if c.Nullable && b.valid.nulls > 0 {
+		nulls = n - onesIn(b.valid.bits, lo, hi)
+		if nulls > 0 {
+			valid = b.valid.bits
+		}
+	}
+	raw := pw.raw[:0]
+	if c.Nullable {
+		if valid == nil {
+			raw = binary.LittleEndian.AppendUint32(raw, 0)
+			at := len(raw)
+			raw = binary.AppendUvarint(raw, uint64(n)<<1)
+			raw = append(raw, 1)
+			binary.LittleEndian.PutUint32(raw[at-4:], uint32(len(raw)-at))
+		} else {
+			raw = appendDefLevels(raw, valid, lo, hi)
+		}
+	}
+	st := statsColumns[c.Name]
+	pw.stats.reset()
+	var dict []string // dictionary of a text column
+	switch c.kind {
+	case kindFloat64:
+		m.phys, m.enc = ptDouble, encByteStream
+		raw = appendSplitFloats(raw, b.f64[lo:hi], valid, lo, n-nulls)
+	case kindBool, kindPtrBool:
+		m.phys, m.enc = ptBoolean, encPlain
+		raw = appendPlainBools(raw, b.bits, valid, lo, hi)
+	case kindInt32, kindPtrInt32:
+		m.phys, m.enc = ptInt32, encDeltaBinary
+		v := gather(&pw.i32, b.i32[lo:hi], valid, lo)
+		raw = appendDelta(raw, v)
+		if st {
+			pw.intStats(v, nulls, 4)
+		}
+	case kindInt64, kindTime:
+		m.phys, m.enc = ptInt64, encDeltaBinary
+		v := gather(&pw.i64, b.i64[lo:hi], valid, lo)
+		raw = appendDelta(raw, v)
+		if st {
+			pw.intStats(v, nulls, 8)
+		}
+	case kindEnum, kindKey:
+		m.phys, m.enc, m.dict = ptByteArray, encRLEDictionary, true
+		idx := pw.idx[:0]
+		if c.kind == kindKey {
+			dict = b.keys
+			for i, x := range b.i32[lo:hi] {
+				if valid == nil || isSet(valid, lo+i) {
+					idx = append(idx, uint32(x))
+				}
+			}
+		} else {
+			dict = c.enumList()
+			for i, x := range b.i16[lo:hi] {
+				if valid == nil || isSet(valid, lo+i) {
+					idx = append(idx, uint32(x))
+				}
+			}
+		}
+		pw.idx = idx
+		raw = appendIndices(raw, idx, len(dict))
+		if st {
+			pw.textStats(dict, idx, nulls)
+		}
+	case kindString, kindPtrString:
+		m.phys = ptByteArray
+		var ok bool
+		raw, dict, ok = pw.strings(raw, b, valid, lo, hi)
+		if ok {
+			m.enc, m.dict = encRLEDictionary, true
+		} else {
+			m.enc = encPlain
+		}
+		if st {
+			pw.textStats(dict, pw.idx, nulls)
+		}
+	default:
+		return fmt.Errorf("column %s: kind %d not written by the store's Parquet writer", c.Name, c.kind)
+	}
+	if st {
+		m.stats = append(m.stats[:0], pw.stats.b...)
+	} else {
+		m.stats = m.stats[:0]
+	}
+	if m.dict {
+		d := pw.dictRaw[:0]
+		for _, s := range dict {
+			d = binary.LittleEndian.AppendUint32(d, uint32(len(s)))
+			d = append(d, s...)
+		}
+		pw.dictRaw = d
+		pw.page(m, d, func(h *compact, u, cz int32) {
+			h.i32(1, pageDictionary)
+			h.i32(2, u)
+			h.i32(3, cz)
+			h.begin(7) // DictionaryPageHeader
+			h.i32(1, int32(len(dict)))
+			h.i32(2, encPlain)
+			h.boolean(3, false)
+			h.end()
+		})
+	}
+	m.dataOff = pw.pos
+	pw.raw = raw
+	pw.page(m, raw, func(h *compact, u, cz int32) {
+		h.i32(1, pageData)
+		h.i32(2, u)
+		h.i32(3, cz)
+		h.begin(5) // DataPageHeader
+		h.i32(1, int32(n))
+		h.i32(2, m.enc)
+		h.i32(3, encRLE)
+		h.i32(4, encRLE)
+		if st {
+			h.field(5, ctStruct)
+			h.b = append(h.b, m.stats...)
+		}
+		h.end()
+	})
+	return nil
+}
+
+// gather returns the values of x whose validity bit is set (x itself when
+// valid is nil), x[0] being row lo, in *scratch.
+func gather[E int32 | int64](scratch *[]E, x []E, valid []byte, lo int) []E {
+	if valid == nil {
+		return x
+	}
+	out := (*scratch)[:0]
+	for i, v := range x {
+		if isSet(valid, lo+i) {
+			out = append(out, v)
+		}
+	}
+	*scratch = out
+	return out
+}
+
+// appendIndices appends dictionary indices as an RLE_DICTIONARY data page
+// holds them: the bit width in one byte, then the hybrid encoding.
+func appendIndices(b []byte, idx []uint32, dictLen int) []byte {
+	width := uint(max(1, bits.Len(uint(max(dictLen-1, 0)))))
+	b = append(b, byte(width))
+	return appendHybrid(b, idx, width)
+}
+
+// strings appends the values of rows lo..hi of a text column: the
+// dictionary indices, with the dictionary returned, or PLAIN values when
+// the dictionary would exceed dictionaryLimit (ok false). pw.idx holds the
+// indices (also in the PLAIN case, for the statistics).
+func (pw *pqWriter) strings(raw []byte, b *colBuf, valid []byte, lo, hi int) (_ []byte, dict []string, ok bool) {
+	clear(pw.strIdx)
+	list, idx := pw.strList[:0], pw.idx[:0]
+	size := 0
+	for i := lo; i < hi; i++ {
+		if valid != nil && !isSet(valid, i) {
+			continue
+		}
+		v := b.data[b.i32[i]:b.i32[i+1]]
+		k, found := pw.strIdx[string(v)]
+		if !found {
+			s := string(v)
+			k = int32(len(list))
+			pw.strIdx[s] = k
+			list = append(list, s)
+			size += 4 + len(s)
+		}
+		idx = append(idx, uint32(k))
+	}
+	pw.strList, pw.idx = list, idx
+	if size <= dictionaryLimit {
+		return appendIndices(raw, idx, len(list)), list, true
+	}
+	for _, k := range idx {
+		raw = binary.LittleEndian.AppendUint32(raw, uint32(len(list[k])))
+		raw = append(raw, list[k]...)
+	}
+	return raw, list, false
+}
+
+// intStats writes the Statistics of integer (or time) values v with the
+// given null count: max and min both in the deprecated fields and in
+// max_value/min_value (signed order), as the general writer did, PLAIN
+// little-endian in size bytes.
+func (pw *pqWriter) intStats(v any, nulls, size int) {
+	s := &pw.stats
+	var lo, hi int64
+	var have bool
+	switch x := v.(type) {
+	case []int32:
+		if have = len(x) > 0; have {
+			lo, hi = int64(x[0]), int64(x[0])
+			for _, y := range x {
+				lo, hi = min(lo, int64(y)), max(hi, int64(y))
+			}
+		}
+	case []int64:
+		if have = len(x) > 0; have {
+			lo, hi = x[0], x[0]
+			for _, y := range x {
+				lo, hi = min(lo, y), max(hi, y)
+			}
+		}
+	}
+	var mx, mn [8]byte
+	binary.LittleEndian.PutUint64(mx[:], uint64(hi))
+	binary.LittleEndian.PutUint64(mn[:], uint64(lo))
+	if have {
+		s.binary(1, mx[:size])
+		s.binary(2, mn[:size])
+	}
+	s.i64(3, int64(nulls))
+	if have {
+		s.binary(5, mx[:size])
+		s.binary(6, mn[:size])
+	}
+	s.b = append(s.b, 0)
+}
+
+// textStats writes the Statistics of the text values dict[idx...]: the
+// null count and max_value/min_value in byte order (the deprecated fields
+// are for signed order only and are left out, as the general writer did).
+func (pw *pqWriter) textStats(dict []string, idx []uint32, nulls int) {
+	s := &pw.stats
+	var lo, hi string
+	var seen uint32 = 1<<32 - 1
+	for k, i := range idx {
+		if i == seen {
+			continue
+		}
+		seen = i
+		if v := dict[i]; k == 0 {
+			lo, hi = v, v
+		} else {
+			lo, hi = min(lo, v), max(hi, v)
+		}
+	}
+	s.i64(3, int64(nulls))
+	if len(idx) > 0 {
+		s.str(5, hi)
+		s.str(6, lo)
+	}
+	s.b = append(s.b, 0)
+}
+
+// enumList returns the allowed values of an enum column, its dictionary.
+func (c *Column) enumList() []string {
+	out := make([]string, c.dict.Len())
+	for i := range out {
+		out[i] = c.dict.Value(i)
+	}
+	return out
+}
+
+// schemaElement writes the SchemaElement of column c.
+func schemaElement(f *compact, c *Column) {
+	f.open()
+	rep := int32(repRequired)
+	if c.Nullable {
+		rep = repOptional
+	}
+	logical := func(id int16, inner func()) {
+		f.begin(10)
+		f.begin(id)
+		inner()
+		f.end()
+		f.end()
+	}
+	intType := func(width int8) func() {
+		return func() {
+			f.i8(1, width)
+			f.boolean(2, true)
+		}
+	}
+	switch c.kind {
+	case kindKey, kindString, kindPtrString, kindEnum:
+		f.i32(1, ptByteArray)
+		f.i32(3, rep)
+		f.str(4, c.Name)
+		f.i32(6, ctUTF8)
+		logical(1, func() {})
+	case kindTime:
+		f.i32(1, ptInt64)
+		f.i32(3, rep)
+		f.str(4, c.Name)
+		f.i32(6, ctTimestampMicros)
+		logical(8, func() {
+			f.boolean(1, true)
+			f.begin(2)
+			f.empty(2) // MICROS
+			f.end()
+		})
+	case kindInt32, kindPtrInt32:
+		f.i32(1, ptInt32)
+		f.i32(3, rep)
+		f.str(4, c.Name)
+		f.i32(6, ctInt32Converted)
+		logical(10, intType(32))
+	case kindInt64:
+		f.i32(1, ptInt64)
+		f.i32(3, rep)
+		f.str(4, c.Name)
+		f.i32(6, ctInt64Converted)
+		logical(10, intType(64))
+	case kindFloat64:
+		f.i32(1, ptDouble)
+		f.i32(3, rep)
+		f.str(4, c.Name)
+	case kindBool, kindPtrBool:
+		f.i32(1, ptBoolean)
+		f.i32(3, rep)
+		f.str(4, c.Name)
+	}
+	f.end()
+}
+
+// fileMetaData writes the footer's FileMetaData.
+func (pw *pqWriter) fileMetaData(f *compact, cols []Column, n int, kv [][2]string) {
+	f.open()
+	f.i32(1, 2) // version
+	f.list(2, ctStruct, len(cols)+1)
+	f.open()
+	f.str(4, "schema")
+	f.i32(5, int32(len(cols)))
+	f.end()
+	for i := range cols {
+		schemaElement(f, &cols[i])
+	}
+	f.i64(3, int64(n))
+	f.list(4, ctStruct, len(pw.groups))
+	for g, chunks := range pw.groups {
+		f.open() // RowGroup
+		var total, totalComp int64
+		f.list(1, ctStruct, len(chunks))
+		for i := range chunks {
+			m := &chunks[i]
+			total += m.uncompressed
+			totalComp += m.compressed
+			f.open() // ColumnChunk
+			f.i64(2, m.start)
+			f.begin(3) // ColumnMetaData
+			f.i32(1, m.phys)
+			if m.dict {
+				f.list(2, ctI32, 3)
+				f.elemI32(encRLEDictionary)
+				f.elemI32(encPlain)
+				f.elemI32(encRLE)
+			} else {
+				f.list(2, ctI32, 2)
+				f.elemI32(m.enc)
+				f.elemI32(encRLE)
+			}
+			f.list(3, ctBinary, 1)
+			f.elemString(cols[i].Name)
+			f.i32(4, pw.codec)
+			f.i64(5, int64(pw.groupRow[g]))
+			f.i64(6, m.uncompressed)
+			f.i64(7, m.compressed)
+			f.i64(9, m.dataOff)
+			if m.dict {
+				f.i64(11, m.start)
+			}
+			if len(m.stats) > 0 {
+				f.field(12, ctStruct)
+				f.b = append(f.b, m.stats...)
+			}
+			if m.dict {
+				f.list(13, ctStruct, 2)
+				pageStats(f, pageDictionary, encPlain)
+				pageStats(f, pageData, m.enc)
+			} else {
+				f.list(13, ctStruct, 1)
+				pageStats(f, pageData, m.enc)
+			}
+			f.end()
+			f.end()
+		}
+		f.i64(2, total)
+		f.i64(3, int64(pw.groupRow[g]))
+		f.i64(5, chunks[0].start)
+		f.i64(6, totalComp)
+		f.i16(7, int16(g))
+		f.end()
+	}
+	f.list(5, ctStruct, len(kv))
+	for _, p := range kv {
+		f.open()
+		f.str(1, p[0])
+		f.str(2, p[1])
+		f.end()
+	}
+	f.str(6, createdBy)
+	f.list(7, ctStruct, len(cols))
+	for range cols {
+		f.open()
+		f.empty(1) // TYPE_ORDER
+		f.end()
+	}
+	f.end()
+}
+
+// pageStats writes one PageEncodingStats: one page of the type and encoding.
+func pageStats(f *compact, typ, enc int32) {
+	f.open()
+	f.i32(1, typ)
+	f.i32(2, enc)
+	f.i32(3, 1)
+	f.end()
+}

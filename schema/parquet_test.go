@@ -1,0 +1,443 @@
+package schema
+
+import (
+	"context"
+	"encoding/binary"
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"regexp"
+	"slices"
+	"strconv"
+	"strings"
+	"testing"
+	"time"
+
+	"github.com/apache/arrow-go/v18/arrow"
+	"github.com/apache/arrow-go/v18/arrow/array"
+	"github.com/apache/arrow-go/v18/arrow/memory"
+	"github.com/apache/arrow-go/v18/parquet/file"
+	"github.com/apache/arrow-go/v18/parquet/pqarrow"
+)
+
+// footerLines decodes the Thrift compact FileMetaData at the end of the
+// Parquet file at path into one "path=value" line per field (path: field
+// ids, list positions in brackets), independently of the writer's
+// encoder: a test-side reading of apache/thrift's compact protocol
+// specification and parquet-format's file layout (footer, 4-byte length,
+// "PAR1").
+func footerLines(t *testing.T, path string) []string {
+	t.Helper()
+	b, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(b) < 12 || string(b[:4]) != "PAR1" || string(b[len(b)-4:]) != "PAR1" {
+		t.Fatalf("%s: not a Parquet file", path)
+	}
+	n := int(binary.LittleEndian.Uint32(b[len(b)-8:]))
+	d := thriftReader{b: b[len(b)-8-n : len(b)-8]}
+	var out []string
+	d.structure("", &out)
+	if d.p != len(d.b) || d.err != nil {
+		t.Fatalf("%s: footer of %d bytes, %d decoded (%v)", path, len(d.b), d.p, d.err)
+	}
+	return out
+}
+
+type thriftReader struct {
+	b   []byte
+	p   int
+	err error
+}
+
+func (d *thriftReader) uvarint() uint64 {
+	v, n := binary.Uvarint(d.b[d.p:])
+	if n <= 0 {
+		d.err = fmt.Errorf("bad varint at %d", d.p)
+		d.p = len(d.b)
+		return 0
+	}
+	d.p += n
+	return v
+}
+
+func (d *thriftReader) zigzag() int64 { u := d.uvarint(); return int64(u>>1) ^ -int64(u&1) }
+
+func (d *thriftReader) value(t byte, path string, out *[]string) {
+	if d.err != nil || d.p >= len(d.b) && t != 1 && t != 2 {
+		d.err = fmt.Errorf("truncated at %s", path)
+		return
+	}
+	switch t {
+	case 1, 2: // field booleans
+		*out = append(*out, path+"="+strconv.FormatBool(t == 1))
+	case 3:
+		*out = append(*out, path+"="+strconv.Itoa(int(int8(d.b[d.p]))))
+		d.p++
+	case 4, 5, 6:
+		*out = append(*out, path+"="+strconv.FormatInt(d.zigzag(), 10))
+	case 8:
+		n := int(d.uvarint())
+		*out = append(*out, path+"="+strconv.Quote(string(d.b[d.p:d.p+n])))
+		d.p += n
+	case 9:
+		h := d.b[d.p]
+		d.p++
+		n, et := int(h>>4), h&15
+		if n == 15 {
+			n = int(d.uvarint())
+		}
+		for i := range n {
+			d.value(et, fmt.Sprintf("%s[%d]", path, i), out)
+		}
+	case 12:
+		d.structure(path+".", out)
+	default:
+		d.err = fmt.Errorf("type %d at %s", t, path)
+	}
+}
+
+func (d *thriftReader) structure(prefix string, out *[]string) {
+	last := int64(0)
+	for d.err == nil && d.p < len(d.b) {
+		h := d.b[d.p]
+		d.p++
+		if h == 0 {
+			*out = append(*out, prefix+"end")
+			return
+		}
+		id := last + int64(h>>4)
+		if h>>4 == 0 {
+			id = d.zigzag()
+		}
+		last = id
+		d.value(h&15, prefix+strconv.FormatInt(id, 10), out)
+	}
+}
+
+// placement matches the footer fields that depend on where the writer put
+// its pages and how large they came out (parquet.thrift field ids:
+// RowGroup 2 total_byte_size, 5 file_offset, 6 total_compressed_size;
+// ColumnChunk 2 file_offset; ColumnMetaData 6 and 7 the chunk's sizes,
+// 9 and 11 its page offsets), and the writer's name (FileMetaData 6).
+var placement = regexp.MustCompile(`^4\[\d+\]\.(2|5|6)=|^4\[\d+\]\.1\[\d+\]\.(2|3\.(6|7|9|11))=|^6=`)
+
+// sameFooter checks that the footers of the Parquet files want (written by
+// the general writer, arrow-go's) and got are equal field by field except
+// for the placement fields: schema, row groups and their row counts,
+// encodings, codecs, statistics, key-value metadata, column orders.
+func sameFooter(t *testing.T, want, got string) {
+	t.Helper()
+	keep := func(lines []string) []string {
+		return slices.DeleteFunc(lines, func(s string) bool { return placement.MatchString(s) })
+	}
+	w, g := keep(footerLines(t, want)), keep(footerLines(t, got))
+	if len(w) < 10 {
+		t.Fatalf("%s: footer of %d fields", want, len(w))
+	}
+	for i := 0; i < max(len(w), len(g)); i++ {
+		var a, b string
+		if i < len(w) {
+			a = w[i]
+		}
+		if i < len(g) {
+			b = g[i]
+		}
+		if a != b {
+			t.Errorf("footer field %d: general writer %q, own writer %q", i, a, b)
+			return
+		}
+	}
+}
+
+// cells returns every column of the Parquet file at path as read back by
+// arrow-go's reader, one text per value ("∅" for null, floats in full,
+// dictionary values looked up), by column name.
+func cells(t *testing.T, path string) map[string][]string {
+	t.Helper()
+	pf, err := file.OpenParquetFile(path, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer pf.Close()
+	fr, err := pqarrow.NewFileReader(pf, pqarrow.ArrowReadProperties{BatchSize: 1 << 16}, memory.DefaultAllocator)
+	if err != nil {
+		t.Fatal(err)
+	}
+	tbl, err := fr.ReadTable(context.Background())
+	if err != nil {
+		t.Fatalf("%s: %v", path, err)
+	}
+	defer tbl.Release()
+	out := map[string][]string{}
+	for i := range int(tbl.NumCols()) {
+		col := tbl.Column(i)
+		var v []string
+		for _, ch := range col.Data().Chunks() {
+			v = append(v, arrayCells(ch)...)
+		}
+		out[col.Name()] = v
+	}
+	return out
+}
+
+// arrayCells is cells for one Arrow array.
+func arrayCells(a arrow.Array) []string {
+	out := make([]string, a.Len())
+	for i := range out {
+		if a.IsNull(i) {
+			out[i] = "∅"
+			continue
+		}
+		switch x := a.(type) {
+		case *array.Dictionary:
+			out[i] = x.Dictionary().(*array.String).Value(x.GetValueIndex(i))
+		case *array.Float64:
+			out[i] = strconv.FormatFloat(x.Value(i), 'g', -1, 64)
+		default:
+			out[i] = x.ValueStr(i)
+		}
+	}
+	return out
+}
+
+// duckRows checks with DuckDB (an independent reader) that the files a and
+// b hold the same rows with the same column types, returning the count.
+func duckRows(t *testing.T, a, b string) int {
+	t.Helper()
+	db := openDuck(t)
+	desc := func(p string) string {
+		rows, err := db.Query(fmt.Sprintf("DESCRIBE SELECT * FROM read_parquet('%s')", p))
+		if err != nil {
+			t.Fatal(err)
+		}
+		defer rows.Close()
+		var s []string
+		for rows.Next() {
+			var name, typ string
+			var x1, x2, x3, x4 any
+			if err := rows.Scan(&name, &typ, &x1, &x2, &x3, &x4); err != nil {
+				t.Fatal(err)
+			}
+			s = append(s, name+" "+typ)
+		}
+		return strings.Join(s, ", ")
+	}
+	if da, db := desc(a), desc(b); da != db {
+		t.Errorf("DuckDB column types differ:\n%s\n%s", da, db)
+	}
+	var n, diff1, diff2 int
+	q := "SELECT count(*) FROM (SELECT * FROM read_parquet('%s') EXCEPT ALL SELECT * FROM read_parquet('%s'))"
+	if err := db.QueryRow(fmt.Sprintf(q, a, b)).Scan(&diff1); err != nil {
+		t.Fatal(err)
+	}
+	if err := db.QueryRow(fmt.Sprintf(q, b, a)).Scan(&diff2); err != nil {
+		t.Fatal(err)
+	}
+	if err := db.QueryRow(fmt.Sprintf("SELECT count(*) FROM read_parquet('%s')", b)).Scan(&n); err != nil {
+		t.Fatal(err)
+	}
+	if diff1 != 0 || diff2 != 0 {
+		t.Errorf("DuckDB: %d rows only in the general writer's file, %d only in the own writer's", diff1, diff2)
+	}
+	return n
+}
+
+// checkOwnFile checks the levels file got, written by the store's own
+// writer from rows, against the file want the general writer (arrow-go's
+// pqarrow) wrote from the same rows: equal footers but for placement, and
+// the values arrow-go's reader gives for got equal to the input rows
+// column by column, and to those of want; DuckDB sees the same rows.
+func checkOwnFile(t *testing.T, rows *Rows[LevelRow], want, got string) {
+	t.Helper()
+	sameFooter(t, want, got)
+	arrs, n, err := rows.arrays()
+	if err != nil {
+		t.Fatal(err)
+	}
+	g, w := cells(t, got), cells(t, want)
+	for i, c := range rows.cols {
+		in := arrayCells(arrs[i])
+		arrs[i].Release()
+		if len(in) != n || !slices.Equal(g[c.Name], in) {
+			t.Errorf("column %s: %d values read back, %d written; first difference at %d", c.Name, len(g[c.Name]), n, firstDiff(g[c.Name], in))
+		}
+		if !slices.Equal(w[c.Name], in) {
+			t.Errorf("column %s: the general writer's file reads back otherwise (scaffolding broken)", c.Name)
+		}
+	}
+	if m := duckRows(t, want, got); m != n {
+		t.Errorf("DuckDB counts %d rows, %d written", m, n)
+	}
+}
+
+// sameContent checks that the Parquet files a and b have equal footers but
+// for placement and equal values read back by arrow-go, column by column.
+func sameContent(t *testing.T, a, b string) {
+	t.Helper()
+	sameFooter(t, a, b)
+	ca, cb := cells(t, a), cells(t, b)
+	if len(ca) == 0 || len(ca) != len(cb) {
+		t.Fatalf("%d and %d columns", len(ca), len(cb))
+	}
+	for name, v := range ca {
+		if !slices.Equal(v, cb[name]) {
+			t.Errorf("column %s: %d and %d values, first difference at %d", name, len(v), len(cb[name]), firstDiff(v, cb[name]))
+		}
+	}
+}
+
+func firstDiff(a, b []string) int {
+	for i := range min(len(a), len(b)) {
+		if a[i] != b[i] {
+			return i
+		}
+	}
+	return min(len(a), len(b))
+}
+
+// writeBoth writes rows with the general writer (want) and the own writer
+// (got) in dir.
+func writeBoth(t *testing.T, dir string, rows *Rows[LevelRow]) (want, got string) {
+	t.Helper()
+	want, got = filepath.Join(dir, "general.parquet"), filepath.Join(dir, "own.parquet")
+	sc := arrowSchema(TableLevels, rows.cols)
+	if _, err := writePartition(dir, "general.parquet", arrowEncoder(sc, rows.cols, rows.arrays), false); err != nil {
+		t.Fatal(err)
+	}
+	if err := WriteRows(got, TableLevels, rows, false); err != nil {
+		t.Fatal(err)
+	}
+	return want, got
+}
+
+// TestOwnWriterRealLevels: the levels files of real soundings (the 1950
+// portion of station 74794, the Melbourne file and Sterling's 2016
+// high-resolution soundings, PROVENANCE.md) written by the store's own
+// writer hold what arrow-go's general writer wrote, read back by arrow-go
+// and by DuckDB. The general writer's file is the reference.
+func TestOwnWriterRealLevels(t *testing.T) {
+	for _, name := range []string{"USM00074794-data-1950-portion.txt", "AUM00011035-data.txt.gz", "USM00072403-data-beg2016.txt.zip"} {
+		all := realAnalysed(t, name)
+		cols, err := NewLevelColumns(10)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for i := range all {
+			a := &all[i]
+			appendLevelRows(cols, a.s, a.rep, &a.res, a.s.LaunchTime.UTC(), int32(a.s.NominalTime.Year()))
+		}
+		want, got := writeBoth(t, t.TempDir(), cols.rows)
+		checkOwnFile(t, cols.rows, want, got)
+		wi, _ := os.Stat(want)
+		gi, _ := os.Stat(got)
+		t.Logf("%s: %d levels, %d bytes (general writer %d)", name, cols.Len(), gi.Size(), wi.Size())
+	}
+}
+
+// TestOwnWriterEdgeCases: no rows, one row, columns entirely null (the
+// launch time, a statistics column, among them), nulls at the row-group
+// boundary of rowGroupRows rows, a row count not a multiple of 8, runs
+// and scattered nulls, several stations in one file, large and negative
+// integers. Invented rows (unit scaffolding); the reference is arrow-go's
+// general writer as in TestOwnWriterRealLevels.
+func TestOwnWriterEdgeCases(t *testing.T) {
+	t0 := time.Date(2003, 7, 1, 12, 0, 0, 0, time.UTC)
+	kinds := []string{"surface", "standard", "significant", "wind_only", ""}
+	flags := []string{"good", "suspect", "", "bad", "good", "good"}
+	level := func(i int) LevelRow {
+		p := 1000 - float64(i%90)*10
+		if i%7 == 0 || (i/1000)%3 == 1 {
+			p = math.NaN()
+		}
+		r := LevelRow{StationID: "ZQ" + strconv.Itoa(i/50000), LaunchTime: t0.Add(time.Duration(i/90) * 12 * time.Hour),
+			Year: 2003, Index: int32(i % 90), Kind: kinds[i%5], SourceLine: int64(i)*1_000_003 - 5_000_000_000, PressureHPa: p,
+			HeightM: float64(i) * 31.5, HeightDerived: i%3 == 0, ThetaK: 290 + float64(i%90)*0.37, TemperatureC: -float64(i % 17),
+			ElapsedS: math.NaN(), TemperatureStatus: "reported", WindQC: flags[i%6], HumidityQC: flags[(i/9)%6]}
+		if i%11 == 0 {
+			r.LaunchTime = time.Time{}
+		}
+		return r
+	}
+	cases := []struct {
+		name string
+		n    int
+		edit func(*LevelRow, int)
+	}{
+		{"empty", 0, nil},
+		{"one row", 1, nil},
+		{"one row, no launch time", 1, func(r *LevelRow, _ int) { r.LaunchTime = time.Time{} }},
+		{"seven rows", 7, nil},
+		{"all null", 300, func(r *LevelRow, _ int) {
+			*r = LevelRow{StationID: "ZQ1", Year: 1, PressureHPa: math.NaN(), HeightM: math.NaN(), HeightAGLM: math.NaN(),
+				TemperatureC: math.NaN(), DewpointC: math.NaN(), ThetaK: math.NaN(), ElapsedS: math.NaN(),
+				LatDispDeg: math.NaN(), LonDispDeg: math.NaN(), RelHumidityPct: math.NaN(), WindDirDeg: math.NaN(),
+				WindSpeedMS: math.NaN(), MixingRatioGKg: math.NaN()}
+		}},
+		{"mixed", 5003, nil},
+		{"two row groups", rowGroupRows + 1237, func(r *LevelRow, i int) {
+			if i >= rowGroupRows-3 && i < rowGroupRows+5 {
+				r.PressureHPa, r.WindQC, r.LaunchTime = math.NaN(), "", time.Time{}
+			}
+		}},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			rows, err := NewRows[LevelRow](tc.n)
+			if err != nil {
+				t.Fatal(err)
+			}
+			for i := range tc.n {
+				r := level(i)
+				if tc.edit != nil {
+					tc.edit(&r, i)
+				}
+				rows.Append(r)
+			}
+			want, got := writeBoth(t, t.TempDir(), rows)
+			checkOwnFile(t, rows, want, got)
+		})
+	}
+}
+
+// TestOwnWriterEncodings holds the hybrid and delta encoders to values
+// decoded by hand from the rules of parquet-format's Encodings.md.
+func TestOwnWriterEncodings(t *testing.T) {
+	// RLE/bit-packing hybrid, bit width 3: eight 5s are one RLE run
+	// (header 8<<1 = 0x10, value 0x05); 0..7 one bit-packed group (header
+	// 1<<1|1 = 0x03), packed LSB first: 0b10001000, 0b11000110, 0b11111010
+	// = 0x88 0xC6 0xFA (Encodings.md's own example of bit-packing 0..7).
+	got := appendHybrid(nil, []uint32{5, 5, 5, 5, 5, 5, 5, 5, 0, 1, 2, 3, 4, 5, 6, 7}, 3)
+	if want := []byte{0x10, 0x05, 0x03, 0x88, 0xC6, 0xFA}; !slices.Equal(got, want) {
+		t.Errorf("hybrid: % x, want % x", got, want)
+	}
+	// Definition levels of 19 rows, all set: one RLE run of 19 ones
+	// (header 38 = 0x26, value 1), after the 4-byte length 2.
+	bits := []byte{0xff, 0xff, 0xff}
+	if got := appendDefLevels(nil, bits, 0, 19); !slices.Equal(got, []byte{2, 0, 0, 0, 0x26, 1}) {
+		t.Errorf("definition levels, none null: % x", got)
+	}
+	// 10 rows, row 2 null: one bit-packed run of two groups (header 0x05),
+	// the bitmap bytes 0xfb and 0x03 (rows 8 and 9; padding zero).
+	if got := appendDefLevels(nil, []byte{0xfb, 0xff}, 0, 10); !slices.Equal(got, []byte{3, 0, 0, 0, 0x05, 0xfb, 0x03}) {
+		t.Errorf("definition levels, one null: % x", got)
+	}
+	// DELTA_BINARY_PACKED of 1, 2, 3, 4, 5 (Encodings.md's first
+	// example): header 128, 4 miniblocks, 5 values, first value 1 (zigzag
+	// 2); the block's min delta 1 (zigzag 2), bit widths 0, 0, 0, 0, no
+	// miniblock bodies.
+	if got := appendDelta(nil, []int32{1, 2, 3, 4, 5}); !slices.Equal(got, []byte{0x80, 0x01, 4, 5, 2, 2, 0, 0, 0, 0}) {
+		t.Errorf("delta: % x", got)
+	}
+	// Its second example, 7, 5, 3, 1, 2, 3, 4, 5: deltas -2 -2 -2 1 1 1 1,
+	// min delta -2 (zigzag 3), relative 0 0 0 3 3 3 3 in 2 bits:
+	// 0b11000000, 0b00111111 (the eighth slot is padding), then zero
+	// padding to 32 values (8 bytes in all).
+	got = appendDelta(nil, []int64{7, 5, 3, 1, 2, 3, 4, 5})
+	want := []byte{0x80, 0x01, 4, 8, 14, 3, 2, 0, 0, 0, 0xC0, 0x3F, 0, 0, 0, 0, 0, 0}
+	if !slices.Equal(got, want) {
+		t.Errorf("delta: % x, want % x", got, want)
+	}
+}

@@ -1,0 +1,313 @@
+package schema
+
+import (
+	"encoding/binary"
+	"math"
+	"math/bits"
+	"unsafe"
+)
+
+// The value and level encodings of the Parquet writer (parquet.go), as
+// the Parquet format defines them (apache/parquet-format, Encodings.md:
+// "Run Length Encoding / Bit-Packing Hybrid (RLE = 3)", "Delta Encoding
+// (DELTA_BINARY_PACKED = 5)", "Byte Stream Split (BYTE_STREAM_SPLIT =
+// 9)", "Plain (PLAIN = 0)").
+
+// packer appends values of up to 64 bits each to a byte slice, least
+// significant bit first, as Parquet's bit-packing does.
+type packer struct {
+	b   []byte
+	acc uint64
+	nb  uint // bits held in acc (< 8 between calls)
+}
+
+func (p *packer) put(v uint64, width uint) {
+	if width > 32 {
+		p.put32(v&math.MaxUint32, 32)
+		p.put32(v>>32, width-32)
+		return
+	}
+	p.put32(v, width)
+}
+
+func (p *packer) put32(v uint64, width uint) {
+	p.acc |= v << p.nb
+	p.nb += width
+	for p.nb >= 8 {
+		p.b = append(p.b, byte(p.acc))
+		p.acc >>= 8
+		p.nb -= 8
+	}
+}
+
+// flush writes the bits still held, padded with zeros to a whole byte.
+func (p *packer) flush() []byte {
+	if p.nb > 0 {
+		p.b = append(p.b, byte(p.acc))
+	}
+	p.acc, p.nb = 0, 0
+	return p.b
+}
+
+// appendHybrid appends v (each value below 1<<width) in the RLE/bit-
+// packing hybrid without its length prefix: a run of 8 or more equal
+// values as an RLE run (header count<<1, the value in whole bytes), the
+// rest in bit-packed runs of groups of 8 values (header groups<<1 | 1),
+// the last group padded with zeros.
+func appendHybrid(b []byte, v []uint32, width uint) []byte {
+	vbytes := int(width+7) / 8
+	n := len(v)
+	for i := 0; i < n; {
+		j := i + 1
+		for j < n && v[j] == v[i] {
+			j++
+		}
+		if j-i >= 8 {
+			b = binary.AppendUvarint(b, uint64(j-i)<<1)
+			for k := range vbytes {
+				b = append(b, byte(v[i]>>(8*k)))
+			}
+			i = j
+			continue
+		}
+		start := i
+		for {
+			i += 8
+			if i >= n {
+				i = n
+				break
+			}
+			k := i + 1
+			for k < n && k-i < 8 && v[k] == v[i] {
+				k++
+			}
+			if k-i >= 8 {
+				break
+			}
+		}
+		groups := (i - start + 7) / 8
+		b = binary.AppendUvarint(b, uint64(groups)<<1|1)
+		p := packer{b: b}
+		for _, x := range v[start:i] {
+			p.put32(uint64(x), width)
+		}
+		for range groups*8 - (i - start) {
+			p.put32(0, width)
+		}
+		b = p.flush()
+	}
+	return b
+}
+
+// appendDefLevels appends the definition levels of rows lo..hi of a
+// nullable column whose validity bitmap is valid (bit set: a value,
+// definition level 1; clear: null), lo a multiple of 8, in the hybrid
+// encoding of bit width 1 with its 4-byte little-endian length in front,
+// as data pages of version 1 store them. A bitmap of one bit per row is
+// already the bit-packed form, so it is copied byte by byte; bytes all
+// ones or all zeros in a row become RLE runs.
+func appendDefLevels(b, valid []byte, lo, hi int) []byte {
+	at := len(b)
+	b = append(b, 0, 0, 0, 0)
+	bs := valid[lo/8:]
+	full, rem := (hi-lo)/8, (hi-lo)%8
+	tail := byte(0)
+	if rem > 0 {
+		tail = bs[full] & (1<<rem - 1)
+	}
+	pack := 0 // first byte of the bit-packed run being gathered
+	flushPack := func(end int, extra bool) {
+		nb := end - pack
+		if extra {
+			nb++
+		}
+		if nb == 0 {
+			return
+		}
+		b = binary.AppendUvarint(b, uint64(nb)<<1|1)
+		b = append(b, bs[pack:end]...)
+		if extra {
+			b = append(b, tail)
+		}
+	}
+	tailDone := rem == 0
+	for i := 0; i < full; {
+		x := bs[i]
+		if x != 0 && x != 0xff {
+			i++
+			continue
+		}
+		j := i + 1
+		for j < full && bs[j] == x {
+			j++
+		}
+		count := (j - i) * 8
+		absorb := j == full && rem > 0 && tail == x&(1<<rem-1)
+		if absorb {
+			count += rem
+		}
+		if j-i < 2 && !absorb {
+			i = j // a lone uniform byte stays in the bit-packed run
+			continue
+		}
+		flushPack(i, false)
+		b = binary.AppendUvarint(b, uint64(count)<<1)
+		b = append(b, x&1)
+		tailDone = tailDone || absorb
+		i, pack = j, j
+	}
+	flushPack(full, !tailDone)
+	binary.LittleEndian.PutUint32(b[at:], uint32(len(b)-at-4))
+	return b
+}
+
+// onesIn counts the set bits of rows lo..hi of a bitmap, lo a multiple of 8.
+func onesIn(bitmap []byte, lo, hi int) int {
+	bs := bitmap[lo/8:]
+	n := 0
+	full, rem := (hi-lo)/8, (hi-lo)%8
+	k := 0
+	for ; k+8 <= full; k += 8 {
+		n += bits.OnesCount64(binary.LittleEndian.Uint64(bs[k:]))
+	}
+	for ; k < full; k++ {
+		n += bits.OnesCount8(bs[k])
+	}
+	if rem > 0 {
+		n += bits.OnesCount8(bs[full] & (1<<rem - 1))
+	}
+	return n
+}
+
+// isSet reports bit i of a bitmap.
+func isSet(bitmap []byte, i int) bool { return bitmap[i/8]&(1<<(i%8)) != 0 }
+
+// appendSplitFloats appends the values of x whose validity bit is set
+// (all of them when valid is nil), x[0] being row lo, byte-stream split:
+// the first bytes of all values, then the second bytes, and so on, each
+// value little-endian (BYTE_STREAM_SPLIT).
+func appendSplitFloats(b []byte, x []float64, valid []byte, lo, count int) []byte {
+	at := len(b)
+	b = extend(b, at+8*count)
+	out := b[at:]
+	if valid == nil || count == len(x) {
+		split8(out, x)
+		return b
+	}
+	k := 0
+	for i, v := range x {
+		if !isSet(valid, lo+i) {
+			continue
+		}
+		u := math.Float64bits(v)
+		for s := range 8 {
+			out[s*count+k] = byte(u >> (8 * s))
+		}
+		k++
+	}
+	return b
+}
+
+// split8 writes all of x byte-stream split into out (8·len(x) bytes).
+func split8(out []byte, x []float64) {
+	n := len(x)
+	s0, s1, s2, s3 := out[:n], out[n:2*n], out[2*n:3*n], out[3*n:4*n]
+	s4, s5, s6, s7 := out[4*n:5*n], out[5*n:6*n], out[6*n:7*n], out[7*n:8*n]
+	for i, v := range x {
+		u := math.Float64bits(v)
+		s0[i] = byte(u)
+		s1[i] = byte(u >> 8)
+		s2[i] = byte(u >> 16)
+		s3[i] = byte(u >> 24)
+		s4[i] = byte(u >> 32)
+		s5[i] = byte(u >> 40)
+		s6[i] = byte(u >> 48)
+		s7[i] = byte(u >> 56)
+	}
+}
+
+// appendDelta appends v in DELTA_BINARY_PACKED: a header (block size 128,
+// 4 miniblocks of 32 values, the count, the first value as a zigzag
+// varint), then per block of 128 deltas the smallest delta (zigzag
+// varint), the bit width of each miniblock (one byte each) and the
+// miniblocks, each delta less the smallest bit-packed in the miniblock's
+// width. Deltas wrap around in the values' own width, as the format allows.
+func appendDelta[T int32 | int64](b []byte, v []T) []byte {
+	const block, miniblocks, mini = 128, 4, 32
+	b = binary.AppendUvarint(b, block)
+	b = binary.AppendUvarint(b, miniblocks)
+	b = binary.AppendUvarint(b, uint64(len(v)))
+	if len(v) == 0 {
+		return binary.AppendUvarint(b, 0)
+	}
+	b = binary.AppendUvarint(b, zigzag(int64(v[0])))
+	mask := uint64(math.MaxUint64)
+	var zero T
+	if unsafe.Sizeof(zero) == 4 {
+		mask = math.MaxUint32
+	}
+	var d [block]T
+	var u [block]uint64
+	for i := 1; i < len(v); i += block {
+		m := min(block, len(v)-i)
+		minD := v[i] - v[i-1]
+		for k := range m {
+			d[k] = v[i+k] - v[i+k-1]
+			minD = min(minD, d[k])
+		}
+		b = binary.AppendUvarint(b, zigzag(int64(minD)))
+		for k := range m {
+			u[k] = uint64(d[k]-minD) & mask
+		}
+		for k := m; k < block; k++ {
+			u[k] = 0
+		}
+		wat := len(b)
+		b = append(b, 0, 0, 0, 0)
+		p := packer{b: b}
+		for mb := range miniblocks {
+			if mb*mini >= m {
+				break
+			}
+			var or uint64
+			for _, x := range u[mb*mini : (mb+1)*mini] {
+				or |= x
+			}
+			w := uint(bits.Len64(or))
+			p.b[wat+mb] = byte(w)
+			if w == 0 {
+				continue
+			}
+			for _, x := range u[mb*mini : (mb+1)*mini] {
+				p.put(x, w)
+			}
+		}
+		b = p.flush()
+	}
+	return b
+}
+
+// appendPlainBools appends the booleans of rows lo..hi whose validity bit
+// is set (all when valid is nil), one bit each, least significant first.
+func appendPlainBools(b, values, valid []byte, lo, hi int) []byte {
+	if valid == nil && lo%8 == 0 {
+		n := hi - lo
+		b = append(b, values[lo/8:lo/8+n/8]...)
+		if n%8 > 0 {
+			b = append(b, values[lo/8+n/8]&(1<<(n%8)-1))
+		}
+		return b
+	}
+	p := packer{b: b}
+	for i := lo; i < hi; i++ {
+		if valid != nil && !isSet(valid, i) {
+			continue
+		}
+		v := uint64(0)
+		if isSet(values, i) {
+			v = 1
+		}
+		p.put32(v, 1)
+	}
+	return p.flush()
+}
