@@ -287,7 +287,9 @@ func (r *run) indexInPlace(ctx context.Context, path string, fi int, st *staged,
 		// page cache cost less processor time than faulting in fresh
 		// memory for it (8 alternating runs, 2 December 2026).
 		if _, err = f.Seek(0, io.SeekStart); err == nil {
-			err = ix.member(io.TeeReader(f, sum), "", 0)
+			err = ix.member(func(fn func(archivev2.Segment) error) error {
+				return archivev2.Index(io.TeeReader(f, sum), fn)
+			}, "", 0)
 		}
 	} else {
 		readFrom = copyPath
@@ -300,11 +302,11 @@ func (r *run) indexInPlace(ctx context.Context, path string, fi int, st *staged,
 			err := input.EachWithin(path, r.opt.SizeLimit, []*input.Budget{r.inputBudget(), r.runBudget}, func(member string, rd io.Reader) error {
 				members++
 				io.WriteString(sum, member+"\x00")
-				br := bufio.NewReaderSize(io.TeeReader(rd, sum), 1<<16)
-				if h, _ := br.Peek(4096); r.opt.Format == "" && !archivev2.Sniff(h) {
-					return errNotInPlace
+				sniff := r.opt.Format == ""
+				if cp.file == nil {
+					return ix.heldMember(rd, member, cp, sum, sniff)
 				}
-				return ix.member(io.TeeReader(br, cp), member, cp.n)
+				return ix.copiedMember(io.TeeReader(rd, sum), member, cp, sniff)
 			})
 			if err != nil {
 				return err
@@ -397,10 +399,83 @@ type indexer struct {
 	otherShards int
 }
 
-// member indexes one member read from rd, whose first byte is at offset
-// base of the file the partitions will read.
-func (ix *indexer) member(rd io.Reader, member string, base int64) error {
-	err := archivev2.Index(rd, func(sg archivev2.Segment) error {
+// sniffBytes is how much of a member's text tells whether it is an
+// archive-v2 file (archivev2.Sniff).
+const sniffBytes = 4096
+
+// heldMember reads one member of a compressed input from rd to its end
+// straight into the staging copy's memory, which must not have spilled,
+// adding its bytes to sum, and indexes it there. (Reading through a
+// buffer and copying it into the staging copy cost a memory copy of the
+// whole text; the decompressed size is known from the gzip trailer, so
+// the memory is usually taken once, gzipSizeHint.) When the staging
+// budget cannot hold the member, the copy spills and the member goes on
+// as copiedMember, from the bytes already read. With sniff, a member whose
+// first bytes are not archive-v2 text is errNotInPlace.
+func (ix *indexer) heldMember(rd io.Reader, member string, cp *stagingCopy, sum hash.Hash, sniff bool) error {
+	base := len(cp.mem)
+	for {
+		var n int
+		var err error
+		if at := len(cp.mem); at < cap(cp.mem) {
+			n, err = rd.Read(cp.mem[at:cap(cp.mem)])
+			cp.mem = cp.mem[:at+n]
+			sum.Write(cp.mem[at:])
+		} else {
+			// Full: make room only when bytes really follow (a stated
+			// size that is exact ends here, at io.EOF), a MiB beyond
+			// them when the budget allows.
+			probe := make([]byte, 4096)
+			n, err = rd.Read(probe)
+			probe = probe[:n]
+			sum.Write(probe)
+			if n > 0 && !cp.grow(at+n+1<<20) && !cp.grow(at+n) {
+				rest := io.MultiReader(bytes.NewReader(cp.mem[base:]), bytes.NewReader(probe), io.TeeReader(rd, sum))
+				cp.mem, cp.n = cp.mem[:base], int64(base)
+				if err := cp.spill(); err != nil {
+					return &writeError{err}
+				}
+				return ix.copiedMember(rest, member, cp, sniff)
+			}
+			cp.mem = append(cp.mem, probe...)
+		}
+		cp.n += int64(n)
+		if sniff && (len(cp.mem)-base >= sniffBytes || err != nil) {
+			if !archivev2.Sniff(cp.mem[base:min(len(cp.mem), base+sniffBytes)]) {
+				return errNotInPlace
+			}
+			sniff = false
+		}
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			return err
+		}
+	}
+	return ix.member(func(fn func(archivev2.Segment) error) error {
+		return archivev2.IndexBytes(cp.mem[base:], fn)
+	}, member, int64(base))
+}
+
+// copiedMember indexes one member of a compressed input read from rd
+// while copying it into the staging copy; with sniff, a member whose first
+// bytes are not archive-v2 text is errNotInPlace.
+func (ix *indexer) copiedMember(rd io.Reader, member string, cp *stagingCopy, sniff bool) error {
+	br := bufio.NewReaderSize(rd, 1<<16)
+	if h, _ := br.Peek(sniffBytes); sniff && !archivev2.Sniff(h) {
+		return errNotInPlace
+	}
+	return ix.member(func(fn func(archivev2.Segment) error) error {
+		return archivev2.Index(io.TeeReader(br, cp), fn)
+	}, member, cp.n)
+}
+
+// member indexes one member through index (archivev2.Index of the member,
+// or IndexBytes), its first byte being at offset base of the file the
+// partitions will read.
+func (ix *indexer) member(index func(fn func(archivev2.Segment) error) error, member string, base int64) error {
+	err := index(func(sg archivev2.Segment) error {
 		if err := ix.ctx.Err(); err != nil {
 			return err
 		}

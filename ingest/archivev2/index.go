@@ -50,8 +50,7 @@ var ErrNoHeaders = errors.New("archive-v2: no readable header record")
 // header is the only line that starts with it) and line ends with the
 // standard library's vectorised byte search, instead of line by line.
 func Index(r io.Reader, fn func(Segment) error) error {
-	ix := indexer{fn: fn, hdr: make([]byte, 0, maxLine+1), lineNo: 1}
-	ix.cur.FirstLine = 1
+	ix := newIndexer(fn)
 	rd := ingest.LineEnds(r)
 	buf := make([]byte, indexChunk)
 	for {
@@ -68,6 +67,33 @@ func Index(r io.Reader, fn func(Segment) error) error {
 			return err
 		}
 	}
+	return ix.end()
+}
+
+// IndexBytes is Index of the text b held in memory. Text without a
+// carriage return, which is what ingest.LineEnds would change, is scanned
+// where it lies, as one chunk, with no copy; other text is read through
+// Index.
+func IndexBytes(b []byte, fn func(Segment) error) error {
+	if bytes.IndexByte(b, '\r') >= 0 {
+		return Index(bytes.NewReader(b), fn)
+	}
+	ix := newIndexer(fn)
+	if err := ix.scan(b); err != nil {
+		return err
+	}
+	return ix.end()
+}
+
+func newIndexer(fn func(Segment) error) *indexer {
+	ix := &indexer{fn: fn, hdr: make([]byte, 0, maxLine+1), lineNo: 1}
+	ix.cur.FirstLine = 1
+	return ix
+}
+
+// end completes the index at the end of the input: the last header, if
+// the input ends inside it, and the last segment.
+func (ix *indexer) end() error {
 	if ix.state == lineHeader {
 		if err := ix.header(); err != nil {
 			return err
@@ -77,7 +103,7 @@ func Index(r io.Reader, fn func(Segment) error) error {
 		return ErrNoHeaders
 	}
 	ix.cur.Size = ix.off - ix.cur.Offset
-	return fn(ix.cur)
+	return ix.fn(ix.cur)
 }
 
 // indexChunk is the size of the reads Index makes.

@@ -92,7 +92,8 @@ var errInjected = errors.New("injected read error")
 
 // indexBoth fails unless Index and indexReference give the same segments
 // and error on in, read whole, a byte at a time, in halves, with the last
-// bytes' io.EOF, and cut by a read error after half the input.
+// bytes' io.EOF, and cut by a read error after half the input, and
+// IndexBytes gives the reference's segments and error for in whole.
 func indexBoth(t *testing.T, where string, in []byte) {
 	t.Helper()
 	run := func(ix func(io.Reader, func(Segment) error) error, r io.Reader) ([]Segment, error) {
@@ -115,12 +116,29 @@ func indexBoth(t *testing.T, where string, in []byte) {
 			return io.MultiReader(bytes.NewReader(in[:len(in)/2]), iotest.ErrReader(errInjected))
 		},
 	}
+	// IndexBytes reads the input held in memory.
+	fromBytes := func(r io.Reader, fn func(Segment) error) error {
+		b, err := io.ReadAll(r)
+		if err != nil {
+			return err
+		}
+		return IndexBytes(b, fn)
+	}
 	for name, mk := range readers {
 		if name == "onebyte" && len(in) > 1<<16 {
 			continue
 		}
 		got, gerr := run(Index, mk())
 		want, werr := run(indexReference, mk())
+		if name == "whole" {
+			bgot, berr := run(fromBytes, mk())
+			if (berr == nil) != (werr == nil) || berr != nil && !errors.Is(berr, werr) {
+				t.Errorf("%s, IndexBytes: error %v, reference %v", where, berr, werr)
+			}
+			if !reflect.DeepEqual(bgot, want) {
+				t.Errorf("%s, IndexBytes: segments\n%+v\nreference\n%+v", where, bgot, want)
+			}
+		}
 		if !errors.Is(gerr, werr) && !(gerr == nil && werr == nil) || (gerr == nil) != (werr == nil) {
 			t.Errorf("%s, %s reads: error %v, reference %v", where, name, gerr, werr)
 		}

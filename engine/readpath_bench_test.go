@@ -1,0 +1,115 @@
+package engine
+
+import (
+	"archive/zip"
+	"bytes"
+	"context"
+	"io"
+	"os"
+	"path/filepath"
+	"testing"
+
+	"github.com/klauspost/compress/gzip"
+
+	"github.com/sondeclim/sondeclim/internal/benchcpu"
+	"github.com/sondeclim/sondeclim/internal/realdata"
+)
+
+// sterlingLevels is the number of data records of the real Sterling 2016
+// file (PROVENANCE.md, Sterling row: 131,306 levels).
+const sterlingLevels = 131306
+
+// sterlingInput writes the real Sterling 2016 file into dir, plain or
+// gzipped at level 1 (as ../shared/peer/compare.sh does), and returns its
+// path.
+func sterlingInput(b *testing.B, dir string, gz bool) string {
+	b.Helper()
+	zr, err := zip.OpenReader(filepath.Join(realdata.Dir(b, "archive-v2"), "USM00072403-data-beg2016.txt.zip"))
+	if err != nil {
+		b.Fatal(err)
+	}
+	defer zr.Close()
+	rc, err := zr.File[0].Open()
+	if err != nil {
+		b.Fatal(err)
+	}
+	text, err := io.ReadAll(rc)
+	rc.Close()
+	if err != nil {
+		b.Fatal(err)
+	}
+	path := filepath.Join(dir, "sterling.txt")
+	if gz {
+		var buf bytes.Buffer
+		zw, _ := gzip.NewWriterLevel(&buf, 1)
+		zw.Write(text)
+		zw.Close()
+		text, path = buf.Bytes(), path+".gz"
+	}
+	if err := os.WriteFile(path, text, 0o644); err != nil {
+		b.Fatal(err)
+	}
+	return path
+}
+
+// BenchmarkReadPath stages the real Sterling 2016 file (indexing it by
+// station-year, through a decompressed copy held in memory for gzip) and
+// decodes every segment in place, the ingest's read path before QC; the
+// cpu-ns/level figure compares with the ingest's CPU time per level.
+func BenchmarkReadPath(b *testing.B) {
+	for _, gz := range []bool{true, false} {
+		b.Run(map[bool]string{true: "gzip", false: "plain"}[gz], func(b *testing.B) {
+			path := sterlingInput(b, b.TempDir(), gz)
+			cpu0 := benchcpu.Used()
+			for b.Loop() {
+				r := newRun(context.Background(), b.TempDir(), []string{path}, Options{Workers: 1})
+				r.staging = b.TempDir()
+				st := &staged{byPart: map[string][]segment{}, dropped: map[int]bool{}}
+				if _, err := r.stageInputs([]string{path}, st, nil); err != nil {
+					b.Fatal(err)
+				}
+				n := 0
+				var buf, data []byte
+				var err error
+				for _, segs := range st.byPart {
+					for _, sg := range segs {
+						if data, buf, err = readSegment(st, sg, buf); err != nil {
+							b.Fatal(err)
+						}
+						got, err := r.readInPlace(data, st.inputs[sg.file], sg)
+						if err != nil {
+							b.Fatal(err)
+						}
+						n += benchcpu.Levels(got)
+					}
+				}
+				if n != sterlingLevels {
+					b.Fatalf("%d levels, want %d (PROVENANCE.md)", n, sterlingLevels)
+				}
+			}
+			benchcpu.PerLevel(b, cpu0, sterlingLevels)
+		})
+	}
+}
+
+// BenchmarkStage is the staging half of BenchmarkReadPath alone.
+func BenchmarkStage(b *testing.B) {
+	for _, gz := range []bool{true, false} {
+		b.Run(map[bool]string{true: "gzip", false: "plain"}[gz], func(b *testing.B) {
+			path := sterlingInput(b, b.TempDir(), gz)
+			cpu0 := benchcpu.Used()
+			for b.Loop() {
+				r := newRun(context.Background(), b.TempDir(), []string{path}, Options{Workers: 1})
+				r.staging = b.TempDir()
+				st := &staged{byPart: map[string][]segment{}, dropped: map[int]bool{}}
+				if _, err := r.stageInputs([]string{path}, st, nil); err != nil {
+					b.Fatal(err)
+				}
+				if len(st.byPart) == 0 {
+					b.Fatal("nothing staged")
+				}
+			}
+			benchcpu.PerLevel(b, cpu0, sterlingLevels)
+		})
+	}
+}
