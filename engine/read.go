@@ -508,7 +508,7 @@ func (ix *indexer) member(index func(fn func(archivev2.Segment) error) error, me
 // reading the whole file would.
 func (r *run) readInPlace(buf []byte, path string, sg segment) ([]*sounding.Sounding, error) {
 	defer r.stage("read_parse", time.Now())
-	rd := archivev2.NewReaderAt(bytes.NewReader(buf), path, sg.member, sg.line)
+	rd := archivev2.NewReaderBytesAt(buf, path, sg.member, sg.line)
 	var out []*sounding.Sounding
 	for {
 		s, err := rd.Next()

@@ -6,6 +6,7 @@ import (
 	"compress/gzip"
 	"encoding/binary"
 	"errors"
+	"fmt"
 	"io"
 	"math"
 	"os"
@@ -280,12 +281,16 @@ func FuzzFixedField(f *testing.F) {
 
 // readAllWith reads text with the fast or the general level parser.
 func readAllWith(text []byte, file string, general bool) ([]*sounding.Sounding, []error, error) {
-	rd := NewReader(bytes.NewReader(text), file, "")
+	return readEach(NewReader(bytes.NewReader(text), file, ""), len(text), general)
+}
+
+// readEach reads rd, of n bytes of input, to its end.
+func readEach(rd *Reader, n int, general bool) ([]*sounding.Sounding, []error, error) {
 	rd.general = general
 	var ss []*sounding.Sounding
 	var errs []error
 	for i := 0; ; i++ {
-		if i > 10*len(text)+10 {
+		if i > 10*n+10 {
 			return nil, nil, errors.New("reader does not terminate")
 		}
 		s, err := rd.Next()
@@ -306,7 +311,9 @@ func readAllWith(text []byte, file string, general bool) ([]*sounding.Sounding, 
 
 // sameReading fails unless two readings give the same soundings (levels
 // compared bit by bit through the codec, source positions included) and
-// the same errors (file, line and message).
+// the same errors (file, line and message): the fast and the general
+// level parser, and reading the text as a stream and from memory
+// (NewReaderBytes, which must not change the text).
 func sameReading(t *testing.T, where string, text []byte) {
 	t.Helper()
 	fs, fe, err1 := readAllWith(text, where, false)
@@ -314,20 +321,36 @@ func sameReading(t *testing.T, where string, text []byte) {
 	if err1 != nil || err2 != nil {
 		t.Fatalf("%s: %v / %v", where, err1, err2)
 	}
+	kept := bytes.Clone(text)
+	ms, me, err3 := readEach(NewReaderBytes(text, where, ""), len(text), false)
+	if err3 != nil {
+		t.Fatalf("%s: from memory: %v", where, err3)
+	}
+	if !bytes.Equal(text, kept) {
+		t.Fatalf("%s: reading from memory changed the text", where)
+	}
+	compareReadings(t, where+", stream and memory", fs, fe, ms, me)
+	compareReadings(t, where+", fast and general", fs, fe, gs, ge)
+}
+
+// compareReadings fails unless two readings give the same soundings and
+// errors.
+func compareReadings(t *testing.T, where string, fs []*sounding.Sounding, fe []error, gs []*sounding.Sounding, ge []error) {
+	t.Helper()
 	if len(fs) != len(gs) || len(fe) != len(ge) {
-		t.Fatalf("%s: fast reader %d soundings %d errors, general %d and %d", where, len(fs), len(fe), len(gs), len(ge))
+		t.Fatalf("%s: %d soundings %d errors, and %d and %d", where, len(fs), len(fe), len(gs), len(ge))
 	}
 	for i := range fe {
 		a, b := fe[i].(*ingest.ParseError), ge[i].(*ingest.ParseError)
 		if a.File != b.File || a.Member != b.Member || a.Line != b.Line || a.Error() != b.Error() {
-			t.Errorf("%s: error %d: fast %v, general %v", where, i, fe[i], ge[i])
+			t.Errorf("%s: error %d: %v, and %v", where, i, fe[i], ge[i])
 		}
 	}
 	for i := range fs {
 		a := sounding.AppendBinary(nil, fs[i], true)
 		b := sounding.AppendBinary(nil, gs[i], true)
 		if !bytes.Equal(a, b) {
-			t.Errorf("%s: sounding %d (line %d) differs between the fast and general readers", where, i, fs[i].Source.Line)
+			t.Errorf("%s: sounding %d (line %d) differs", where, i, fs[i].Source.Line)
 		}
 		for k := range fs[i].Levels {
 			if !sameLevel(&fs[i].Levels[k], &gs[i].Levels[k]) {
@@ -356,4 +379,28 @@ func TestFastReaderMatchesGeneral(t *testing.T) {
 		}
 	}
 	sameReading(t, "sterling-damaged", bytes.Join(lines, nil))
+}
+
+// TestReaderBytesLines: lines around the reader's limit of maxLine bytes
+// (one shorter, as long as and one longer than the buffer NewReader reads
+// through), with and without a last line feed, blank lines, byte-order
+// marks and text before the first header read the same from memory as
+// from a stream. (Invented input; the stream reader is the reference.)
+func TestReaderBytesLines(t *testing.T) {
+	hdr1 := strings.Replace(hdrA, "   2 ", "   1 ", 1)
+	for _, n := range []int{maxLine - 2, maxLine - 1, maxLine, maxLine + 1} {
+		for _, tail := range []string{"", "\n"} {
+			pad := strings.Repeat(" ", n-len(lvSfc))
+			ins := []string{
+				hdr1 + "\n" + lvSfc + pad + tail,
+				hdr1 + "\n" + lvSfc + pad + "\n" + hdr1 + "\n" + lvStd + tail,
+				hdr1 + strings.Repeat(" ", n-len(hdr1)) + "\n" + lvSfc + "\n" + hdr1 + "\n" + lvStd + tail,
+				"note\n\n" + ingest.BOM + hdrA + "\n" + lvSfc + "\n  \n" + ingest.BOM + lvStd + tail,
+				strings.Repeat("x", n) + tail + hdr1 + "\n" + lvSfc + tail,
+			}
+			for i, in := range ins {
+				sameReading(t, fmt.Sprintf("line of %d bytes, input %d, end %q", n, i, tail), []byte(in))
+			}
+		}
+	}
 }

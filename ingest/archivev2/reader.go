@@ -2,6 +2,7 @@ package archivev2
 
 import (
 	"bufio"
+	"bytes"
 	"fmt"
 	"io"
 	"math"
@@ -64,7 +65,12 @@ const maxLine = 4096
 // RemovedUpstream; the A/B flags go to UpstreamTier. ElevationM is the first
 // surface level's height when reported, else NaN.
 type Reader struct {
-	br           *bufio.Reader
+	br *bufio.Reader
+	// text, when inMem, is the rest of input held in memory
+	// (NewReaderBytes), whose lines are cut where they lie instead of
+	// through br.
+	text         []byte
+	inMem        bool
 	file, member string
 	line         int   // lines consumed so far
 	err          error // terminal: io.EOF or a read error
@@ -94,6 +100,48 @@ func NewReader(r io.Reader, file, member string) *Reader {
 	}
 }
 
+// NewReaderBytes is NewReader of the text b held in memory. When b holds
+// no carriage return (the byte ingest.LineEnds may change), lines are cut
+// from b where they lie, with no copy; b must then not change while the
+// reader is used. Other text is read through NewReader.
+func NewReaderBytes(b []byte, file, member string) *Reader {
+	if bytes.IndexByte(b, '\r') >= 0 {
+		return NewReader(bytes.NewReader(b), file, member)
+	}
+	return &Reader{text: b, inMem: true, file: file, member: member, pending: make([]byte, 0, 128)}
+}
+
+// NewReaderBytesAt is NewReaderAt of the text b held in memory, as
+// NewReaderBytes reads it.
+func NewReaderBytesAt(b []byte, file, member string, firstLine int) *Reader {
+	rd := NewReaderBytes(b, file, member)
+	rd.line = max(firstLine, 1) - 1
+	return rd
+}
+
+// memLine is readLine for text held in memory without carriage returns.
+// A line is too long, as with the buffer of maxLine bytes NewReader reads
+// through, when maxLine bytes pass without a line feed; its first 128
+// bytes are kept.
+func (r *Reader) memLine() (line []byte, tooLong bool, err error) {
+	if len(r.text) == 0 {
+		return nil, false, io.EOF
+	}
+	i := bytes.IndexByte(r.text, '\n')
+	if i < 0 {
+		line, r.text = r.text, nil
+	} else {
+		line, r.text = r.text[:i], r.text[i+1:]
+	}
+	if len(line) >= maxLine {
+		tooLong = true
+		r.long = append(r.long[:0], line[:128]...)
+		line = r.long
+	}
+	r.line++
+	return ingest.TrimBOM(line), tooLong, nil
+}
+
 // readLine returns the next line without its line terminator. The slice is
 // valid until the next call. tooLong reports that the line exceeded maxLine
 // bytes; only its first bytes are returned. It returns io.EOF at the end of
@@ -101,6 +149,9 @@ func NewReader(r io.Reader, file, member string) *Reader {
 func (r *Reader) readLine() (line []byte, tooLong bool, err error) {
 	if r.err != nil {
 		return nil, false, r.err
+	}
+	if r.inMem {
+		return r.memLine()
 	}
 	line, err = r.br.ReadSlice('\n')
 	if err == bufio.ErrBufferFull {
