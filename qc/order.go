@@ -64,6 +64,9 @@ func (st *state) pressureOrder() {
 		}
 	}
 	st.sc.idx = idx
+	if pressuresDecrease(st.p, idx) {
+		return // the one longest run is all of idx: nothing to flag
+	}
 	keep := longestRun(st.sc, idx, func(i int) float64 { return -st.p[i] })
 	last := -1 // previous kept level
 	for pos, i := range idx {
@@ -152,13 +155,48 @@ func (st *state) heightOrder() {
 func (st *state) heightRun(idx []int) {
 	// Non-decreasing: make equal heights strictly increasing by a tiny
 	// tie-breaker on the position (heights are whole or tenth metres).
-	keep := longestRun(st.sc, idx, func(i int) float64 { return st.z[i] + 1e-6*float64(i)/float64(len(st.z)+1) })
+	if st.heightsIncrease(idx) {
+		return // the one longest run is all of idx: nothing to flag
+	}
+	keep := longestRun(st.sc, idx, st.heightKey)
 	for pos, i := range idx {
 		if !keep[pos] {
 			st.flag(i, sounding.VarHeight, Bad, CheckHeightOrder, st.z[i], nan,
 				"height %.0f gpm breaks the increasing order", st.z[i])
 		}
 	}
+}
+
+// heightKey is heightRun's key of level i: its height made strictly
+// increasing over equal heights by the tie-breaker on the position.
+func (st *state) heightKey(i int) float64 { return st.z[i] + 1e-6*float64(i)/float64(len(st.z)+1) }
+
+// heightsIncrease reports whether heightKey strictly increases along idx,
+// the common case, in which longestRun would keep every level.
+func (st *state) heightsIncrease(idx []int) bool {
+	if len(idx) == 0 {
+		return true
+	}
+	prev := st.heightKey(idx[0])
+	for _, i := range idx[1:] {
+		k := st.heightKey(i)
+		if !(prev < k) {
+			return false
+		}
+		prev = k
+	}
+	return true
+}
+
+// pressuresDecrease reports whether p strictly decreases along idx, the
+// common case, in which longestRun of −p would keep every level.
+func pressuresDecrease(p []float64, idx []int) bool {
+	for n := 1; n < len(idx); n++ {
+		if !(p[idx[n]] < p[idx[n-1]]) {
+			return false
+		}
+	}
+	return true
 }
 
 // withinResolution reports whether level i, left out of the decreasing
