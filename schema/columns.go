@@ -436,6 +436,16 @@ func (b *colBuf) array(c *Column) arrow.Array {
 
 // columnArrays returns the columns cols of rows[idx...] as Arrow arrays.
 func columnArrays[T any](cols []Column, rows []T, idx []int) ([]arrow.Array, error) {
+	bufs, err := columnBufs(cols, rows, idx)
+	if err != nil {
+		return nil, err
+	}
+	return arraysOf(cols, bufs), nil
+}
+
+// columnBufs returns the columns cols of rows[idx...] filled, one buffer
+// per column.
+func columnBufs[T any](cols []Column, rows []T, idx []int) ([]*colBuf, error) {
 	bufs := make([]*colBuf, len(cols))
 	for c := range cols {
 		bufs[c] = newColBuf(&cols[c], len(idx))
@@ -448,7 +458,7 @@ func columnArrays[T any](cols []Column, rows []T, idx []int) ([]arrow.Array, err
 			}
 		}
 	}
-	return arraysOf(cols, bufs), nil
+	return bufs, nil
 }
 
 // fillBlock is the number of rows filled into all columns at a time: a few

@@ -25,7 +25,7 @@ import (
 // rowGroupRows rows, statistics (min, max, null count) for statsColumns,
 // dictionary pages for the text columns, and the same encodings
 // (BYTE_STREAM_SPLIT floats, DELTA_BINARY_PACKED integers and times, PLAIN
-// booleans, RLE_DICTIONARY text) and compression. Each column chunk is one
+// booleans and optional integers, RLE_DICTIONARY text) and compression. Each column chunk is one
 // data page (version 1) after its dictionary page, if any.
 //
 // The structures follow apache/parquet-format's src/main/thrift/parquet.thrift
@@ -111,6 +111,8 @@ type pqWriter struct {
 	idx      []uint32
 	i32      []int32
 	i64      []int64
+	f64      []float64
+	i16      []int16
 	hdr      compact
 	stats    compact
 	footer   compact
@@ -261,14 +263,23 @@ func (pw *pqWriter) column(m *chunkMeta, c *Column, b *colBuf, lo, hi int) error
 	switch c.kind {
 	case kindFloat64:
 		m.phys, m.enc = ptDouble, encByteStream
-		raw = appendSplitFloats(raw, b.f64[lo:hi], valid, lo, n-nulls)
+		raw = appendSplitFloats(raw, b.f64[lo:hi], valid, lo, &pw.f64)
 	case kindBool, kindPtrBool:
 		m.phys, m.enc = ptBoolean, encPlain
 		raw = appendPlainBools(raw, b.bits, valid, lo, hi)
 	case kindInt32, kindPtrInt32:
+		// The general writer stored optional integers (*int32 fields)
+		// PLAIN, the others as deltas (encode, write.go).
 		m.phys, m.enc = ptInt32, encDeltaBinary
 		v := gather(&pw.i32, b.i32[lo:hi], valid, lo)
-		raw = appendDelta(raw, v)
+		if c.kind == kindPtrInt32 {
+			m.enc = encPlain
+			for _, x := range v {
+				raw = binary.LittleEndian.AppendUint32(raw, uint32(x))
+			}
+		} else {
+			raw = appendDelta(raw, v)
+		}
 		if st {
 			pw.intStats(v, nulls, 4)
 		}
@@ -284,17 +295,17 @@ func (pw *pqWriter) column(m *chunkMeta, c *Column, b *colBuf, lo, hi int) error
 		idx := pw.idx[:0]
 		if c.kind == kindKey {
 			dict = b.keys
-			for i, x := range b.i32[lo:hi] {
-				if valid == nil || isSet(valid, lo+i) {
-					idx = append(idx, uint32(x))
-				}
+			for _, x := range gather(&pw.i32, b.i32[lo:hi], valid, lo) {
+				idx = append(idx, uint32(x))
 			}
 		} else {
 			dict = c.enumList()
-			for i, x := range b.i16[lo:hi] {
-				if valid == nil || isSet(valid, lo+i) {
-					idx = append(idx, uint32(x))
-				}
+			v := b.i16[lo:hi]
+			if valid != nil {
+				v = gatherValid(&pw.i16, v, valid, lo)
+			}
+			for _, x := range v {
+				idx = append(idx, uint32(x))
 			}
 		}
 		pw.idx = idx
@@ -366,14 +377,7 @@ func gather[E int32 | int64](scratch *[]E, x []E, valid []byte, lo int) []E {
 	if valid == nil {
 		return x
 	}
-	out := (*scratch)[:0]
-	for i, v := range x {
-		if isSet(valid, lo+i) {
-			out = append(out, v)
-		}
-	}
-	*scratch = out
-	return out
+	return gatherValid(scratch, x, valid, lo)
 }
 
 // appendIndices appends dictionary indices as an RLE_DICTIONARY data page

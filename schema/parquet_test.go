@@ -146,7 +146,7 @@ func sameFooter(t *testing.T, want, got string) {
 			b = g[i]
 		}
 		if a != b {
-			t.Errorf("footer field %d: general writer %q, own writer %q", i, a, b)
+			t.Errorf("footer field %d: general writer %q, own writer %q; before it: %q", i, a, b, w[max(0, i-8):i])
 			return
 		}
 	}
@@ -440,4 +440,72 @@ func TestOwnWriterEncodings(t *testing.T) {
 	if !slices.Equal(got, want) {
 		t.Errorf("delta: % x, want % x", got, want)
 	}
+}
+
+// checkSlice writes rows of table with arrow-go's general writer and with
+// the store's own, and checks the two files with sameContent and DuckDB.
+func checkSlice[T any](t *testing.T, table string, rows []T) {
+	t.Helper()
+	dir := t.TempDir()
+	cols, err := Columns[T]()
+	if err != nil {
+		t.Fatal(err)
+	}
+	idx := make([]int, len(rows))
+	for i := range idx {
+		idx[i] = i
+	}
+	arrays := func() ([]arrow.Array, int, error) {
+		a, err := columnArrays(cols, rows, idx)
+		return a, len(rows), err
+	}
+	if _, err := writePartition(dir, "general.parquet", arrowEncoder(arrowSchema(table, cols), cols, arrays), false); err != nil {
+		t.Fatal(err)
+	}
+	want, got := filepath.Join(dir, "general.parquet"), filepath.Join(dir, "own.parquet")
+	if err := WriteFile(got, table, rows, false); err != nil {
+		t.Fatal(err)
+	}
+	sameContent(t, want, got)
+	if n := duckRows(t, want, got); n != len(rows) {
+		t.Errorf("%s: DuckDB counts %d rows, %d written", table, n, len(rows))
+	}
+}
+
+// TestOwnWriterAllTables: every table the engine writes, filled from real
+// soundings (the three files of TestOwnWriterRealLevels) by AppendSounding
+// and written from slices by the store's own writer, holds what arrow-go's
+// general writer wrote from the same rows. The afternoon rows, which the
+// engine pairs across soundings, are invented here (unit scaffolding), as
+// are the allKinds rows of sampleRows, which hold every column kind.
+func TestOwnWriterAllTables(t *testing.T) {
+	var p PartRows
+	var levels RowSlice[LevelRow]
+	p.Levels = &levels
+	for _, name := range []string{"USM00074794-data-1950-portion.txt", "AUM00011035-data.txt.gz", "USM00072403-data-beg2016.txt.zip"} {
+		for _, a := range realAnalysed(t, name) {
+			row := AppendSounding(&p, a.s, a.rep, &a.res)
+			row.SoundingHash = fmt.Sprintf("%064x", len(p.Soundings))
+			p.Soundings = append(p.Soundings, row)
+		}
+	}
+	for i, s := range p.Soundings[:400] {
+		st := []string{"ok", "undefined", "surface"}[i%3]
+		p.Afternoon = append(p.Afternoon, AfternoonRow{StationID: s.StationID, Year: s.Year, LocalDate: s.NominalTime.Truncate(24 * time.Hour),
+			MorningLaunch: s.LaunchTime, TmaxC: float64(i%40) - 5.5, TmaxSource: "later_sounding", HeightAGLM: float64(i * 7), Status: st,
+			Note: strings.Repeat("n", i%3)})
+	}
+	if len(p.Soundings) < 900 || len(p.QCFindings) < 100 || len(p.Inversions) < 100 {
+		t.Fatalf("%d soundings, %d findings, %d inversions: too few", len(p.Soundings), len(p.QCFindings), len(p.Inversions))
+	}
+	checkSlice(t, TableSoundings, p.Soundings)
+	checkSlice(t, TableLevels, levels)
+	checkSlice(t, TableDescentLevels, levels[:5000])
+	checkSlice(t, TableInversions, p.Inversions)
+	checkSlice(t, TableMixedLayers, p.MixedLayers)
+	checkSlice(t, TableMixingHeights, p.MixingHeights)
+	checkSlice(t, TableQCFindings, p.QCFindings)
+	checkSlice(t, TableAfternoon, p.Afternoon)
+	checkSlice(t, "all_kinds", sampleRows())
+	checkSlice(t, "all_kinds", []allKinds{})
 }

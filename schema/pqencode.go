@@ -185,27 +185,45 @@ func isSet(bitmap []byte, i int) bool { return bitmap[i/8]&(1<<(i%8)) != 0 }
 // appendSplitFloats appends the values of x whose validity bit is set
 // (all of them when valid is nil), x[0] being row lo, byte-stream split:
 // the first bytes of all values, then the second bytes, and so on, each
-// value little-endian (BYTE_STREAM_SPLIT).
-func appendSplitFloats(b []byte, x []float64, valid []byte, lo, count int) []byte {
+// value little-endian (BYTE_STREAM_SPLIT). scratch holds the gathered
+// values.
+func appendSplitFloats(b []byte, x []float64, valid []byte, lo int, scratch *[]float64) []byte {
+	if valid != nil {
+		x = gatherValid(scratch, x, valid, lo)
+	}
 	at := len(b)
-	b = extend(b, at+8*count)
-	out := b[at:]
-	if valid == nil || count == len(x) {
-		split8(out, x)
-		return b
-	}
-	k := 0
-	for i, v := range x {
-		if !isSet(valid, lo+i) {
-			continue
-		}
-		u := math.Float64bits(v)
-		for s := range 8 {
-			out[s*count+k] = byte(u >> (8 * s))
-		}
-		k++
-	}
+	b = extend(b, at+8*len(x))
+	split8(b[at:], x)
 	return b
+}
+
+// gatherValid returns the values of x whose validity bit is set, x[0]
+// being row lo (a multiple of 8), in *scratch: whole bytes of the bitmap
+// at a time where all eight rows are valid or all null.
+func gatherValid[E any](scratch *[]E, x []E, valid []byte, lo int) []E {
+	out := (*scratch)[:0]
+	bs := valid[lo/8:]
+	i := 0
+	for ; i+8 <= len(x); i += 8 {
+		switch m := bs[i/8]; m {
+		case 0xff:
+			out = append(out, x[i:i+8]...)
+		case 0:
+		default:
+			for k := range 8 {
+				if m&(1<<k) != 0 {
+					out = append(out, x[i+k])
+				}
+			}
+		}
+	}
+	for ; i < len(x); i++ {
+		if isSet(bs, i) {
+			out = append(out, x[i])
+		}
+	}
+	*scratch = out
+	return out
 }
 
 // split8 writes all of x byte-stream split into out (8·len(x) bytes).

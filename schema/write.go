@@ -90,10 +90,7 @@ func WriteTable[T any](storeDir, table string, rows []T) (files []string, err er
 	for _, p := range parts {
 		dir := filepath.Join(storeDir, table,
 			StationKey+"="+p.station, YearKey+"="+strconv.FormatInt(p.year, 10))
-		path, err := writePartition(dir, PartFile, arrowEncoder(sc, cols, func() ([]arrow.Array, int, error) {
-			a, err := columnArrays(cols, rows, p.rows)
-			return a, len(p.rows), err
-		}), true)
+		path, err := writePartition(dir, PartFile, sliceEncoder(table, sc, cols, rows, p.rows), true)
 		if err != nil {
 			return files, fmt.Errorf("schema: table %s: %w", table, err)
 		}
@@ -170,11 +167,7 @@ func WriteFile[T any](path, table string, rows []T, sync bool) error {
 	for i := range idx {
 		idx[i] = i
 	}
-	arrays := func() ([]arrow.Array, int, error) {
-		a, err := columnArrays(cols, rows, idx)
-		return a, len(rows), err
-	}
-	if _, err := writePartition(filepath.Dir(path), filepath.Base(path), arrowEncoder(arrowSchema(table, cols), cols, arrays), sync); err != nil {
+	if _, err := writePartition(filepath.Dir(path), filepath.Base(path), sliceEncoder(table, arrowSchema(table, cols), cols, rows, idx), sync); err != nil {
 		return fmt.Errorf("schema: table %s: %w", table, err)
 	}
 	return nil
@@ -212,6 +205,25 @@ func WriteRows[T any](path, table string, rows *Rows[T], sync bool) error {
 func compactTable(table string) bool {
 	t, ok := LookupTable(table)
 	return ok && t.Compact
+}
+
+// sliceEncoder returns the encoding of rows[idx...] of table, as
+// writePartition takes it: through the store's own Parquet writer when
+// that handles every column, else through the general writer.
+func sliceEncoder[T any](table string, sc *arrow.Schema, cols []Column, rows []T, idx []int) func(*bufio.Writer) error {
+	if !ownWriterSupports(cols) {
+		return arrowEncoder(sc, cols, func() ([]arrow.Array, int, error) {
+			a, err := columnArrays(cols, rows, idx)
+			return a, len(idx), err
+		})
+	}
+	return func(w *bufio.Writer) error {
+		bufs, err := columnBufs(cols, rows, idx)
+		if err != nil {
+			return err
+		}
+		return writeParquet(w, table, reflect.TypeFor[T](), cols, bufs, len(idx), compactTable(table))
+	}
 }
 
 // arrowEncoder returns the general writer's encoding of the columns that
