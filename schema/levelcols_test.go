@@ -135,6 +135,32 @@ func BenchmarkLevelColumns(b *testing.B) { benchLevels(b, true) }
 
 func BenchmarkLevelSlice(b *testing.B) { benchLevels(b, false) }
 
+// BenchmarkLevelFill fills the levels columns of the same soundings
+// without writing them: the share of the levels table that the analysis
+// loop pays per sounding (AppendSounding).
+func BenchmarkLevelFill(b *testing.B) {
+	all := realAnalysed(b, "USM00072403-data-beg2016.txt.zip")
+	n := 0
+	for _, a := range all {
+		n += len(a.s.Levels)
+	}
+	cpu := benchcpu.Used()
+	for b.Loop() {
+		w, err := NewLevelColumns(n)
+		if err != nil {
+			b.Fatal(err)
+		}
+		for i := range all {
+			a := &all[i]
+			appendLevelRows(w, a.s, a.rep, &a.res, a.s.LaunchTime.UTC(), int32(a.s.NominalTime.Year()))
+		}
+		if w.Len() != n {
+			b.Fatalf("%d level rows, want %d", w.Len(), n)
+		}
+	}
+	benchcpu.PerLevel(b, cpu, n)
+}
+
 func benchLevels(b *testing.B, columns bool) {
 	all := realAnalysed(b, "USM00072403-data-beg2016.txt.zip")
 	n := 0
