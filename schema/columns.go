@@ -39,6 +39,9 @@ type Column struct {
 	kind   fieldKind      // how values are appended
 	enum   map[string]int // kindEnum: index of each allowed value ("" is null)
 	dict   *array.String  // kindEnum: the allowed values, in tag order
+	// dictList is dict as Go strings, made by enumList when first needed
+	// (a Column is not shared between goroutines: Columns makes new ones).
+	dictList []string
 }
 
 // keyType is the Arrow type kindKey columns are written as; they are read

@@ -5,6 +5,7 @@ import (
 	"encoding/base64"
 	"encoding/binary"
 	"fmt"
+	"math"
 	"math/bits"
 	"reflect"
 	"sync"
@@ -351,6 +352,9 @@ func (pw *pqWriter) column(m *chunkMeta, c *Column, b *colBuf, lo, hi int) error
 			h.end()
 		})
 	}
+	if len(raw) > math.MaxInt32 {
+		return fmt.Errorf("column %s: a page of %d bytes, more than a Parquet page header can give", c.Name, len(raw))
+	}
 	m.dataOff = pw.pos
 	pw.raw = raw
 	pw.page(m, raw, func(h *compact, u, cz int32) {
@@ -489,11 +493,13 @@ func (pw *pqWriter) textStats(dict []string, idx []uint32, nulls int) {
 
 // enumList returns the allowed values of an enum column, its dictionary.
 func (c *Column) enumList() []string {
-	out := make([]string, c.dict.Len())
-	for i := range out {
-		out[i] = c.dict.Value(i)
+	if c.dictList == nil {
+		c.dictList = make([]string, c.dict.Len())
+		for i := range c.dictList {
+			c.dictList[i] = c.dict.Value(i)
+		}
 	}
-	return out
+	return c.dictList
 }
 
 // schemaElement writes the SchemaElement of column c.
