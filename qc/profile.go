@@ -34,9 +34,15 @@ func (st *state) spikes() {
 	idx := st.thermoLevels()
 	for n := 1; n+1 < len(idx); n++ {
 		a, k, b := idx[n-1], idx[n], idx[n+1]
+		up, dn := st.t[k]-st.t[a], st.t[k]-st.t[b]
+		// A spike is warmer (or colder) than both neighbours: (up > 0) ==
+		// (d > 0) == (dn > 0) below. Where it is not, the interpolation
+		// and its logarithms are not needed.
+		if up == 0 || dn == 0 || (up > 0) != (dn > 0) {
+			continue
+		}
 		f := st.lnRatio(a, k) / math.Log(st.p[a]/st.p[b])
 		d := st.t[k] - (st.t[a] + f*(st.t[b]-st.t[a]))
-		up, dn := st.t[k]-st.t[a], st.t[k]-st.t[b]
 		if math.Abs(d) > st.cfg.SpikeK && (up > 0) == (d > 0) && (dn > 0) == (d > 0) && up != 0 && dn != 0 {
 			st.flag(k, sounding.VarTemperature, Suspect, CheckSpike, st.t[k], nan,
 				"temperature %.1f °C departs %+.1f K from the interpolation between %.1f °C at %.1f hPa and %.1f °C at %.1f hPa",
