@@ -158,16 +158,17 @@ func levelFillerOf(c *Column) (levelFiller, error) {
 	flag := func(v sounding.Var) (levelFiller, error) {
 		tab, err := enumTable[qc.Flag](c)
 		return func(c *Column, b *colBuf, s *sounding.Sounding, rep qc.Report, _ *analyze.Result, _ time.Time, _ int32, base int) error {
-			for k := range s.Levels {
-				if k >= len(rep.Flags) {
-					b.valid.null(base + k)
-					continue
-				}
-				x := rep.Flags[k][v]
+			n := min(len(s.Levels), len(rep.Flags))
+			out := b.i16[base : base+n]
+			for k, fl := range rep.Flags[:n] {
+				x := fl[v]
 				if tab[x] < 0 {
 					return enumError(c, x)
 				}
-				b.i16[base+k] = tab[x]
+				out[k] = tab[x]
+			}
+			for k := n; k < len(s.Levels); k++ {
+				b.valid.null(base + k) // no flags for the level
 			}
 			return nil
 		}, err
