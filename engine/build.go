@@ -666,11 +666,17 @@ func (r *run) analyseDescents(descents []*sounding.Sounding, observed map[*sound
 	}
 	kept, _ := deduplicate(descents, reports)
 	az := analyze.NewAnalyzer(r.cfg)
+	// One QC-applied copy serves every descent, as appliedCopies does the
+	// ascents: the Analyzer keeps nothing of its input, and AppendDescent
+	// copies the Result before the next descent is applied.
+	var applied sounding.Sounding
 	for _, d := range kept {
 		rep := reports[d.s]
-		res := az.Analyze(nil)
+		var res analyze.Result
 		if rep.Usable() {
-			res = az.Analyze(qc.Apply(d.s, rep, r.opt.UseSuspect))
+			res = az.Analyze(qc.ApplyInto(&applied, d.s, rep, r.opt.UseSuspect))
+		} else {
+			res = az.Analyze(nil)
 		}
 		schema.AppendDescent(&out, d.s, rep, &res)
 		row := &out.Descents[len(out.Descents)-1]
