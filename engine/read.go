@@ -21,6 +21,7 @@ import (
 	"sync"
 	"time"
 
+	"github.com/klauspost/compress/gzip"
 	"golang.org/x/sync/errgroup"
 
 	"github.com/sondeclim/sondeclim/ingest"
@@ -299,6 +300,16 @@ func (r *run) indexInPlace(ctx context.Context, path string, fi int, st *staged,
 		}
 		cp = newStagingCopy(r.memStage, copyPath, hint)
 		err = func() error {
+			if hint > 0 && cp.file == nil && int64(cap(cp.mem)) >= hint {
+				done, err := ix.wholeGzip(f, res.info.SizeBytes, limit, cp, sum)
+				if done || err != nil {
+					members = 1
+					if err == nil {
+						held.text, held.held, err = cp.finish()
+					}
+					return err
+				}
+			}
 			err := input.EachWithin(path, r.opt.SizeLimit, []*input.Budget{r.inputBudget(), r.runBudget}, func(member string, rd io.Reader) error {
 				members++
 				io.WriteString(sum, member+"\x00")
@@ -397,6 +408,43 @@ type indexer struct {
 	keys        []string
 	parts       map[string]int
 	otherShards int
+}
+
+// wholeGzip decodes a gzip input of size bytes, read whole from f, in one
+// call (input.Gunzip) straight into the staging copy's memory, which holds
+// the size its trailer states, and indexes it there. done is false, with
+// nothing charged or staged, when Gunzip does not decode it (damaged,
+// several members, or larger than stated) or the run's budget does not
+// hold it: the caller then reads it as a stream, which reports what is
+// wrong. The file is sniffed as the stream is, from its first 4096
+// decompressed bytes, so the same files are read in place.
+func (ix *indexer) wholeGzip(f *os.File, size, limit int64, cp *stagingCopy, sum hash.Hash) (done bool, err error) {
+	src := make([]byte, size+1)
+	if n, err := f.ReadAt(src, 0); int64(n) != size || err != io.EOF && err != nil {
+		return false, nil // changed since it was looked at, or unreadable
+	}
+	src = src[:size]
+	if ix.r.opt.Format == "" {
+		zr, err := gzip.NewReader(bytes.NewReader(src))
+		if err != nil {
+			return false, nil
+		}
+		head := make([]byte, sniffBytes)
+		n, _ := io.ReadFull(zr, head)
+		if !archivev2.Sniff(head[:n]) {
+			return false, errNotInPlace
+		}
+	}
+	text, err := input.Gunzip(cp.mem[:0], src, min(limit, ix.r.inputBudget().Limit))
+	if err != nil || !ix.r.runBudget.Charge(int64(len(text))) {
+		return false, nil
+	}
+	cp.mem, cp.n = text, int64(len(text))
+	io.WriteString(sum, "\x00")
+	sum.Write(text)
+	return true, ix.member(func(fn func(archivev2.Segment) error) error {
+		return archivev2.IndexBytes(text, fn)
+	}, "", 0)
 }
 
 // sniffBytes is how much of a member's text tells whether it is an

@@ -180,6 +180,17 @@ func (b *Budget) Used() int64 { return b.used.Load() }
 // Refund gives back n bytes charged for data that is read again.
 func (b *Budget) Refund(n int64) { b.used.Add(-n) }
 
+// Charge charges n bytes decompressed at once, as a stream of them read
+// through EachWithin would be charged, and reports whether they fit; on
+// false nothing is charged.
+func (b *Budget) Charge(n int64) bool {
+	if b.used.Add(n) > b.Limit {
+		b.used.Add(-n)
+		return false
+	}
+	return true
+}
+
 // BudgetError is the error of a stream stopped by an exhausted Budget; it
 // wraps ingest.ErrTooLarge.
 type BudgetError struct {
