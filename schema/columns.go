@@ -516,6 +516,39 @@ func NewRows[T any](capacity int) (*Rows[T], error) {
 	return r, nil
 }
 
+// reuseRows is NewRows over the column buffers bufs of an earlier Rows of
+// the same row type, emptied.
+func reuseRows[T any](bufs []*colBuf, capacity int) (*Rows[T], error) {
+	cols, err := Columns[T]()
+	if err != nil {
+		return nil, err
+	}
+	if len(bufs) != len(cols) {
+		return nil, fmt.Errorf("schema: %d column buffers for %d columns", len(bufs), len(cols))
+	}
+	r := &Rows[T]{cols: cols, bufs: bufs, block: make([]T, 0, fillBlock)}
+	for c := range cols {
+		bufs[c].reset(&cols[c])
+		bufs[c].grow(&cols[c], capacity)
+		bufs[c].grow(&cols[c], 0)
+	}
+	return r, nil
+}
+
+// reset empties b for column c, keeping its memory. Fillers store every
+// value but set bool bits only when true, so those bits are cleared;
+// other values under a null stay as they were, unread.
+func (b *colBuf) reset(c *Column) {
+	clear(b.bits[:cap(b.bits)])
+	b.n, b.valid = 0, validity{bits: b.valid.bits[:0]}
+	b.f64, b.i64, b.i16, b.bits, b.data = b.f64[:0], b.i64[:0], b.i16[:0], b.bits[:0], b.data[:0]
+	b.i32 = b.i32[:0]
+	if c.kind == kindString || c.kind == kindPtrString {
+		b.i32 = append(b.i32, 0)
+	}
+	b.last, b.lastIdx, b.keys, b.keyIdx = "", -1, nil, nil
+}
+
 // Append adds one row. A value the column cannot hold (an enum value
 // outside its list) is reported by WriteRows.
 func (r *Rows[T]) Append(row T) {

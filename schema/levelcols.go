@@ -3,6 +3,7 @@ package schema
 import (
 	"fmt"
 	"math"
+	"sync"
 	"time"
 	"unsafe"
 
@@ -19,9 +20,16 @@ import (
 // column. The result is the file a slice of the same LevelRow values
 // gives (TestLevelColumnsEqualRows).
 type LevelColumns struct {
-	rows *Rows[LevelRow]
-	fill []levelFiller // per column of rows.cols
+	rows    *Rows[LevelRow] // nil once written
+	fill    []levelFiller   // per column of rows.cols
+	written int             // rows written, once rows is nil
 }
+
+// levelBufs holds the column buffers of written LevelColumns for the
+// next ones ([]*colBuf): a station-year's levels take some 24 MB of
+// columns, which allocated afresh for every station-year were zeroed by
+// the allocator and faulted in page by page as the columns were filled.
+var levelBufs sync.Pool
 
 // levelFiller stores the values of one column for the levels of s at
 // positions base… of b (b already holds room for them).
@@ -30,10 +38,21 @@ type levelFiller func(c *Column, b *colBuf, s *sounding.Sounding, rep qc.Report,
 // NewLevelColumns returns an empty LevelColumns with room for about
 // capacity levels before its columns grow.
 func NewLevelColumns(capacity int) (*LevelColumns, error) {
-	r, err := NewRows[LevelRow](capacity)
+	var r *Rows[LevelRow]
+	var err error
+	if bufs, ok := levelBufs.Get().([]*colBuf); ok {
+		r, err = reuseRows[LevelRow](bufs, capacity)
+	} else {
+		r, err = NewRows[LevelRow](capacity)
+	}
 	if err != nil {
 		return nil, err
 	}
+	return levelColumnsOver(r)
+}
+
+// levelColumnsOver returns a LevelColumns filling the empty Rows r.
+func levelColumnsOver(r *Rows[LevelRow]) (*LevelColumns, error) {
 	l := &LevelColumns{rows: r, fill: make([]levelFiller, len(r.cols))}
 	for i := range r.cols {
 		f, err := levelFillerOf(&r.cols[i])
@@ -48,12 +67,26 @@ func NewLevelColumns(capacity int) (*LevelColumns, error) {
 // Append adds one level row given as a struct.
 func (l *LevelColumns) Append(row LevelRow) { l.rows.Append(row) }
 
-// Len returns the number of level rows collected.
-func (l *LevelColumns) Len() int { return l.rows.Len() }
+// Len returns the number of level rows collected (and written).
+func (l *LevelColumns) Len() int {
+	if l.rows == nil {
+		return l.written
+	}
+	return l.rows.Len()
+}
 
-// WriteFile writes the collected rows (see WriteRows).
+// WriteFile writes the collected rows (see WriteRows) and gives their
+// memory to the next NewLevelColumns: afterwards l holds no rows and may
+// be neither appended to nor written again (Len still counts them).
 func (l *LevelColumns) WriteFile(path, table string, sync bool) error {
-	return WriteRows(path, table, l.rows, sync)
+	if l.rows == nil {
+		return fmt.Errorf("schema: levels written already, not again to %s", path)
+	}
+	err := WriteRows(path, table, l.rows, sync)
+	l.written = l.rows.Len()
+	levelBufs.Put(l.rows.bufs)
+	l.rows = nil
+	return err
 }
 
 func (l *LevelColumns) appendLevels(s *sounding.Sounding, rep qc.Report, res *analyze.Result, launch time.Time, year int32) {

@@ -5,6 +5,7 @@ import (
 	"bytes"
 	"errors"
 	"io"
+	"os"
 	"path/filepath"
 	"strings"
 	"testing"
@@ -194,4 +195,72 @@ func benchLevels(b *testing.B, columns bool) {
 	}
 	benchcpu.PerOp(b, cpu)
 	b.ReportMetric(float64(n), "levels/op")
+}
+
+// TestLevelColumnsReuse: levels filled into the column buffers of levels
+// written before (the Sterling 2016 file's, with derived heights and
+// nulls) give the file fresh buffers give, for the smaller Melbourne file
+// and the 1950 portion (real soundings, PROVENANCE.md); a LevelColumns
+// written once cannot be written again. Fresh buffers are the reference,
+// held to arrow-go's writer by TestOwnWriterRealLevels.
+func TestLevelColumnsReuse(t *testing.T) {
+	fill := func(l *LevelColumns, all []analysedSounding) {
+		for i := range all {
+			a := &all[i]
+			appendLevelRows(l, a.s, a.rep, &a.res, a.s.LaunchTime.UTC(), int32(a.s.NominalTime.Year()))
+		}
+	}
+	dir := t.TempDir()
+	fresh := func(all []analysedSounding, path string) {
+		r, err := NewRows[LevelRow](0)
+		if err != nil {
+			t.Fatal(err)
+		}
+		l, err := levelColumnsOver(r)
+		if err != nil {
+			t.Fatal(err)
+		}
+		fill(l, all)
+		if err := WriteRows(path, TableLevels, l.rows, false); err != nil {
+			t.Fatal(err)
+		}
+	}
+	first, err := NewLevelColumns(0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	fill(first, realAnalysed(t, "USM00072403-data-beg2016.txt.zip"))
+	bufs := first.rows.bufs
+	if err := first.WriteFile(filepath.Join(dir, "first.parquet"), TableLevels, false); err != nil {
+		t.Fatal(err)
+	}
+	if n := first.Len(); n != 131306 { // PROVENANCE.md
+		t.Errorf("Len after writing: %d, want 131306", n)
+	}
+	if err := first.WriteFile(filepath.Join(dir, "again.parquet"), TableLevels, false); err == nil {
+		t.Error("second WriteFile: no error")
+	}
+	for _, name := range []string{"AUM00011035-data.txt.gz", "USM00074794-data-1950-portion.txt"} {
+		all := realAnalysed(t, name)
+		want, got := filepath.Join(dir, "fresh.parquet"), filepath.Join(dir, "reused.parquet")
+		fresh(all, want)
+		r, err := reuseRows[LevelRow](bufs, 10)
+		if err != nil {
+			t.Fatal(err)
+		}
+		l, err := levelColumnsOver(r)
+		if err != nil {
+			t.Fatal(err)
+		}
+		fill(l, all)
+		if err := WriteRows(got, TableLevels, l.rows, false); err != nil {
+			t.Fatal(err)
+		}
+		wb, _ := os.ReadFile(want)
+		gb, _ := os.ReadFile(got)
+		if len(wb) < 1000 || !bytes.Equal(wb, gb) {
+			t.Errorf("%s: file from reused buffers differs (%d and %d bytes)", name, len(wb), len(gb))
+		}
+		bufs = l.rows.bufs
+	}
 }
