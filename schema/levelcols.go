@@ -353,18 +353,27 @@ const (
 // worth the offset.
 func putLevelFloats(b *colBuf, base int, levels []sounding.Level, off uintptr, conv unitConv) {
 	f := b.f64[base : base+len(levels)]
-	for k := range levels {
-		x := *(*float64)(unsafe.Add(unsafe.Pointer(&levels[k]), off))
-		switch conv {
-		case toHPa:
-			x = hPa(x)
-		case toDegC:
-			x = degC(x)
-		}
+	field := func(k int) float64 { return *(*float64)(unsafe.Add(unsafe.Pointer(&levels[k]), off)) }
+	put := func(k int, x float64) {
 		if math.IsNaN(x) {
 			b.valid.null(base + k)
 		} else {
 			f[k] = x
+		}
+	}
+	// One loop per conversion, so that none decides it per value.
+	switch conv {
+	case toHPa:
+		for k := range levels {
+			put(k, hPa(field(k)))
+		}
+	case toDegC:
+		for k := range levels {
+			put(k, degC(field(k)))
+		}
+	default:
+		for k := range levels {
+			put(k, field(k))
 		}
 	}
 }
