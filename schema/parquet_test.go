@@ -410,8 +410,9 @@ func TestOwnWriterEncodings(t *testing.T) {
 	// 1<<1|1 = 0x03), packed LSB first: 0b10001000, 0b11000110, 0b11111010
 	// = 0x88 0xC6 0xFA (Encodings.md's own example of bit-packing 0..7).
 	got := appendHybrid(nil, []uint32{5, 5, 5, 5, 5, 5, 5, 5, 0, 1, 2, 3, 4, 5, 6, 7}, 3)
-	if want := []byte{0x10, 0x05, 0x03, 0x88, 0xC6, 0xFA}; !slices.Equal(got, want) {
-		t.Errorf("hybrid: % x, want % x", got, want)
+	hybrid := got
+	if want := []byte{0x10, 0x05, 0x03, 0x88, 0xC6, 0xFA}; !slices.Equal(hybrid, want) {
+		t.Errorf("hybrid: % x, want % x", hybrid, want)
 	}
 	// Definition levels of 19 rows, all set: one RLE run of 19 ones
 	// (header 38 = 0x26, value 1), after the 4-byte length 2.
@@ -423,6 +424,19 @@ func TestOwnWriterEncodings(t *testing.T) {
 	// the bitmap bytes 0xfb and 0x03 (rows 8 and 9; padding zero).
 	if got := appendDefLevels(nil, []byte{0xfb, 0xff}, 0, 10); !slices.Equal(got, []byte{3, 0, 0, 0, 0x05, 0xfb, 0x03}) {
 		t.Errorf("definition levels, one null: % x", got)
+	}
+	// 16 rows, the first 3 null: levels 0 0 0 1 1 1 1 1 bit-packed (header
+	// 0x03, 0b11111000), then the 8 ones left as an RLE run (0x10, 1).
+	if got := appendDefLevels(nil, []byte{0xf8, 0xff}, 0, 16); !slices.Equal(got, []byte{4, 0, 0, 0, 0x03, 0xf8, 0x10, 1}) {
+		t.Errorf("definition levels, three nulls first: % x", got)
+	}
+	// Rows 8..27 of a bitmap whose rows 8 and 27 are null: levels 0, 18
+	// ones, 0. Runs start and end inside bitmap bytes: a bit-packed group
+	// 0 1 1 1 1 1 1 1 (0x03, 0xfe), the 11 ones left as an RLE run (22 =
+	// 0x16, 1), a last group of one 0, padded (0x03, 0x00).
+	got = appendDefLevels(nil, []byte{0, 0xfe, 0xff, 0xf7}, 8, 28)
+	if want := []byte{6, 0, 0, 0, 0x03, 0xfe, 0x16, 1, 0x03, 0x00}; !slices.Equal(got, want) {
+		t.Errorf("definition levels, unaligned runs: % x, want % x", got, want)
 	}
 	// DELTA_BINARY_PACKED of 1, 2, 3, 4, 5 (Encodings.md's first
 	// example): header 128, 4 miniblocks, 5 values, first value 1 (zigzag

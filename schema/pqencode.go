@@ -103,60 +103,70 @@ func appendHybrid(b []byte, v []uint32, width uint) []byte {
 // nullable column whose validity bitmap is valid (bit set: a value,
 // definition level 1; clear: null), lo a multiple of 8, in the hybrid
 // encoding of bit width 1 with its 4-byte little-endian length in front,
-// as data pages of version 1 store them. A bitmap of one bit per row is
-// already the bit-packed form, so it is copied byte by byte; bytes all
-// ones or all zeros in a row become RLE runs.
+// as data pages of version 1 store them: runs of 8 or more equal levels
+// as RLE runs, the rest bit-packed, which the bitmap already is (a
+// bitmap copied whole in one bit-packed run made zstd's fastest level
+// compress the page behind it up to a third worse).
 func appendDefLevels(b, valid []byte, lo, hi int) []byte {
 	at := len(b)
 	b = append(b, 0, 0, 0, 0)
 	bs := valid[lo/8:]
-	full, rem := (hi-lo)/8, (hi-lo)%8
-	tail := byte(0)
-	if rem > 0 {
-		tail = bs[full] & (1<<rem - 1)
-	}
-	pack := 0 // first byte of the bit-packed run being gathered
-	flushPack := func(end int, extra bool) {
-		nb := end - pack
-		if extra {
-			nb++
-		}
-		if nb == 0 {
-			return
-		}
-		b = binary.AppendUvarint(b, uint64(nb)<<1|1)
-		b = append(b, bs[pack:end]...)
-		if extra {
-			b = append(b, tail)
-		}
-	}
-	tailDone := rem == 0
-	for i := 0; i < full; {
-		x := bs[i]
-		if x != 0 && x != 0xff {
-			i++
-			continue
-		}
+	n := hi - lo
+	bit := func(i int) byte { return bs[i/8] >> (i % 8) & 1 }
+	// runEnd returns the end of the run of equal levels starting at i.
+	runEnd := func(i int) int {
+		v := bit(i)
 		j := i + 1
-		for j < full && bs[j] == x {
+		for j < n && j%8 != 0 && bit(j) == v {
 			j++
 		}
-		count := (j - i) * 8
-		absorb := j == full && rem > 0 && tail == x&(1<<rem-1)
-		if absorb {
-			count += rem
+		if j < n && j%8 == 0 && bit(j) == v {
+			full := byte(0)
+			if v == 1 {
+				full = 0xff
+			}
+			for j+8 <= n && bs[j/8] == full {
+				j += 8
+			}
+			for j < n && bit(j) == v {
+				j++
+			}
 		}
-		if j-i < 2 && !absorb {
-			i = j // a lone uniform byte stays in the bit-packed run
+		return j
+	}
+	// group returns the 8 levels from i, zeros past n, packed.
+	group := func(i int) byte {
+		w := uint16(bs[i/8])
+		if i/8+1 < len(bs) {
+			w |= uint16(bs[i/8+1]) << 8
+		}
+		g := byte(w >> (i % 8))
+		if r := n - i; r < 8 {
+			g &= 1<<r - 1
+		}
+		return g
+	}
+	for i := 0; i < n; {
+		if j := runEnd(i); j-i >= 8 {
+			b = binary.AppendUvarint(b, uint64(j-i)<<1)
+			b = append(b, bit(i))
+			i = j
 			continue
 		}
-		flushPack(i, false)
-		b = binary.AppendUvarint(b, uint64(count)<<1)
-		b = append(b, x&1)
-		tailDone = tailDone || absorb
-		i, pack = j, j
+		start := i
+		for {
+			i += 8
+			if i >= n || runEnd(i)-i >= 8 {
+				break
+			}
+		}
+		i = min(i, n)
+		groups := (i - start + 7) / 8
+		b = binary.AppendUvarint(b, uint64(groups)<<1|1)
+		for g := range groups {
+			b = append(b, group(start+8*g))
+		}
 	}
-	flushPack(full, !tailDone)
 	binary.LittleEndian.PutUint32(b[at:], uint32(len(b)-at-4))
 	return b
 }
