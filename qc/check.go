@@ -102,30 +102,37 @@ func newStateIn(s *sounding.Sounding, cfg Config, sc *scratch) *state {
 	if s == nil {
 		return st
 	}
-	n := len(s.Levels)
+	levels := s.Levels
+	n := len(levels)
 	st.rep.Flags = make([][sounding.NumVars]Flag, n)
 	sc.work = slices.Grow(sc.work[:0], 12*n)[:12*n]
 	buf := sc.work
 	st.p, st.z, st.t, st.td, st.dpd = buf[:n], buf[n:2*n], buf[2*n:3*n], buf[3*n:4*n], buf[4*n:5*n]
 	st.tv = tvCache{t: buf[5*n : 6*n], td: buf[6*n : 7*n], p: buf[7*n : 8*n], tv: buf[8*n : 9*n]}
 	st.ln = lnCache{pa: buf[9*n : 10*n], pb: buf[10*n : 11*n], ln: buf[11*n:]}
-	for i := range s.Levels {
-		l := &s.Levels[i]
-		st.p[i] = finite(l.PressurePa)
-		st.tv.p[i] = nan // nothing cached
-		st.ln.pa[i] = nan
-		st.z[i] = math.NaN()
+	// Local slices of length n, indexed by the levels' range: no bounds
+	// test per value.
+	p, z, t, td, dpd := st.p[:n], st.z[:n], st.t[:n], st.td[:n], st.dpd[:n]
+	tvp, lnpa, flags := st.tv.p[:n], st.ln.pa[:n], st.rep.Flags[:n]
+	surface := -1
+	for i := range levels {
+		l := &levels[i]
+		p[i] = finite(l.PressurePa)
+		tvp[i] = nan // nothing cached
+		lnpa[i] = nan
+		z[i] = math.NaN()
 		if l.Status[sounding.VarHeight] == sounding.Reported {
-			st.z[i] = finite(l.HeightM)
+			z[i] = finite(l.HeightM)
 		}
-		st.t[i] = finite(l.TemperatureK)
-		st.td[i] = finite(l.DewpointK)
-		st.dpd[i] = finite(l.DewpointDepressionK)
-		missingValues(&st.rep.Flags[i], l)
-		if l.Kind == sounding.KindSurface && st.surface < 0 {
-			st.surface = i
+		t[i] = finite(l.TemperatureK)
+		td[i] = finite(l.DewpointK)
+		dpd[i] = finite(l.DewpointDepressionK)
+		missingValues(&flags[i], l)
+		if l.Kind == sounding.KindSurface && surface < 0 {
+			surface = i
 		}
 	}
+	st.surface = surface
 	st.elev = finite(s.ElevationM)
 	if math.IsNaN(st.elev) && st.surface >= 0 {
 		st.elev = st.z[st.surface]

@@ -17,19 +17,23 @@ func outside(x, lo, hi float64) bool { return !math.IsNaN(x) && (x < lo || x > h
 // failure is bad.
 func (st *state) gross() {
 	c := st.cfg
-	for i := range st.s.Levels {
-		l := &st.s.Levels[i]
-		if p := st.p[i]; !math.IsNaN(p) && (p <= c.MinPressurePa || p > c.MaxPressurePa) {
+	levels := st.s.Levels
+	// Views of length len(levels) of the working values (flag updates
+	// them in place): no bounds test per value.
+	pw, z, t := st.p[:len(levels)], st.z[:len(levels)], st.t[:len(levels)]
+	for i := range levels {
+		l := &levels[i]
+		if p := pw[i]; !math.IsNaN(p) && (p <= c.MinPressurePa || p > c.MaxPressurePa) {
 			st.flag(i, sounding.VarPressure, Bad, CheckGross, p, nan,
 				"pressure %.1f hPa outside (%.0f, %.0f] hPa", p/100, c.MinPressurePa/100, c.MaxPressurePa/100)
 		}
-		if outside(st.z[i], c.MinHeightM, c.MaxHeightM) {
-			st.flag(i, sounding.VarHeight, Bad, CheckGross, st.z[i], nan,
-				"height %.0f gpm outside [%.0f, %.0f] gpm", st.z[i], c.MinHeightM, c.MaxHeightM)
+		if outside(z[i], c.MinHeightM, c.MaxHeightM) {
+			st.flag(i, sounding.VarHeight, Bad, CheckGross, z[i], nan,
+				"height %.0f gpm outside [%.0f, %.0f] gpm", z[i], c.MinHeightM, c.MaxHeightM)
 		}
-		if outside(st.t[i], c.MinTemperatureK, c.MaxTemperatureK) {
-			st.flag(i, sounding.VarTemperature, Bad, CheckGross, st.t[i], nan,
-				"temperature %.1f °C outside [%.0f, %.0f] °C", st.t[i]-c0, c.MinTemperatureK-c0, c.MaxTemperatureK-c0)
+		if outside(t[i], c.MinTemperatureK, c.MaxTemperatureK) {
+			st.flag(i, sounding.VarTemperature, Bad, CheckGross, t[i], nan,
+				"temperature %.1f °C outside [%.0f, %.0f] °C", t[i]-c0, c.MinTemperatureK-c0, c.MaxTemperatureK-c0)
 		}
 		st.humidity(i)
 		if outside(l.RelHumidityPct, 0, c.MaxRelHumidityPct) {
@@ -43,7 +47,7 @@ func (st *state) gross() {
 		if outside(l.WindSpeedMS, 0, c.MaxWindSpeedMS) {
 			st.flag(i, sounding.VarWindSpeed, Bad, CheckGross, l.WindSpeedMS, nan,
 				"wind speed %.1f m/s outside [0, %.0f] m/s", l.WindSpeedMS, c.MaxWindSpeedMS)
-		} else if agl := st.z[i] - st.elev; agl < c.NearSurfaceWindAGLM && l.WindSpeedMS > c.NearSurfaceMaxWindMS {
+		} else if agl := z[i] - st.elev; agl < c.NearSurfaceWindAGLM && l.WindSpeedMS > c.NearSurfaceMaxWindMS {
 			st.flag(i, sounding.VarWindSpeed, Bad, CheckNearSurfWind, l.WindSpeedMS, nan,
 				"wind speed %.1f m/s at %.0f m above the station exceeds %.1f m/s", l.WindSpeedMS, agl, c.NearSurfaceMaxWindMS)
 		}
