@@ -554,6 +554,14 @@ func inflateBlock(dst []byte, base int, br *bitReader, lt, dt *huffTable) ([]byt
 		}
 		from := o - dist
 		switch {
+		case dist >= 8 && length <= 16 && len(out)-o >= 16:
+			// Most matches are short: two 8-byte copies, no loop (the
+			// second reads bytes before o+8, written by the first or
+			// before it).
+			w := out[o : o+16]
+			r := out[from : from+16]
+			binary.LittleEndian.PutUint64(w, binary.LittleEndian.Uint64(r))
+			binary.LittleEndian.PutUint64(w[8:], binary.LittleEndian.Uint64(r[8:]))
 		case dist >= 8 && len(out)-o >= length+8:
 			// Eight bytes at a time: each read lies wholly before the
 			// write that follows it, written already.
