@@ -310,7 +310,13 @@ func (r *Result) levelValues(s *sounding.Sounding, cfg Config, sc *scratch) (p, 
 		l := &s.Levels[i]
 		p[i], t[i] = finite(l.PressurePa), finite(l.TemperatureK)
 		th := thermo.PotentialTemperature(t[i], p[i], c.Kappa, c.P0Pa)
-		w := thermo.MixingRatio(thermo.VapourPressureFromDewpoint(finite(l.DewpointK), cfg.SatVap), p[i], c.Epsilon)
+		// Without a dewpoint (about half the levels of real soundings) the
+		// mixing ratio is the NaN MixingRatio returns for a NaN vapour
+		// pressure, without the saturation formula run on a NaN.
+		w := math.NaN()
+		if td := finite(l.DewpointK); !math.IsNaN(td) {
+			w = thermo.MixingRatio(thermo.VapourPressureFromDewpoint(td, cfg.SatVap), p[i], c.Epsilon)
+		}
 		r.ThetaK[i], r.MixingRatioKgKg[i] = th, w
 		r.ThetaVK[i] = thermo.VirtualPotentialTemperature(th, w, c.Epsilon)
 	}

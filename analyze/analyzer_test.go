@@ -15,6 +15,7 @@ import (
 	"github.com/sondeclim/sondeclim/ingest/formats"
 	"github.com/sondeclim/sondeclim/ingest/input"
 	"github.com/sondeclim/sondeclim/internal/realdata"
+	"github.com/sondeclim/sondeclim/physics/thermo"
 	"github.com/sondeclim/sondeclim/sounding"
 )
 
@@ -155,6 +156,22 @@ func TestSincosDeg(t *testing.T) {
 		ws, wc := math.Sincos(d * math.Pi / 180)
 		if math.Float64bits(gs) != math.Float64bits(ws) || math.Float64bits(gc) != math.Float64bits(wc) {
 			t.Fatalf("sincosDeg(%v) = %v, %v; math.Sincos gives %v, %v", d, gs, gc, ws, wc)
+		}
+	}
+}
+
+// TestMixingRatioWithoutDewpoint checks the shortcut levelValues takes
+// for a level without a dewpoint: for every saturation formula and a
+// range of pressures, the full computation on a NaN dewpoint gives
+// exactly the bits of math.NaN().
+func TestMixingRatioWithoutDewpoint(t *testing.T) {
+	eps := DefaultConfig().Constants.Epsilon
+	for f := thermo.SatVapFormula(0); f.String() != fmt.Sprintf("satvap(%d)", uint8(f)); f++ {
+		for _, p := range []float64{math.NaN(), -1, 0, 500, 50000, 101325, math.Inf(1)} {
+			w := thermo.MixingRatio(thermo.VapourPressureFromDewpoint(math.NaN(), f), p, eps)
+			if math.Float64bits(w) != math.Float64bits(math.NaN()) {
+				t.Errorf("%s at %v Pa: %x, want the bits of math.NaN()", f, p, math.Float64bits(w))
+			}
 		}
 	}
 }
