@@ -1,10 +1,8 @@
 package engine
 
 import (
-	"archive/zip"
 	"bytes"
 	"context"
-	"io"
 	"os"
 	"path/filepath"
 	"testing"
@@ -24,20 +22,7 @@ const sterlingLevels = 131306
 // path.
 func sterlingInput(b *testing.B, dir string, gz bool) string {
 	b.Helper()
-	zr, err := zip.OpenReader(filepath.Join(realdata.Dir(b, "archive-v2"), "USM00072403-data-beg2016.txt.zip"))
-	if err != nil {
-		b.Fatal(err)
-	}
-	defer zr.Close()
-	rc, err := zr.File[0].Open()
-	if err != nil {
-		b.Fatal(err)
-	}
-	text, err := io.ReadAll(rc)
-	rc.Close()
-	if err != nil {
-		b.Fatal(err)
-	}
+	text := realdata.Text(b, "archive-v2", "USM00072403-data-beg2016.txt.zip")
 	path := filepath.Join(dir, "sterling.txt")
 	if gz {
 		var buf bytes.Buffer

@@ -1,15 +1,16 @@
 package qc
 
 import (
-	"archive/zip"
+	"bytes"
 	"compress/gzip"
 	"errors"
-	"github.com/sondeclim/sondeclim/internal/realdata"
 	"io"
 	"math"
 	"os"
 	"path/filepath"
 	"testing"
+
+	"github.com/sondeclim/sondeclim/internal/realdata"
 
 	"github.com/sondeclim/sondeclim/ingest"
 	"github.com/sondeclim/sondeclim/ingest/archivev2"
@@ -43,17 +44,8 @@ func readAll(tb testing.TB, r io.Reader, name string) []*sounding.Sounding {
 // sterling reads the Sterling, Virginia 2016 station file (zip member).
 func sterling(tb testing.TB) []*sounding.Sounding {
 	tb.Helper()
-	zr, err := zip.OpenReader(filepath.Join(validationDir(tb), "USM00072403-data-beg2016.txt.zip"))
-	if err != nil {
-		tb.Fatal(err)
-	}
-	defer zr.Close()
-	rc, err := zr.File[0].Open()
-	if err != nil {
-		tb.Fatal(err)
-	}
-	defer rc.Close()
-	return readAll(tb, rc, "USM00072403-data.txt")
+	text := realdata.Text(tb, "archive-v2", "USM00072403-data-beg2016.txt.zip")
+	return readAll(tb, bytes.NewReader(text), "USM00072403-data.txt")
 }
 
 // wien reads the Wien Hohe Warte 2015 station file (gzip).

@@ -1,13 +1,11 @@
 package qc
 
 import (
-	"archive/zip"
 	"bytes"
-	"io"
 	"math"
-	"path/filepath"
 	"testing"
 
+	"github.com/sondeclim/sondeclim/internal/realdata"
 	"github.com/sondeclim/sondeclim/physics/thermo"
 	"github.com/sondeclim/sondeclim/sounding"
 )
@@ -350,20 +348,7 @@ func TestApply(t *testing.T) {
 // sounding (Sterling 2016, PROVENANCE.md) read on its own equals its report
 // when the whole file is processed.
 func TestIndependentOfOtherSoundings(t *testing.T) {
-	zr, err := zip.OpenReader(filepath.Join(validationDir(t), "USM00072403-data-beg2016.txt.zip"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer zr.Close()
-	rc, err := zr.File[0].Open()
-	if err != nil {
-		t.Fatal(err)
-	}
-	data, err := io.ReadAll(rc)
-	rc.Close()
-	if err != nil {
-		t.Fatal(err)
-	}
+	data := realdata.Text(t, "archive-v2", "USM00072403-data-beg2016.txt.zip")
 	all := readAll(t, bytes.NewReader(data), "whole")
 	var starts []int
 	for i := 0; i < len(data); i++ {

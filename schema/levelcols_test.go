@@ -1,7 +1,6 @@
 package schema
 
 import (
-	"archive/zip"
 	"bytes"
 	"errors"
 	"io"
@@ -31,19 +30,6 @@ type analysedSounding struct {
 func realAnalysed(tb testing.TB, name string) []analysedSounding {
 	tb.Helper()
 	text := realdata.Text(tb, "archive-v2", name)
-	if strings.HasSuffix(name, ".zip") {
-		zr, err := zip.NewReader(bytes.NewReader(text), int64(len(text)))
-		if err != nil || len(zr.File) != 1 {
-			tb.Fatalf("%s: %v", name, err)
-		}
-		f, err := zr.File[0].Open()
-		if err != nil {
-			tb.Fatal(err)
-		}
-		if text, err = io.ReadAll(f); err != nil {
-			tb.Fatal(err)
-		}
-	}
 	rd := archivev2.NewReader(bytes.NewReader(text), name, "")
 	var out []analysedSounding
 	cfg, qcCfg := analyze.DefaultConfig(), qc.DefaultConfig()

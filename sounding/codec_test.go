@@ -1,14 +1,12 @@
 package sounding_test
 
 import (
-	"archive/zip"
 	"bytes"
 	"encoding/binary"
 	"errors"
 	"io"
 	"math"
 	"math/rand/v2"
-	"path/filepath"
 	"testing"
 	"time"
 
@@ -155,26 +153,12 @@ func TestEncodingMatchesReference(t *testing.T) {
 // TestEncodingMatchesReferenceReal: every sounding of the real archive-v2
 // station files (PROVENANCE.md) encodes to the reference bytes.
 func TestEncodingMatchesReferenceReal(t *testing.T) {
-	dir := realdata.Dir(t, "archive-v2")
 	texts := map[string][]byte{}
 	for _, name := range []string{"AUM00011035-data.txt.gz", "SWM00002527-data-hour99.txt",
 		"USM00070026-data-truncated.txt", "USM00074794-data-1950-portion.txt"} {
 		texts[name] = realdata.Text(t, "archive-v2", name)
 	}
-	zr, err := zip.OpenReader(filepath.Join(dir, "USM00072403-data-beg2016.txt.zip"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer zr.Close()
-	rc, err := zr.File[0].Open()
-	if err != nil {
-		t.Fatal(err)
-	}
-	texts["sterling"], err = io.ReadAll(rc)
-	rc.Close()
-	if err != nil {
-		t.Fatal(err)
-	}
+	texts["sterling"] = realdata.Text(t, "archive-v2", "USM00072403-data-beg2016.txt.zip")
 	levels := 0
 	for name, text := range texts {
 		rd := archivev2.NewReader(bytes.NewReader(text), name, "")
@@ -202,20 +186,7 @@ func TestEncodingMatchesReferenceReal(t *testing.T) {
 // BenchmarkAppendBinarySterling encodes every sounding of the real
 // Sterling 2016 file without source, as the ingest does to hash each one.
 func BenchmarkAppendBinarySterling(b *testing.B) {
-	zr, err := zip.OpenReader(filepath.Join(realdata.Dir(b, "archive-v2"), "USM00072403-data-beg2016.txt.zip"))
-	if err != nil {
-		b.Fatal(err)
-	}
-	defer zr.Close()
-	rc, err := zr.File[0].Open()
-	if err != nil {
-		b.Fatal(err)
-	}
-	text, err := io.ReadAll(rc)
-	rc.Close()
-	if err != nil {
-		b.Fatal(err)
-	}
+	text := realdata.Text(b, "archive-v2", "USM00072403-data-beg2016.txt.zip")
 	var all []*sounding.Sounding
 	rd := archivev2.NewReader(bytes.NewReader(text), "sterling", "")
 	for {

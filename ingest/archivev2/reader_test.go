@@ -1,7 +1,6 @@
 package archivev2
 
 import (
-	"archive/zip"
 	"bytes"
 	"compress/gzip"
 	"errors"
@@ -13,6 +12,7 @@ import (
 	"time"
 
 	"github.com/sondeclim/sondeclim/ingest"
+	"github.com/sondeclim/sondeclim/internal/realdata"
 	"github.com/sondeclim/sondeclim/sounding"
 )
 
@@ -90,24 +90,7 @@ func openValidation(tb testing.TB, name string) io.ReadCloser {
 // sterlingBytes returns the text member of the Sterling zip.
 func sterlingBytes(tb testing.TB) []byte {
 	tb.Helper()
-	zr, err := zip.OpenReader(filepath.Join(validationDir(tb), "USM00072403-data-beg2016.txt.zip"))
-	if err != nil {
-		tb.Fatal(err)
-	}
-	defer zr.Close()
-	if len(zr.File) != 1 {
-		tb.Fatalf("zip has %d members, want 1 (PROVENANCE.md)", len(zr.File))
-	}
-	rc, err := zr.File[0].Open()
-	if err != nil {
-		tb.Fatal(err)
-	}
-	defer rc.Close()
-	b, err := io.ReadAll(rc)
-	if err != nil {
-		tb.Fatal(err)
-	}
-	return b
+	return realdata.Text(tb, "archive-v2", "USM00072403-data-beg2016.txt.zip")
 }
 
 func utc(y int, m time.Month, d, h, min int) time.Time {

@@ -7,6 +7,7 @@
 package realdata
 
 import (
+	"archive/zip"
 	"bytes"
 	"compress/gzip"
 	"io"
@@ -32,8 +33,9 @@ func Dir(tb testing.TB, sub ...string) string {
 }
 
 // Text returns the content of ../shared/validation/SUB…, decompressed when
-// its name ends in ".gz", or skips the calling test as Dir does; a file
-// that cannot be read fails the test.
+// its name ends in ".gz", the content of its only member when it ends in
+// ".zip", or skips the calling test as Dir does; a file that cannot be
+// read, or a zip of more or fewer than one member, fails the test.
 func Text(tb testing.TB, sub ...string) []byte {
 	tb.Helper()
 	path := Dir(tb, sub...)
@@ -47,6 +49,23 @@ func Text(tb testing.TB, sub ...string) []byte {
 			tb.Fatalf("%s: %v", path, err)
 		}
 		if b, err = io.ReadAll(zr); err != nil {
+			tb.Fatalf("%s: %v", path, err)
+		}
+	}
+	if strings.HasSuffix(path, ".zip") {
+		zr, err := zip.NewReader(bytes.NewReader(b), int64(len(b)))
+		if err != nil {
+			tb.Fatalf("%s: %v", path, err)
+		}
+		if len(zr.File) != 1 {
+			tb.Fatalf("%s: %d members, want 1 (PROVENANCE.md)", path, len(zr.File))
+		}
+		rc, err := zr.File[0].Open()
+		if err != nil {
+			tb.Fatalf("%s: %v", path, err)
+		}
+		defer rc.Close()
+		if b, err = io.ReadAll(rc); err != nil {
 			tb.Fatalf("%s: %v", path, err)
 		}
 	}
