@@ -195,7 +195,7 @@ func TestFastLevelEdgeCases(t *testing.T) {
 		}
 	}
 	// Six-character pressures, the widest field.
-	for _, p := range []string{"101325", "-99999", " -9999", "     1", "-    1", "1     ", "+10132"} {
+	for _, p := range []string{"101325", "-99999", " -9999", "     1", "-    1", "1     ", "+10132", "000000", "099999", "1 1234", "9-1234", "11-234", "A12345", " 12345", "-12345"} {
 		check(lvSfc[:9] + p + lvSfc[15:])
 	}
 	if took == 0 || took == n {
@@ -203,46 +203,52 @@ func TestFastLevelEdgeCases(t *testing.T) {
 	}
 }
 
-// fixedField reads one field of w characters ending at the last of the
+// fixedField reads the five-character field ending at the last of the
 // eight bytes b through fixedWords, the seven other fields being a valid
 // "0".
-func fixedField(b []byte, w uint) (int, bool) {
+func fixedField(b []byte) (int, bool) {
 	var u [8]uint64
-	ws := [8]uint64{fieldBytes(w), fieldBytes(1), fieldBytes(1), fieldBytes(1), fieldBytes(1), fieldBytes(1), fieldBytes(1), fieldBytes(1)}
 	for k := range u {
 		u[k] = binary.LittleEndian.Uint64([]byte("       0"))
 	}
 	u[0] = binary.LittleEndian.Uint64(b)
 	var raw [8]int
-	bad := fixedWords(&u, &ws, &raw)
+	bad := fixedWords(&u, &raw)
 	return raw[0], bad == 0
 }
 
 // TestFixedFieldMatchesAtoi: wherever fixedField reads a field, atoi
 // (itself checked against strconv.Atoi by FuzzAtoi) reads the same value;
-// and it reads every right-aligned signed or unsigned value up to its
-// width.
+// and it reads every right-aligned signed or unsigned value up to the
+// field's five characters, whatever the three bytes before the field.
 func TestFixedFieldMatchesAtoi(t *testing.T) {
-	for w := uint(1); w <= 7; w++ {
-		for _, v := range []int{0, 1, 7, 9, 10, 42, 99, 100, 999, 1000, 8888, 9999, 10000, 12345, 99999, 101325, 999999, 1234567} {
-			for _, neg := range []bool{false, true} {
-				s := strconv.Itoa(v)
-				if neg {
-					s = "-" + s
-				}
-				if uint(len(s)) > w {
-					continue
-				}
-				word := "XYZXYZXY"[:8-w] + strings.Repeat(" ", int(w)-len(s)) + s
-				got, ok := fixedField([]byte(word), w)
+	const w = 5
+	for _, v := range []int{0, 1, 7, 9, 10, 42, 99, 100, 999, 1000, 8888, 9999, 10000, 12345, 99999} {
+		for _, neg := range []bool{false, true} {
+			s := strconv.Itoa(v)
+			if neg {
+				s = "-" + s
+			}
+			if len(s) > w {
+				continue
+			}
+			for _, pre := range []string{"XYZ", "   ", "123", "-AB"} {
+				word := pre + strings.Repeat(" ", w-len(s)) + s
+				got, ok := fixedField([]byte(word))
 				want := v
 				if neg {
 					want = -v
 				}
 				if !ok || got != want {
-					t.Errorf("fixedField(%q, %d) = %d, %v; want %d", word, w, got, ok, want)
+					t.Errorf("fixedField(%q) = %d, %v; want %d", word, got, ok, want)
 				}
 			}
+		}
+	}
+	// Forms atoi may read but fixedWords must refuse (the general path's).
+	for _, word := range []string{"   12   ", "   +  12", "      1 ", "XYZ1 2 3", "   - 123", "        ", "   --123"} {
+		if _, ok := fixedField([]byte(word)); ok {
+			t.Errorf("fixedField(%q) takes a field that is not spaces, an optional '-' and digits", word)
 		}
 	}
 }
@@ -260,21 +266,20 @@ func FuzzFastLevel(f *testing.F) {
 }
 
 // FuzzFixedField: where fixedField reads eight bytes, atoi reads the same
-// value from the field's w characters.
+// value from the field's five characters.
 func FuzzFixedField(f *testing.F) {
-	f.Add([]byte("21  -123"), uint(5))
-	f.Add([]byte("1 101325"), uint(6))
-	f.Add([]byte("AB -9999"), uint(5))
-	f.Fuzz(func(t *testing.T, b []byte, w uint) {
+	f.Add([]byte("21  -123"))
+	f.Add([]byte("1 101325"))
+	f.Add([]byte("AB -9999"))
+	f.Fuzz(func(t *testing.T, b []byte) {
 		if len(b) < 8 {
 			return
 		}
-		w = w%7 + 1
 		b = b[:8]
-		got, ok := fixedField(b, w)
-		want, wok := atoi(b[8-w:])
+		got, ok := fixedField(b)
+		want, wok := atoi(b[3:])
 		if ok && (!wok || got != want) {
-			t.Errorf("fixedField(%q, %d) = %d; atoi gives %d, %v", b, w, got, want, wok)
+			t.Errorf("fixedField(%q) = %d; atoi gives %d, %v", b, got, want, wok)
 		}
 	})
 }

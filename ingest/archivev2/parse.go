@@ -334,13 +334,17 @@ func readField(lv *sounding.Level, line []byte, v sounding.Var, from, to, flag i
 // setValue stores raw/scale + off in *dst, or NaN for the special codes,
 // and returns the value's status.
 func setValue(dst *float64, raw int, scale, off float64) sounding.Status {
-	switch raw {
-	case codeMissing:
-		*dst = math.NaN()
-		return sounding.Missing
-	case codeRemoved:
-		*dst = math.NaN()
-		return sounding.RemovedUpstream
+	// Both codes are at most codeRemoved: one comparison passes the
+	// common value.
+	if raw <= codeRemoved {
+		switch raw {
+		case codeMissing:
+			*dst = math.NaN()
+			return sounding.Missing
+		case codeRemoved:
+			*dst = math.NaN()
+			return sounding.RemovedUpstream
+		}
 	}
 	// x/1 and x+0 are x exactly (float64(raw) is never −0), so the
 	// unscaled fields skip the division.
@@ -435,69 +439,81 @@ func parseLevelFast(lv *sounding.Level, line []byte) bool {
 
 func flagOK(f byte) bool { return f == ' ' || f == 'A' || f == 'B' }
 
-// The bytes each integer field of a data record takes of the eight that
-// end at its last column, in column order (ETIME, PRESS, GPH, TEMP, RH,
-// DPDP, WDIR, WSPD: fixedFields reads the eight bytes ending at 0-based
-// index 8, 15, 21, 27, 33, 39, 45 and 51).
-var fieldMask = [8]uint64{fieldBytes(5), fieldBytes(6), fieldBytes(5), fieldBytes(5),
-	fieldBytes(5), fieldBytes(5), fieldBytes(5), fieldBytes(5)}
-
-// fieldBytes is the mask of the top w bytes of a word (w from 1 to 7).
-func fieldBytes(w uint) uint64 { return ^uint64(0) << (8 * (8 - w)) }
-
 // fixedFields reads the eight integer fields of a data record into raw by
-// fixedWords' rule and reports whether every one was of that form.
+// fixedWords' rule and reports whether every one was of that form. Each
+// field is read from the eight bytes that end at its last column (0-based
+// index 8, 15, 21, 27, 33, 39, 45 and 51) as a field of five characters;
+// the six-character pressure (columns 10–15) is its last five characters
+// and a first, column 10, that is a space or, before five digits, a digit.
+// A pressure of another form ('-' before five digits) is left to the
+// general path.
 func fixedFields(line *[51]byte, raw *[8]int) bool {
 	le := binary.LittleEndian
 	u := [8]uint64{le.Uint64(line[0:8]), le.Uint64(line[7:15]), le.Uint64(line[13:21]), le.Uint64(line[19:27]),
 		le.Uint64(line[25:33]), le.Uint64(line[31:39]), le.Uint64(line[37:45]), le.Uint64(line[43:51])}
-	return fixedWords(&u, &fieldMask, raw) == 0
+	if fixedWords(&u, raw) != 0 {
+		return false
+	}
+	if c := line[9]; c != ' ' {
+		// Column 11 a digit: the last five columns are all digits.
+		if c-'0' > 9 || line[10]-'0' > 9 {
+			return false
+		}
+		raw[1] += int(c-'0') * 100000
+	}
+	return true
 }
 
 // Byte-wise constants of fixedWords: each repeats one byte eight times.
 const (
 	ones  = 0x0101010101010101
 	bit4s = 0x10 * ones
+	// field5 is the mask of the top five bytes of a word: the characters
+	// of a five-character field that ends at the word's top byte.
+	field5 = uint64(0xffffffffff) << 24
 )
 
-// fixedWords reads eight right-aligned integer fields into raw: field k
-// takes the bytes mask[k] (fieldBytes of its width, 1 to 7 characters) of
-// u[k], the eight bytes that end at its last character as a little-endian
-// word, so the field's last character is the word's top byte. A field
-// must be spaces, then an optional '-', then at least one digit up to its
-// end; bad is nonzero when any field is of another form (blank,
-// left-aligned, '+', embedded spaces, other bytes), which atoi may still
-// read. Where a field is of that form its value is atoi's. The fields are
-// tested without branching and the caller decides once.
+// fixedWords reads eight right-aligned integer fields of five characters
+// into raw: field k is the top five bytes of u[k], the eight bytes that end
+// at its last character as a little-endian word, so the field's last
+// character is the word's top byte. A field must be spaces, then an
+// optional '-', then at least one digit up to its end; bad is nonzero when
+// any field is of another form (blank, left-aligned, '+', embedded spaces,
+// other bytes), which atoi may still read. Where a field is of that form
+// its value is atoi's. The fields are tested without branching and the
+// caller decides once; the field width is a constant, so the masks fold
+// into the instructions.
 //
 // A byte is a digit when its high nibble is 3 and its low nibble at most 9;
 // the highest non-digit byte ends the run of digits, and the digits'
-// values are combined pairwise by three multiplications (two digits, then
-// four, then eight).
-func fixedWords(u *[8]uint64, mask *[8]uint64, raw *[8]int) (bad uint64) {
+// values, their low nibbles, are combined pairwise by three
+// multiplications (two digits, then four, then eight).
+func fixedWords(u *[8]uint64, raw *[8]int) (bad uint64) {
+	const field = field5
 	for k := range 8 {
-		u, field := u[k], mask[k]
+		u := u[k]
 		// Bit 4 of each byte of nd is set where the byte is not a digit,
 		// and in the byte just below the field (a sentinel).
 		hi := (u & (0xf0 * ones)) ^ (0x30 * ones)
-		nd := (((hi >> 4) + 0x0f*ones) | ((u & (0x0f * ones)) + 0x06*ones)) & field
-		nd = (nd | (^field ^ ^field>>8)) & bit4s
+		nd := (((hi >> 4) + 0x0f*ones) | ((u & (0x0f * ones)) + 0x06*ones)) & (field & bit4s)
+		nd |= (^field ^ ^field>>8) & bit4s
 		bad |= nd >> 56 // the last character is not a digit
 		// The highest non-digit byte p has its bit 4 at 8p+4, so z =
 		// 56-8p, and the bytes up to p are the low 64-z bits.
 		z := uint(bits.LeadingZeros64(nd)) & 56
 		below := ^uint64(0) >> z
-		lead := u & field & below
-		spaces := 0x20 * ones & field & below
+		lead := u & below & field
+		spaces := below & (0x20 * ones & field)
 		minus := spaces ^ (0x20^'-')<<56>>z
 		// lead must be all spaces, or spaces and a minus sign just
 		// before the digits.
-		bad |= uint64(b2u(lead != spaces && lead != minus))
-		d := u&^below - 0x30*ones&^below // digit values, most significant first
+		isMinus := b2u(lead == minus)
+		bad |= uint64(b2u(lead != spaces) &^ isMinus)
+		d := u & (0x0f * ones) &^ below // digit values, most significant first
 		d = (d * (10<<8 + 1)) >> 8 & (0x00ff00ff00ff00ff)
 		d = (d * (100<<16 + 1)) >> 16 & (0x0000ffff0000ffff)
 		d = (d * (10000<<32 + 1)) >> 32
-		neg := -int(b2u(lead == minus)) // all ones for a negative value
+		neg := -int(isMinus) // all ones for a negative value
 		raw[k] = (int(d) ^ neg) - neg
 	}
 	return bad
