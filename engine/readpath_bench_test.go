@@ -37,6 +37,19 @@ func sterlingInput(b *testing.B, dir string, gz bool) string {
 	return path
 }
 
+// stageOne stages the input at path as one worker's run does, in fresh
+// store and staging folders.
+func stageOne(b *testing.B, path string) (*run, *staged) {
+	b.Helper()
+	r := newRun(context.Background(), b.TempDir(), []string{path}, Options{Workers: 1})
+	r.staging = b.TempDir()
+	st := &staged{byPart: map[string][]segment{}, dropped: map[int]bool{}}
+	if _, err := r.stageInputs([]string{path}, st, nil); err != nil {
+		b.Fatal(err)
+	}
+	return r, st
+}
+
 // BenchmarkReadPath stages the real Sterling 2016 file (indexing it by
 // station-year, through a decompressed copy held in memory for gzip) and
 // decodes every segment in place, the ingest's read path before QC; the
@@ -47,12 +60,7 @@ func BenchmarkReadPath(b *testing.B) {
 			path := sterlingInput(b, b.TempDir(), gz)
 			cpu0 := benchcpu.Used()
 			for b.Loop() {
-				r := newRun(context.Background(), b.TempDir(), []string{path}, Options{Workers: 1})
-				r.staging = b.TempDir()
-				st := &staged{byPart: map[string][]segment{}, dropped: map[int]bool{}}
-				if _, err := r.stageInputs([]string{path}, st, nil); err != nil {
-					b.Fatal(err)
-				}
+				r, st := stageOne(b, path)
 				n := 0
 				var buf, data []byte
 				var err error
@@ -84,12 +92,7 @@ func BenchmarkStage(b *testing.B) {
 			path := sterlingInput(b, b.TempDir(), gz)
 			cpu0 := benchcpu.Used()
 			for b.Loop() {
-				r := newRun(context.Background(), b.TempDir(), []string{path}, Options{Workers: 1})
-				r.staging = b.TempDir()
-				st := &staged{byPart: map[string][]segment{}, dropped: map[int]bool{}}
-				if _, err := r.stageInputs([]string{path}, st, nil); err != nil {
-					b.Fatal(err)
-				}
+				_, st := stageOne(b, path)
 				if len(st.byPart) == 0 {
 					b.Fatal("nothing staged")
 				}
