@@ -1,7 +1,6 @@
 package engine
 
 import (
-	"bytes"
 	"crypto/sha256"
 	"encoding/hex"
 	"errors"
@@ -78,7 +77,7 @@ func (r *run) readHead(st *staged, k string) ([]*sounding.Sounding, string, erro
 			return nil, "", err
 		}
 		if st.inPlace[sg.file] {
-			rd := archivev2.NewReaderAt(bytes.NewReader(data), st.inputs[sg.file], sg.member, sg.line)
+			rd := archivev2.NewReaderBytesAt(data, st.inputs[sg.file], sg.member, sg.line)
 			for {
 				s, err := rd.Next()
 				if err == io.EOF {
