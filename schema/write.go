@@ -184,16 +184,10 @@ func WriteRows[T any](path, table string, rows *Rows[T], sync bool) error {
 	if err := checkRowType(table, reflect.TypeFor[T]()); err != nil {
 		return err
 	}
-	enc := func(w *bufio.Writer) error {
-		if !ownWriterSupports(rows.cols) {
-			return encode(w, arrowSchema(table, rows.cols), rows.cols, rows.arrays)
-		}
+	enc := encoderOf[T](table, arrowSchema(table, rows.cols), rows.cols, rows.arrays, func() ([]*colBuf, int, error) {
 		rows.flush()
-		if rows.err != nil {
-			return rows.err
-		}
-		return writeParquet(w, table, reflect.TypeFor[T](), rows.cols, rows.bufs, rows.n, compactTable(table))
-	}
+		return rows.bufs, rows.n, rows.err
+	})
 	if _, err := writePartition(filepath.Dir(path), filepath.Base(path), enc, sync); err != nil {
 		return fmt.Errorf("schema: table %s: %w", table, err)
 	}
@@ -208,21 +202,31 @@ func compactTable(table string) bool {
 }
 
 // sliceEncoder returns the encoding of rows[idx...] of table, as
-// writePartition takes it: through the store's own Parquet writer when
-// that handles every column, else through the general writer.
+// writePartition takes it (encoderOf).
 func sliceEncoder[T any](table string, sc *arrow.Schema, cols []Column, rows []T, idx []int) func(*bufio.Writer) error {
+	return encoderOf[T](table, sc, cols, func() ([]arrow.Array, int, error) {
+		a, err := columnArrays(cols, rows, idx)
+		return a, len(idx), err
+	}, func() ([]*colBuf, int, error) {
+		bufs, err := columnBufs(cols, rows, idx)
+		return bufs, len(idx), err
+	})
+}
+
+// encoderOf returns the encoding of a file of table with columns cols, as
+// writePartition takes it: through the store's own Parquet writer from the
+// filled buffers bufs returns (and their row count) when that writer
+// handles every column, else through the general writer from arrays.
+func encoderOf[T any](table string, sc *arrow.Schema, cols []Column, arrays func() ([]arrow.Array, int, error), bufs func() ([]*colBuf, int, error)) func(*bufio.Writer) error {
 	if !ownWriterSupports(cols) {
-		return arrowEncoder(sc, cols, func() ([]arrow.Array, int, error) {
-			a, err := columnArrays(cols, rows, idx)
-			return a, len(idx), err
-		})
+		return arrowEncoder(sc, cols, arrays)
 	}
 	return func(w *bufio.Writer) error {
-		bufs, err := columnBufs(cols, rows, idx)
+		b, n, err := bufs()
 		if err != nil {
 			return err
 		}
-		return writeParquet(w, table, reflect.TypeFor[T](), cols, bufs, len(idx), compactTable(table))
+		return writeParquet(w, table, reflect.TypeFor[T](), cols, b, n, compactTable(table))
 	}
 }
 
