@@ -344,6 +344,12 @@ func (r *run) buildAll(keys []string, st *staged, old *store.Manifest) ([]*store
 	limit := r.partitionLimit()
 	inMemory := semaphore.NewWeighted(limit)
 	st.countUses(keys, r.memStage)
+	// One scratch per analysing goroutine, handed from one station-year
+	// to the next (not a sync.Pool, which each collection empties).
+	scratches := make(chan *buildScratch, r.workers)
+	for range r.workers {
+		scratches <- new(buildScratch)
+	}
 	for i, k := range keys {
 		analysing.Go(func() error {
 			if ctx.Err() != nil {
@@ -353,7 +359,9 @@ func (r *run) buildAll(keys []string, st *staged, old *store.Manifest) ([]*store
 			if err := inMemory.Acquire(ctx, weight); err != nil {
 				return context.Cause(ctx)
 			}
-			p, stats, write, err := r.buildPartition(k, st, old.Partitions[k])
+			sc := <-scratches // never waits: at most r.workers analyse at once
+			p, stats, write, err := r.buildPartition(k, st, old.Partitions[k], sc)
+			scratches <- sc
 			st.release(k, r.memStage)
 			if err != nil {
 				inMemory.Release(weight)
@@ -495,13 +503,24 @@ func readSegment(st *staged, sg segment, buf []byte) (data, scratch []byte, err 
 	return buf, buf, nil
 }
 
+// buildScratch is the memory one analysing goroutine uses again from one
+// station-year to the next: what a station-year's build drops once it has
+// its rows (buildPartition returns), handed to the next build instead of
+// to the collector.
+type buildScratch struct {
+	levels sounding.LevelArena // the levels of the station-year's soundings read in place and of its context
+}
+
 // buildPartition rebuilds one station-year from its staged soundings: it
 // reads, checks and analyses them and returns the partition with a write
 // function that writes its files (nil when there is nothing to write: no
 // soundings, or the partition is unchanged). stats is complete once write
-// has returned.
-func (r *run) buildPartition(key string, st *staged, prev *store.Partition) (_ *store.Partition, stats *buildStats, write func() error, _ error) {
+// has returned. The levels of the soundings it reads are kept in sc, which
+// the next build hands out again: nothing of them outlives the return
+// (the rows hold copies).
+func (r *run) buildPartition(key string, st *staged, prev *store.Partition, sc *buildScratch) (_ *store.Partition, stats *buildStats, write func() error, _ error) {
 	stats = &buildStats{}
+	sc.levels.Reset() // the previous station-year's soundings are dropped
 	station, year, err := store.SplitPartitionKey(key)
 	if err != nil {
 		return nil, stats, nil, err
@@ -518,7 +537,7 @@ func (r *run) buildPartition(key string, st *staged, prev *store.Partition) (_ *
 		}
 		contributors[st.inputs[sg.file]] = true
 		if st.inPlace[sg.file] {
-			got, err := r.readInPlace(data, st.inputs[sg.file], sg)
+			got, err := r.readInPlace(data, st.inputs[sg.file], sg, &sc.levels)
 			if err != nil {
 				return nil, stats, nil, err
 			}
@@ -549,7 +568,7 @@ func (r *run) buildPartition(key string, st *staged, prev *store.Partition) (_ *
 	// the next year, the context of the afternoon pairing (context.go),
 	// enters by its own identity.
 	next, _ := neighbourKey(key, 1)
-	context, contextHash, err := r.readHead(st, next)
+	context, contextHash, err := r.readHead(st, next, &sc.levels)
 	if err != nil {
 		return nil, stats, nil, err
 	}

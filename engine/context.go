@@ -65,7 +65,7 @@ func writeIdentity(h hash.Hash, s *sounding.Sounding, enc []byte) (string, []byt
 // returns them with the hash that identifies them ("" when there are
 // none). It reports nothing: the soundings and the rejected lines are
 // counted and reported by the build of k itself.
-func (r *run) readHead(st *staged, k string) ([]*sounding.Sounding, string, error) {
+func (r *run) readHead(st *staged, k string, levels *sounding.LevelArena) ([]*sounding.Sounding, string, error) {
 	var out []*sounding.Sounding
 	var buf, data []byte
 	var err error
@@ -78,6 +78,7 @@ func (r *run) readHead(st *staged, k string) ([]*sounding.Sounding, string, erro
 		}
 		if st.inPlace[sg.file] {
 			rd := archivev2.NewReaderBytesAt(data, st.inputs[sg.file], sg.member, sg.line)
+			rd.UseLevelArena(levels)
 			for {
 				s, err := rd.Next()
 				if err == io.EOF {
@@ -179,7 +180,7 @@ func (r *run) addNeighbours(st *staged, affected map[string]bool, next *store.Ma
 		if p == nil {
 			continue
 		}
-		_, h, err := r.readHead(st, k)
+		_, h, err := r.readHead(st, k, nil)
 		if err != nil {
 			return err
 		}

@@ -553,10 +553,12 @@ func (ix *indexer) member(index func(fn func(archivev2.Segment) error) error, me
 
 // readInPlace decodes one in-place segment (the bytes of buf) of input
 // path: soundings are returned, rejected ones reported as skips, as
-// reading the whole file would.
-func (r *run) readInPlace(buf []byte, path string, sg segment) ([]*sounding.Sounding, error) {
+// reading the whole file would. Their levels are kept in levels (nil: the
+// heap).
+func (r *run) readInPlace(buf []byte, path string, sg segment, levels *sounding.LevelArena) ([]*sounding.Sounding, error) {
 	defer r.stage("read_parse", time.Now())
 	rd := archivev2.NewReaderBytesAt(buf, path, sg.member, sg.line)
+	rd.UseLevelArena(levels)
 	var out []*sounding.Sounding
 	for {
 		s, err := rd.Next()

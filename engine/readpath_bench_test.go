@@ -69,7 +69,7 @@ func BenchmarkReadPath(b *testing.B) {
 						if data, buf, err = readSegment(st, sg, buf); err != nil {
 							b.Fatal(err)
 						}
-						got, err := r.readInPlace(data, st.inputs[sg.file], sg)
+						got, err := r.readInPlace(data, st.inputs[sg.file], sg, nil)
 						if err != nil {
 							b.Fatal(err)
 						}

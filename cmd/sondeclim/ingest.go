@@ -88,6 +88,7 @@ error; 3 done, but some input was skipped (data lost).`,
 	ventTable := fs.String("ventilation-table", analyze.GenericVentilationTable().Name, "ventilation category `table`: a built-in name ("+engine.VentilationTableNames()+") or a table file (format in the README, \"Ventilation categories\"); part of the analysis parameters, so a change rebuilds the store")
 	useSuspect := fs.Bool("use-suspect", false, "let the analysis use values quality control flags as suspect (bad values are never used)")
 	cpuProfile := fs.String("cpuprofile", "", "write a CPU profile to `file` (for performance work: go tool pprof FILE)")
+	memProfile := fs.String("memprofile", "", "write a heap profile to `file` at the end of the run, every allocation of the run sampled (for performance work: go tool pprof -sample_index=alloc_space FILE)")
 	summaryJSON := fs.String("summary-json", "", "write a machine-readable summary of the run to `file`")
 	logFormat := logFlag(fs)
 	if err := parseFlags(fs, args); err != nil {
@@ -157,6 +158,9 @@ error; 3 done, but some input was skipped (data lost).`,
 			return fmt.Errorf("ingest: %w", err)
 		}
 		defer pprof.StopCPUProfile()
+	}
+	if *memProfile != "" {
+		defer writeHeapProfile(*memProfile, log)
 	}
 	tuneGC()
 	sum, err := engine.Run(ctx, *storeDir, fs.Args(), opt)
@@ -240,6 +244,22 @@ const ingestMemoryLimit = 768 << 20
 // the heap reuses memory it has touched instead of growing into fresh
 // pages up to the limit.
 const ingestGCPercent = 200
+
+// writeHeapProfile writes the heap profile of the run so far to path; a
+// failure is logged, as the run itself is done.
+func writeHeapProfile(path string, log *slog.Logger) {
+	runtime.GC() // the profile counts allocations up to the last collection
+	f, err := os.Create(path)
+	if err == nil {
+		err = pprof.Lookup("allocs").WriteTo(f, 0)
+		if cerr := f.Close(); err == nil {
+			err = cerr
+		}
+	}
+	if err != nil {
+		log.Warn("heap profile not written", "file", path, "error", err.Error())
+	}
+}
 
 // tuneGC switches the collector to the settings above, unless the user
 // chose settings through the environment.

@@ -87,7 +87,14 @@ type Reader struct {
 	// general makes the reader parse every level with parseLevelGeneral,
 	// for the tests that check the fast path against it.
 	general bool
+
+	arena *sounding.LevelArena // where soundings' levels are kept (nil: the heap)
 }
+
+// UseLevelArena makes the reader keep the levels of the soundings it
+// returns in a (nil: the heap, the default). They are then the caller's
+// only until it resets a.
+func (r *Reader) UseLevelArena(a *sounding.LevelArena) { r.arena = a }
 
 // NewReader returns a reader of the station data file r. The file and
 // member names are used only in error messages and sounding.Source.
@@ -229,7 +236,11 @@ func (r *Reader) Next() (*sounding.Sounding, error) {
 	}
 	if s != nil {
 		s.Source = sounding.Source{File: r.file, Member: r.member, Line: hdrLine, Format: Format}
-		s.Levels = make([]sounding.Level, 0, min(s.DeclaredLevels, 256))
+		if r.arena != nil {
+			s.Levels = r.arena.Take(min(s.DeclaredLevels, 256))
+		} else {
+			s.Levels = make([]sounding.Level, 0, min(s.DeclaredLevels, 256))
+		}
 	}
 
 	count, badLine := 0, 0
@@ -250,7 +261,11 @@ func (r *Reader) Next() (*sounding.Sounding, error) {
 		if len(s.Levels) == cap(s.Levels) {
 			// Grow once to the declared size, now that records are
 			// really present (a header alone reserves little).
-			s.Levels = slices.Grow(s.Levels, s.DeclaredLevels-len(s.Levels))
+			if r.arena != nil {
+				s.Levels = r.arena.Grow(s.Levels, s.DeclaredLevels)
+			} else {
+				s.Levels = slices.Grow(s.Levels, s.DeclaredLevels-len(s.Levels))
+			}
 		}
 		s.Levels = s.Levels[:len(s.Levels)+1]
 		lv := &s.Levels[len(s.Levels)-1]
@@ -266,6 +281,15 @@ func (r *Reader) Next() (*sounding.Sounding, error) {
 		lv.Line = r.line
 	}
 
+	if r.arena != nil && s != nil {
+		// The capacity past the levels read goes back to the arena; all
+		// of it for a sounding rejected below.
+		if hdrErr != nil || count != s.DeclaredLevels || badErr != nil {
+			s.Levels = r.arena.Trim(s.Levels[:0])
+		} else {
+			s.Levels = r.arena.Trim(s.Levels)
+		}
+	}
 	switch {
 	case hdrErr != nil:
 		return nil, r.parseError(hdrLine, hdrErr)
