@@ -19,6 +19,7 @@ import (
 	"github.com/apache/arrow-go/v18/arrow/memory"
 	"github.com/apache/arrow-go/v18/parquet/file"
 	"github.com/apache/arrow-go/v18/parquet/pqarrow"
+	"github.com/sondeclim/sondeclim/internal/benchcpu"
 )
 
 // footerLines decodes the Thrift compact FileMetaData at the end of the
@@ -522,4 +523,33 @@ func TestOwnWriterAllTables(t *testing.T) {
 	checkSlice(t, TableAfternoon, p.Afternoon)
 	checkSlice(t, "all_kinds", sampleRows())
 	checkSlice(t, "all_kinds", []allKinds{})
+}
+
+// BenchmarkWriteRealLevels writes the levels of a real station-year (the
+// Sterling 2016 file, PROVENANCE.md: 662 soundings, 131,306 levels) as one
+// file with the store's own writer, without sync, as the ingest pipeline
+// does; it reports the processor time per file and the file's size.
+func BenchmarkWriteRealLevels(b *testing.B) {
+	all := realAnalysed(b, "USM00072403-data-beg2016.txt.zip")
+	cols, err := NewLevelColumns(len(all) * 200)
+	if err != nil {
+		b.Fatal(err)
+	}
+	for i := range all {
+		a := &all[i]
+		appendLevelRows(cols, a.s, a.rep, &a.res, a.s.LaunchTime.UTC(), int32(a.s.NominalTime.Year()))
+	}
+	path := filepath.Join(b.TempDir(), "levels", "part.parquet")
+	cpu := benchcpu.Used()
+	for b.Loop() {
+		if err := WriteRows(path, TableLevels, cols.rows, false); err != nil {
+			b.Fatal(err)
+		}
+	}
+	benchcpu.PerOp(b, cpu)
+	st, err := os.Stat(path)
+	if err != nil {
+		b.Fatal(err)
+	}
+	b.ReportMetric(float64(st.Size()), "file-bytes")
 }
