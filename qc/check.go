@@ -64,7 +64,9 @@ var scratches sync.Pool
 // needs and overwritten) before use, so no value of an earlier sounding
 // is read. Each slice has one user at a time; the comments name them.
 type scratch struct {
-	work        []float64 // the state's p, z, t, td, dpd, tv and ln caches (12 floats a level)
+	work        []float64 // the state's p, z, t, td and dpd (5 floats a level)
+	tvc         []tvEntry // the state's Tv cache (tvCache)
+	lnc         []lnEntry // the state's ln p ratio cache (lnCache)
 	idx         []int     // the levels a check walks: pressureOrder, hydrostatic's anchors, spikes, superadiabatic, coverage; heightOrder's levels with a pressure
 	idx2        []int     // heightOrder's levels without a pressure
 	tails, prev []int     // longestRun
@@ -105,21 +107,22 @@ func newStateIn(s *sounding.Sounding, cfg Config, sc *scratch) *state {
 	levels := s.Levels
 	n := len(levels)
 	st.rep.Flags = make([][sounding.NumVars]Flag, n)
-	sc.work = slices.Grow(sc.work[:0], 12*n)[:12*n]
+	sc.work = slices.Grow(sc.work[:0], 5*n)[:5*n]
 	buf := sc.work
 	st.p, st.z, st.t, st.td, st.dpd = buf[:n], buf[n:2*n], buf[2*n:3*n], buf[3*n:4*n], buf[4*n:5*n]
-	st.tv = tvCache{t: buf[5*n : 6*n], td: buf[6*n : 7*n], p: buf[7*n : 8*n], tv: buf[8*n : 9*n]}
-	st.ln = lnCache{pa: buf[9*n : 10*n], pb: buf[10*n : 11*n], ln: buf[11*n:]}
+	sc.tvc = slices.Grow(sc.tvc[:0], n)[:n]
+	sc.lnc = slices.Grow(sc.lnc[:0], n)[:n]
+	st.tv, st.ln = sc.tvc, sc.lnc
 	// Local slices of length n, indexed by the levels' range: no bounds
 	// test per value.
 	p, z, t, td, dpd := st.p[:n], st.z[:n], st.t[:n], st.td[:n], st.dpd[:n]
-	tvp, lnpa, flags := st.tv.p[:n], st.ln.pa[:n], st.rep.Flags[:n]
+	tvc, lnc, flags := st.tv[:n], st.ln[:n], st.rep.Flags[:n]
 	surface := -1
 	for i := range levels {
 		l := &levels[i]
 		p[i] = finite(l.PressurePa)
-		tvp[i] = nan // nothing cached
-		lnpa[i] = nan
+		tvc[i].p = nan // nothing cached
+		lnc[i].pa = nan
 		z[i] = math.NaN()
 		if l.Status[sounding.VarHeight] == sounding.Reported {
 			z[i] = finite(l.HeightM)

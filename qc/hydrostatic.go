@@ -41,26 +41,34 @@ func (st *state) virtualT(tK, tdK, pPa float64) float64 {
 // (each layer, its neighbours, the superadiabatic heights), each time
 // with the working values of the moment; a level whose values have not
 // changed since gets the same Tv without its saturation vapour pressure
-// (an exponential) being computed again.
-type tvCache struct{ t, td, p, tv []float64 }
+// (an exponential) being computed again. One entry a level keeps the
+// keys and the value together (one bounds test, one cache line).
+type tvCache []tvEntry
+
+type tvEntry struct{ t, td, p, tv float64 }
 
 // virtualTAt returns the virtual temperature in K of level i for the
 // temperatures t and dewpoints td (the working ones or a trial) and the
 // working pressure: virtualT of those values, from the cache when they
 // are bit for bit the ones it was computed from. A level without pressure
 // is not cached (its Tv is T, cheap), so the NaN pressure an unused entry
-// holds never matches.
+// holds never matches. The test of the cache is small enough to be
+// inlined; a miss computes in virtualTMiss.
 func (st *state) virtualTAt(i int, t, td []float64) float64 {
-	tK, tdK, pPa := t[i], td[i], st.p[i]
-	if math.IsNaN(pPa) {
-		return st.virtualT(tK, tdK, pPa)
+	e := &st.tv[i]
+	if tK, tdK, pPa := t[i], td[i], st.p[i]; same(e.p, pPa) && same(e.t, tK) && same(e.td, tdK) && !math.IsNaN(pPa) {
+		return e.tv
 	}
-	c := &st.tv
-	if same(c.p[i], pPa) && same(c.t[i], tK) && same(c.td[i], tdK) {
-		return c.tv[i]
-	}
+	return st.virtualTMiss(i, t[i], td[i])
+}
+
+// virtualTMiss is virtualTAt for values not in the cache.
+func (st *state) virtualTMiss(i int, tK, tdK float64) float64 {
+	pPa := st.p[i]
 	v := st.virtualT(tK, tdK, pPa)
-	c.t[i], c.td[i], c.p[i], c.tv[i] = tK, tdK, pPa, v
+	if !math.IsNaN(pPa) {
+		st.tv[i] = tvEntry{t: tK, td: tdK, p: pPa, tv: v}
+	}
 	return v
 }
 
@@ -68,23 +76,30 @@ func (st *state) virtualTAt(i int, t, td []float64) float64 {
 // the level below it and pb of b it was computed from. The hydrostatic
 // layers, the spike interpolation and the superadiabatic heights all take
 // the logarithm of the pressure ratio of the same neighbouring levels.
-type lnCache struct{ pa, pb, ln []float64 }
+type lnCache []lnEntry
+
+type lnEntry struct{ pa, pb, ln float64 }
 
 // lnRatio returns math.Log(p[a]/p[b]) of the working pressures, from the
 // cache when it holds the logarithm of those two pressures, bit for bit
 // (the same operation on the same bits gives the same result). NaN
-// pressures are not cached, so an unused entry (keys NaN) never matches.
+// pressures are not cached, so an unused entry (keys NaN) never matches;
+// the test of the cache is inlined, a miss computes in lnRatioMiss.
 func (st *state) lnRatio(a, b int) float64 {
+	e := &st.ln[b]
+	if pa, pb := st.p[a], st.p[b]; same(e.pa, pa) && same(e.pb, pb) && !math.IsNaN(pa) && !math.IsNaN(pb) {
+		return e.ln
+	}
+	return st.lnRatioMiss(a, b)
+}
+
+// lnRatioMiss is lnRatio for pressures not in the cache.
+func (st *state) lnRatioMiss(a, b int) float64 {
 	pa, pb := st.p[a], st.p[b]
-	if math.IsNaN(pa) || math.IsNaN(pb) {
-		return math.Log(pa / pb)
-	}
-	c := &st.ln
-	if same(c.pa[b], pa) && same(c.pb[b], pb) {
-		return c.ln[b]
-	}
 	v := math.Log(pa / pb)
-	c.pa[b], c.pb[b], c.ln[b] = pa, pb, v
+	if !math.IsNaN(pa) && !math.IsNaN(pb) {
+		st.ln[b] = lnEntry{pa: pa, pb: pb, ln: v}
+	}
 	return v
 }
 
@@ -108,17 +123,14 @@ func (st *state) thickness(a, b int, t, td []float64) float64 {
 // of layers computes each level's once.
 func (st *state) thicknessFrom(a, b int, t, td []float64, tvA float64) (sum, tvB float64) {
 	c := &st.cfg.Constants
+	p := st.p
 	prev, tvPrev := a, tvA
 	for i := a + 1; i <= b; i++ {
-		if math.IsNaN(st.p[i]) || math.IsNaN(t[i]) {
+		if math.IsNaN(p[i]) || math.IsNaN(t[i]) {
 			continue
 		}
-		tv := st.virtualTAt(i, t, td)
-		if pa, pb := st.p[prev], st.p[i]; !(pa > 0) || !(pb > 0) {
-			sum += nan // as thermo.Thickness
-		} else {
-			sum += thermo.ThicknessLn(st.lnRatio(prev, i), tvPrev, tv, c.Rd, c.G0)
-		}
+		dz, tv := st.step(prev, i, t, td, tvPrev, c.Rd, c.G0)
+		sum += dz
 		prev, tvPrev = i, tv
 	}
 	if prev != b { // b itself had no pressure
@@ -127,9 +139,39 @@ func (st *state) thicknessFrom(a, b int, t, td []float64, tvA float64) (sum, tvB
 	return sum, tvPrev
 }
 
+// step returns the hypsometric thickness in m of the one step from level
+// a (virtual temperature tvA, K) up to level b, both with a pressure and a
+// temperature, and the virtual temperature at b: one term of
+// thicknessFrom's sum. It is virtualTAt(b) and lnRatio(a, b) with their
+// cache tests written out, as each step of every layer and of the
+// superadiabatic heights takes them.
+func (st *state) step(a, b int, t, td []float64, tvA, rd, g0 float64) (dz, tvB float64) {
+	pa, pb := st.p[a], st.p[b]
+	if tK, tdK, e := t[b], td[b], &st.tv[b]; same(e.p, pb) && same(e.t, tK) && same(e.td, tdK) && !math.IsNaN(pb) {
+		tvB = e.tv
+	} else {
+		tvB = st.virtualTMiss(b, tK, tdK)
+	}
+	if !(pa > 0) || !(pb > 0) {
+		return nan, tvB // as thermo.Thickness
+	}
+	var ln float64
+	if e := &st.ln[b]; same(e.pa, pa) && same(e.pb, pb) { // neither is NaN
+		ln = e.ln
+	} else {
+		ln = st.lnRatioMiss(a, b)
+	}
+	return thermo.ThicknessLn(ln, tvA, tvB, rd, g0), tvB
+}
+
 // evaluate fills l's thickness, residual and tolerance from t and td.
 func (st *state) evaluate(l *layer, t, td []float64) {
-	l.thickness = st.thickness(l.a, l.b, t, td)
+	st.evaluated(l, t, st.thickness(l.a, l.b, t, td))
+}
+
+// evaluated fills l's residual and tolerance from its thickness in m.
+func (st *state) evaluated(l *layer, t []float64, thickness float64) {
+	l.thickness = thickness
 	l.evaluated = !math.IsNaN(l.thickness)
 	l.residual = (st.z[l.b] - st.z[l.a]) - l.thickness
 	l.tol = math.Max(st.cfg.HydrostaticTolM, st.cfg.HydrostaticTolFrac*math.Abs(l.thickness)) + st.readingTol(l, t)
@@ -188,9 +230,25 @@ func (st *state) hydrostatic() {
 	}
 	layers := slices.Grow(st.sc.layers[:0], len(anchors)-1)[:len(anchors)-1]
 	st.sc.layers = layers
+	// Each layer as evaluate gives it, the virtual temperature at its
+	// base carried from the layer below (the same value virtualTAt gives).
+	t, td := st.t, st.td
+	tvA, carried := 0.0, false
 	for j := range layers {
-		layers[j] = layer{a: anchors[j], b: anchors[j+1]}
-		st.evaluate(&layers[j], st.t, st.td)
+		l := &layers[j]
+		*l = layer{a: anchors[j], b: anchors[j+1]}
+		if math.IsNaN(t[l.a]) || math.IsNaN(t[l.b]) {
+			st.evaluated(l, t, nan)
+			carried = false
+			continue
+		}
+		if !carried {
+			tvA = st.virtualTAt(l.a, t, td)
+		}
+		var sum float64
+		sum, tvA = st.thicknessFrom(l.a, l.b, t, td, tvA)
+		st.evaluated(l, t, sum)
+		carried = true
 	}
 	for j := 1; j < len(layers); j++ {
 		lo, hi := &layers[j-1], &layers[j]

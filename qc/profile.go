@@ -52,8 +52,9 @@ func (st *state) spikes() {
 	}
 }
 
-// heightsAGL returns hypsometric heights above the lowest level of idx, in
-// m, for the levels of idx, plus the height of that lowest level above the
+// heightsAGL returns hypsometric heights above the lowest level of idx (the
+// levels with a pressure and a temperature, thermoLevels), in m, for the
+// levels of idx, plus the height of that lowest level above the
 // station (0 when unknown). The heights live in the scratch (sc.z) until
 // the next call.
 func (st *state) heightsAGL(idx []int) []float64 {
@@ -67,17 +68,16 @@ func (st *state) heightsAGL(idx []int) []float64 {
 		z[0] = base
 	}
 	// Each level's virtual temperature is computed once along the chain.
-	tv := st.virtualTAt(idx[0], st.t, st.td)
+	// The levels of idx have a pressure and a temperature (thermoLevels),
+	// so no level between two of them has both: the thickness from one
+	// to the next (thicknessFrom) is the one step between them.
+	c := &st.cfg.Constants
+	t, td := st.t, st.td
+	tv := st.virtualTAt(idx[0], t, td)
 	for n := 1; n < len(idx); n++ {
-		a, b := idx[n-1], idx[n]
-		if math.IsNaN(st.t[a]) || math.IsNaN(st.t[b]) {
-			z[n] = z[n-1] + nan
-			tv = st.virtualTAt(b, st.t, st.td)
-			continue
-		}
-		var dz float64
-		dz, tv = st.thicknessFrom(a, b, st.t, st.td, tv)
+		dz, tvB := st.step(idx[n-1], idx[n], t, td, tv, c.Rd, c.G0)
 		z[n] = z[n-1] + dz
+		tv = tvB
 	}
 	return z
 }
