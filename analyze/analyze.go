@@ -45,9 +45,6 @@ type Result struct {
 	ThetaK          []float64 // K, potential temperature
 	ThetaVK         []float64 // K, virtual potential temperature (NaN without humidity)
 	MixingRatioKgKg []float64 // kg/kg, from dewpoint and pressure
-	// HeightAnchors lists the re-anchor points of the height integration
-	// with their hydrostatic mismatch (see FillHeights).
-	HeightAnchors []HeightAnchor
 	// StandardAnchor: no level had a height; see Heights.StandardAnchor.
 	StandardAnchor bool
 
@@ -320,8 +317,11 @@ func (r *Result) levelValues(s *sounding.Sounding, cfg Config, sc *scratch) (p, 
 		r.ThetaK[i], r.MixingRatioKgKg[i] = th, w
 		r.ThetaVK[i] = thermo.VirtualPotentialTemperature(th, w, c.Epsilon)
 	}
-	h := fillHeights(s.Levels, s.ElevationM, c, cfg.SatVap, r.MixingRatioKgKg, sc)
-	r.HeightM, r.HeightDerived, r.HeightAnchors, r.StandardAnchor = h.HeightM, h.Derived, h.Anchors, h.StandardAnchor
+	// The re-anchor points' mismatches (FillHeights' Anchors) are not
+	// kept: quality control's hydrostatic check has compared every
+	// reported thickness with the hypsometric one already.
+	h := fillHeights(s.Levels, s.ElevationM, c, cfg.SatVap, r.MixingRatioKgKg, false, sc)
+	r.HeightM, r.HeightDerived, r.StandardAnchor = h.HeightM, h.Derived, h.StandardAnchor
 	ground := s.ElevationM
 	if math.IsNaN(ground) || h.StandardAnchor {
 		ground = math.NaN()

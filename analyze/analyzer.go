@@ -30,7 +30,7 @@ func NewAnalyzer(cfg Config) *Analyzer {
 // Analyze does with the Analyzer's configuration.
 //
 // The Result's slices (HeightM, HeightDerived, HeightAGLM, ThetaK,
-// ThetaVK, MixingRatioKgKg, HeightAnchors, Inversions, MixedLayers and
+// ThetaVK, MixingRatioKgKg, Inversions, MixedLayers and
 // MixingHeights) are the Analyzer's: they hold this sounding's values
 // until the next call, which overwrites them. Read or copy them before
 // then. Result.Profile is the exception: its slices are the caller's, so
@@ -45,14 +45,13 @@ func (a *Analyzer) Analyze(s *sounding.Sounding) Result {
 // Result's slices come from it too, except Result.Profile's. A nil
 // *scratch allocates each slice.
 type scratch struct {
-	f       arena[float64]
-	i       arena[int]
-	b       arena[bool]
-	spans   arena[layerSpan]
-	anchors arena[HeightAnchor]
-	inv     arena[Inversion]
-	mh      arena[MixingHeight]
-	mixed   []MixedLayer // the mixed layers of the last sounding, kept for its room
+	f     arena[float64]
+	i     arena[int]
+	b     arena[bool]
+	spans arena[layerSpan]
+	inv   arena[Inversion]
+	mh    arena[MixingHeight]
+	mixed []MixedLayer // the mixed layers of the last sounding, kept for its room
 }
 
 func (sc *scratch) reset() {
@@ -60,7 +59,6 @@ func (sc *scratch) reset() {
 	sc.i.reset()
 	sc.b.reset()
 	sc.spans.reset()
-	sc.anchors.reset()
 	sc.inv.reset()
 	sc.mh.reset()
 }
@@ -73,14 +71,6 @@ func (sc *scratch) bools(n int) []bool {
 	b := sc.b.take(n)
 	clear(b)
 	return b
-}
-
-// heightAnchors returns an empty slice of anchors with room for n.
-func (sc *scratch) heightAnchors(n int) []HeightAnchor {
-	if sc == nil {
-		return make([]HeightAnchor, 0, n)
-	}
-	return sc.anchors.take(n)[:0]
 }
 
 // inversions returns n inversions, not cleared.

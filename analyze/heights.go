@@ -63,15 +63,18 @@ type Heights struct {
 // reported. Exact duplicate pressures get the same height. It never
 // panics; an empty input gives empty slices and StartIndex −1.
 func FillHeights(levels []sounding.Level, elevationM float64, c thermo.Constants, f thermo.SatVapFormula) Heights {
-	return fillHeights(levels, elevationM, c, f, nil, nil)
+	return fillHeights(levels, elevationM, c, f, nil, true, nil)
 }
 
 // fillHeights is FillHeights with the levels' mixing ratios w in kg/kg
 // (indexed like levels, as levelValues computes them from the finite
 // dewpoint and pressure) when the caller has them, so that the
 // saturation vapour pressure of each level is computed once; nil: they
-// are computed here; its working slices come from sc.
-func fillHeights(levels []sounding.Level, elevationM float64, c thermo.Constants, f thermo.SatVapFormula, w []float64, sc *scratch) Heights {
+// are computed here; its working slices come from sc. Without anchors
+// the Anchors are not recorded, and the hypsometric thickness up to a
+// level with a reported height, which only they would keep, is not
+// computed: the heights are the same.
+func fillHeights(levels []sounding.Level, elevationM float64, c thermo.Constants, f thermo.SatVapFormula, w []float64, anchors bool, sc *scratch) Heights {
 	n := len(levels)
 	h := Heights{HeightM: sc.floats(n), Derived: sc.bools(n), StartIndex: -1}
 	ord := sc.ints(n)
@@ -121,37 +124,45 @@ func fillHeights(levels []sounding.Level, elevationM float64, c thermo.Constants
 		return h
 	}
 	h.StartIndex = ord[start]
-	anchors := 0 // the levels that will re-anchor: a usable Tv and a reported height
-	for pos, j := range ord {
-		if pos != start && !math.IsNaN(tv[pos]) && !math.IsNaN(h.HeightM[j]) {
-			anchors++
+	if anchors {
+		n := 0 // the levels that will re-anchor: a usable Tv and a reported height
+		for pos, j := range ord {
+			if pos != start && !math.IsNaN(tv[pos]) && !math.IsNaN(h.HeightM[j]) {
+				n++
+			}
+		}
+		if n > 0 {
+			h.Anchors = make([]HeightAnchor, 0, n)
 		}
 	}
-	if anchors > 0 {
-		h.Anchors = sc.heightAnchors(anchors)
-	}
-	h.integrate(levels, ord, tv, start, +1, c)
-	h.integrate(levels, ord, tv, start, -1, c)
+	h.integrate(levels, ord, tv, start, +1, anchors, c)
+	h.integrate(levels, ord, tv, start, -1, anchors, c)
 	return h
 }
 
 // integrate walks ord from position start in direction dir (+1 up, −1
-// down), filling or re-anchoring heights.
-func (h *Heights) integrate(levels []sounding.Level, ord []int, tv []float64, start, dir int, c thermo.Constants) {
+// down), filling or re-anchoring heights, and recording the anchors when
+// anchors is true.
+func (h *Heights) integrate(levels []sounding.Level, ord []int, tv []float64, start, dir int, anchors bool, c thermo.Constants) {
 	prev := start
 	for pos := start + dir; pos >= 0 && pos < len(ord); pos += dir {
 		if math.IsNaN(tv[pos]) {
 			continue
 		}
-		jp, j := ord[prev], ord[pos]
-		z := h.HeightM[jp] + thermo.Thickness(levels[jp].PressurePa, levels[j].PressurePa, tv[prev], tv[pos], c.Rd, c.G0)
-		if rep := h.HeightM[j]; !math.IsNaN(rep) {
+		from := prev
+		jp, j := ord[from], ord[pos]
+		prev = pos
+		rep := h.HeightM[j]
+		if !math.IsNaN(rep) && !anchors {
+			continue // re-anchored: the integrated height would only be recorded
+		}
+		z := h.HeightM[jp] + thermo.Thickness(levels[jp].PressurePa, levels[j].PressurePa, tv[from], tv[pos], c.Rd, c.G0)
+		if !math.IsNaN(rep) {
 			h.Anchors = append(h.Anchors, HeightAnchor{Index: j, PressurePa: levels[j].PressurePa,
 				ReportedM: rep, IntegratedM: z, MismatchM: rep - z})
 		} else {
 			h.HeightM[j], h.Derived[j] = z, true
 		}
-		prev = pos
 	}
 }
 
