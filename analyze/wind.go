@@ -121,7 +121,7 @@ func (r *Result) buildWindProfile(s *sounding.Sounding, sc *scratch) windProfile
 	}
 	w.z, w.u, w.v = z[:n:n], u[:n:n], v[:n:n]
 	if !sorted {
-		w.sortStableIn(sc)
+		w = w.sortStableIn(sc)
 	} else if !equal {
 		return w
 	}
@@ -140,16 +140,19 @@ func (r *Result) buildWindProfile(s *sounding.Sounding, sc *scratch) windProfile
 	return w
 }
 
-// sortStable sorts the profile by height, keeping levels of equal height
-// in their order. Real profiles come as a few runs already in order (the
-// archive's pressure levels, then its wind-only levels, each rising), so
-// adjacent runs are merged, pass by pass (a natural merge sort: the left
-// run's level first on equal heights, so the order is the one stable
-// order, as sort.Stable gives).
-func (w windProfile) sortStable() { w.sortStableIn(nil) }
+// sortStable returns the profile sorted by height, keeping levels of
+// equal height in their order. Real profiles come as a few runs already
+// in order (the archive's pressure levels, then its wind-only levels, each
+// rising), so adjacent runs are merged, pass by pass (a natural merge
+// sort: the left run's level first on equal heights, so the order is the
+// one stable order, as sort.Stable gives). The result may be held in w's
+// slices or in new ones; lu and lv are w's.
+func (w windProfile) sortStable() windProfile { return w.sortStableIn(nil) }
 
-// sortStableIn is sortStable with its working slices from sc.
-func (w windProfile) sortStableIn(sc *scratch) {
+// sortStableIn is sortStable with its working slices from sc. Each pass
+// merges from one set of slices into the other (no copying back), so the
+// result ends in w's or in the working slices.
+func (w windProfile) sortStableIn(sc *scratch) windProfile {
 	n := len(w.z)
 	bounds := append(sc.ints(n+1), 0)
 	for i := 1; i < n; i++ {
@@ -159,33 +162,55 @@ func (w windProfile) sortStableIn(sc *scratch) {
 	}
 	bounds = append(bounds, n)
 	tmp := sc.floats(3 * n)
-	tz, tu, tv := tmp[:n], tmp[n:2*n], tmp[2*n:]
+	src, dst := w, windProfile{z: tmp[:n:n], u: tmp[n : 2*n : 2*n], v: tmp[2*n:], lu: w.lu, lv: w.lv}
 	for len(bounds) > 2 {
 		next := bounds[:1]
 		for r := 0; r+1 < len(bounds); r += 2 {
-			lo, mid, hi := bounds[r], bounds[r+1], n
-			if r+2 < len(bounds) {
-				hi = bounds[r+2]
-			} else {
-				mid = hi // an odd run out: kept as it is
+			lo, mid := bounds[r], bounds[r+1]
+			if r+2 >= len(bounds) { // an odd run out: carried over as it is
+				copy(dst.z[lo:mid], src.z[lo:mid])
+				copy(dst.u[lo:mid], src.u[lo:mid])
+				copy(dst.v[lo:mid], src.v[lo:mid])
+				next = append(next, mid)
+				break
 			}
-			i, j := lo, mid
-			for k := lo; k < hi; k++ {
-				if j >= hi || (i < mid && w.z[i] <= w.z[j]) {
-					tz[k], tu[k], tv[k] = w.z[i], w.u[i], w.v[i]
-					i++
-				} else {
-					tz[k], tu[k], tv[k] = w.z[j], w.u[j], w.v[j]
-					j++
-				}
-			}
-			copy(w.z[lo:hi], tz[lo:hi])
-			copy(w.u[lo:hi], tu[lo:hi])
-			copy(w.v[lo:hi], tv[lo:hi])
+			hi := bounds[r+2]
+			mergeRuns(dst.z[lo:hi], dst.u[lo:hi], dst.v[lo:hi], src.z[lo:mid], src.u[lo:mid], src.v[lo:mid],
+				src.z[mid:hi], src.u[mid:hi], src.v[mid:hi])
 			next = append(next, hi)
 		}
 		bounds = next
+		src, dst = dst, src
 	}
+	return src
+}
+
+// mergeRuns merges the run (az, au, av) and the run (bz, bu, bv) that
+// follows it, each in order of height z, into (dz, du, dv), as long as
+// both together; on equal heights a's level comes first.
+func mergeRuns(dz, du, dv, az, au, av, bz, bu, bv []float64) {
+	au, av = au[:len(az)], av[:len(az)]
+	bu, bv = bu[:len(bz)], bv[:len(bz)]
+	du, dv = du[:len(dz)], dv[:len(dz)]
+	i, j, k := 0, 0, 0
+	for ; i < len(az) && j < len(bz) && k < len(dz); k++ {
+		if bz[j] < az[i] {
+			dz[k], du[k], dv[k] = bz[j], bu[j], bv[j]
+			j++
+		} else {
+			dz[k], du[k], dv[k] = az[i], au[i], av[i]
+			i++
+		}
+	}
+	if i < len(az) { // what is left of a, then of b (one of them is empty)
+		copy(dz[k:], az[i:])
+		copy(du[k:], au[i:])
+		copy(dv[k:], av[i:])
+		k += len(az) - i
+	}
+	copy(dz[k:], bz[j:])
+	copy(du[k:], bu[j:])
+	copy(dv[k:], bv[j:])
 }
 
 func (w windProfile) Len() int           { return len(w.z) }

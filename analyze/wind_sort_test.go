@@ -32,7 +32,7 @@ func TestWindSortStable(t *testing.T) {
 		}
 		ref := windProfile{z: slices.Clone(w.z), u: slices.Clone(w.u), v: slices.Clone(w.v)}
 		sort.Stable(ref)
-		w.sortStable()
+		w = w.sortStable()
 		if !slices.Equal(w.z, ref.z) || !slices.Equal(w.u, ref.u) || !slices.Equal(w.v, ref.v) {
 			t.Fatalf("trial %d: got z %v u %v, sort.Stable gives z %v u %v", trial, w.z, w.u, ref.z, ref.u)
 		}
