@@ -106,24 +106,46 @@ func gzipHeader(src []byte) (int, error) {
 	return n, nil
 }
 
-// A decoding table entry (uint32): the low 4 bits are the code's length
-// in bits (for a link, the bits indexing its subtable), bit 4 marks a
-// link to a subtable, and the top 16 bits are the value: the symbol, a
-// literal byte, a length or distance base (then bits 8-11 are the number
-// of extra bits), or a link's subtable offset. Bits 5-7 mark a length,
-// the end of the block, and no code (a bit pattern the code does not
-// use, or a symbol that is not allowed).
+// A decoding table entry (uint32). The low 6 bits are the bits the entry
+// takes from the input: the code's length, plus the extra bits of a length
+// or distance (RFC 1951 §3.2.5) read with it; for a link to a subtable,
+// the bits indexing the first level. Bits 8-11 are the code's own length,
+// so that the extra bits following it are (bits & lowMask[total]) >>
+// codeLength, or a link's subtable index bits. The top 16 bits are the
+// value: a literal byte, a length (extra bits included when the index
+// holds them, entryExtra clear), a length or distance base, or a link's
+// subtable offset. Entries with none of the kind flags are literals.
 const (
-	entryLink = 1 << 4
-	entryLen  = 1 << 5
-	entryEnd  = 1 << 6
-	entryBad  = 1 << 7
-	litBits   = 10 // bits indexing a literal/length table's first level
-	distBits  = 8  // and a distance table's
+	entryLen   = 1 << 6  // a length
+	entryExtra = 1 << 7  // a length base whose extra bits are still to be added
+	entryBad   = 1 << 12 // no code: a bit pattern the code does not use, or a symbol not allowed
+	entryLink  = 1 << 13
+	entryEnd   = 1 << 14
+	entryKinds = entryLen | entryExtra | entryBad | entryLink | entryEnd
+
+	litBits  = 10 // bits indexing a literal/length table's first level
+	distBits = 8  // and a distance table's
+	// The room of a table for its first level and all its subtables. The
+	// most a complete code can need is 1334 entries for 288 literal/length
+	// symbols with a 10-bit first level and 402 for 32 distance symbols
+	// with an 8-bit one (figures of zlib's examples/enough.c, from
+	// memory); build refuses a code that would need more than the room.
+	litTableLen  = 2048
+	distTableLen = 512
+	codeTableLen = 1 << 7 // the code length code: codes of at most 7 bits, no subtables
 )
 
+// lowMask[k] has the low k bits set.
+var lowMask = func() (m [64]uint64) {
+	for k := range m {
+		m[k] = 1<<k - 1
+	}
+	return
+}()
+
 // The values of the literal/length symbols, of the distance symbols and
-// of plain symbols (the code length code) in table entries.
+// of plain symbols (the code length code), given to build: as entries,
+// with bits 8-11 holding the number of extra bits.
 var litVals, distVals, symVals = func() (l [288]uint32, d [32]uint32, c [19]uint32) {
 	for s := range l {
 		switch {
@@ -150,17 +172,32 @@ var litVals, distVals, symVals = func() (l [288]uint32, d [32]uint32, c [19]uint
 	return
 }()
 
-// huffTable decodes one canonical Huffman code (RFC 1951 §3.2.2).
-type huffTable struct {
-	t    []uint32
-	bits uint // first-level index bits
+// entry is the table entry of the symbol of value v (from litVals,
+// distVals or symVals) whose code has l bits at a table level indexed by
+// lb bits, for the slot of index i. A length's extra bits are folded into
+// its value when they lie within the index.
+func entry(v uint32, l, lb, i uint) uint32 {
+	if v&entryBad != 0 {
+		return entryBad
+	}
+	x := uint(v>>8) & 15
+	v &^= 15 << 8
+	if v&entryLen != 0 && x > 0 {
+		if l+x <= lb {
+			return (v + uint32((i>>l)&(1<<x-1))<<16) | uint32(l+x)
+		}
+		v |= entryExtra
+	}
+	return v | uint32(l)<<8 | uint32(l+x)
 }
 
-// build makes the table of the code with the given lengths per symbol.
-// Like Each's decoder it accepts a complete code, a single code of one
-// bit and an empty code (which fails when used), and refuses the rest.
-func (h *huffTable) build(lengths []uint8, first uint, vals []uint32) bool {
-	if len(lengths) > len(vals) {
+// build fills t, a table of fixed room (litTableLen, distTableLen or
+// codeTableLen entries), for the canonical Huffman code (RFC 1951 §3.2.2)
+// with the given lengths per symbol and a first level of first bits. Like
+// Each's decoder it accepts a complete code, a single code of one bit and
+// an empty code (which fails when used), and refuses the rest.
+func build(t []uint32, lengths []uint8, first uint, vals []uint32) bool {
+	if len(lengths) > len(vals) || len(lengths) > 320 || first > litBits || len(t) < 1<<first {
 		return false
 	}
 	var count [16]int
@@ -172,14 +209,9 @@ func (h *huffTable) build(lengths []uint8, first uint, vals []uint32) bool {
 		}
 	}
 	count[0] = 0
-	h.bits = first
 	size := 1 << first
-	if cap(h.t) < size {
-		h.t = make([]uint32, size, size*4)
-	}
-	h.t = h.t[:size]
-	for i := range h.t {
-		h.t[i] = entryBad
+	for i := range t {
+		t[i] = entryBad
 	}
 	if maxLen == 0 {
 		return true
@@ -205,9 +237,6 @@ func (h *huffTable) build(lengths []uint8, first uint, vals []uint32) bool {
 	// bits beyond it of the longest code sharing it.
 	var subLen [1 << litBits]uint8
 	var codes [320]uint16
-	if len(lengths) > len(codes) || first > litBits {
-		return false
-	}
 	nx := next
 	for s, l := range lengths {
 		if l == 0 {
@@ -221,38 +250,34 @@ func (h *huffTable) build(lengths []uint8, first uint, vals []uint32) bool {
 			subLen[p] = max(subLen[p], l-uint8(first))
 		}
 	}
-	if maxLen > int(first) {
-		for p := 0; p < size; p++ {
-			sb := subLen[p]
-			if sb == 0 {
-				continue
-			}
-			off := len(h.t)
-			if off > 0xffff {
-				return false
-			}
-			for range 1 << sb {
-				h.t = append(h.t, entryBad)
-			}
-			h.t[p] = uint32(off)<<16 | entryLink | uint32(sb)
+	end := size
+	for p := 0; p < size; p++ {
+		sb := subLen[p]
+		if sb == 0 {
+			continue
 		}
+		if end+1<<sb > len(t) {
+			return false
+		}
+		t[p] = uint32(end)<<16 | entryLink | uint32(sb)<<8 | uint32(first)
+		end += 1 << sb
 	}
 	for s, l := range lengths {
 		if l == 0 {
 			continue
 		}
-		c := int(codes[s])
+		c := uint(codes[s])
 		if int(l) <= int(first) {
-			for i := c; i < size; i += 1 << l {
-				h.t[i] = vals[s] | uint32(l)
+			for i := c; i < uint(size); i += 1 << l {
+				t[i] = entry(vals[s], uint(l), first, i)
 			}
 			continue
 		}
-		link := h.t[c&(size-1)]
-		off, sb := int(link>>16), uint(link&15)
+		link := t[c&uint(size-1)]
+		off, sb := uint(link>>16), uint(link>>8)&15
 		sl := uint(l) - first
 		for i := c >> first; i < 1<<sb; i += 1 << sl {
-			h.t[off+i] = vals[s] | uint32(sl)
+			t[off+i] = entry(vals[s], sl, sb, i)
 		}
 	}
 	return true
@@ -268,8 +293,13 @@ var (
 	clOrder = [19]uint8{16, 17, 18, 0, 8, 7, 9, 6, 10, 5, 11, 4, 12, 3, 13, 2, 14, 1, 15}
 )
 
+// blockTables are the tables of a block's two codes, in one array (one
+// pointer for the decoding loops to keep): the literal/length table, then
+// the distance table at litTableLen.
+type blockTables [litTableLen + distTableLen]uint32
+
 // fixedTables are the codes of block type 1 (RFC 1951 §3.2.6).
-var fixedTables = sync.OnceValue(func() [2]*huffTable {
+var fixedTables = sync.OnceValue(func() *blockTables {
 	var l [288]uint8
 	for i := range l {
 		switch {
@@ -287,11 +317,11 @@ var fixedTables = sync.OnceValue(func() [2]*huffTable {
 	for i := range d {
 		d[i] = 5
 	}
-	lt, dt := &huffTable{}, &huffTable{}
-	if !lt.build(l[:], litBits, litVals[:]) || !dt.build(d[:], distBits, distVals[:]) {
+	t := new(blockTables)
+	if !build(t[:litTableLen], l[:], litBits, litVals[:]) || !build(t[litTableLen:], d[:], distBits, distVals[:]) {
 		panic("gunzip: fixed codes")
 	}
-	return [2]*huffTable{lt, dt}
+	return t
 })
 
 // bitReader reads src from its least significant bits (RFC 1951 §3.1.1).
@@ -332,18 +362,14 @@ func (br *bitReader) take(k uint) uint32 {
 	return v
 }
 
-// decode reads one symbol of h (buf must hold 15 bits), or -1.
-func (br *bitReader) decode(h *huffTable) int {
-	e := h.t[br.buf&(1<<h.bits-1)]
-	if e&entryLink != 0 {
-		br.buf >>= h.bits
-		br.n -= h.bits
-		e = h.t[int(e>>16)+int(br.buf&(1<<(e&15)-1))]
-	}
-	l := uint(e & 15)
-	if l == 0 || e&entryBad != 0 {
+// decode reads one symbol of the code length code's table t (buf must
+// hold 7 bits), or -1.
+func (br *bitReader) decode(t *[codeTableLen]uint32) int {
+	e := t[br.buf&(codeTableLen-1)]
+	if e&(entryBad|entryLink) != 0 {
 		return -1
 	}
+	l := uint(e & 63)
 	br.buf >>= l
 	br.n -= l
 	return int(e >> 16)
@@ -361,7 +387,7 @@ func (br *bitReader) consumed() (int, bool) {
 func inflate(dst, src []byte) ([]byte, int, error) {
 	base := len(dst) // back-references stay within the member
 	br := &bitReader{src: src}
-	var lt, dt huffTable
+	var tabs *blockTables
 	var lengths [320]uint8
 	for {
 		br.refill()
@@ -381,17 +407,19 @@ func inflate(dst, src []byte) ([]byte, int, error) {
 			dst = append(dst, src[at+4:at+4+n]...)
 			*br = bitReader{src: src, pos: at + 4 + n}
 		case 1:
-			f := fixedTables()
 			var err error
-			if dst, err = inflateBlock(dst, base, br, f[0], f[1]); err != nil {
+			if dst, err = inflateBlock(dst, base, br, fixedTables()); err != nil {
 				return dst, 0, err
 			}
 		case 2:
-			if !readCodes(br, &lt, &dt, &lengths) {
+			if tabs == nil {
+				tabs = new(blockTables)
+			}
+			if !readCodes(br, tabs, &lengths) {
 				return dst, 0, ErrGunzip
 			}
 			var err error
-			if dst, err = inflateBlock(dst, base, br, &lt, &dt); err != nil {
+			if dst, err = inflateBlock(dst, base, br, tabs); err != nil {
 				return dst, 0, err
 			}
 		default:
@@ -415,7 +443,7 @@ func inflate(dst, src []byte) ([]byte, int, error) {
 
 // readCodes reads the code lengths of a dynamic block (§3.2.7) and builds
 // its tables.
-func readCodes(br *bitReader, lt, dt *huffTable, lengths *[320]uint8) bool {
+func readCodes(br *bitReader, tabs *blockTables, lengths *[320]uint8) bool {
 	br.refill()
 	nlit := int(br.take(5)) + 257
 	ndist := int(br.take(5)) + 1
@@ -430,8 +458,8 @@ func readCodes(br *bitReader, lt, dt *huffTable, lengths *[320]uint8) bool {
 		}
 		cl[clOrder[i]] = uint8(br.take(3))
 	}
-	var ct huffTable
-	if !ct.build(cl[:], 7, symVals[:]) {
+	var ct [codeTableLen]uint32
+	if !build(ct[:], cl[:], 7, symVals[:]) {
 		return false
 	}
 	all := lengths[:nlit+ndist]
@@ -471,19 +499,132 @@ func readCodes(br *bitReader, lt, dt *huffTable, lengths *[320]uint8) bool {
 	if all[256] == 0 {
 		return false
 	}
-	return lt.build(all[:nlit], litBits, litVals[:]) && dt.build(all[nlit:], distBits, distVals[:])
+	return build(tabs[:litTableLen], all[:nlit], litBits, litVals[:]) && build(tabs[litTableLen:], all[nlit:], distBits, distVals[:])
 }
 
+// Room the fast loop of inflateBlock keeps: input for an 8-byte load,
+// and output for two literals and the longest match with the overshoot of
+// its 16-byte copies.
+const (
+	fastIn  = 8
+	fastOut = 2 + 258 + 16
+)
+
 // inflateBlock decodes the compressed data of one Huffman block with the
-// tables lt and dt (of litBits and distBits), to its end-of-block code;
-// the member's output starts at dst[base]. The bit reader's state is kept
-// in local variables while the block is decoded (held in registers, not
-// memory), and given back at the end.
-func inflateBlock(dst []byte, base int, br *bitReader, lt, dt *huffTable) ([]byte, error) {
-	o := len(dst)
-	out := dst[:cap(dst)]
+// tables tabs, to its end-of-block code; the member's output starts at
+// dst[base]. The bit reader's state is kept in local variables while the
+// block is decoded (held in registers, not memory), and given back at the
+// end.
+//
+// While fastIn bytes of input and fastOut of output remain, a fast loop
+// decodes with one test of the room per turn. It keeps only the position
+// bp of the next bit: each turn loads the 8 bytes holding it, at least 57
+// bits, enough for a length and its distance (48 bits at most) or for two
+// literals, and decodes one match, or a literal and the next symbol when
+// that is a literal too. It copies matches in 16- or 8-byte words that
+// may write past the match (bytes that what follows overwrites). The rest
+// of the block is decoded by a careful loop that tests every step.
+func inflateBlock(dst []byte, base int, br *bitReader, tabs *blockTables) ([]byte, error) {
+	out := dst[base:cap(dst)]
+	o := len(dst) - base
 	src, pos, buf, n, over := br.src, br.pos, br.buf, br.n, br.over
-	ltab, dtab := lt.t, dt.t
+	if over == 0 && pos <= len(src)-fastIn && o <= len(out)-fastOut {
+		tab := tabs[:]
+		bp := uint(pos)*8 - n // the bits of buf are the last n bits before pos
+		for {
+			i := bp >> 3
+			if i+fastIn > uint(len(src)) || uint(o+fastOut) > uint(len(out)) {
+				break
+			}
+			buf := binary.LittleEndian.Uint64(src[i:i+8]) >> (bp & 7)
+			w := out[o : o+fastOut]
+			e := tab[buf&(1<<litBits-1)]
+			if e&entryKinds == 0 {
+				buf >>= e & 63
+				bp += uint(e & 63)
+				w[0] = byte(e >> 16)
+				o++
+				if e = tab[buf&(1<<litBits-1)]; e&entryKinds != 0 {
+					continue
+				}
+				bp += uint(e & 63) // a second literal from the same load
+				w[1] = byte(e >> 16)
+				o++
+				continue
+			}
+			if e&entryLink != 0 {
+				buf >>= litBits
+				bp += litBits
+				e = tab[(e>>16+uint32(buf&lowMask[(e>>8)&15]))&(litTableLen-1)]
+				if e&entryKinds == 0 {
+					bp += uint(e & 63)
+					w[0] = byte(e >> 16)
+					o++
+					continue
+				}
+			}
+			if e&entryLen == 0 { // the end of the block, or no code
+				err := ErrGunzip
+				if e&entryEnd != 0 {
+					bp += uint(e & 63)
+					err = nil
+				}
+				br.pos, br.buf, br.n = int(bp>>3), 0, 0
+				if k := bp & 7; k != 0 {
+					br.refill()
+					br.take(k)
+				}
+				return dst[:base+o], err
+			}
+			length := int(e >> 16)
+			if e&entryExtra != 0 {
+				length += int((buf & lowMask[e&63]) >> ((e >> 8) & 63))
+			}
+			buf >>= e & 63
+			bp += uint(e & 63)
+			e = tab[litTableLen+buf&(1<<distBits-1)]
+			if e&entryLink != 0 {
+				buf >>= distBits
+				bp += distBits
+				e = tab[litTableLen+(e>>16+uint32(buf&lowMask[(e>>8)&15]))&(distTableLen-1)]
+			}
+			dist := int(e>>16) + int((buf&lowMask[e&63])>>((e>>8)&63))
+			bp += uint(e & 63)
+			if e&entryBad != 0 || dist > o {
+				return dst[:base+o], ErrGunzip
+			}
+			from := o - dist
+			switch {
+			case length <= 16 && length <= dist:
+				// One 16-byte word: the bytes of the match are read
+				// before any is written.
+				*(*[16]byte)(w) = *(*[16]byte)(out[from : from+16])
+			case dist >= 16:
+				// Each 16-byte read lies wholly before the write that
+				// follows it, written already.
+				for k := 0; k < length; k += 16 {
+					*(*[16]byte)(out[o+k : o+k+16]) = *(*[16]byte)(out[from+k : from+k+16])
+				}
+			case dist >= 8:
+				for k := 0; k < length; k += 8 {
+					*(*[8]byte)(out[o+k : o+k+8]) = *(*[8]byte)(out[from+k : from+k+8])
+				}
+			default:
+				for k := range length {
+					out[o+k] = out[from+k]
+				}
+			}
+			o += length
+		}
+		pos, buf, n = int(bp>>3), 0, 0
+		if k := bp & 7; k != 0 {
+			if pos >= len(src) {
+				return dst[:base+o], ErrGunzip
+			}
+			buf, n = uint64(src[pos])>>k, 8-k
+			pos++
+		}
+	}
 	err := ErrGunzip
 	for {
 		if n < 48 {
@@ -506,71 +647,57 @@ func inflateBlock(dst []byte, base int, br *bitReader, lt, dt *huffTable) ([]byt
 				}
 			}
 		}
-		e := ltab[buf&(1<<litBits-1)]
+		e := tabs[buf&(1<<litBits-1)]
 		if e&entryLink != 0 {
 			buf >>= litBits
 			n -= litBits
-			e = ltab[int(e>>16)+int(buf&(1<<(e&15)-1))]
+			e = tabs[(e>>16+uint32(buf&lowMask[(e>>8)&15]))&(litTableLen-1)]
 		}
-		l := uint(e & 15)
-		buf >>= l
-		n -= l
+		t := uint(e & 63)
 		if e&(entryLen|entryEnd|entryBad) == 0 {
 			if o >= len(out) {
 				break
 			}
+			buf >>= t
+			n -= t
 			out[o] = byte(e >> 16)
 			o++
 			continue
 		}
 		if e&entryLen == 0 {
-			if e&entryBad == 0 {
+			if e&entryEnd != 0 {
+				buf >>= t
+				n -= t
 				err = nil // the end of the block
 			}
 			break
 		}
-		x := uint(e>>8) & 15
-		length := int(e>>16) + int(buf&(1<<x-1))
-		buf >>= x
-		n -= x
-		e = dtab[buf&(1<<distBits-1)]
+		length := int(e >> 16)
+		if e&entryExtra != 0 {
+			length += int((buf & lowMask[t]) >> ((e >> 8) & 15))
+		}
+		buf >>= t
+		n -= t
+		e = tabs[litTableLen+buf&(1<<distBits-1)]
 		if e&entryLink != 0 {
 			buf >>= distBits
 			n -= distBits
-			e = dtab[int(e>>16)+int(buf&(1<<(e&15)-1))]
+			e = tabs[litTableLen+(e>>16+uint32(buf&lowMask[(e>>8)&15]))&(distTableLen-1)]
 		}
-		l = uint(e & 15)
-		buf >>= l
-		n -= l
 		if e&entryBad != 0 {
 			break
 		}
-		x = uint(e>>8) & 15
-		dist := int(e>>16) + int(buf&(1<<x-1))
-		buf >>= x
-		n -= x
-		if dist > o-base || length > len(out)-o {
+		t = uint(e & 63)
+		dist := int(e>>16) + int((buf&lowMask[t])>>((e>>8)&15))
+		buf >>= t
+		n -= t
+		if dist > o || length > len(out)-o {
 			break
 		}
 		from := o - dist
-		switch {
-		case dist >= 8 && length <= 16 && len(out)-o >= 16:
-			// Most matches are short: two 8-byte copies, no loop (the
-			// second reads bytes before o+8, written by the first or
-			// before it).
-			w := out[o : o+16]
-			r := out[from : from+16]
-			binary.LittleEndian.PutUint64(w, binary.LittleEndian.Uint64(r))
-			binary.LittleEndian.PutUint64(w[8:], binary.LittleEndian.Uint64(r[8:]))
-		case dist >= 8 && len(out)-o >= length+8:
-			// Eight bytes at a time: each read lies wholly before the
-			// write that follows it, written already.
-			for k := 0; k < length; k += 8 {
-				binary.LittleEndian.PutUint64(out[o+k:], binary.LittleEndian.Uint64(out[from+k:]))
-			}
-		case dist >= length:
+		if dist >= length {
 			copy(out[o:o+length], out[from:from+length])
-		default:
+		} else {
 			for k := range length {
 				out[o+k] = out[from+k]
 			}
@@ -578,5 +705,5 @@ func inflateBlock(dst []byte, base int, br *bitReader, lt, dt *huffTable) ([]byt
 		o += length
 	}
 	br.pos, br.buf, br.n, br.over = pos, buf, n, over
-	return out[:o], err
+	return dst[:base+o], err
 }

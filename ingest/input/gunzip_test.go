@@ -9,11 +9,13 @@ import (
 	"io"
 	"math/rand/v2"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"testing"
 
 	"github.com/klauspost/compress/gzip"
 
+	"github.com/sondeclim/sondeclim/internal/benchcpu"
 	"github.com/sondeclim/sondeclim/internal/realdata"
 )
 
@@ -67,32 +69,51 @@ func compressAll(t testing.TB, text []byte) map[string][]byte {
 	return out
 }
 
+// BenchmarkGunzip decodes the real Sterling text (a compare copy, see
+// ../shared/peer/compare.sh) compressed by the gzip tool at levels 1 (what
+// compare.sh writes) and 6 (its default), with Gunzip and, for scale, the
+// stream reader, reporting MB/s of output by wall time and, less
+// disturbed by other load, by the process's processor time (cpu-MB/s).
+// It skips without the compare input or the gzip tool.
 func BenchmarkGunzip(b *testing.B) {
 	src, err := os.ReadFile("/tmp/cmp/in/USM00072410-data.txt.gz")
 	if err != nil {
 		b.Skip(err)
 	}
-	want, _ := streamGunzip(src)
-	dst := make([]byte, 0, len(want))
-	b.Run("Gunzip", func(b *testing.B) {
-		b.SetBytes(int64(len(want)))
-		for b.Loop() {
-			got, err := Gunzip(dst[:0], src, 1<<40)
-			if err != nil || len(got) != len(want) {
-				b.Fatal(err)
-			}
+	text, err := streamGunzip(src)
+	if err != nil {
+		b.Fatal(err)
+	}
+	dst := make([]byte, 0, len(text))
+	for _, level := range []string{"-1", "-6"} {
+		cmd := exec.Command("gzip", level)
+		cmd.Stdin = bytes.NewReader(text)
+		gz, err := cmd.Output()
+		if err != nil {
+			b.Skip("gzip tool: ", err)
 		}
-	})
-	b.Run("stream", func(b *testing.B) {
-		b.SetBytes(int64(len(want)))
-		for b.Loop() {
-			zr, _ := gzip.NewReader(bufio.NewReaderSize(bytes.NewReader(src), 64<<10))
-			n, _ := io.ReadFull(zr, dst[:cap(dst)])
-			if n != len(want) {
-				b.Fatal(n)
+		b.Run("Gunzip/gzip"+level, func(b *testing.B) {
+			b.SetBytes(int64(len(text)))
+			cpu := benchcpu.Used()
+			for b.Loop() {
+				got, err := Gunzip(dst[:0], gz, 1<<40)
+				if err != nil || len(got) != len(text) {
+					b.Fatal(err)
+				}
 			}
-		}
-	})
+			b.ReportMetric(float64(len(text))*float64(b.N)/(benchcpu.Used()-cpu).Seconds()/1e6, "cpu-MB/s")
+		})
+		b.Run("stream/gzip"+level, func(b *testing.B) {
+			b.SetBytes(int64(len(text)))
+			for b.Loop() {
+				zr, _ := gzip.NewReader(bufio.NewReaderSize(bytes.NewReader(gz), 64<<10))
+				n, _ := io.ReadFull(zr, dst[:cap(dst)])
+				if n != len(text) {
+					b.Fatal(n)
+				}
+			}
+		})
+	}
 }
 
 // TestGunzipMatchesStream: Gunzip gives exactly what Each's gzip reader
@@ -239,4 +260,69 @@ func FuzzGunzip(f *testing.F) {
 		}
 		sameAsStream(t, "fuzz raw", text, true)
 	})
+}
+
+// TestGunzipRealTextEdges: on the real Sterling text (the archive's own
+// file, ../shared/validation) compressed by the standard library at levels
+// 1 and 6, Gunzip gives the standard library's decoded bytes with room for
+// exactly the text (the last bytes then go through the careful loop, not
+// the fast one), refuses one byte less room, and refuses every cut copy
+// (cut at 16 places spread over the file and at each of the last 24
+// bytes, where the fast loop hands over to the careful one), without
+// panicking. The real Wien gzip file is cut at every one of its last 100
+// bytes and at 50 places over the whole.
+func TestGunzipRealTextEdges(t *testing.T) {
+	text := realdata.Text(t, "archive-v2", "USM00072403-data-beg2016.txt.zip")
+	wien, err := os.ReadFile(filepath.Join(realdata.Dir(t, "archive-v2"), "AUM00011035-data.txt.gz"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	refuses := func(where string, gz []byte, room int) {
+		t.Helper()
+		if got, err := Gunzip(make([]byte, 0, room), gz, 1<<40); err == nil {
+			t.Errorf("%s: decoded %d bytes", where, len(got))
+		}
+	}
+	cuts := func(where string, gz []byte, spread, last int) {
+		t.Helper()
+		for k := 1; k <= spread; k++ {
+			refuses(where+", cut", gz[:len(gz)*k/(spread+1)], len(text)+1024)
+		}
+		for k := 1; k <= last && k < len(gz); k++ {
+			refuses(where+", cut near the end", gz[:len(gz)-k], len(text)+1024)
+		}
+	}
+	for _, lv := range []int{1, 6} {
+		var b bytes.Buffer
+		zw, _ := stdgzip.NewWriterLevel(&b, lv)
+		zw.Write(text)
+		zw.Close()
+		gz := b.Bytes()
+		zr, err := stdgzip.NewReader(bytes.NewReader(gz))
+		if err != nil {
+			t.Fatal(err)
+		}
+		want, err := io.ReadAll(zr)
+		if err != nil || !bytes.Equal(want, text) {
+			t.Fatalf("standard library round trip: %v", err)
+		}
+		where := "Sterling, standard library level " + string(rune('0'+lv))
+		if got, err := Gunzip(make([]byte, 0, len(want)), gz, 1<<40); err != nil || !bytes.Equal(got, want) {
+			t.Errorf("%s: Gunzip gave %d bytes (%v), not the standard library's %d", where, len(got), err, len(want))
+		}
+		refuses(where+", one byte less room", gz, len(want)-1)
+		cuts(where, gz, 16, 24)
+	}
+	zr, err := stdgzip.NewReader(bytes.NewReader(wien))
+	if err != nil {
+		t.Fatal(err)
+	}
+	want, err := io.ReadAll(zr)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got, err := Gunzip(make([]byte, 0, len(want)), wien, 1<<40); err != nil || !bytes.Equal(got, want) {
+		t.Errorf("Wien: Gunzip gave %d bytes (%v), not the standard library's %d", len(got), err, len(want))
+	}
+	cuts("Wien", wien, 50, 100)
 }
