@@ -26,8 +26,11 @@ import (
 // rowGroupRows rows, statistics (min, max, null count) for statsColumns,
 // dictionary pages for the text columns, and the same encodings
 // (BYTE_STREAM_SPLIT floats, DELTA_BINARY_PACKED integers and times, PLAIN
-// booleans and optional integers, RLE_DICTIONARY text) and compression. Each column chunk is one
-// data page (version 1) after its dictionary page, if any.
+// booleans and optional integers, RLE_DICTIONARY text) and compression,
+// but for the float columns of zstd-compressed files that take few
+// distinct values: those are written RLE_DICTIONARY and uncompressed
+// (floatDicts). Each column chunk is one data page (version 1) after its
+// dictionary page, if any.
 //
 // The structures follow apache/parquet-format's src/main/thrift/parquet.thrift
 // (FileMetaData, SchemaElement, RowGroup, ColumnChunk, ColumnMetaData,
@@ -56,8 +59,9 @@ const (
 	encRLEDictionary = 8
 	encByteStream    = 9
 
-	codecSnappy = 1 // CompressionCodec
-	codecZstd   = 6
+	codecUncompressed = 0 // CompressionCodec
+	codecSnappy       = 1
+	codecZstd         = 6
 
 	pageData       = 0 // PageType
 	pageDictionary = 2
@@ -94,6 +98,7 @@ func ownWriterSupports(cols []Column) bool {
 type chunkMeta struct {
 	phys                     int32
 	enc                      int32 // encoding of the data page
+	codec                    int32
 	dict                     bool  // a dictionary page comes first
 	start, dataOff           int64 // file offsets of the chunk and of its data page
 	uncompressed, compressed int64 // sizes of its pages with their headers
@@ -121,6 +126,7 @@ type pqWriter struct {
 	groupRow []int
 	strIdx   map[string]int32
 	strList  []string
+	fdicts   []floatDict // by column: the float dictionaries of the file
 }
 
 var pqWriters = sync.Pool{New: func() any { return &pqWriter{strIdx: map[string]int32{}} }}
@@ -183,12 +189,13 @@ func writeParquet(w *bufio.Writer, table string, row reflect.Type, cols []Column
 		pw.codec = codecZstd
 	}
 	pw.groups, pw.groupRow = pw.groups[:0], pw.groupRow[:0]
+	pw.floatDicts(cols, bufs, n)
 	pw.write([]byte("PAR1"))
 	for lo := 0; lo < n; lo += rowGroupRows {
 		hi := min(lo+rowGroupRows, n)
 		g := make([]chunkMeta, len(cols))
 		for i := range cols {
-			if err := pw.column(&g[i], &cols[i], bufs[i], lo, hi); err != nil {
+			if err := pw.column(&g[i], &cols[i], bufs[i], &pw.fdicts[i], lo, hi); err != nil {
 				return err
 			}
 		}
@@ -211,9 +218,12 @@ func (pw *pqWriter) write(b []byte) {
 	pw.pos += int64(len(b))
 }
 
-// compress returns raw compressed with the file's codec.
-func (pw *pqWriter) compress(raw []byte) []byte {
-	if pw.codec == codecZstd {
+// compress returns raw compressed with codec.
+func (pw *pqWriter) compress(raw []byte, codec int32) []byte {
+	if codec == codecUncompressed {
+		return raw
+	}
+	if codec == codecZstd {
 		e := zstdEncoders.Get().(*zstd.Encoder)
 		pw.comp = e.EncodeAll(raw, pw.comp[:0])
 		zstdEncoders.Put(e)
@@ -226,7 +236,7 @@ func (pw *pqWriter) compress(raw []byte) []byte {
 // page writes one page: its header (from header, given the sizes) and raw
 // compressed, and counts both in m.
 func (pw *pqWriter) page(m *chunkMeta, raw []byte, header func(h *compact, uncompressed, compressed int32)) {
-	comp := pw.compress(raw)
+	comp := pw.compress(raw, m.codec)
 	h := &pw.hdr
 	h.reset()
 	header(h, int32(len(raw)), int32(len(comp)))
@@ -237,10 +247,11 @@ func (pw *pqWriter) page(m *chunkMeta, raw []byte, header func(h *compact, uncom
 	m.compressed += int64(len(h.b) + len(comp))
 }
 
-// column writes the chunk of rows lo..hi of column c (values in b).
-func (pw *pqWriter) column(m *chunkMeta, c *Column, b *colBuf, lo, hi int) error {
+// column writes the chunk of rows lo..hi of column c (values in b; fd its
+// dictionary if it is a float column).
+func (pw *pqWriter) column(m *chunkMeta, c *Column, b *colBuf, fd *floatDict, lo, hi int) error {
 	n := hi - lo
-	m.start = pw.pos
+	m.start, m.codec = pw.pos, pw.codec
 	nulls := 0
 	var valid []byte // the validity bitmap, when some row is null
 	if c.Nullable && b.valid.nulls > 0 {
@@ -264,10 +275,29 @@ func (pw *pqWriter) column(m *chunkMeta, c *Column, b *colBuf, lo, hi int) error
 	st := statsColumns[c.Name]
 	pw.stats.reset()
 	var dict []string // dictionary of a text column
+	dictLen := 0      // and its length, or a float column's
 	switch c.kind {
 	case kindFloat64:
 		m.phys, m.enc = ptDouble, encByteStream
-		raw = appendSplitFloats(raw, b.f64[lo:hi], valid, lo, &pw.f64)
+		if fd.use {
+			// floatDicts indexed the whole column; a row group of
+			// several gets a dictionary of its own values.
+			m.enc, m.dict, m.codec = encRLEDictionary, true, codecUncompressed
+			vals, idx := fd.vals, fd.idx
+			if hi-lo < fd.rows {
+				k := n - nulls
+				vals, idx = fd.chunk(fd.idx[fd.at : fd.at+k])
+				fd.at += k
+			}
+			raw = appendIndices(raw, idx, len(vals))
+			d := pw.dictRaw[:0]
+			for _, u := range vals {
+				d = binary.LittleEndian.AppendUint64(d, u)
+			}
+			pw.dictRaw, dictLen = d, len(vals)
+		} else {
+			raw = appendSplitFloats(raw, b.f64[lo:hi], valid, lo, &pw.f64)
+		}
 	case kindBool, kindPtrBool:
 		m.phys, m.enc = ptBoolean, encPlain
 		raw = appendPlainBools(raw, b.bits, valid, lo, hi)
@@ -338,18 +368,20 @@ func (pw *pqWriter) column(m *chunkMeta, c *Column, b *colBuf, lo, hi int) error
 		m.stats = m.stats[:0]
 	}
 	if m.dict {
-		d := pw.dictRaw[:0]
-		for _, s := range dict {
-			d = binary.LittleEndian.AppendUint32(d, uint32(len(s)))
-			d = append(d, s...)
+		if m.phys == ptByteArray {
+			d := pw.dictRaw[:0]
+			for _, s := range dict {
+				d = binary.LittleEndian.AppendUint32(d, uint32(len(s)))
+				d = append(d, s...)
+			}
+			pw.dictRaw, dictLen = d, len(dict)
 		}
-		pw.dictRaw = d
-		pw.page(m, d, func(h *compact, u, cz int32) {
+		pw.page(m, pw.dictRaw, func(h *compact, u, cz int32) {
 			h.i32(1, pageDictionary)
 			h.i32(2, u)
 			h.i32(3, cz)
 			h.begin(7) // DictionaryPageHeader
-			h.i32(1, int32(len(dict)))
+			h.i32(1, int32(dictLen))
 			h.i32(2, encPlain)
 			h.boolean(3, false)
 			h.end()
@@ -605,7 +637,7 @@ func (pw *pqWriter) fileMetaData(f *compact, cols []Column, n int, kv [][2]strin
 			}
 			f.list(3, ctBinary, 1)
 			f.elemString(cols[i].Name)
-			f.i32(4, pw.codec)
+			f.i32(4, m.codec)
 			f.i64(5, int64(pw.groupRow[g]))
 			f.i64(6, m.uncompressed)
 			f.i64(7, m.compressed)
@@ -659,4 +691,155 @@ func pageStats(f *compact, typ, enc int32) {
 	f.i32(2, enc)
 	f.i32(3, 1)
 	f.end()
+}
+
+// Float dictionaries. A measurement reported at a fixed resolution takes
+// few distinct values in a station-year (Sterling 2016, 131,306 levels:
+// 361 wind directions, 790 wind speeds, 999 relative humidities, 1,100
+// temperatures, 2,444 dewpoints), and such a column written RLE_DICTIONARY
+// (Encodings.md: the distinct values PLAIN in a dictionary page, the data
+// page their indices in the RLE/bit-packing hybrid) and left uncompressed
+// is smaller than byte-stream split and zstd (those five columns 784 →
+// 640 KB; wind direction alone 132 → 150 KB) and costs a hash lookup per
+// value instead of the compressor's work. zstd on top of the dictionary
+// saved another 1.6 % of the file for 9 % more instructions: not done.
+// Columns of many values keep byte-stream split: elapsed time's 7,140
+// values would take 13-bit indices, 2.6 times its compressed size.
+
+// floatDictLimit is the most distinct values a float column of a file is
+// written with a dictionary for: 12-bit indices at most.
+const floatDictLimit = 1 << 12
+
+// floatDict is the dictionary of one float column of a file: the distinct
+// values (their bits) in order of first appearance, the index of each
+// non-null value in row order, and whether the column is written with it.
+type floatDict struct {
+	use   bool
+	rows  int // the file's
+	at    int // indices of the row groups already written
+	vals  []uint64
+	idx   []uint32
+	slots *[1 << floatDictSlotBits]uint16 // open addressing: 1 + index in vals, 0 free
+	remap []uint32                        // working memory of chunk
+	cvals []uint64
+	cidx  []uint32
+}
+
+// floatDictSlotBits gives the slot table twice floatDictLimit entries, so
+// that it is never more than half full.
+const floatDictSlotBits = 13
+
+// floatDictBlock is the rows floatDicts gathers at a time, a multiple of 8.
+const floatDictBlock = 4096
+
+// floatDicts decides, for each float column of a zstd-compressed file,
+// whether it is written with a dictionary: when its n rows hold at most
+// floatDictLimit distinct values and the dictionary page and the indices
+// take at most a quarter of the values' 8 bytes each. The one dictionary
+// of a column serves all its row groups.
+func (pw *pqWriter) floatDicts(cols []Column, bufs []*colBuf, n int) {
+	if cap(pw.fdicts) < len(cols) {
+		pw.fdicts = make([]floatDict, len(cols))
+	}
+	pw.fdicts = pw.fdicts[:len(cols)]
+	for i := range cols {
+		fd := &pw.fdicts[i]
+		fd.use, fd.rows, fd.at = false, n, 0
+		if cols[i].kind != kindFloat64 || pw.codec != codecZstd {
+			continue
+		}
+		b := bufs[i]
+		var valid []byte
+		if cols[i].Nullable && b.valid.nulls > 0 {
+			valid = b.valid.bits
+		}
+		// A block of rows at a time, so that a column of many values is
+		// given up after its first few thousand rows.
+		fd.reset()
+		ok := true
+		for lo := 0; lo < n && ok; lo += floatDictBlock {
+			x := b.f64[lo:min(lo+floatDictBlock, n)]
+			if valid != nil {
+				x = gatherValid(&pw.f64, x, valid, lo)
+			}
+			ok = fd.add(x)
+		}
+		if k := len(fd.idx); ok && k > 0 {
+			width := max(1, bits.Len(uint(len(fd.vals)-1)))
+			fd.use = 8*len(fd.vals)+k*width/8 <= 2*k
+		}
+	}
+}
+
+// chunk returns the dictionary of one row group whose values have the
+// file-wide indices global: the values in order of first appearance and
+// their indices in it.
+func (fd *floatDict) chunk(global []uint32) (vals []uint64, idx []uint32) {
+	remap := extend(fd.remap[:0], len(fd.vals)) // 1 + index in the chunk's dictionary, 0 not yet seen
+	clear(remap)
+	vals, idx = fd.cvals[:0], extend(fd.cidx[:0], len(global))
+	for i, g := range global {
+		l := remap[g]
+		if l == 0 {
+			vals = append(vals, fd.vals[g])
+			l = uint32(len(vals))
+			remap[g] = l
+		}
+		idx[i] = l - 1
+	}
+	fd.remap, fd.cvals, fd.cidx = remap, vals, idx
+	return vals, idx
+}
+
+// reset empties the dictionary.
+func (fd *floatDict) reset() {
+	if fd.slots == nil {
+		fd.slots = new([1 << floatDictSlotBits]uint16)
+	} else {
+		clear(fd.slots[:])
+	}
+	fd.vals, fd.idx = fd.vals[:0], fd.idx[:0]
+}
+
+// add appends the indices of x to fd.idx, adding its new values to
+// fd.vals, and reports false, with fd.idx left incomplete, as soon as the
+// dictionary would exceed floatDictLimit values.
+func (fd *floatDict) add(x []float64) bool {
+	const mask = 1<<floatDictSlotBits - 1
+	slots := fd.slots
+	vals := fd.vals
+	at := len(fd.idx)
+	all := extend(fd.idx, at+len(x))
+	idx := all[at:]
+	var last uint64
+	var k uint32
+	for i, v := range x {
+		if u := math.Float64bits(v); u != last || i == 0 {
+			// Fibonacci hashing: the top bits of the product depend on
+			// all of u's bits.
+			h := (u * 0x9E3779B97F4A7C15) >> (64 - floatDictSlotBits)
+			for {
+				s := slots[h&mask]
+				if s == 0 {
+					if len(vals) == floatDictLimit {
+						fd.vals, fd.idx = vals, all[:at]
+						return false
+					}
+					vals = append(vals, u)
+					slots[h&mask] = uint16(len(vals))
+					k = uint32(len(vals) - 1)
+					break
+				}
+				if vals[s-1] == u {
+					k = uint32(s - 1)
+					break
+				}
+				h++
+			}
+			last = u
+		}
+		idx[i] = k
+	}
+	fd.vals, fd.idx = vals, all
+	return true
 }

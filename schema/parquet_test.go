@@ -17,6 +17,8 @@ import (
 	"github.com/apache/arrow-go/v18/arrow"
 	"github.com/apache/arrow-go/v18/arrow/array"
 	"github.com/apache/arrow-go/v18/arrow/memory"
+	"github.com/apache/arrow-go/v18/parquet"
+	"github.com/apache/arrow-go/v18/parquet/compress"
 	"github.com/apache/arrow-go/v18/parquet/file"
 	"github.com/apache/arrow-go/v18/parquet/pqarrow"
 	"github.com/sondeclim/sondeclim/internal/benchcpu"
@@ -299,19 +301,75 @@ func firstDiff(a, b []string) int {
 	return min(len(a), len(b))
 }
 
-// writeBoth writes rows with the general writer (want) and the own writer
-// (got) in dir.
+// writeBoth writes rows with the own writer (got) and the general writer
+// (want) in dir, the general writer told to write the float columns the
+// own one gave a dictionary (dictFloats) the same way.
 func writeBoth(t *testing.T, dir string, rows *Rows[LevelRow]) (want, got string) {
 	t.Helper()
 	want, got = filepath.Join(dir, "general.parquet"), filepath.Join(dir, "own.parquet")
-	sc := arrowSchema(TableLevels, rows.cols)
-	if _, err := writePartition(dir, "general.parquet", arrowEncoder(sc, rows.cols, rows.arrays), false); err != nil {
-		t.Fatal(err)
-	}
 	if err := WriteRows(got, TableLevels, rows, false); err != nil {
 		t.Fatal(err)
 	}
+	sc := arrowSchema(TableLevels, rows.cols)
+	if _, err := writePartition(dir, "general.parquet", arrowEncoder(sc, rows.cols, rows.arrays, dictFloatProps(t, got)...), false); err != nil {
+		t.Fatal(err)
+	}
 	return want, got
+}
+
+// dictFloats returns the names of the double columns of the Parquet file
+// at path whose chunks are dictionary-encoded, read by arrow-go's reader,
+// and whether each of them is so in every row group, uncompressed.
+func dictFloats(t *testing.T, path string) (names []string, consistent bool) {
+	t.Helper()
+	pf, err := file.OpenParquetFile(path, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer pf.Close()
+	md := pf.MetaData()
+	consistent = true
+	for c := range md.Schema.NumColumns() {
+		if md.Schema.Column(c).PhysicalType() != parquet.Types.Double {
+			continue
+		}
+		var dict int
+		for g := range md.NumRowGroups() {
+			cc, err := md.RowGroup(g).ColumnChunk(c)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if slices.Contains(cc.Encodings(), parquet.Encodings.RLEDict) {
+				dict++
+				consistent = consistent && cc.Compression() == compress.Codecs.Uncompressed
+			}
+		}
+		if dict > 0 {
+			names = append(names, md.Schema.Column(c).Name())
+			consistent = consistent && dict == md.NumRowGroups()
+		}
+	}
+	return names, consistent
+}
+
+// dictFloatProps returns the general writer's properties that make it
+// write the float columns dictFloats finds in the own writer's file at
+// path as the own writer did: with a dictionary, uncompressed.
+func dictFloatProps(t *testing.T, path string) []parquet.WriterProperty {
+	t.Helper()
+	names, ok := dictFloats(t, path)
+	if !ok {
+		t.Errorf("%s: float columns %v dictionary-encoded in some row groups only, or compressed", path, names)
+	}
+	var props []parquet.WriterProperty
+	for _, name := range names {
+		// Uncompressed, the general writer would drop a dictionary that
+		// is not smaller than the plain values; the own writer's rule
+		// (floatDicts) is its own.
+		props = append(props, parquet.WithDictionaryFor(name, true), parquet.WithCompressionFor(name, compress.Codecs.Uncompressed),
+			parquet.WithDictionaryCostFallbackFor(name, false))
+	}
+	return props
 }
 
 // TestOwnWriterRealLevels: the levels files of real soundings (the 1950
@@ -378,6 +436,10 @@ func TestOwnWriterEdgeCases(t *testing.T) {
 				WindSpeedMS: math.NaN(), MixingRatioGKg: math.NaN()}
 		}},
 		{"mixed", 5003, nil},
+		{"signed zeros", 300, func(r *LevelRow, i int) {
+			// 0 and -0 are two values (the dictionary keys on the bits).
+			r.TemperatureC, r.DewpointC = math.Copysign(0, float64(i%2)-0.5), float64(i%3)
+		}},
 		{"two row groups", rowGroupRows + 1237, func(r *LevelRow, i int) {
 			if i >= rowGroupRows-3 && i < rowGroupRows+5 {
 				r.PressureHPa, r.WindQC, r.LaunchTime = math.NaN(), "", time.Time{}
@@ -457,6 +519,122 @@ func TestOwnWriterEncodings(t *testing.T) {
 	}
 }
 
+// TestFloatDictionaryEncoding holds the float dictionary's parts to bytes
+// and indices worked by hand from parquet-format's Encodings.md ("Bit-
+// packed": values packed from the least significant bit of each byte;
+// "Dictionary Encoding": the data page's bit width in one byte, then the
+// RLE/bit-packing hybrid).
+func TestFloatDictionaryEncoding(t *testing.T) {
+	// Eight 12-bit indices, one bit-packed group (header 1<<1|1 = 0x03)
+	// of 12 bytes, two values in each three bytes: a&0xff,
+	// a>>8 | (b&0xf)<<4, b>>4. The group crosses the packer's 64 bits.
+	v := []uint32{0x123, 0x456, 0x789, 0xABC, 0xDEF, 0x001, 0x002, 0xFFF}
+	want := []byte{12, 0x03, 0x23, 0x61, 0x45, 0x89, 0xC7, 0xAB, 0xEF, 0x1D, 0x00, 0x02, 0xF0, 0xFF}
+	if got := appendIndices(nil, v, 4096); !slices.Equal(got, want) {
+		t.Errorf("12-bit indices: % x, want % x", got, want)
+	}
+	// A ninth value makes two groups (header 0x05), the second the value
+	// 7 and seven zeros of padding: 0x07 and 11 zero bytes.
+	want = append([]byte{12, 0x05}, want[2:]...)
+	want = append(want, 0x07, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0)
+	if got := appendIndices(nil, append(v, 7), 4000); !slices.Equal(got, want) {
+		t.Errorf("nine 12-bit indices: % x, want % x", got, want)
+	}
+	// The dictionary of 2.5 2.5 -0 0 7 2.5 -0: the distinct values in
+	// order of first appearance, -0 and 0 apart.
+	var fd floatDict
+	negZero := math.Copysign(0, -1)
+	fd.reset()
+	if !fd.add([]float64{2.5, 2.5, negZero}) || !fd.add([]float64{0, 7, 2.5, negZero}) {
+		t.Fatal("five values: over the limit")
+	}
+	wantVals := []uint64{math.Float64bits(2.5), math.Float64bits(negZero), 0, math.Float64bits(7)}
+	if !slices.Equal(fd.vals, wantVals) || !slices.Equal(fd.idx, []uint32{0, 0, 1, 2, 3, 0, 1}) {
+		t.Errorf("dictionary %x, indices %v", fd.vals, fd.idx)
+	}
+	// floatDictLimit distinct values fit, one more does not.
+	x := make([]float64, floatDictLimit+1)
+	for i := range x {
+		x[i] = float64(i) * 0.1
+	}
+	fd.reset()
+	if !fd.add(x[:floatDictLimit]) || len(fd.vals) != floatDictLimit {
+		t.Errorf("%d distinct values: refused or %d kept", floatDictLimit, len(fd.vals))
+	}
+	if fd.reset(); fd.add(x) {
+		t.Errorf("%d distinct values accepted", len(x))
+	}
+}
+
+// TestFloatDictionaryChoice: the float columns written with a dictionary
+// are those of few distinct values, counted here with a Go map. Sterling
+// 2016 (PROVENANCE.md): wind direction 361, wind speed 790, relative
+// humidity 999, temperature 1,100 and dewpoint 2,444 distinct values get
+// one; elapsed time (7,140), pressure (37,689), the heights, theta and the
+// mixing ratio (over 28,000) keep byte-stream split, as do the all-null
+// displacements. Invented columns of 4,096 and 4,097 distinct values in
+// 70,000 rows test the limit (unit scaffolding).
+func TestFloatDictionaryChoice(t *testing.T) {
+	all := realAnalysed(t, "USM00072403-data-beg2016.txt.zip")
+	cols, err := NewLevelColumns(len(all) * 200)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i := range all {
+		a := &all[i]
+		appendLevelRows(cols, a.s, a.rep, &a.res, a.s.LaunchTime.UTC(), int32(a.s.NominalTime.Year()))
+	}
+	distinct := map[string]int{}
+	arrs, _, err := cols.rows.arrays()
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i, c := range cols.rows.cols {
+		if f, ok := arrs[i].(*array.Float64); ok {
+			seen := map[uint64]bool{}
+			for k := range f.Len() {
+				if f.IsValid(k) {
+					seen[math.Float64bits(f.Value(k))] = true
+				}
+			}
+			distinct[c.Name] = len(seen)
+		}
+		arrs[i].Release()
+	}
+	wantDist := map[string]int{"wind_direction_deg": 361, "wind_speed_ms": 790, "relative_humidity_pct": 999,
+		"temperature_c": 1100, "dewpoint_c": 2444, "elapsed_s": 7140, "pressure_hpa": 37689}
+	for name, n := range wantDist {
+		if distinct[name] != n {
+			t.Errorf("%s: %d distinct values counted, %d expected", name, distinct[name], n)
+		}
+	}
+	path := filepath.Join(t.TempDir(), "levels.parquet")
+	if err := WriteRows(path, TableLevels, cols.rows, false); err != nil {
+		t.Fatal(err)
+	}
+	got, ok := dictFloats(t, path)
+	want := []string{"temperature_c", "dewpoint_c", "relative_humidity_pct", "wind_direction_deg", "wind_speed_ms"}
+	if !slices.Equal(got, want) || !ok {
+		t.Errorf("dictionary columns %v (every row group, uncompressed: %v), want %v", got, ok, want)
+	}
+
+	rows, err := NewRows[LevelRow](70000)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i := range 70000 {
+		rows.Append(LevelRow{StationID: "ZQ1", Year: 2001, WindDirDeg: float64(i % 4096), WindSpeedMS: float64(i%4097) / 10,
+			PressureHPa: math.NaN(), HeightM: math.NaN(), HeightAGLM: math.NaN(), TemperatureC: math.NaN(), DewpointC: math.NaN(),
+			ThetaK: math.NaN(), ElapsedS: math.NaN(), LatDispDeg: math.NaN(), LonDispDeg: math.NaN(), RelHumidityPct: math.NaN(),
+			MixingRatioGKg: math.NaN()})
+	}
+	want2, got2 := writeBoth(t, t.TempDir(), rows)
+	if names, _ := dictFloats(t, got2); !slices.Equal(names, []string{"wind_direction_deg"}) {
+		t.Errorf("limit: dictionary columns %v, want wind_direction_deg only", names)
+	}
+	checkOwnFile(t, rows, want2, got2)
+}
+
 // checkSlice writes rows of table with arrow-go's general writer and with
 // the store's own, and checks the two files with sameContent and DuckDB.
 func checkSlice[T any](t *testing.T, table string, rows []T) {
@@ -474,11 +652,11 @@ func checkSlice[T any](t *testing.T, table string, rows []T) {
 		a, err := columnArrays(cols, rows, idx)
 		return a, len(rows), err
 	}
-	if _, err := writePartition(dir, "general.parquet", arrowEncoder(arrowSchema(table, cols), cols, arrays), false); err != nil {
-		t.Fatal(err)
-	}
 	want, got := filepath.Join(dir, "general.parquet"), filepath.Join(dir, "own.parquet")
 	if err := WriteFile(got, table, rows, false); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := writePartition(dir, "general.parquet", arrowEncoder(arrowSchema(table, cols), cols, arrays, dictFloatProps(t, got)...), false); err != nil {
 		t.Fatal(err)
 	}
 	sameContent(t, want, got)

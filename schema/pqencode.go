@@ -87,14 +87,35 @@ func appendHybrid(b []byte, v []uint32, width uint) []byte {
 		}
 		groups := (i - start + 7) / 8
 		b = binary.AppendUvarint(b, uint64(groups)<<1|1)
-		p := packer{b: b}
-		for _, x := range v[start:i] {
-			p.put32(uint64(x), width)
+		full := start + (i-start)/8*8
+		b = packGroups(b, v[start:full], width)
+		if full < i {
+			var last [8]uint32 // the last group, padded with zeros
+			copy(last[:], v[full:i])
+			b = packGroups(b, last[:], width)
 		}
-		for range groups*8 - (i - start) {
-			p.put32(0, width)
+	}
+	return b
+}
+
+// packGroups appends v (a multiple of 8 values, each below 1<<width,
+// width at most 32) bit-packed, least significant bit first: width bytes
+// per group of 8, eight bytes written at a time.
+func packGroups(b []byte, v []uint32, width uint) []byte {
+	var acc uint64
+	var nb uint // bits held in acc, < 64
+	for _, x := range v {
+		acc |= uint64(x) << nb
+		nb += width
+		if nb >= 64 {
+			b = binary.LittleEndian.AppendUint64(b, acc)
+			nb -= 64
+			acc = uint64(x) >> (width - nb) // its bits that did not fit (none when nb is 0)
 		}
-		b = p.flush()
+	}
+	for ; nb > 0; nb -= 8 { // 8·width bits a group: whole bytes
+		b = append(b, byte(acc))
+		acc >>= 8
 	}
 	return b
 }

@@ -231,9 +231,9 @@ func encoderOf[T any](table string, sc *arrow.Schema, cols []Column, arrays func
 }
 
 // arrowEncoder returns the general writer's encoding of the columns that
-// arrays returns, as writePartition takes it.
-func arrowEncoder(sc *arrow.Schema, cols []Column, arrays func() ([]arrow.Array, int, error)) func(*bufio.Writer) error {
-	return func(w *bufio.Writer) error { return encode(w, sc, cols, arrays) }
+// arrays returns, as writePartition takes it (extra: see encode).
+func arrowEncoder(sc *arrow.Schema, cols []Column, arrays func() ([]arrow.Array, int, error), extra ...parquet.WriterProperty) func(*bufio.Writer) error {
+	return func(w *bufio.Writer) error { return encode(w, sc, cols, arrays, extra...) }
 }
 
 // writePartition writes a file to dir/name with enc through a temporary
@@ -296,8 +296,10 @@ func syncDir(dir string) error {
 	return nil
 }
 
-// encode writes the columns arrays returns as one Parquet file to w.
-func encode(w *bufio.Writer, sc *arrow.Schema, cols []Column, arrays func() ([]arrow.Array, int, error)) (err error) {
+// encode writes the columns arrays returns as one Parquet file to w, with
+// the writer properties extra last (tests give the choices of the store's
+// own writer, floatDicts, that way).
+func encode(w *bufio.Writer, sc *arrow.Schema, cols []Column, arrays func() ([]arrow.Array, int, error), extra ...parquet.WriterProperty) (err error) {
 	// Dictionary encoding pays for repetitive text (ids, statuses, classes)
 	// but costs a hash lookup per value for measurements, which rarely
 	// repeat: it is on for string columns only.
@@ -345,7 +347,7 @@ func encode(w *bufio.Writer, sc *arrow.Schema, cols []Column, arrays func() ([]a
 			opts = append(opts, parquet.WithEncodingFor(c.Name, parquet.Encodings.DeltaBinaryPacked))
 		}
 	}
-	props := parquet.NewWriterProperties(opts...)
+	props := parquet.NewWriterProperties(append(opts, extra...)...)
 	// w is a *bufio.Writer, which has no Close, so fw.Close leaves the file
 	// open for the caller to flush and sync. WithStoreSchema embeds the Arrow schema (with each field's doc) in
 	// the file, since Parquet's own schema has no place for descriptions.

@@ -482,14 +482,17 @@ func TestWriteRowsEqualsWriteFile(t *testing.T) {
 	if got := cc.Compression().String(); got != "ZSTD" {
 		t.Errorf("levels compression %s, want ZSTD", got)
 	}
-	// Measurements are byte-stream split (DuckDB reads them back in the
+	// Measurements of many values are byte-stream split, those of few
+	// (90 pressures) dictionary-encoded (DuckDB reads them back in the
 	// store tests of cmd/sondeclim).
-	pc, err := pf.MetaData().RowGroup(0).ColumnChunk(pf.MetaData().Schema.ColumnIndexByName("pressure_hpa"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	if got := fmt.Sprint(pc.Encodings()); !strings.Contains(got, "BYTE_STREAM_SPLIT") {
-		t.Errorf("pressure_hpa encodings %s, want BYTE_STREAM_SPLIT", got)
+	for col, want := range map[string]string{"height_m": "BYTE_STREAM_SPLIT", "pressure_hpa": "RLE_DICTIONARY"} {
+		pc, err := pf.MetaData().RowGroup(0).ColumnChunk(pf.MetaData().Schema.ColumnIndexByName(col))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got := fmt.Sprint(pc.Encodings()); !strings.Contains(got, want) {
+			t.Errorf("%s encodings %s, want %s", col, got, want)
+		}
 	}
 	pf.Close()
 
