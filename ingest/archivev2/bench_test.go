@@ -40,6 +40,34 @@ func BenchmarkReadSterling(b *testing.B) {
 	benchcpu.PerLevel(b, cpu0, sterlingLevels)
 }
 
+// BenchmarkReadSterlingMem is BenchmarkReadSterling through
+// NewReaderBytes, the reader the ingest uses for text held in memory
+// (plain files and inflated copies), whose lines are cut where they lie.
+func BenchmarkReadSterlingMem(b *testing.B) {
+	text := sterlingBytes(b)
+	b.SetBytes(int64(len(text)))
+	b.ReportAllocs()
+	cpu0 := benchcpu.Used()
+	for b.Loop() {
+		rd := NewReaderBytes(text, "sterling", "")
+		n := 0
+		for {
+			s, err := rd.Next()
+			if err == io.EOF {
+				break
+			}
+			if err != nil {
+				b.Fatal(err)
+			}
+			n += len(s.Levels)
+		}
+		if n != sterlingLevels {
+			b.Fatalf("%d levels, want %d (PROVENANCE.md)", n, sterlingLevels)
+		}
+	}
+	benchcpu.PerLevel(b, cpu0, sterlingLevels)
+}
+
 // BenchmarkIndexSterling indexes the real Sterling 2016 file by
 // station-year, the first pass the ingest makes over an archive-v2 input.
 func BenchmarkIndexSterling(b *testing.B) {

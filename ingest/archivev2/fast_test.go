@@ -334,7 +334,25 @@ func sameReading(t *testing.T, where string, text []byte) {
 	if !bytes.Equal(text, kept) {
 		t.Fatalf("%s: reading from memory changed the text", where)
 	}
+	// From memory into a level arena, as the engine reads, the arena
+	// filled with levels of other soundings first (the reader must
+	// overwrite every field of a level it keeps).
+	var arena sounding.LevelArena
+	old := arena.Take(64)[:64]
+	for i := range old {
+		old[i] = sounding.Level{Kind: 9, ElapsedS: -1, Status: [sounding.NumVars]sounding.Status{7, 7, 7, 7, 7, 7, 7, 7},
+			UpstreamTier: [sounding.NumVars]byte{'Z', 'Z', 'Z', 'Z', 'Z', 'Z', 'Z', 'Z'}, Line: -5}
+	}
+	arena.Trim(old)
+	arena.Reset()
+	ard := NewReaderBytes(text, where, "")
+	ard.UseLevelArena(&arena)
+	as, ae, err4 := readEach(ard, len(text), false)
+	if err4 != nil {
+		t.Fatalf("%s: into an arena: %v", where, err4)
+	}
 	compareReadings(t, where+", stream and memory", fs, fe, ms, me)
+	compareReadings(t, where+", memory and arena", ms, me, as, ae)
 	compareReadings(t, where+", fast and general", fs, fe, gs, ge)
 }
 
@@ -407,5 +425,43 @@ func TestReaderBytesLines(t *testing.T) {
 				sameReading(t, fmt.Sprintf("line of %d bytes, input %d, end %q", n, i, tail), []byte(in))
 			}
 		}
+	}
+}
+
+// TestMemLevelsEdges: the in-memory loop of records (memLevels) beside the
+// lines it leaves to the general loop: records one character short or
+// long, a line feed in column 52 or 51, a last record with and without a
+// line feed, blank lines and a bad record among good ones, and more or
+// fewer records than the header declares. Each input is read as a stream
+// and from memory, with the fast and the general parser (sameReading).
+// (Invented input in the layout of igra2-data-format.txt.)
+func TestMemLevelsEdges(t *testing.T) {
+	hdr := func(n int) string { return strings.Replace(hdrA, "   2 ", fmt.Sprintf("%4d ", n), 1) }
+	rec := lvSfc + "\n"
+	ins := []string{
+		hdr(3) + "\n" + rec + rec + rec,
+		hdr(3) + "\n" + rec + rec + lvSfc,
+		hdr(3) + "\n" + rec + lvSfc[:51] + "\n" + rec,
+		hdr(3) + "\n" + rec + lvSfc + " \n" + rec,
+		hdr(3) + "\n" + rec + lvSfc[:50] + "\n\n" + rec,
+		hdr(3) + "\n" + rec + lvSfc[:51] + "\n" + rec[:2],
+		hdr(3) + "\n" + rec + "\n   \n" + rec + rec,
+		hdr(3) + "\n" + rec + strings.Replace(rec, "B", "C", 1) + rec,
+		hdr(2) + "\n" + rec + rec + rec,
+		hdr(4) + "\n" + rec + rec + rec,
+		hdr(4) + "\n" + rec + rec + rec + hdr(1) + "\n" + rec,
+		hdr(1) + "\n" + rec + hdr(1) + "\n" + rec + hdr(0) + "\n" + hdr(1) + "\n" + rec,
+		hdr(2) + "\n" + rec + "#" + rec[1:] + rec,
+		hdr(2) + "\n" + rec + ingest.BOM + rec,
+	}
+	for i, in := range ins {
+		sameReading(t, fmt.Sprintf("input %d", i), []byte(in))
+	}
+	// And each record cut by a line feed at every column.
+	base := []byte(hdr(3) + "\n" + rec + rec + rec)
+	for c := len(hdr(3)) + 1; c < len(base); c++ {
+		in := bytes.Clone(base)
+		in[c] = '\n'
+		sameReading(t, fmt.Sprintf("line feed at byte %d", c), in)
 	}
 }

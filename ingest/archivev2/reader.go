@@ -236,16 +236,17 @@ func (r *Reader) Next() (*sounding.Sounding, error) {
 	}
 	if s != nil {
 		s.Source = sounding.Source{File: r.file, Member: r.member, Line: hdrLine, Format: Format}
-		if r.arena != nil {
-			s.Levels = r.arena.Take(min(s.DeclaredLevels, 256))
-		} else {
-			s.Levels = make([]sounding.Level, 0, min(s.DeclaredLevels, 256))
-		}
+		// Room is reserved when the first record is present (a header
+		// alone reserves none), for the declared count at once (grow).
+		s.Levels = make([]sounding.Level, 0)
 	}
 
 	count, badLine := 0, 0
 	var badErr error
 	for {
+		if s != nil && badErr == nil && r.inMem && !r.general {
+			count += r.memLevels(s)
+		}
 		line, long, ok := r.nextData()
 		if !ok {
 			break
@@ -260,12 +261,8 @@ func (r *Reader) Next() (*sounding.Sounding, error) {
 		}
 		if len(s.Levels) == cap(s.Levels) {
 			// Grow once to the declared size, now that records are
-			// really present (a header alone reserves little).
-			if r.arena != nil {
-				s.Levels = r.arena.Grow(s.Levels, s.DeclaredLevels)
-			} else {
-				s.Levels = slices.Grow(s.Levels, s.DeclaredLevels-len(s.Levels))
-			}
+			// really present.
+			r.grow(s)
 		}
 		s.Levels = s.Levels[:len(s.Levels)+1]
 		lv := &s.Levels[len(s.Levels)-1]
@@ -307,6 +304,57 @@ func (r *Reader) Next() (*sounding.Sounding, error) {
 		}
 	}
 	return s, nil
+}
+
+// recordLen is the length of a data record as the archive writes it:
+// columns 1–51 and a blank column 52.
+const recordLen = 52
+
+// memLevels reads into s, from text held in memory, the data records that
+// follow as the archive writes them: records of recordLen characters and a
+// line feed that parseLevelFast takes, up to the header's level count. It
+// returns how many it read and leaves any other line (a header, a blank or
+// short line, a record the fast path does not take, the last line of the
+// text) to the general loop of Next, which reads it as it reads every line.
+// A line feed that ends the record early lies in columns 1–51, which
+// parseLevelFast refuses, or in column 52, tested here.
+//
+// The levels go where they lie in s.Levels, which grows once to the
+// declared count when the first record is present.
+func (r *Reader) memLevels(s *sounding.Sounding) int {
+	t := r.text
+	room := s.DeclaredLevels - len(s.Levels)
+	if room <= 0 || len(t) <= recordLen || t[recordLen] != '\n' {
+		return 0
+	}
+	if cap(s.Levels) < s.DeclaredLevels {
+		r.grow(s)
+	}
+	lvs := s.Levels[len(s.Levels) : len(s.Levels)+room]
+	n := 0
+	for n < len(lvs) && len(t) > recordLen && t[recordLen] == '\n' && t[recordLen-1] != '\n' {
+		lv := &lvs[n]
+		if !parseLevelFast(lv, t[:recordLen]) {
+			break
+		}
+		r.line++
+		lv.Line = r.line
+		t = t[recordLen+1:]
+		n++
+	}
+	r.text = t
+	s.Levels = s.Levels[:len(s.Levels)+n]
+	return n
+}
+
+// grow gives s.Levels room for the sounding's declared level count, in
+// the reader's arena when it has one.
+func (r *Reader) grow(s *sounding.Sounding) {
+	if r.arena != nil {
+		s.Levels = r.arena.Grow(s.Levels, s.DeclaredLevels)
+	} else {
+		s.Levels = slices.Grow(s.Levels, s.DeclaredLevels-len(s.Levels))
+	}
 }
 
 // findHeader reads up to the next header and keeps it as pending. It
