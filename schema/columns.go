@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"github.com/apache/arrow-go/v18/arrow/memory"
 	"math"
+	"math/bits"
 	"reflect"
 	"regexp"
 	"strings"
@@ -256,13 +257,21 @@ func extend[E any](s []E, n int) []E {
 	return t
 }
 
+// allValid is a validity bitmap of rows all valid, copied to grow one.
+var allValid = func() (ones [256]byte) {
+	for i := range ones {
+		ones[i] = 0xff
+	}
+	return ones
+}()
+
 // grow makes room for n rows in all.
 func (b *colBuf) grow(c *Column, n int) {
 	if c.Nullable {
 		old := len(b.valid.bits)
 		b.valid.bits = extend(b.valid.bits, bitmapBytes(n))
-		for i := old; i < len(b.valid.bits); i++ {
-			b.valid.bits[i] = 0xff
+		for add := b.valid.bits[min(old, len(b.valid.bits)):]; len(add) > 0; {
+			add = add[copy(add, allValid[:]):]
 		}
 	}
 	switch c.kind {
@@ -602,8 +611,25 @@ func newValidity(n int) validity {
 }
 
 func (v *validity) null(k int) {
-	v.bits[k/8] &^= 1 << (k % 8)
+	v.bits[uint(k)/8] &^= 1 << (uint(k) % 8)
 	v.nulls++
+}
+
+// nullMask marks as null the rows at+k whose bit k of m is set.
+func (v *validity) nullMask(at int, m uint64) {
+	if m == 0 {
+		return
+	}
+	v.nulls += bits.OnesCount64(m)
+	i, s := uint(at)/8, uint(at)%8
+	lo, hi := m<<s, m>>(64-s) // rows of byte i onwards; hi: those of byte i+8 (none when s is 0)
+	for j := i; lo != 0; j++ {
+		v.bits[j] &^= byte(lo)
+		lo >>= 8
+	}
+	if hi != 0 {
+		v.bits[i+8] &^= byte(hi)
+	}
 }
 
 // data returns array data of type t and length n over the given value
