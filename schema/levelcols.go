@@ -178,14 +178,17 @@ func levelFillerOf(c *Column) (levelFiller, error) {
 	status := func(v sounding.Var) (levelFiller, error) {
 		tab, err := enumTable[sounding.Status](c)
 		return func(c *Column, b *colBuf, s *sounding.Sounding, _ qc.Report, _ *analyze.Result, _ time.Time, _ int32, base int) error {
-			levels, tab := s.Levels, tab
+			levels, tab, v := s.Levels, tab[:], v%sounding.NumVars // v % NumVars: no bounds test per level
 			out := b.i16[base : base+len(levels)]
+			out = out[:len(levels)]
+			var bad int16
 			for k := range levels {
-				x := levels[k].Status[v]
-				if tab[x] < 0 {
-					return enumError(c, x)
-				}
-				out[k] = tab[x]
+				x := tab[levels[k].Status[v]]
+				out[k] = x
+				bad |= x
+			}
+			if bad < 0 {
+				return unmapped(c, tab, len(levels), func(k int) sounding.Status { return levels[k].Status[v] })
 			}
 			return nil
 		}, err
@@ -194,14 +197,17 @@ func levelFillerOf(c *Column) (levelFiller, error) {
 		tab, err := enumTable[qc.Flag](c)
 		return func(c *Column, b *colBuf, s *sounding.Sounding, rep qc.Report, _ *analyze.Result, _ time.Time, _ int32, base int) error {
 			n := min(len(s.Levels), len(rep.Flags))
-			flags, tab := rep.Flags[:n], tab
+			flags, tab, v := rep.Flags[:n], tab[:], v%sounding.NumVars
 			out := b.i16[base : base+n]
+			out = out[:len(flags)]
+			var bad int16
 			for k := range flags {
-				x := flags[k][v]
-				if tab[x] < 0 {
-					return enumError(c, x)
-				}
-				out[k] = tab[x]
+				x := tab[flags[k][v]]
+				out[k] = x
+				bad |= x
+			}
+			if bad < 0 {
+				return unmapped(c, tab, n, func(k int) qc.Flag { return flags[k][v] })
 			}
 			for k := n; k < len(s.Levels); k++ {
 				b.valid.null(base + k) // no flags for the level
@@ -224,53 +230,66 @@ func levelFillerOf(c *Column) (levelFiller, error) {
 			} else {
 				idx = int32(n - 1)
 			}
-			for k := range s.Levels {
-				b.i32[base+k] = idx
+			out := b.i32[base : base+len(s.Levels)]
+			for k := range out {
+				out[k] = idx
 			}
 			return nil
 		}, want(kindKey)
 	case "launch_time":
 		return func(c *Column, b *colBuf, s *sounding.Sounding, _ qc.Report, _ *analyze.Result, launch time.Time, _ int32, base int) error {
-			zero, us := launch.IsZero(), launch.UnixMicro()
-			for k := range s.Levels {
-				if zero {
+			if launch.IsZero() {
+				for k := range s.Levels {
 					b.valid.null(base + k)
-				} else {
-					b.i64[base+k] = us
 				}
+				return nil
+			}
+			out, us := b.i64[base:base+len(s.Levels)], launch.UnixMicro()
+			for k := range out {
+				out[k] = us
 			}
 			return nil
 		}, want(kindTime)
 	case YearColumn:
 		return func(c *Column, b *colBuf, s *sounding.Sounding, _ qc.Report, _ *analyze.Result, _ time.Time, year int32, base int) error {
-			for k := range s.Levels {
-				b.i32[base+k] = year
+			out := b.i32[base : base+len(s.Levels)]
+			for k := range out {
+				out[k] = year
 			}
 			return nil
 		}, want(kindInt32)
 	case "level_index":
 		return func(c *Column, b *colBuf, s *sounding.Sounding, _ qc.Report, _ *analyze.Result, _ time.Time, _ int32, base int) error {
-			for k := range s.Levels {
-				b.i32[base+k] = int32(k)
+			out := b.i32[base : base+len(s.Levels)]
+			for k := range out {
+				out[k] = int32(k)
 			}
 			return nil
 		}, want(kindInt32)
 	case "level_kind":
 		tab, err := enumTable[sounding.LevelKind](c)
 		return func(c *Column, b *colBuf, s *sounding.Sounding, _ qc.Report, _ *analyze.Result, _ time.Time, _ int32, base int) error {
-			for k := range s.Levels {
-				x := s.Levels[k].Kind
-				if tab[x] < 0 {
-					return enumError(c, x)
-				}
-				b.i16[base+k] = tab[x]
+			levels, tab := s.Levels, tab[:]
+			out := b.i16[base : base+len(levels)]
+			out = out[:len(levels)]
+			var bad int16
+			for k := range levels {
+				x := tab[levels[k].Kind]
+				out[k] = x
+				bad |= x
+			}
+			if bad < 0 {
+				return unmapped(c, tab, len(levels), func(k int) sounding.LevelKind { return levels[k].Kind })
 			}
 			return nil
 		}, err
 	case "source_line":
 		return func(c *Column, b *colBuf, s *sounding.Sounding, _ qc.Report, _ *analyze.Result, _ time.Time, _ int32, base int) error {
-			for k := range s.Levels {
-				b.i64[base+k] = int64(s.Levels[k].Line)
+			levels := s.Levels
+			out := b.i64[base : base+len(levels)]
+			out = out[:len(levels)]
+			for k := range levels {
+				out[k] = int64(levels[k].Line)
 			}
 			return nil
 		}, want(kindInt64)
@@ -316,12 +335,17 @@ func levelFillerOf(c *Column) (levelFiller, error) {
 	case "height_status":
 		tab, err := enumTable[sounding.Status](c)
 		return func(c *Column, b *colBuf, s *sounding.Sounding, _ qc.Report, res *analyze.Result, _ time.Time, _ int32, base int) error {
-			for k := range s.Levels {
-				x := heightStatusOf(&s.Levels[k], res.HeightDerived[k])
-				if tab[x] < 0 {
-					return enumError(c, x)
-				}
-				b.i16[base+k] = tab[x]
+			levels, derived, tab := s.Levels, res.HeightDerived[:len(s.Levels)], tab[:]
+			out := b.i16[base : base+len(levels)]
+			out = out[:len(levels)]
+			var bad int16
+			for k := range levels {
+				x := tab[heightStatusOf(&levels[k], derived[k])]
+				out[k] = x
+				bad |= x
+			}
+			if bad < 0 {
+				return unmapped(c, tab, len(levels), func(k int) sounding.Status { return heightStatusOf(&levels[k], derived[k]) })
 			}
 			return nil
 		}, err
@@ -450,6 +474,18 @@ func enumTable[E uint8Enum](c *Column) (*[256]int16, error) {
 		}
 	}
 	return &tab, nil
+}
+
+// unmapped returns the error of the first of the n values value(k) whose
+// entry in tab is -1 (nil if there is none): the enum fillers store every
+// value's entry and test them together, then look for the culprit.
+func unmapped[E uint8Enum](c *Column, tab []int16, n int, value func(k int) E) error {
+	for k := range n {
+		if x := value(k); tab[x] < 0 {
+			return enumError(c, x)
+		}
+	}
+	return nil
 }
 
 // enumError is the error of a value outside an enum column's list, as
