@@ -633,8 +633,9 @@ func (r *run) analysePart(all, context []*sounding.Sounding, observed map[*sound
 		MixingHeights: make([]schema.MixingHeightRow, 0, len(kept)*len(analyze.Methods()))}
 	srows := make([]schema.SoundingRow, len(kept))
 	az := analyze.NewAnalyzer(r.cfg) // one per station-year: its working memory is reused by every sounding
+	var analysis analyze.Result
 	for i, d := range kept {
-		res := analyzeOne(d.s, reports[d.s], az, r.opt.UseSuspect, &rows)
+		res := analyzeOne(d.s, reports[d.s], az, r.opt.UseSuspect, &rows, &analysis)
 		res.sounding.SoundingHash = observed[d.s]
 		res.sounding.DuplicatesMerged = int32(d.merged)
 		res.sounding.DuplicateChoice = d.reason

@@ -142,8 +142,9 @@ func (r *run) analyseContext(ctx []*sounding.Sounding, az *analyze.Analyzer) []r
 	kept, _ := deduplicate(ascents, reports)
 	scratch := schema.PartRows{Levels: discardLevels{}}
 	out := make([]result, len(kept))
+	var res analyze.Result
 	for i, d := range kept {
-		out[i] = analyzeOne(d.s, reports[d.s], az, r.opt.UseSuspect, &scratch)
+		out[i] = analyzeOne(d.s, reports[d.s], az, r.opt.UseSuspect, &scratch, &res)
 		scratch = schema.PartRows{Levels: discardLevels{}}
 	}
 	return out

@@ -15,6 +15,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -85,6 +86,13 @@ func (r *run) stageInputs(files []string, st *staged, keep func(path string) map
 	g.SetLimit(r.workers)
 	stop := r.reportReading(len(files))
 	defer stop()
+	// One buffer for a compressed input read whole per reading goroutine,
+	// handed from one input to the next (not a sync.Pool, which each
+	// collection empties).
+	srcs := make(chan *[]byte, r.workers)
+	for range r.workers {
+		srcs <- new([]byte)
+	}
 	for i, path := range files {
 		st.mu.Lock()
 		fi := len(st.files)
@@ -100,7 +108,9 @@ func (r *run) stageInputs(files []string, st *staged, keep func(path string) map
 			if keep != nil {
 				only = keep(path)
 			}
-			res, err := r.stageFile(ctx, path, fi, spill, st, only)
+			src := <-srcs // never waits: at most r.workers read at once
+			res, err := r.stageFile(ctx, path, fi, spill, st, only, src)
+			srcs <- src
 			if err != nil {
 				return err
 			}
@@ -118,7 +128,9 @@ func (r *run) stageInputs(files []string, st *staged, keep func(path string) map
 }
 
 // stageFile reads one input file (all its members) into its spill file.
-func (r *run) stageFile(ctx context.Context, path string, fi int, spill string, st *staged, keep map[string]bool) (readResult, error) {
+// src is a buffer for reading a compressed input whole, kept for the next
+// input.
+func (r *run) stageFile(ctx context.Context, path string, fi int, spill string, st *staged, keep map[string]bool, src *[]byte) (readResult, error) {
 	defer r.stage("read_parse", time.Now())
 	res := readResult{path: path, parts: map[string]int{}}
 	fst, err := os.Stat(path)
@@ -127,7 +139,7 @@ func (r *run) stageFile(ctx context.Context, path string, fi int, spill string, 
 		return res, nil
 	}
 	res.info.SizeBytes, res.info.ModTime = fst.Size(), fst.ModTime().UTC()
-	if ok, err := r.indexInPlace(ctx, path, fi, st, keep, &res); ok || err != nil {
+	if ok, err := r.indexInPlace(ctx, path, fi, st, keep, &res, src); ok || err != nil {
 		return res, err
 	}
 	out, err := os.Create(spill)
@@ -252,7 +264,7 @@ func (res *readResult) finish(sum hash.Hash) {
 // such a file (another format, a member that is not archive-v2, no
 // readable header, over the size limit, unreadable); the caller then reads
 // it the ordinary way, which reports why.
-func (r *run) indexInPlace(ctx context.Context, path string, fi int, st *staged, keep map[string]bool, res *readResult) (bool, error) {
+func (r *run) indexInPlace(ctx context.Context, path string, fi int, st *staged, keep map[string]bool, res *readResult, src *[]byte) (bool, error) {
 	if r.opt.decodeAll || r.opt.Format != "" && r.opt.Format != archivev2.Format {
 		return false, nil
 	}
@@ -301,7 +313,7 @@ func (r *run) indexInPlace(ctx context.Context, path string, fi int, st *staged,
 		cp = newStagingCopy(r.memStage, copyPath, hint)
 		err = func() error {
 			if hint > 0 && cp.file == nil && int64(cap(cp.mem)) >= hint {
-				done, err := ix.wholeGzip(f, res.info.SizeBytes, limit, cp, sum)
+				done, err := ix.wholeGzip(f, res.info.SizeBytes, limit, cp, sum, src)
 				if done || err != nil {
 					members = 1
 					if err == nil {
@@ -410,16 +422,18 @@ type indexer struct {
 	otherShards int
 }
 
-// wholeGzip decodes a gzip input of size bytes, read whole from f, in one
-// call (input.Gunzip) straight into the staging copy's memory, which holds
-// the size its trailer states, and indexes it there. done is false, with
+// wholeGzip decodes a gzip input of size bytes, read whole from f into
+// *buf (grown as needed, kept for the next input), in one call
+// (input.Gunzip) straight into the staging copy's memory, which holds the
+// size its trailer states, and indexes it there. done is false, with
 // nothing charged or staged, when Gunzip does not decode it (damaged,
 // several members, or larger than stated) or the run's budget does not
 // hold it: the caller then reads it as a stream, which reports what is
 // wrong. The file is sniffed as the stream is, from its first 4096
 // decompressed bytes, so the same files are read in place.
-func (ix *indexer) wholeGzip(f *os.File, size, limit int64, cp *stagingCopy, sum hash.Hash) (done bool, err error) {
-	src := make([]byte, size+1)
+func (ix *indexer) wholeGzip(f *os.File, size, limit int64, cp *stagingCopy, sum hash.Hash, buf *[]byte) (done bool, err error) {
+	*buf = slices.Grow((*buf)[:0], int(size)+1)
+	src := (*buf)[:size+1]
 	if n, err := f.ReadAt(src, 0); int64(n) != size || err != io.EOF && err != nil {
 		return false, nil // changed since it was looked at, or unreadable
 	}

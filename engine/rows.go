@@ -29,23 +29,24 @@ var appliedCopies sync.Pool
 
 // analyzeOne runs the analysis of one sounding, using only the values its
 // quality control allows, with the worker's Analyzer az, and appends its
-// rows to out, which it does before az analyses another sounding.
-func analyzeOne(s *sounding.Sounding, rep qc.Report, az *analyze.Analyzer, useSuspect bool, out *schema.PartRows) result {
-	var res analyze.Result
+// rows to out, which it does before az analyses another sounding. res
+// holds the analysis meanwhile; the caller passes the same one for every
+// sounding (a Result of its own per sounding went to the heap).
+func analyzeOne(s *sounding.Sounding, rep qc.Report, az *analyze.Analyzer, useSuspect bool, out *schema.PartRows, res *analyze.Result) result {
 	if rep.Usable() {
 		c, _ := appliedCopies.Get().(*sounding.Sounding)
 		if c == nil {
 			c = new(sounding.Sounding)
 		}
-		res = az.Analyze(qc.ApplyInto(c, s, rep, useSuspect))
+		*res = az.Analyze(qc.ApplyInto(c, s, rep, useSuspect))
 		appliedCopies.Put(c)
 	} else {
 		// Excluded by QC: still written, counted as attempted but not
 		// valid, with the QC reason as its analysis status.
-		res = az.Analyze(nil)
+		*res = az.Analyze(nil)
 		res.Status = analyze.Status("qc_" + rep.Status)
 	}
-	row := schema.AppendSounding(out, s, rep, &res)
+	row := schema.AppendSounding(out, s, rep, res)
 	return result{sounding: row, status: res.Status, profile: res.Profile}
 }
 
