@@ -597,7 +597,7 @@ func (r *run) buildPartition(key string, st *staged, prev *store.Partition, sc *
 	for _, s := range all {
 		nLevels += len(s.Levels)
 	}
-	levels, err := schema.NewLevelColumns(nLevels)
+	levels, err := r.levelBufs.NewLevelColumns(nLevels)
 	if err != nil {
 		return nil, stats, nil, err
 	}

@@ -37,6 +37,7 @@ import (
 	"github.com/sondeclim/sondeclim/ingest"
 	"github.com/sondeclim/sondeclim/ingest/input"
 	"github.com/sondeclim/sondeclim/qc"
+	"github.com/sondeclim/sondeclim/schema"
 	"github.com/sondeclim/sondeclim/schema/store"
 )
 
@@ -216,6 +217,9 @@ type run struct {
 	runBudget *input.Budget
 	memStage  *memBudget      // in-memory staging of archive-v2 text (stagemem.go); nil: none
 	damaged   map[string]bool // partitions whose committed files are damaged: rebuilt, never kept
+	// levelBufs holds the levels column buffers of station-years written,
+	// for the next ones built (some 24 MB each on a real station-year).
+	levelBufs schema.LevelBuffers
 
 	mu        sync.Mutex // guards sum.Skipped, sum.Notes, sum.Members, sum.SoundingsRead, filesRead
 	filesRead int        // input files staged so far, for progress

@@ -23,6 +23,7 @@ type LevelColumns struct {
 	rows    *Rows[LevelRow] // nil once written
 	fill    []levelFiller   // per column of rows.cols
 	written int             // rows written, once rows is nil
+	home    *LevelBuffers   // where the buffers go once written (nil: levelBufs)
 }
 
 // levelBufs holds the column buffers of written LevelColumns for the
@@ -31,6 +32,38 @@ type LevelColumns struct {
 // the allocator and faulted in page by page as the columns were filled.
 var levelBufs sync.Pool
 
+// LevelBuffers keeps the column buffers of written LevelColumns for the
+// next ones its NewLevelColumns makes: a free list its owner (an ingest
+// run) holds, which a collection does not empty as it does levelBufs. The
+// zero LevelBuffers is ready to use; it is safe for concurrent use.
+type LevelBuffers struct {
+	mu   sync.Mutex
+	free [][]*colBuf
+}
+
+// NewLevelColumns is NewLevelColumns with the buffers of lb: their memory
+// goes back to lb when the columns are written.
+func (lb *LevelBuffers) NewLevelColumns(capacity int) (*LevelColumns, error) {
+	lb.mu.Lock()
+	var bufs []*colBuf
+	if n := len(lb.free); n > 0 {
+		bufs, lb.free = lb.free[n-1], lb.free[:n-1]
+	}
+	lb.mu.Unlock()
+	l, err := newLevelColumns(bufs, capacity)
+	if err != nil {
+		return nil, err
+	}
+	l.home = lb
+	return l, nil
+}
+
+func (lb *LevelBuffers) put(bufs []*colBuf) {
+	lb.mu.Lock()
+	lb.free = append(lb.free, bufs)
+	lb.mu.Unlock()
+}
+
 // levelFiller stores the values of one column for the levels of s at
 // positions base… of b (b already holds room for them).
 type levelFiller func(c *Column, b *colBuf, s *sounding.Sounding, rep qc.Report, res *analyze.Result, launch time.Time, year int32, base int) error
@@ -38,9 +71,16 @@ type levelFiller func(c *Column, b *colBuf, s *sounding.Sounding, rep qc.Report,
 // NewLevelColumns returns an empty LevelColumns with room for about
 // capacity levels before its columns grow.
 func NewLevelColumns(capacity int) (*LevelColumns, error) {
+	bufs, _ := levelBufs.Get().([]*colBuf)
+	return newLevelColumns(bufs, capacity)
+}
+
+// newLevelColumns returns an empty LevelColumns in the buffers bufs of
+// written ones, or in new ones when bufs is nil.
+func newLevelColumns(bufs []*colBuf, capacity int) (*LevelColumns, error) {
 	var r *Rows[LevelRow]
 	var err error
-	if bufs, ok := levelBufs.Get().([]*colBuf); ok {
+	if bufs != nil {
 		r, err = reuseRows[LevelRow](bufs, capacity)
 	} else {
 		r, err = NewRows[LevelRow](capacity)
@@ -84,7 +124,11 @@ func (l *LevelColumns) WriteFile(path, table string, sync bool) error {
 	}
 	err := WriteRows(path, table, l.rows, sync)
 	l.written = l.rows.Len()
-	levelBufs.Put(l.rows.bufs)
+	if l.home != nil {
+		l.home.put(l.rows.bufs)
+	} else {
+		levelBufs.Put(l.rows.bufs)
+	}
 	l.rows = nil
 	return err
 }
