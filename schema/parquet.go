@@ -333,8 +333,12 @@ func (pw *pqWriter) column(m *chunkMeta, c *Column, b *colBuf, fd *floatDict, lo
 		idx := pw.idx[:0]
 		if c.kind == kindKey {
 			dict = b.keys
-			for _, x := range gather(&pw.i32, b.i32[lo:hi], valid, lo) {
-				idx = append(idx, uint32(x))
+			v := gather(&pw.i32, b.i32[lo:hi], valid, lo)
+			raw = appendIndices(raw, v, len(dict))
+			if st {
+				for _, x := range v {
+					idx = append(idx, uint32(x))
+				}
 			}
 		} else {
 			dict = c.enumList()
@@ -342,12 +346,14 @@ func (pw *pqWriter) column(m *chunkMeta, c *Column, b *colBuf, fd *floatDict, lo
 			if valid != nil {
 				v = gatherValid(&pw.i16, v, valid, lo)
 			}
-			for _, x := range v {
-				idx = append(idx, uint32(x))
+			raw = appendIndices(raw, v, len(dict))
+			if st {
+				for _, x := range v {
+					idx = append(idx, uint32(x))
+				}
 			}
 		}
 		pw.idx = idx
-		raw = appendIndices(raw, idx, len(dict))
 		if st {
 			pw.textStats(dict, idx, nulls)
 		}
@@ -425,7 +431,7 @@ func gather[E int32 | int64](scratch *[]E, x []E, valid []byte, lo int) []E {
 
 // appendIndices appends dictionary indices as an RLE_DICTIONARY data page
 // holds them: the bit width in one byte, then the hybrid encoding.
-func appendIndices(b []byte, idx []uint32, dictLen int) []byte {
+func appendIndices[E uint32 | int32 | int16](b []byte, idx []E, dictLen int) []byte {
 	width := uint(max(1, bits.Len(uint(max(dictLen-1, 0)))))
 	b = append(b, byte(width))
 	return appendHybrid(b, idx, width)

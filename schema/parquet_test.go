@@ -517,6 +517,37 @@ func TestOwnWriterEncodings(t *testing.T) {
 	if !slices.Equal(got, want) {
 		t.Errorf("delta: % x, want % x", got, want)
 	}
+	// 0, 2^40, 2^40: deltas 2^40 and 0, min delta 0 (zigzag 0), the
+	// first miniblock 41 bits wide: 32·41 bits = 164 bytes holding 2^40
+	// in its first 41 bits (byte 5 = 0x01), the rest zero.
+	got = appendDelta(nil, []int64{0, 1 << 40, 1 << 40})
+	want = append([]byte{0x80, 0x01, 4, 3, 0, 0, 41, 0, 0, 0}, make([]byte, 164)...)
+	want[10+5] = 0x01
+	if !slices.Equal(got, want) {
+		t.Errorf("delta, 41 bits: % x, want % x", got, want)
+	}
+}
+
+// TestSplitFloats: BYTE_STREAM_SPLIT (Encodings.md: byte k of every
+// value, in order, forms stream k) of values whose bytes are worked by
+// hand: 1.0 is 0x3FF0000000000000, -2.0 0xC000000000000000, 0.1
+// 0x3FB999999999999A. Eleven values, past the transposed groups of 8.
+func TestSplitFloats(t *testing.T) {
+	vals := []float64{1, -2, 0.1, 1, 1, -2, 0.1, 0.1, -2, 1, 0.1}
+	bytesOf := map[float64][8]byte{
+		1:   {0, 0, 0, 0, 0, 0, 0xF0, 0x3F},
+		-2:  {0, 0, 0, 0, 0, 0, 0, 0xC0},
+		0.1: {0x9A, 0x99, 0x99, 0x99, 0x99, 0x99, 0xB9, 0x3F},
+	}
+	var want []byte
+	for k := range 8 {
+		for _, v := range vals {
+			want = append(want, bytesOf[v][k])
+		}
+	}
+	if got := appendSplitFloats([]byte{7}, vals, nil, 0, nil); !slices.Equal(got, append([]byte{7}, want...)) {
+		t.Errorf("split: % x\nwant % x", got[1:], want)
+	}
 }
 
 // TestFloatDictionaryEncoding holds the float dictionary's parts to bytes

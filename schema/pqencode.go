@@ -13,21 +13,12 @@ import (
 // (DELTA_BINARY_PACKED = 5)", "Byte Stream Split (BYTE_STREAM_SPLIT =
 // 9)", "Plain (PLAIN = 0)").
 
-// packer appends values of up to 64 bits each to a byte slice, least
+// packer appends values of up to 32 bits each to a byte slice, least
 // significant bit first, as Parquet's bit-packing does.
 type packer struct {
 	b   []byte
 	acc uint64
 	nb  uint // bits held in acc (< 8 between calls)
-}
-
-func (p *packer) put(v uint64, width uint) {
-	if width > 32 {
-		p.put32(v&math.MaxUint32, 32)
-		p.put32(v>>32, width-32)
-		return
-	}
-	p.put32(v, width)
 }
 
 func (p *packer) put32(v uint64, width uint) {
@@ -49,23 +40,20 @@ func (p *packer) flush() []byte {
 	return p.b
 }
 
-// appendHybrid appends v (each value below 1<<width) in the RLE/bit-
-// packing hybrid without its length prefix: a run of 8 or more equal
-// values as an RLE run (header count<<1, the value in whole bytes), the
-// rest in bit-packed runs of groups of 8 values (header groups<<1 | 1),
+// appendHybrid appends v (each value below 1<<width, none negative) in
+// the RLE/bit-packing hybrid without its length prefix: a run of 8 or more
+// equal values as an RLE run (header count<<1, the value in whole bytes),
+// the rest in bit-packed runs of groups of 8 values (header groups<<1 | 1),
 // the last group padded with zeros.
-func appendHybrid(b []byte, v []uint32, width uint) []byte {
+func appendHybrid[E uint32 | int32 | int16](b []byte, v []E, width uint) []byte {
 	vbytes := int(width+7) / 8
 	n := len(v)
 	for i := 0; i < n; {
-		j := i + 1
-		for j < n && v[j] == v[i] {
-			j++
-		}
+		j := runEnd(v, i)
 		if j-i >= 8 {
 			b = binary.AppendUvarint(b, uint64(j-i)<<1)
 			for k := range vbytes {
-				b = append(b, byte(v[i]>>(8*k)))
+				b = append(b, byte(uint32(v[i])>>(8*k)))
 			}
 			i = j
 			continue
@@ -90,7 +78,7 @@ func appendHybrid(b []byte, v []uint32, width uint) []byte {
 		full := start + (i-start)/8*8
 		b = packGroups(b, v[start:full], width)
 		if full < i {
-			var last [8]uint32 // the last group, padded with zeros
+			var last [8]E // the last group, padded with zeros
 			copy(last[:], v[full:i])
 			b = packGroups(b, last[:], width)
 		}
@@ -98,13 +86,30 @@ func appendHybrid(b []byte, v []uint32, width uint) []byte {
 	return b
 }
 
+// runEnd returns the end of the run of values equal to v[i] from i, four
+// values compared at a time.
+func runEnd[E uint32 | int32 | int16](v []E, i int) int {
+	x, w := v[i], v[i+1:]
+	k := 0
+	for ; k+4 <= len(w); k += 4 {
+		if w[k] != x || w[k+1] != x || w[k+2] != x || w[k+3] != x {
+			break
+		}
+	}
+	for k < len(w) && w[k] == x {
+		k++
+	}
+	return i + 1 + k
+}
+
 // packGroups appends v (a multiple of 8 values, each below 1<<width,
 // width at most 32) bit-packed, least significant bit first: width bytes
 // per group of 8, eight bytes written at a time.
-func packGroups(b []byte, v []uint32, width uint) []byte {
+func packGroups[E uint32 | int32 | int16](b []byte, v []E, width uint) []byte {
 	var acc uint64
 	var nb uint // bits held in acc, < 64
-	for _, x := range v {
+	for _, e := range v {
+		x := uint32(e)
 		acc |= uint64(x) << nb
 		nb += width
 		if nb >= 64 {
@@ -313,7 +318,6 @@ func appendDelta[T int32 | int64](b []byte, v []T) []byte {
 		}
 		wat := len(b)
 		b = append(b, 0, 0, 0, 0)
-		p := packer{b: b}
 		for mb := range miniblocks {
 			if mb*mini >= m {
 				break
@@ -323,15 +327,34 @@ func appendDelta[T int32 | int64](b []byte, v []T) []byte {
 				or |= x
 			}
 			w := uint(bits.Len64(or))
-			p.b[wat+mb] = byte(w)
-			if w == 0 {
-				continue
-			}
-			for _, x := range u[mb*mini : (mb+1)*mini] {
-				p.put(x, w)
+			b[wat+mb] = byte(w)
+			if w > 0 {
+				b = pack64(b, u[mb*mini:(mb+1)*mini], w)
 			}
 		}
-		b = p.flush()
+	}
+	return b
+}
+
+// pack64 appends the 32 values of u (each below 1<<width, width 1..64)
+// bit-packed, least significant bit first, eight bytes written at a time:
+// 4·width bytes.
+func pack64(b []byte, u []uint64, width uint) []byte {
+	var acc uint64
+	var nb uint // bits held in acc, < 64
+	for _, x := range u[:32] {
+		acc |= x << nb
+		if nb+width < 64 {
+			nb += width
+			continue
+		}
+		b = binary.LittleEndian.AppendUint64(b, acc)
+		nb = nb + width - 64
+		acc = x >> (width - nb) // its bits that did not fit (none when nb is 0: a shift by 64 gives 0)
+	}
+	for ; nb > 0; nb -= 8 { // 32·width bits: whole bytes
+		b = append(b, byte(acc))
+		acc >>= 8
 	}
 	return b
 }
