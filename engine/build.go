@@ -361,6 +361,7 @@ func (r *run) buildAll(keys []string, st *staged, old *store.Manifest) ([]*store
 			}
 			sc := <-scratches // never waits: at most r.workers analyse at once
 			p, stats, write, err := r.buildPartition(k, st, old.Partitions[k], sc)
+			sc.levels.Shrink(keptLevels) // the soundings are dropped
 			scratches <- sc
 			st.release(k, r.memStage)
 			if err != nil {
@@ -510,6 +511,13 @@ func readSegment(st *staged, sg segment, buf []byte) (data, scratch []byte, err 
 type buildScratch struct {
 	levels sounding.LevelArena // the levels of the station-year's soundings read in place and of its context
 }
+
+// keptLevels is how many levels' memory (sounding.Level, about 128 bytes
+// each) a build goroutine keeps for the next station-year: some two real
+// station-years of twice-daily soundings (about 131,000 levels each). A
+// larger station-year's memory goes to the collector, so that what the
+// weighted semaphore of buildAll bounds is not exceeded by memory kept.
+const keptLevels = 1 << 18
 
 // buildPartition rebuilds one station-year from its staged soundings: it
 // reads, checks and analyses them and returns the partition with a write

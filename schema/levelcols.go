@@ -58,7 +58,15 @@ func (lb *LevelBuffers) NewLevelColumns(capacity int) (*LevelColumns, error) {
 	return l, nil
 }
 
-func (lb *LevelBuffers) put(bufs []*colBuf) {
+// keptLevelRows is the most rows whose buffers LevelBuffers keeps (some
+// 45 MB of columns): a station-year far larger than usual gives its
+// memory to the collector instead of holding it for the next ones.
+const keptLevelRows = 1 << 18
+
+func (lb *LevelBuffers) put(bufs []*colBuf, rows int) {
+	if rows > keptLevelRows {
+		return
+	}
 	lb.mu.Lock()
 	lb.free = append(lb.free, bufs)
 	lb.mu.Unlock()
@@ -125,7 +133,7 @@ func (l *LevelColumns) WriteFile(path, table string, sync bool) error {
 	err := WriteRows(path, table, l.rows, sync)
 	l.written = l.rows.Len()
 	if l.home != nil {
-		l.home.put(l.rows.bufs)
+		l.home.put(l.rows.bufs, l.written)
 	} else {
 		levelBufs.Put(l.rows.bufs)
 	}

@@ -95,6 +95,19 @@ func (a *LevelArena) isLast(s []Level) bool {
 	return a.last != nil && cap(s) > 0 && cap(s) == cap(a.last) && &s[:1][0] == &a.last[:1][0]
 }
 
+// Shrink lets the arena keep memory for at most n levels (whole blocks),
+// giving the rest to the collector; like Reset, it may be called only
+// when no slice the arena handed out is in use any more. A station-year
+// far larger than usual is not held on to for the next ones.
+func (a *LevelArena) Shrink(n int) {
+	keep := (n + arenaBlockLevels - 1) / arenaBlockLevels
+	if len(a.blocks) > keep {
+		clear(a.blocks[keep:])
+		a.blocks = a.blocks[:keep]
+	}
+	a.Reset()
+}
+
 // Reset makes all the arena's memory available again. Every slice it
 // handed out must be out of use: the next Take hands the same memory out.
 func (a *LevelArena) Reset() {

@@ -82,3 +82,26 @@ func TestLevelArena(t *testing.T) {
 		t.Errorf("%d blocks, want at most %d for %d levels held at once", len(a.blocks), most, mostHeld)
 	}
 }
+
+// TestLevelArenaShrink checks that Shrink keeps whole blocks for at most
+// the levels asked (common practice, no source) and leaves the arena
+// usable, handing out zero levels again.
+func TestLevelArenaShrink(t *testing.T) {
+	var a LevelArena
+	for range 5 {
+		s := a.Take(arenaBlockLevels)
+		s = s[:cap(s)]
+		s[0].PressurePa = 1
+		a.Trim(s)
+	}
+	if len(a.blocks) != 5 {
+		t.Fatalf("%d blocks, want 5", len(a.blocks))
+	}
+	a.Shrink(arenaBlockLevels + 1)
+	if len(a.blocks) != 2 {
+		t.Fatalf("%d blocks after Shrink to one block and a level, want 2", len(a.blocks))
+	}
+	if s := a.Take(10)[:1]; s[0] != (Level{}) {
+		t.Fatalf("level after Shrink holds %+v, want a zero Level", s[0])
+	}
+}
