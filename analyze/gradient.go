@@ -29,12 +29,16 @@ func (pr profile) grid(n int, stepPa float64, sc *scratch) grid {
 			denK, den = k, math.Log(pr.p[k-1]/pr.p[k])
 		}
 		f := math.Log(pr.p[k-1]/pj) / den
-		lin := func(x []float64) float64 { return x[k-1] + f*(x[k]-x[k-1]) }
-		g.p[j], g.z[j], g.theta[j] = pj, lin(pr.z), lin(pr.theta)
-		g.speed[j] = math.Hypot(lin(pr.u), lin(pr.v))
+		// The bracket's two values of each variable, one bounds test each.
+		z, th, u, v := pr.z[k-1:k+1], pr.theta[k-1:k+1], pr.u[k-1:k+1], pr.v[k-1:k+1]
+		g.p[j], g.z[j], g.theta[j] = pj, lerp(z[0], z[1], f), lerp(th[0], th[1], f)
+		g.speed[j] = math.Hypot(lerp(u[0], u[1], f), lerp(v[0], v[1], f))
 	}
 	return g
 }
+
+// lerp returns a + f (b − a).
+func lerp(a, b, f float64) float64 { return a + f*(b-a) }
 
 // ---- Heffter (1980), METHODS §4.2 ----
 

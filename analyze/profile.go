@@ -24,15 +24,18 @@ type profile struct {
 }
 
 // buildProfile returns the thermodynamic profile of s, its slices from sc
-// except z and θ, which the Result keeps (Result.Profile).
+// except z and θ, which the Result keeps (Result.Profile). p and t are
+// the levels' pressures and temperatures as levelValues gives them
+// (finite or NaN).
 func (r *Result) buildProfile(s *sounding.Sounding, p, t []float64, wp windProfile, sc *scratch) profile {
 	idx := sc.ints(len(p))
 	// The pressures taken are finite and positive, so "in order" is
 	// p[previous] ≥ p[next]; levels in order need no (stable) sort, and
 	// without a repeated pressure none is dropped.
 	sorted, equal := true, false
+	t, hz := t[:len(p)], r.HeightAGLM[:len(p)]
 	for i := range p {
-		if p[i] > 0 && t[i] > 0 && !math.IsInf(p[i], 0) && !math.IsInf(t[i], 0) && !math.IsNaN(r.HeightAGLM[i]) {
+		if p[i] > 0 && t[i] > 0 && !math.IsNaN(hz[i]) {
 			if n := len(idx); n > 0 {
 				q := p[idx[n-1]]
 				sorted = sorted && q >= p[i]

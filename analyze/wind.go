@@ -96,27 +96,31 @@ type windProfile struct{ z, u, v, lu, lv []float64 }
 func (r *Result) buildWindProfile(s *sounding.Sounding, sc *scratch) windProfile {
 	m := len(s.Levels)
 	buf := sc.floats(5 * m)
-	w := windProfile{lu: buf[3*m : 4*m], lv: buf[4*m:]}
+	lu, lv := buf[3*m:4*m], buf[4*m:]
+	w := windProfile{lu: lu, lv: lv}
 	z, u, v := buf[:m], buf[m:2*m], buf[2*m:3*m]
 	// Levels in order of height need no sorting: the stable sort would
 	// leave them as they are (equal heights included, which are dropped
 	// below, the first kept); without equal heights nothing is dropped.
 	n, sorted, equal := 0, true, false
-	hz := r.HeightAGLM[:m]
-	for i := range s.Levels {
+	last := 0.0 // the height of the profile's last level so far (z[n−1])
+	levels, hz := s.Levels[:m], r.HeightAGLM[:m]
+	for i := range levels {
 		ui, vi, ok := math.NaN(), math.NaN(), false
-		if !math.IsNaN(hz[i]) {
-			ui, vi, ok = levelWind(&s.Levels[i])
+		h := hz[i]
+		if !math.IsNaN(h) {
+			ui, vi, ok = levelWind(&levels[i])
 		}
-		w.lu[i], w.lv[i] = ui, vi
+		lu[i], lv[i] = ui, vi
 		if !ok {
 			continue
 		}
 		if n > 0 {
-			sorted = sorted && !(hz[i] < z[n-1])
-			equal = equal || hz[i] == z[n-1]
+			sorted = sorted && !(h < last)
+			equal = equal || h == last
 		}
-		z[n], u[n], v[n] = hz[i], ui, vi
+		z[n], u[n], v[n] = h, ui, vi
+		last = h
 		n++
 	}
 	w.z, w.u, w.v = z[:n:n], u[:n:n], v[:n:n]
