@@ -260,7 +260,7 @@ func LiuLiangHeight(zAGLM, thetaK, speedMS []float64, cfg LiuLiangConfig) (heigh
 		}
 		lo := math.Inf(1)
 		for i := j + 1; i < n && zAGLM[i]-zAGLM[0] <= cfg.JetMaxAGLM; i++ {
-			lo = math.Min(lo, speedMS[i])
+			lo = min(lo, speedMS[i])
 		}
 		if speedMS[j]-lo > cfg.JetMinExcessMS {
 			shear = zAGLM[j]

@@ -192,7 +192,7 @@ func StableLayerFraction(zAGLM, tK []float64, depthM, maxLapseKPerKm float64) fl
 			continue
 		}
 		lapse := -(tK[i] - tK[prev]) / dz * 1000
-		top := math.Min(zAGLM[i], base+depthM)
+		top := min(zAGLM[i], base+depthM)
 		if lapse <= maxLapseKPerKm {
 			stable += top - zAGLM[prev]
 		}

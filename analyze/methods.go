@@ -184,7 +184,7 @@ func (in *methodInput) richardson(name string, ric float64) MixingHeight {
 		in.rib = in.sc.floats(n)
 		BulkRichardsonNumbers(in.rib, pr.z[:n], pr.thetav[:n], pr.u[:n], pr.v[:n], cfg.Constants.G0, cfg.Richardson)
 	}
-	rc := math.Min(cfg.Richardson.CeilingAGLM, in.r.CeilingAGLM)
+	rc := min(cfg.Richardson.CeilingAGLM, in.r.CeilingAGLM)
 	h, st, note := RichardsonHeight(pr.z[:n], in.rib, ric, rc)
 	return mhFrom(name, h, st, note)
 }

@@ -53,12 +53,12 @@ func (s span) with(v float64) span {
 	if v < s.lo {
 		s.lo = v
 	} else if v == 0 && s.lo == 0 {
-		s.lo = math.Min(s.lo, v)
+		s.lo = min(s.lo, v)
 	}
 	if v > s.hi {
 		s.hi = v
 	} else if v == 0 && s.hi == 0 {
-		s.hi = math.Max(s.hi, v)
+		s.hi = max(s.hi, v)
 	}
 	return s
 }

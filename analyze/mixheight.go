@@ -187,7 +187,7 @@ func (pr profile) levelSpacing(h float64, n int) float64 {
 		d = pr.z[k] - pr.z[k-1]
 	}
 	if k+1 < n {
-		d = math.Max(d, pr.z[k+1]-pr.z[k])
+		d = max(d, pr.z[k+1]-pr.z[k])
 	}
 	return d
 }
@@ -269,7 +269,7 @@ func BulkRichardsonNumbers(dst, zAGLM, thetaVK, uMS, vMS []float64, g float64, c
 	dst[0] = 0
 	for k := 1; k < n; k++ {
 		du, dv := uMS[k]-us, vMS[k]-vs
-		den := math.Max(du*du+dv*dv+fr, cfg.MinShearSqM2S2)
+		den := max(du*du+dv*dv+fr, cfg.MinShearSqM2S2)
 		if math.IsNaN(du) || math.IsNaN(dv) {
 			den = math.NaN()
 		}

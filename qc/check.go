@@ -186,10 +186,7 @@ func value(l *sounding.Level, v sounding.Var) float64 {
 	case sounding.VarRelHumidity:
 		return l.RelHumidityPct
 	case sounding.VarDewpointDepression:
-		if math.IsNaN(l.DewpointDepressionK) && !math.IsNaN(l.DewpointK) && !math.IsNaN(l.TemperatureK) {
-			return l.TemperatureK - l.DewpointK // dewpoint given directly
-		}
-		return l.DewpointDepressionK
+		return dewpointDepression(l)
 	case sounding.VarWindDirection:
 		return l.WindDirectionDeg
 	case sounding.VarWindSpeed:
@@ -198,6 +195,16 @@ func value(l *sounding.Level, v sounding.Var) float64 {
 		return l.ElapsedS
 	}
 	return math.NaN()
+}
+
+// dewpointDepression returns value(l, VarDewpointDepression): the
+// level's dewpoint depression in K, or T − Td for sources that give the
+// dewpoint directly.
+func dewpointDepression(l *sounding.Level) float64 {
+	if math.IsNaN(l.DewpointDepressionK) && !math.IsNaN(l.DewpointK) && !math.IsNaN(l.TemperatureK) {
+		return l.TemperatureK - l.DewpointK // dewpoint given directly
+	}
+	return l.DewpointDepressionK
 }
 
 // flag records a finding on (level, v) unless that value already has one,

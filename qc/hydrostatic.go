@@ -174,7 +174,7 @@ func (st *state) evaluated(l *layer, t []float64, thickness float64) {
 	l.thickness = thickness
 	l.evaluated = !math.IsNaN(l.thickness)
 	l.residual = (st.z[l.b] - st.z[l.a]) - l.thickness
-	l.tol = math.Max(st.cfg.HydrostaticTolM, st.cfg.HydrostaticTolFrac*math.Abs(l.thickness)) + st.readingTol(l, t)
+	l.tol = max(st.cfg.HydrostaticTolM, st.cfg.HydrostaticTolFrac*math.Abs(l.thickness)) + st.readingTol(l, t)
 }
 
 // readingTol is the part of a layer's thickness the pressure readings

@@ -16,8 +16,9 @@ import (
 // check that walks levels.
 func (st *state) thermoLevels() []int {
 	idx := st.sc.idx[:0]
-	for i := range st.p {
-		if !math.IsNaN(st.p[i]) && !math.IsNaN(st.t[i]) {
+	p, t := st.p, st.t[:len(st.p)]
+	for i := range p {
+		if !math.IsNaN(p[i]) && !math.IsNaN(t[i]) {
 			idx = append(idx, i)
 		}
 	}
@@ -99,13 +100,23 @@ func (st *state) superadiabatic() {
 	z := st.heightsAGL(idx)
 	pLow := st.p[idx[0]]
 	night := st.night()
+	// Where the pressures strictly decrease along idx (the common case),
+	// the layer top found for one base is a lower bound of the next
+	// base's: every level below it is less than SuperadiabaticLayerPa
+	// above the lower base, so also above the higher one (the rounded
+	// difference p[a] − p[x] does not grow as p[a] falls). Else each
+	// search starts at the level above its base.
+	monotone := pressuresDecrease(st.p, idx)
+	m := 0
 	for n := 0; n+1 < len(idx); n++ {
 		a := idx[n]
 		nearSurface := z[n] < c.SuperadiabaticMinAGLM || st.p[a] > pLow-c.SuperadiabaticMinDepthPa
 		if nearSurface && !night {
 			continue
 		}
-		m := n + 1
+		if !monotone || m < n+1 {
+			m = n + 1
+		}
 		for m < len(idx) && st.p[a]-st.p[idx[m]] < c.SuperadiabaticLayerPa {
 			m++
 		}
@@ -144,12 +155,17 @@ func (st *state) coldHumidity() {
 			continue
 		}
 		hit := false
-		for _, v := range [...]sounding.Var{sounding.VarDewpointDepression, sounding.VarRelHumidity} {
-			if st.rep.Flags[i][v] == Good && !math.IsNaN(value(&st.s.Levels[i], v)) {
-				hit = true
-				if first >= 0 {
-					st.rep.Flags[i][v] = Suspect
-				}
+		fl, l := &st.rep.Flags[i], &st.s.Levels[i]
+		if fl[sounding.VarDewpointDepression] == Good && !math.IsNaN(dewpointDepression(l)) {
+			hit = true
+			if first >= 0 {
+				fl[sounding.VarDewpointDepression] = Suspect
+			}
+		}
+		if fl[sounding.VarRelHumidity] == Good && !math.IsNaN(l.RelHumidityPct) {
+			hit = true
+			if first >= 0 {
+				fl[sounding.VarRelHumidity] = Suspect
 			}
 		}
 		if hit {
@@ -232,7 +248,7 @@ func (st *state) coverage() {
 	top := idx[len(idx)-1]
 	pTop := st.s.Levels[top].PressurePa
 	for _, i := range idx {
-		pTop = math.Min(pTop, st.s.Levels[i].PressurePa)
+		pTop = min(pTop, st.s.Levels[i].PressurePa)
 	}
 	if pTop <= c.CoverageTopPa {
 		return
