@@ -79,6 +79,7 @@ func fillHeights(levels []sounding.Level, elevationM float64, c thermo.Constants
 	h := Heights{HeightM: sc.floats(n), Derived: sc.bools(n), StartIndex: -1}
 	ord := sc.ints(n)
 	sorted := true // the pressures taken are finite and positive: in order is p[previous] ≥ p[next]
+	missing := 0   // levels with a pressure but no height
 	for i := range levels {
 		l := &levels[i]
 		h.HeightM[i] = l.HeightM
@@ -90,6 +91,9 @@ func fillHeights(levels []sounding.Level, elevationM float64, c thermo.Constants
 				sorted = sorted && levels[ord[k-1]].PressurePa >= l.PressurePa
 			}
 			ord = append(ord, i)
+			if math.IsNaN(h.HeightM[i]) {
+				missing++
+			}
 		}
 	}
 	if len(ord) == 0 {
@@ -98,11 +102,25 @@ func fillHeights(levels []sounding.Level, elevationM float64, c thermo.Constants
 	if !sorted {
 		sort.SliceStable(ord, func(a, b int) bool { return levels[ord[a]].PressurePa > levels[ord[b]].PressurePa })
 	}
-	tv := virtualTemperatures(sc.floats(len(ord)), levels, ord, c, f, w)
-
 	if j0 := ord[0]; levels[j0].Kind == sounding.KindSurface && math.IsNaN(h.HeightM[j0]) && !math.IsNaN(elevationM) {
 		h.HeightM[j0], h.Derived[j0] = elevationM, true
+		missing--
 	}
+	if missing == 0 && !anchors {
+		// Every level with a pressure has a height: there is nothing to
+		// fill, and without anchors nothing to integrate. The start is
+		// the first level with a usable Tv, which is the first with a
+		// usable temperature (virtualTemperatures interpolates Tv only
+		// between two such levels).
+		for _, j := range ord {
+			if tK := levels[j].TemperatureK; tK > 0 && !math.IsInf(tK, 0) {
+				h.StartIndex = j
+				break
+			}
+		}
+		return h
+	}
+	tv := virtualTemperatures(sc.floats(len(ord)), levels, ord, c, f, w)
 	start := -1
 	for pos, j := range ord {
 		if !math.IsNaN(tv[pos]) && !math.IsNaN(h.HeightM[j]) {

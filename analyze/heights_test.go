@@ -108,3 +108,46 @@ func TestFillHeightsAwkwardLevels(t *testing.T) {
 		t.Errorf("wind-only: %+v", h)
 	}
 }
+
+// TestFillHeightsWithoutAnchors: the analysis' own height filling, which
+// neither records anchors nor integrates up to levels with a reported
+// height, gives the heights, derived marks, start and standard-anchor
+// flag of FillHeights (checked against METHODS §9 above) on the METHODS
+// §9 snippets, the same with heights removed, and every real Sterling
+// 2016 sounding (PROVENANCE.md) with and without some heights.
+func TestFillHeightsWithoutAnchors(t *testing.T) {
+	c := thermo.CODATA2018()
+	var cases []*sounding.Sounding
+	for _, s := range []*sounding.Sounding{ttbb(), ttaa()} {
+		cases = append(cases, s)
+		holes := &sounding.Sounding{ElevationM: s.ElevationM, Levels: append([]sounding.Level(nil), s.Levels...)}
+		holes.Levels[len(holes.Levels)/2].HeightM = math.NaN()
+		cases = append(cases, holes)
+	}
+	if testing.Short() {
+		t.Log("short: Sterling soundings skipped")
+	} else {
+		for k, s := range readSterling(t) {
+			cases = append(cases, s)
+			if k%7 == 0 && len(s.Levels) > 3 {
+				holes := &sounding.Sounding{ElevationM: s.ElevationM, Levels: append([]sounding.Level(nil), s.Levels...)}
+				holes.Levels[3].HeightM = math.NaN()
+				cases = append(cases, holes)
+			}
+		}
+	}
+	for k, s := range cases {
+		want := FillHeights(s.Levels, s.ElevationM, c, thermo.Bolton)
+		got := fillHeights(s.Levels, s.ElevationM, c, thermo.Bolton, nil, false, nil)
+		if got.StartIndex != want.StartIndex || got.StandardAnchor != want.StandardAnchor || len(got.Anchors) != 0 {
+			t.Fatalf("case %d: start %d standard %v anchors %d, FillHeights: start %d standard %v",
+				k, got.StartIndex, got.StandardAnchor, len(got.Anchors), want.StartIndex, want.StandardAnchor)
+		}
+		for i := range want.HeightM {
+			if math.Float64bits(got.HeightM[i]) != math.Float64bits(want.HeightM[i]) || got.Derived[i] != want.Derived[i] {
+				t.Fatalf("case %d level %d: height %v derived %v, FillHeights %v %v",
+					k, i, got.HeightM[i], got.Derived[i], want.HeightM[i], want.Derived[i])
+			}
+		}
+	}
+}
