@@ -16,40 +16,29 @@ const sterlingLevels = 131306
 // every sounding and level, as the ingest does for each station-year; the
 // ns/level figure compares with the ingest's CPU time per level.
 func BenchmarkReadSterling(b *testing.B) {
-	text := sterlingBytes(b)
-	b.SetBytes(int64(len(text)))
-	b.ReportAllocs()
-	cpu0 := benchcpu.Used()
-	for b.Loop() {
-		rd := NewReader(bytes.NewReader(text), "sterling", "")
-		n := 0
-		for {
-			s, err := rd.Next()
-			if err == io.EOF {
-				break
-			}
-			if err != nil {
-				b.Fatal(err)
-			}
-			n += len(s.Levels)
-		}
-		if n != sterlingLevels {
-			b.Fatalf("%d levels, want %d (PROVENANCE.md)", n, sterlingLevels)
-		}
-	}
-	benchcpu.PerLevel(b, cpu0, sterlingLevels)
+	benchReadSterling(b, func(text []byte) *Reader {
+		return NewReader(bytes.NewReader(text), "sterling", "")
+	})
 }
 
 // BenchmarkReadSterlingMem is BenchmarkReadSterling through
 // NewReaderBytes, the reader the ingest uses for text held in memory
 // (plain files and inflated copies), whose lines are cut where they lie.
 func BenchmarkReadSterlingMem(b *testing.B) {
+	benchReadSterling(b, func(text []byte) *Reader {
+		return NewReaderBytes(text, "sterling", "")
+	})
+}
+
+// benchReadSterling reads the Sterling file to its end with a reader from
+// open at each turn, and fails unless it yields the file's level count.
+func benchReadSterling(b *testing.B, open func([]byte) *Reader) {
 	text := sterlingBytes(b)
 	b.SetBytes(int64(len(text)))
 	b.ReportAllocs()
 	cpu0 := benchcpu.Used()
 	for b.Loop() {
-		rd := NewReaderBytes(text, "sterling", "")
+		rd := open(text)
 		n := 0
 		for {
 			s, err := rd.Next()
