@@ -204,17 +204,11 @@ func TestFastLevelEdgeCases(t *testing.T) {
 }
 
 // fixedField reads the five-character field ending at the last of the
-// eight bytes b through fixedWords, the seven other fields being a valid
-// "0".
+// eight bytes b through fixedRun and fixedValue.
 func fixedField(b []byte) (int, bool) {
-	var u [8]uint64
-	for k := range u {
-		u[k] = binary.LittleEndian.Uint64([]byte("       0"))
-	}
-	u[0] = binary.LittleEndian.Uint64(b)
-	var raw [8]int
-	bad := fixedWords(&u, &raw)
-	return raw[0], bad == 0
+	u := binary.LittleEndian.Uint64(b)
+	run, neg, bad := fixedRun(u)
+	return fixedValue(u, run, neg), bad == 0
 }
 
 // TestFixedFieldMatchesAtoi: wherever fixedField reads a field, atoi
@@ -245,7 +239,7 @@ func TestFixedFieldMatchesAtoi(t *testing.T) {
 			}
 		}
 	}
-	// Forms atoi may read but fixedWords must refuse (the general path's).
+	// Forms atoi may read but fixedRun must refuse (the general path's).
 	for _, word := range []string{"   12   ", "   +  12", "      1 ", "XYZ1 2 3", "   - 123", "        ", "   --123"} {
 		if _, ok := fixedField([]byte(word)); ok {
 			t.Errorf("fixedField(%q) takes a field that is not spaces, an optional '-' and digits", word)

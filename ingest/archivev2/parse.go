@@ -4,7 +4,6 @@ import (
 	"encoding/binary"
 	"fmt"
 	"math"
-	"math/bits"
 	"strings"
 	"time"
 
@@ -249,20 +248,10 @@ func parseLevelGeneral(lv *sounding.Level, line []byte) error {
 			return badLevel("column %d is not blank", c)
 		}
 	}
-	t1, t2 := line[0], line[1]
-	switch {
-	case t1 < '0' || t1 > '3' || t2 < '0' || t2 > '2' || (t1 == '0' && t2 != '1'):
+	var ok bool
+	if lv.Kind, lv.Tropopause, ok = levelKind(line[0], line[1]); !ok {
 		return badLevel("level type %q", line[:2])
-	case t2 == '1':
-		lv.Kind = sounding.KindSurface
-	case t1 == '1':
-		lv.Kind = sounding.KindStandard
-	case t1 == '2':
-		lv.Kind = sounding.KindSignificant
-	default:
-		lv.Kind = sounding.KindWindOnly
 	}
-	lv.Tropopause = t2 == '2'
 
 	// The fields in column order; the first bad one is reported.
 	if err := readField(lv, line, sounding.VarPressure, 10, 15, 16, 1, 0, &lv.PressurePa); err != nil {
@@ -306,6 +295,24 @@ func parseLevelGeneral(lv *sounding.Level, line []byte) error {
 	return nil
 }
 
+// levelKind reads the level type columns LVLTYP1 t1 and LVLTYP2 t2 as
+// parseLevel describes them; ok is false for an invalid pair.
+func levelKind(t1, t2 byte) (kind sounding.LevelKind, tropopause, ok bool) {
+	switch {
+	case t1 < '0' || t1 > '3' || t2 < '0' || t2 > '2' || (t1 == '0' && t2 != '1'):
+		return 0, false, false
+	case t2 == '1':
+		kind = sounding.KindSurface
+	case t1 == '1':
+		kind = sounding.KindStandard
+	case t1 == '2':
+		kind = sounding.KindSignificant
+	default:
+		kind = sounding.KindWindOnly
+	}
+	return kind, t2 == '2', true
+}
+
 func badLevel(format string, a ...any) error {
 	return fmt.Errorf("%w: %s", ingest.ErrBadLevel, fmt.Sprintf(format, a...))
 }
@@ -327,23 +334,21 @@ func readField(lv *sounding.Level, line []byte, v sounding.Var, from, to, flag i
 			return badLevel("%s flag %q in column %d", v, f, flag)
 		}
 	}
-	lv.Status[v] = setValue(dst, raw, scale, off)
+	lv.Status[v], *dst = value(raw, scale, off)
 	return nil
 }
 
-// setValue stores raw/scale + off in *dst, or NaN for the special codes,
-// and returns the value's status.
-func setValue(dst *float64, raw int, scale, off float64) sounding.Status {
+// value returns the status of a field's raw value and the value, raw/scale
+// + off, or NaN for the special codes.
+func value(raw int, scale, off float64) (sounding.Status, float64) {
 	// Both codes are at most codeRemoved: one comparison passes the
 	// common value.
 	if raw <= codeRemoved {
 		switch raw {
 		case codeMissing:
-			*dst = math.NaN()
-			return sounding.Missing
+			return sounding.Missing, math.NaN()
 		case codeRemoved:
-			*dst = math.NaN()
-			return sounding.RemovedUpstream
+			return sounding.RemovedUpstream, math.NaN()
 		}
 	}
 	// x/1 and x+0 are x exactly (float64(raw) is never −0), so the
@@ -355,8 +360,7 @@ func setValue(dst *float64, raw int, scale, off float64) sounding.Status {
 	if off != 0 {
 		x += off
 	}
-	*dst = x
-	return sounding.Reported
+	return sounding.Reported, x
 }
 
 // parseLevelFast reads the common data record, in which every field is
@@ -369,159 +373,233 @@ func setValue(dst *float64, raw int, scale, off float64) sounding.Status {
 // FuzzFastLevel check the two paths against each other.
 //
 // Each field is read from the eight bytes that end at its last column as
-// one 64-bit word, with no loop over its characters (fixedWords).
+// one 64-bit word, with no loop over its characters (fixedRun,
+// fixedValue), in straight-line code. Every member of lv is written once:
+// the statuses and the flags are put together as words and stored whole,
+// the level type is looked up in levelTypes and the flags in flagTiers.
 func parseLevelFast(lv *sounding.Level, line []byte) bool {
 	if len(line) < 51 {
 		return false
 	}
-	line = line[:51]
-	if line[2]|line[8]|line[33]|line[39]|line[45] != ' ' ||
-		line[2]&line[8]&line[33]&line[39]&line[45] != ' ' {
+	l := (*[51]byte)(line)
+	if l[2]|l[8]|l[33]|l[39]|l[45] != ' ' || l[2]&l[8]&l[33]&l[39]&l[45] != ' ' {
 		return false
 	}
-	t1, t2 := line[0], line[1]
-	if t1 < '0' || t1 > '3' || t2 < '0' || t2 > '2' || (t1 == '0' && t2 != '1') {
+	// The level type digits less '0', LVLTYP1 in the low byte; any byte
+	// outside '0'..'3' leaves bits outside 0x0303 (a borrow from a low
+	// byte below '0' included).
+	key := uint(binary.LittleEndian.Uint16(l[0:2])) - 0x3030
+	if key&^0x0303 != 0 {
 		return false
 	}
-	pf, zf, tf := line[15], line[21], line[27]
-	if !flagOK(pf) || !flagOK(zf) || !flagOK(tf) {
+	typ := levelTypes[(key|key>>6)&15]
+	tp, tz, tt := flagTiers[l[15]], flagTiers[l[21]], flagTiers[l[27]]
+	if !typ.ok || (tp|tz|tt)&badFlag != 0 {
 		return false
 	}
-	var raw [8]int
-	if !fixedFields((*[51]byte)(line), &raw) {
-		return false
-	}
-	et, pr, gh, te, rh, dd, wd, ws := raw[0], raw[1], raw[2], raw[3], raw[4], raw[5], raw[6], raw[7]
-
-	*lv = sounding.NewLevel()
-	switch {
-	case t2 == '1':
-		lv.Kind = sounding.KindSurface
-	case t1 == '1':
-		lv.Kind = sounding.KindStandard
-	case t1 == '2':
-		lv.Kind = sounding.KindSignificant
-	default:
-		lv.Kind = sounding.KindWindOnly
-	}
-	lv.Tropopause = t2 == '2'
-	if pf != ' ' {
-		lv.UpstreamTier[sounding.VarPressure] = pf
-	}
-	if zf != ' ' {
-		lv.UpstreamTier[sounding.VarHeight] = zf
-	}
-	if tf != ' ' {
-		lv.UpstreamTier[sounding.VarTemperature] = tf
-	}
-	lv.Status[sounding.VarPressure] = setValue(&lv.PressurePa, pr, 1, 0)
-	lv.Status[sounding.VarHeight] = setValue(&lv.HeightM, gh, 1, 0)
-	lv.Status[sounding.VarTemperature] = setValue(&lv.TemperatureK, te, 10, thermo.ZeroCelsiusK)
-	lv.Status[sounding.VarRelHumidity] = setValue(&lv.RelHumidityPct, rh, 10, 0)
-	lv.Status[sounding.VarDewpointDepression] = setValue(&lv.DewpointDepressionK, dd, 10, 0)
-	lv.Status[sounding.VarWindDirection] = setValue(&lv.WindDirectionDeg, wd, 1, 0)
-	lv.Status[sounding.VarWindSpeed] = setValue(&lv.WindSpeedMS, ws, 10, 0)
-	switch et {
-	case codeMissing:
-		lv.Status[sounding.VarElapsedTime] = sounding.Missing
-	case codeRemoved:
-		lv.Status[sounding.VarElapsedTime] = sounding.RemovedUpstream
-	default:
-		lv.ElapsedS = float64(et/100*60 + et%100)
-		lv.Status[sounding.VarElapsedTime] = sounding.Reported
-	}
-	if lv.Status[sounding.VarTemperature] == sounding.Reported &&
-		lv.Status[sounding.VarDewpointDepression] == sounding.Reported {
-		lv.DewpointK = lv.TemperatureK - lv.DewpointDepressionK
-	}
-	return true
-}
-
-func flagOK(f byte) bool { return f == ' ' || f == 'A' || f == 'B' }
-
-// fixedFields reads the eight integer fields of a data record into raw by
-// fixedWords' rule and reports whether every one was of that form. Each
-// field is read from the eight bytes that end at its last column (0-based
-// index 8, 15, 21, 27, 33, 39, 45 and 51) as a field of five characters;
-// the six-character pressure (columns 10–15) is its last five characters
-// and a first, column 10, that is a space or, before five digits, a digit.
-// A pressure of another form ('-' before five digits) is left to the
-// general path.
-func fixedFields(line *[51]byte, raw *[8]int) bool {
+	// Each field, in column order: a "-9999" (codeMissing, the commonest
+	// field of the real files) is taken whole, any other is read by
+	// fixedRun and fixedValue. st holds the status of Var v in its byte
+	// v; bad is nonzero when a field is not of fixedRun's form, and is
+	// tested once at the end (lv may then hold anything).
 	le := binary.LittleEndian
-	u := [8]uint64{le.Uint64(line[0:8]), le.Uint64(line[7:15]), le.Uint64(line[13:21]), le.Uint64(line[19:27]),
-		le.Uint64(line[25:33]), le.Uint64(line[31:39]), le.Uint64(line[37:45]), le.Uint64(line[43:51])}
-	if fixedWords(&u, raw) != 0 {
-		return false
+	nan := math.NaN()
+	var st, bad uint64
+	var s sounding.Status
+	if u := le.Uint64(l[0:8]); u&field5 == missing5 {
+		lv.ElapsedS = nan
+		st |= uint64(sounding.Missing) << (8 * sounding.VarElapsedTime)
+	} else {
+		run, neg, b := fixedRun(u)
+		bad |= b
+		// MMMSS: minutes and seconds.
+		switch et := fixedValue(u, run, neg); et {
+		case codeRemoved:
+			lv.ElapsedS = nan
+			st |= uint64(sounding.RemovedUpstream) << (8 * sounding.VarElapsedTime)
+		default:
+			lv.ElapsedS = float64(et/100*60 + et%100)
+		}
 	}
-	if c := line[9]; c != ' ' {
-		// Column 11 a digit: the last five columns are all digits.
-		if c-'0' > 9 || line[10]-'0' > 9 {
+	// The six-character pressure is read as its last five characters and
+	// column 10: a space or, before five digits (column 11 a digit), a
+	// digit. A pressure of another form ('-' before five digits) is left
+	// to the general path.
+	if u := le.Uint64(l[7:15]); u&field5 == missing5 {
+		if l[9] != ' ' {
 			return false
 		}
-		raw[1] += int(c-'0') * 100000
+		lv.PressurePa = nan
+		st |= uint64(sounding.Missing) << (8 * sounding.VarPressure)
+	} else {
+		run, neg, b := fixedRun(u)
+		bad |= b
+		p := fixedValue(u, run, neg)
+		if c := l[9]; c != ' ' {
+			if c-'0' > 9 || l[10]-'0' > 9 {
+				return false
+			}
+			p += int(c-'0') * 100000
+		}
+		s, lv.PressurePa = value(p, 1, 0)
+		st |= uint64(s) << (8 * sounding.VarPressure)
 	}
+	if u := le.Uint64(l[13:21]); u&field5 == missing5 {
+		lv.HeightM = nan
+		st |= uint64(sounding.Missing) << (8 * sounding.VarHeight)
+	} else {
+		run, neg, b := fixedRun(u)
+		bad |= b
+		s, lv.HeightM = value(fixedValue(u, run, neg), 1, 0)
+		st |= uint64(s) << (8 * sounding.VarHeight)
+	}
+	if u := le.Uint64(l[19:27]); u&field5 == missing5 {
+		lv.TemperatureK = nan
+		st |= uint64(sounding.Missing) << (8 * sounding.VarTemperature)
+	} else {
+		run, neg, b := fixedRun(u)
+		bad |= b
+		s, lv.TemperatureK = value(fixedValue(u, run, neg), 10, thermo.ZeroCelsiusK)
+		st |= uint64(s) << (8 * sounding.VarTemperature)
+	}
+	if u := le.Uint64(l[25:33]); u&field5 == missing5 {
+		lv.RelHumidityPct = nan
+		st |= uint64(sounding.Missing) << (8 * sounding.VarRelHumidity)
+	} else {
+		run, neg, b := fixedRun(u)
+		bad |= b
+		s, lv.RelHumidityPct = value(fixedValue(u, run, neg), 10, 0)
+		st |= uint64(s) << (8 * sounding.VarRelHumidity)
+	}
+	if u := le.Uint64(l[31:39]); u&field5 == missing5 {
+		lv.DewpointDepressionK = nan
+		st |= uint64(sounding.Missing) << (8 * sounding.VarDewpointDepression)
+	} else {
+		run, neg, b := fixedRun(u)
+		bad |= b
+		s, lv.DewpointDepressionK = value(fixedValue(u, run, neg), 10, 0)
+		st |= uint64(s) << (8 * sounding.VarDewpointDepression)
+	}
+	if u := le.Uint64(l[37:45]); u&field5 == missing5 {
+		lv.WindDirectionDeg = nan
+		st |= uint64(sounding.Missing) << (8 * sounding.VarWindDirection)
+	} else {
+		run, neg, b := fixedRun(u)
+		bad |= b
+		s, lv.WindDirectionDeg = value(fixedValue(u, run, neg), 1, 0)
+		st |= uint64(s) << (8 * sounding.VarWindDirection)
+	}
+	if u := le.Uint64(l[43:51]); u&field5 == missing5 {
+		lv.WindSpeedMS = nan
+		st |= uint64(sounding.Missing) << (8 * sounding.VarWindSpeed)
+	} else {
+		run, neg, b := fixedRun(u)
+		bad |= b
+		s, lv.WindSpeedMS = value(fixedValue(u, run, neg), 10, 0)
+		st |= uint64(s) << (8 * sounding.VarWindSpeed)
+	}
+	if bad != 0 {
+		return false
+	}
+	if (st>>(8*sounding.VarTemperature)|st>>(8*sounding.VarDewpointDepression))&0xff == uint64(sounding.Reported) {
+		lv.DewpointK = lv.TemperatureK - lv.DewpointDepressionK
+	} else {
+		lv.DewpointK = nan
+	}
+	lv.LatDisplacementDeg, lv.LonDisplacementDeg = nan, nan
+	lv.Kind, lv.Tropopause = typ.kind, typ.tropopause
+	// Stored as two words (the compiler joins byte stores of one word).
+	lv.Status = [sounding.NumVars]sounding.Status{sounding.Status(st), sounding.Status(st >> 8),
+		sounding.Status(st >> 16), sounding.Status(st >> 24), sounding.Status(st >> 32),
+		sounding.Status(st >> 40), sounding.Status(st >> 48), sounding.Status(st >> 56)}
+	tw := uint64(tp)<<(8*sounding.VarPressure) | uint64(tz)<<(8*sounding.VarHeight) | uint64(tt)<<(8*sounding.VarTemperature)
+	lv.UpstreamTier = [sounding.NumVars]byte{byte(tw), byte(tw >> 8), byte(tw >> 16), byte(tw >> 24),
+		byte(tw >> 32), byte(tw >> 40), byte(tw >> 48), byte(tw >> 56)}
+	lv.Line = 0
 	return true
 }
 
-// Byte-wise constants of fixedWords: each repeats one byte eight times.
+// levelType is what the two level type columns of a data record give.
+type levelType struct {
+	kind       sounding.LevelKind
+	tropopause bool
+	ok         bool // the columns are a valid level type
+}
+
+// levelTypes holds levelKind of the level type columns "00" to "33":
+// entry t1 + 4·t2 for LVLTYP1 '0'+t1 and LVLTYP2 '0'+t2.
+var levelTypes = func() (tab [16]levelType) {
+	for i := range tab {
+		k, tr, ok := levelKind(byte('0'+i%4), byte('0'+i/4))
+		tab[i] = levelType{k, tr, ok}
+	}
+	return tab
+}()
+
+// badFlag marks a byte that is not a valid flag in flagTiers.
+const badFlag = 0x80
+
+// flagTiers gives, for each byte of a flag column, the UpstreamTier entry
+// it makes: 0 for a blank, 'A' and 'B' for themselves, badFlag for any
+// other byte.
+var flagTiers = func() (tab [256]byte) {
+	for i := range tab {
+		tab[i] = badFlag
+	}
+	tab[' '], tab['A'], tab['B'] = 0, 'A', 'B'
+	return tab
+}()
+
+// Byte-wise constants of fixedRun: each repeats one byte eight times.
 const (
-	ones  = 0x0101010101010101
-	bit4s = 0x10 * ones
+	ones = 0x0101010101010101
 	// field5 is the mask of the top five bytes of a word: the characters
 	// of a five-character field that ends at the word's top byte.
 	field5 = uint64(0xffffffffff) << 24
+	// digits5 has bit 7 of each of those bytes.
+	digits5 = 0x80 * ones & field5
+	// missing5 is the word of a field "-9999" (codeMissing) in those bytes.
+	missing5 = uint64('-'|'9'<<8|'9'<<16|'9'<<24|'9'<<32) << 24
 )
 
-// fixedWords reads eight right-aligned integer fields of five characters
-// into raw: field k is the top five bytes of u[k], the eight bytes that end
-// at its last character as a little-endian word, so the field's last
-// character is the word's top byte. A field must be spaces, then an
-// optional '-', then at least one digit up to its end; bad is nonzero when
-// any field is of another form (blank, left-aligned, '+', embedded spaces,
-// other bytes), which atoi may still read. Where a field is of that form
-// its value is atoi's. The fields are tested without branching and the
-// caller decides once; the field width is a constant, so the masks fold
-// into the instructions.
+// fixedRun tests the right-aligned integer field of five characters that
+// ends at the top byte of u, the eight bytes that end at the field's last
+// character as a little-endian word (the three below the field are not
+// looked at). The field must be spaces, then an optional '-', then at
+// least one digit up to its end; bad is nonzero when it is of another form
+// (blank, left-aligned, '+', embedded spaces, other bytes), which atoi may
+// still read. For a field of that form, run has the bits of its digits'
+// bytes and neg is all ones when it is negative, else zero; fixedValue
+// then gives atoi's value. The test has no branch, so that a record's
+// fields are decided at once.
 //
-// A byte is a digit when its high nibble is 3 and its low nibble at most 9;
-// the highest non-digit byte ends the run of digits, and the digits'
-// values, their low nibbles, are combined pairwise by three
-// multiplications (two digits, then four, then eight).
-func fixedWords(u *[8]uint64, raw *[8]int) (bad uint64) {
-	const field = field5
-	for k := range 8 {
-		u := u[k]
-		// Bit 4 of each byte of nd is set where the byte is not a digit,
-		// and in the byte just below the field (a sentinel).
-		hi := (u & (0xf0 * ones)) ^ (0x30 * ones)
-		nd := (((hi >> 4) + 0x0f*ones) | ((u & (0x0f * ones)) + 0x06*ones)) & (field & bit4s)
-		nd |= (^field ^ ^field>>8) & bit4s
-		bad |= nd >> 56 // the last character is not a digit
-		// The highest non-digit byte p has its bit 4 at 8p+4, so z =
-		// 56-8p, and the bytes up to p are the low 64-z bits.
-		z := uint(bits.LeadingZeros64(nd)) & 56
-		below := ^uint64(0) >> z
-		lead := u & below & field
-		spaces := below & (0x20 * ones & field)
-		minus := spaces ^ (0x20^'-')<<56>>z
-		// lead must be all spaces, or spaces and a minus sign just
-		// before the digits.
-		isMinus := b2u(lead == minus)
-		bad |= uint64(b2u(lead != spaces) &^ isMinus)
-		d := u & (0x0f * ones) &^ below // digit values, most significant first
-		d = (d * (10<<8 + 1)) >> 8 & (0x00ff00ff00ff00ff)
-		d = (d * (100<<16 + 1)) >> 16 & (0x0000ffff0000ffff)
-		d = (d * (10000<<32 + 1)) >> 32
-		neg := -int(isMinus) // all ones for a negative value
-		raw[k] = (int(d) ^ neg) - neg
+// A byte is a digit when its xor with '0' is at most 9. The digits must
+// run from the lowest digit of the field to its end and the bytes below
+// them be spaces, but for a '-' just below them.
+func fixedRun(u uint64) (run, neg, bad uint64) {
+	t := u ^ 0x30*ones
+	d := ((t&(0x7f*ones)+0x76*ones)|t)&digits5 ^ digits5 // bit 7 of each digit
+	low := d & -d                                        // bit 7 of the lowest digit
+	run = -(low >> 7)                                    // the bytes from the lowest digit up
+	// The bytes below the run, xor spaces: zero, or '-'^' ' just below
+	// the run for a negative value.
+	w := (u ^ 0x20*ones) & field5 &^ run
+	if w != 0 {
+		neg = ^uint64(0)
 	}
-	return bad
+	// From the lowest digit to the top every byte is a digit (no digit,
+	// low = 0, leaves the top bit alone), and the bytes below are as said.
+	return run, neg, d ^ (-low&(0x80*ones) | 1<<63) | w ^ ((low>>15)*('-'^' '))&neg
 }
 
-func b2u(b bool) uint {
-	if b {
-		return 1
-	}
-	return 0
+// fixedValue returns the value of the field fixedRun found in u with digit
+// bytes run and sign neg. The digits' values, their low nibbles, are
+// combined pairwise by three multiplications (two digits, then four, then
+// eight).
+func fixedValue(u, run, neg uint64) int {
+	x := u & (0x0f * ones) & run // digit values, most significant first
+	x = (x * (10<<8 + 1)) >> 8 & 0x00ff00ff00ff00ff
+	x = (x * (100<<16 + 1)) >> 16 & 0x0000ffff0000ffff
+	x = (x * (10000<<32 + 1)) >> 32
+	return int((x ^ neg) - neg)
 }
