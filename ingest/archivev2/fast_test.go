@@ -207,7 +207,7 @@ func TestFastLevelEdgeCases(t *testing.T) {
 // eight bytes b through fixedRun and fixedValue.
 func fixedField(b []byte) (int, bool) {
 	u := binary.LittleEndian.Uint64(b)
-	run, neg, bad := fixedRun(u)
+	run, neg, bad := fixedRun(u, field5)
 	return fixedValue(u, run, neg), bad == 0
 }
 

@@ -351,16 +351,7 @@ func value(raw int, scale, off float64) (sounding.Status, float64) {
 			return sounding.RemovedUpstream, math.NaN()
 		}
 	}
-	// x/1 and x+0 are x exactly (float64(raw) is never −0), so the
-	// unscaled fields skip the division.
-	x := float64(raw)
-	if scale != 1 {
-		x /= scale
-	}
-	if off != 0 {
-		x += off
-	}
-	return sounding.Reported, x
+	return sounding.Reported, scaled(raw, scale, off)
 }
 
 // parseLevelFast reads the common data record, in which every field is
@@ -378,13 +369,10 @@ func value(raw int, scale, off float64) (sounding.Status, float64) {
 // the statuses and the flags are put together as words and stored whole,
 // the level type is looked up in levelTypes and the flags in flagTiers.
 func parseLevelFast(lv *sounding.Level, line []byte) bool {
-	if len(line) < 51 {
+	if len(line) < 51 || line[8] != ' ' {
 		return false
 	}
 	l := (*[51]byte)(line)
-	if l[2]|l[8]|l[33]|l[39]|l[45] != ' ' || l[2]&l[8]&l[33]&l[39]&l[45] != ' ' {
-		return false
-	}
 	// The level type digits less '0', LVLTYP1 in the low byte; any byte
 	// outside '0'..'3' leaves bits outside 0x0303 (a borrow from a low
 	// byte below '0' included).
@@ -397,42 +385,44 @@ func parseLevelFast(lv *sounding.Level, line []byte) bool {
 	if !typ.ok || (tp|tz|tt)&badFlag != 0 {
 		return false
 	}
+	lv.Kind, lv.Tropopause = typ.kind, typ.tropopause
+	// Stored as one word (the compiler joins byte stores of one word).
+	tw := uint64(tp)<<(8*sounding.VarPressure) | uint64(tz)<<(8*sounding.VarHeight) | uint64(tt)<<(8*sounding.VarTemperature)
+	lv.UpstreamTier = [sounding.NumVars]byte{byte(tw), byte(tw >> 8), byte(tw >> 16), byte(tw >> 24),
+		byte(tw >> 32), byte(tw >> 40), byte(tw >> 48), byte(tw >> 56)}
+
 	// Each field, in column order: a "-9999" (codeMissing, the commonest
 	// field of the real files) is taken whole, any other is read by
-	// fixedRun and fixedValue. st holds the status of Var v in its byte
-	// v; bad is nonzero when a field is not of fixedRun's form, and is
-	// tested once at the end (lv may then hold anything).
+	// fixedRun and fixedValue; the fields after a blank column (ETIME,
+	// DPDP, WDIR, WSPD) are read with it (field6), which must stay blank.
+	// st holds the status of Var v in its byte v; bad is nonzero when a
+	// field is not of fixedRun's form, and is tested once at the end (lv
+	// may then hold anything).
 	le := binary.LittleEndian
 	nan := math.NaN()
 	var st, bad uint64
-	var s sounding.Status
-	if u := le.Uint64(l[0:8]); u&field5 == missing5 {
+	if u := le.Uint64(l[0:8]); u&field6 == missing5|blank2 {
 		lv.ElapsedS = nan
 		st |= uint64(sounding.Missing) << (8 * sounding.VarElapsedTime)
 	} else {
-		run, neg, b := fixedRun(u)
+		run, neg, b := fixedRun(u, field6)
 		bad |= b
-		// MMMSS: minutes and seconds.
-		switch et := fixedValue(u, run, neg); et {
-		case codeRemoved:
+		if u&field5 == removed5 {
 			lv.ElapsedS = nan
 			st |= uint64(sounding.RemovedUpstream) << (8 * sounding.VarElapsedTime)
-		default:
-			lv.ElapsedS = float64(et/100*60 + et%100)
+		} else {
+			lv.ElapsedS = float64(fixedSeconds(u, run, neg))
 		}
 	}
 	// The six-character pressure is read as its last five characters and
 	// column 10: a space or, before five digits (column 11 a digit), a
 	// digit. A pressure of another form ('-' before five digits) is left
 	// to the general path.
-	if u := le.Uint64(l[7:15]); u&field5 == missing5 {
-		if l[9] != ' ' {
-			return false
-		}
+	if u := le.Uint64(l[7:15]); u&field6 == missing5|blank2 {
 		lv.PressurePa = nan
 		st |= uint64(sounding.Missing) << (8 * sounding.VarPressure)
 	} else {
-		run, neg, b := fixedRun(u)
+		run, neg, b := fixedRun(u, field5)
 		bad |= b
 		p := fixedValue(u, run, neg)
 		if c := l[9]; c != ' ' {
@@ -441,62 +431,90 @@ func parseLevelFast(lv *sounding.Level, line []byte) bool {
 			}
 			p += int(c-'0') * 100000
 		}
-		s, lv.PressurePa = value(p, 1, 0)
-		st |= uint64(s) << (8 * sounding.VarPressure)
+		if p == codeRemoved {
+			lv.PressurePa = nan
+			st |= uint64(sounding.RemovedUpstream) << (8 * sounding.VarPressure)
+		} else {
+			lv.PressurePa = float64(p)
+		}
 	}
 	if u := le.Uint64(l[13:21]); u&field5 == missing5 {
 		lv.HeightM = nan
 		st |= uint64(sounding.Missing) << (8 * sounding.VarHeight)
 	} else {
-		run, neg, b := fixedRun(u)
+		run, neg, b := fixedRun(u, field5)
 		bad |= b
-		s, lv.HeightM = value(fixedValue(u, run, neg), 1, 0)
-		st |= uint64(s) << (8 * sounding.VarHeight)
+		if v := fixedValue(u, run, neg); v == codeRemoved {
+			lv.HeightM = nan
+			st |= uint64(sounding.RemovedUpstream) << (8 * sounding.VarHeight)
+		} else {
+			lv.HeightM = scaled(v, 1, 0)
+		}
 	}
 	if u := le.Uint64(l[19:27]); u&field5 == missing5 {
 		lv.TemperatureK = nan
 		st |= uint64(sounding.Missing) << (8 * sounding.VarTemperature)
 	} else {
-		run, neg, b := fixedRun(u)
+		run, neg, b := fixedRun(u, field5)
 		bad |= b
-		s, lv.TemperatureK = value(fixedValue(u, run, neg), 10, thermo.ZeroCelsiusK)
-		st |= uint64(s) << (8 * sounding.VarTemperature)
+		if v := fixedValue(u, run, neg); v == codeRemoved {
+			lv.TemperatureK = nan
+			st |= uint64(sounding.RemovedUpstream) << (8 * sounding.VarTemperature)
+		} else {
+			lv.TemperatureK = scaled(v, 10, thermo.ZeroCelsiusK)
+		}
 	}
 	if u := le.Uint64(l[25:33]); u&field5 == missing5 {
 		lv.RelHumidityPct = nan
 		st |= uint64(sounding.Missing) << (8 * sounding.VarRelHumidity)
 	} else {
-		run, neg, b := fixedRun(u)
+		run, neg, b := fixedRun(u, field5)
 		bad |= b
-		s, lv.RelHumidityPct = value(fixedValue(u, run, neg), 10, 0)
-		st |= uint64(s) << (8 * sounding.VarRelHumidity)
+		if v := fixedValue(u, run, neg); v == codeRemoved {
+			lv.RelHumidityPct = nan
+			st |= uint64(sounding.RemovedUpstream) << (8 * sounding.VarRelHumidity)
+		} else {
+			lv.RelHumidityPct = scaled(v, 10, 0)
+		}
 	}
-	if u := le.Uint64(l[31:39]); u&field5 == missing5 {
+	if u := le.Uint64(l[31:39]); u&field6 == missing5|blank2 {
 		lv.DewpointDepressionK = nan
 		st |= uint64(sounding.Missing) << (8 * sounding.VarDewpointDepression)
 	} else {
-		run, neg, b := fixedRun(u)
+		run, neg, b := fixedRun(u, field6)
 		bad |= b
-		s, lv.DewpointDepressionK = value(fixedValue(u, run, neg), 10, 0)
-		st |= uint64(s) << (8 * sounding.VarDewpointDepression)
+		if v := fixedValue(u, run, neg); v == codeRemoved {
+			lv.DewpointDepressionK = nan
+			st |= uint64(sounding.RemovedUpstream) << (8 * sounding.VarDewpointDepression)
+		} else {
+			lv.DewpointDepressionK = scaled(v, 10, 0)
+		}
 	}
-	if u := le.Uint64(l[37:45]); u&field5 == missing5 {
+	if u := le.Uint64(l[37:45]); u&field6 == missing5|blank2 {
 		lv.WindDirectionDeg = nan
 		st |= uint64(sounding.Missing) << (8 * sounding.VarWindDirection)
 	} else {
-		run, neg, b := fixedRun(u)
+		run, neg, b := fixedRun(u, field6)
 		bad |= b
-		s, lv.WindDirectionDeg = value(fixedValue(u, run, neg), 1, 0)
-		st |= uint64(s) << (8 * sounding.VarWindDirection)
+		if v := fixedValue(u, run, neg); v == codeRemoved {
+			lv.WindDirectionDeg = nan
+			st |= uint64(sounding.RemovedUpstream) << (8 * sounding.VarWindDirection)
+		} else {
+			lv.WindDirectionDeg = scaled(v, 1, 0)
+		}
 	}
-	if u := le.Uint64(l[43:51]); u&field5 == missing5 {
+	if u := le.Uint64(l[43:51]); u&field6 == missing5|blank2 {
 		lv.WindSpeedMS = nan
 		st |= uint64(sounding.Missing) << (8 * sounding.VarWindSpeed)
 	} else {
-		run, neg, b := fixedRun(u)
+		run, neg, b := fixedRun(u, field6)
 		bad |= b
-		s, lv.WindSpeedMS = value(fixedValue(u, run, neg), 10, 0)
-		st |= uint64(s) << (8 * sounding.VarWindSpeed)
+		if v := fixedValue(u, run, neg); v == codeRemoved {
+			lv.WindSpeedMS = nan
+			st |= uint64(sounding.RemovedUpstream) << (8 * sounding.VarWindSpeed)
+		} else {
+			lv.WindSpeedMS = scaled(v, 10, 0)
+		}
 	}
 	if bad != 0 {
 		return false
@@ -507,16 +525,26 @@ func parseLevelFast(lv *sounding.Level, line []byte) bool {
 		lv.DewpointK = nan
 	}
 	lv.LatDisplacementDeg, lv.LonDisplacementDeg = nan, nan
-	lv.Kind, lv.Tropopause = typ.kind, typ.tropopause
-	// Stored as two words (the compiler joins byte stores of one word).
 	lv.Status = [sounding.NumVars]sounding.Status{sounding.Status(st), sounding.Status(st >> 8),
 		sounding.Status(st >> 16), sounding.Status(st >> 24), sounding.Status(st >> 32),
 		sounding.Status(st >> 40), sounding.Status(st >> 48), sounding.Status(st >> 56)}
-	tw := uint64(tp)<<(8*sounding.VarPressure) | uint64(tz)<<(8*sounding.VarHeight) | uint64(tt)<<(8*sounding.VarTemperature)
-	lv.UpstreamTier = [sounding.NumVars]byte{byte(tw), byte(tw >> 8), byte(tw >> 16), byte(tw >> 24),
-		byte(tw >> 32), byte(tw >> 40), byte(tw >> 48), byte(tw >> 56)}
 	lv.Line = 0
 	return true
+}
+
+// scaled returns raw/scale + off, value's reading of a field that is not
+// a special code.
+func scaled(raw int, scale, off float64) float64 {
+	// x/1 and x+0 are x exactly (float64(raw) is never −0), so the
+	// unscaled fields skip the division.
+	x := float64(raw)
+	if scale != 1 {
+		x /= scale
+	}
+	if off != 0 {
+		x += off
+	}
+	return x
 }
 
 // levelType is what the two level type columns of a data record give.
@@ -556,40 +584,47 @@ const (
 	// field5 is the mask of the top five bytes of a word: the characters
 	// of a five-character field that ends at the word's top byte.
 	field5 = uint64(0xffffffffff) << 24
-	// digits5 has bit 7 of each of those bytes.
+	// field6 is field5 and the byte below, a blank column before some
+	// fields; blank2 is a space in that byte.
+	field6 = uint64(0xffffffffffff) << 16
+	blank2 = ' ' << 16
+	// digits5 has bit 7 of each byte of field5.
 	digits5 = 0x80 * ones & field5
-	// missing5 is the word of a field "-9999" (codeMissing) in those bytes.
+	// missing5 and removed5 are the fields "-9999" (codeMissing) and
+	// "-8888" (codeRemoved) in the bytes of field5.
 	missing5 = uint64('-'|'9'<<8|'9'<<16|'9'<<24|'9'<<32) << 24
+	removed5 = uint64('-'|'8'<<8|'8'<<16|'8'<<24|'8'<<32) << 24
 )
 
 // fixedRun tests the right-aligned integer field of five characters that
 // ends at the top byte of u, the eight bytes that end at the field's last
-// character as a little-endian word (the three below the field are not
-// looked at). The field must be spaces, then an optional '-', then at
-// least one digit up to its end; bad is nonzero when it is of another form
-// (blank, left-aligned, '+', embedded spaces, other bytes), which atoi may
-// still read. For a field of that form, run has the bits of its digits'
+// character as a little-endian word. The field must be spaces, then an
+// optional '-', then at least one digit up to its end; bad is nonzero when
+// it is of another form (blank, left-aligned, '+', embedded spaces, other
+// bytes), which atoi may still read, or when a byte of lead (field5, or
+// field6 for a field with a blank column before it) below the field is
+// not a space. For a field of that form, run has the bits of its digits'
 // bytes and neg is all ones when it is negative, else zero; fixedValue
 // then gives atoi's value. The test has no branch, so that a record's
 // fields are decided at once.
 //
 // A byte is a digit when its xor with '0' is at most 9. The digits must
 // run from the lowest digit of the field to its end and the bytes below
-// them be spaces, but for a '-' just below them.
-func fixedRun(u uint64) (run, neg, bad uint64) {
+// them be spaces, but for a '-' just below them inside the field.
+func fixedRun(u, lead uint64) (run, neg, bad uint64) {
 	t := u ^ 0x30*ones
 	d := ((t&(0x7f*ones)+0x76*ones)|t)&digits5 ^ digits5 // bit 7 of each digit
 	low := d & -d                                        // bit 7 of the lowest digit
 	run = -(low >> 7)                                    // the bytes from the lowest digit up
 	// The bytes below the run, xor spaces: zero, or '-'^' ' just below
 	// the run for a negative value.
-	w := (u ^ 0x20*ones) & field5 &^ run
+	w := (u ^ 0x20*ones) & lead &^ run
 	if w != 0 {
 		neg = ^uint64(0)
 	}
 	// From the lowest digit to the top every byte is a digit (no digit,
-	// low = 0, leaves the top bit alone), and the bytes below are as said.
-	return run, neg, d ^ (-low&(0x80*ones) | 1<<63) | w ^ ((low>>15)*('-'^' '))&neg
+	// run = 0, leaves the top bit alone), and the bytes below are as said.
+	return run, neg, d ^ (run&(0x80*ones) | 1<<63) | w ^ ((low>>15)*('-'^' ')&field5)&neg
 }
 
 // fixedValue returns the value of the field fixedRun found in u with digit
@@ -601,5 +636,17 @@ func fixedValue(u, run, neg uint64) int {
 	x = (x * (10<<8 + 1)) >> 8 & 0x00ff00ff00ff00ff
 	x = (x * (100<<16 + 1)) >> 16 & 0x0000ffff0000ffff
 	x = (x * (10000<<32 + 1)) >> 32
+	return int((x ^ neg) - neg)
+}
+
+// fixedSeconds is fixedValue for an elapsed time MMMSS, which it returns
+// in seconds, MMM·60 + SS, with the sign of the field. After the first
+// multiplication the 16-bit lanes hold 0, M, MM and SS (most significant
+// first), and one more multiplication sums 6000·M + 60·MM + SS in the top
+// lane (at most 60039: no lane overflows into the next).
+func fixedSeconds(u, run, neg uint64) int {
+	x := u & (0x0f * ones) & run
+	x = (x * (10<<8 + 1)) >> 8 & 0x00ff00ff00ff00ff
+	x = (x * (6000<<32 + 60<<16 + 1)) >> 48
 	return int((x ^ neg) - neg)
 }
