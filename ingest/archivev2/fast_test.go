@@ -207,8 +207,8 @@ func TestFastLevelEdgeCases(t *testing.T) {
 // eight bytes b through fixedRun and fixedValue.
 func fixedField(b []byte) (int, bool) {
 	u := binary.LittleEndian.Uint64(b)
-	run, neg, bad := fixedRun(u, field5)
-	return fixedValue(u, run, neg), bad == 0
+	x, neg, bad, nd := fixedRun(u, field5)
+	return fixedValue(x, neg), bad|nd&(0x80*ones) == 0
 }
 
 // TestFixedFieldMatchesAtoi: wherever fixedField reads a field, atoi

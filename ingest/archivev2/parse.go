@@ -395,23 +395,23 @@ func parseLevelFast(lv *sounding.Level, line []byte) bool {
 	// field of the real files) is taken whole, any other is read by
 	// fixedRun and fixedValue; the fields after a blank column (ETIME,
 	// DPDP, WDIR, WSPD) are read with it (field6), which must stay blank.
-	// st holds the status of Var v in its byte v; bad is nonzero when a
-	// field is not of fixedRun's form, and is tested once at the end (lv
-	// may then hold anything).
+	// st holds the status of Var v in its byte v; bad, and bit 7 of a
+	// byte of nd, are set when a field is not of fixedRun's form, and are
+	// tested once at the end (lv may then hold anything).
 	le := binary.LittleEndian
 	nan := math.NaN()
-	var st, bad uint64
+	var st, bad, nd uint64
 	if u := le.Uint64(l[0:8]); u&field6 == missing5|blank2 {
 		lv.ElapsedS = nan
 		st |= uint64(sounding.Missing) << (8 * sounding.VarElapsedTime)
 	} else {
-		run, neg, b := fixedRun(u, field6)
-		bad |= b
+		x, neg, b, c := fixedRun(u, field6)
+		bad, nd = bad|b, nd|c
 		if u&field5 == removed5 {
 			lv.ElapsedS = nan
 			st |= uint64(sounding.RemovedUpstream) << (8 * sounding.VarElapsedTime)
 		} else {
-			lv.ElapsedS = float64(fixedSeconds(u, run, neg))
+			lv.ElapsedS = float64(fixedSeconds(x, neg))
 		}
 	}
 	// The six-character pressure is read as its last five characters and
@@ -422,9 +422,9 @@ func parseLevelFast(lv *sounding.Level, line []byte) bool {
 		lv.PressurePa = nan
 		st |= uint64(sounding.Missing) << (8 * sounding.VarPressure)
 	} else {
-		run, neg, b := fixedRun(u, field5)
-		bad |= b
-		p := fixedValue(u, run, neg)
+		x, neg, b, c := fixedRun(u, field5)
+		bad, nd = bad|b, nd|c
+		p := fixedValue(x, neg)
 		if c := l[9]; c != ' ' {
 			if c-'0' > 9 || l[10]-'0' > 9 {
 				return false
@@ -442,9 +442,9 @@ func parseLevelFast(lv *sounding.Level, line []byte) bool {
 		lv.HeightM = nan
 		st |= uint64(sounding.Missing) << (8 * sounding.VarHeight)
 	} else {
-		run, neg, b := fixedRun(u, field5)
-		bad |= b
-		if v := fixedValue(u, run, neg); v == codeRemoved {
+		x, neg, b, c := fixedRun(u, field5)
+		bad, nd = bad|b, nd|c
+		if v := fixedValue(x, neg); v == codeRemoved {
 			lv.HeightM = nan
 			st |= uint64(sounding.RemovedUpstream) << (8 * sounding.VarHeight)
 		} else {
@@ -455,9 +455,9 @@ func parseLevelFast(lv *sounding.Level, line []byte) bool {
 		lv.TemperatureK = nan
 		st |= uint64(sounding.Missing) << (8 * sounding.VarTemperature)
 	} else {
-		run, neg, b := fixedRun(u, field5)
-		bad |= b
-		if v := fixedValue(u, run, neg); v == codeRemoved {
+		x, neg, b, c := fixedRun(u, field5)
+		bad, nd = bad|b, nd|c
+		if v := fixedValue(x, neg); v == codeRemoved {
 			lv.TemperatureK = nan
 			st |= uint64(sounding.RemovedUpstream) << (8 * sounding.VarTemperature)
 		} else {
@@ -468,9 +468,9 @@ func parseLevelFast(lv *sounding.Level, line []byte) bool {
 		lv.RelHumidityPct = nan
 		st |= uint64(sounding.Missing) << (8 * sounding.VarRelHumidity)
 	} else {
-		run, neg, b := fixedRun(u, field5)
-		bad |= b
-		if v := fixedValue(u, run, neg); v == codeRemoved {
+		x, neg, b, c := fixedRun(u, field5)
+		bad, nd = bad|b, nd|c
+		if v := fixedValue(x, neg); v == codeRemoved {
 			lv.RelHumidityPct = nan
 			st |= uint64(sounding.RemovedUpstream) << (8 * sounding.VarRelHumidity)
 		} else {
@@ -481,9 +481,9 @@ func parseLevelFast(lv *sounding.Level, line []byte) bool {
 		lv.DewpointDepressionK = nan
 		st |= uint64(sounding.Missing) << (8 * sounding.VarDewpointDepression)
 	} else {
-		run, neg, b := fixedRun(u, field6)
-		bad |= b
-		if v := fixedValue(u, run, neg); v == codeRemoved {
+		x, neg, b, c := fixedRun(u, field6)
+		bad, nd = bad|b, nd|c
+		if v := fixedValue(x, neg); v == codeRemoved {
 			lv.DewpointDepressionK = nan
 			st |= uint64(sounding.RemovedUpstream) << (8 * sounding.VarDewpointDepression)
 		} else {
@@ -494,9 +494,9 @@ func parseLevelFast(lv *sounding.Level, line []byte) bool {
 		lv.WindDirectionDeg = nan
 		st |= uint64(sounding.Missing) << (8 * sounding.VarWindDirection)
 	} else {
-		run, neg, b := fixedRun(u, field6)
-		bad |= b
-		if v := fixedValue(u, run, neg); v == codeRemoved {
+		x, neg, b, c := fixedRun(u, field6)
+		bad, nd = bad|b, nd|c
+		if v := fixedValue(x, neg); v == codeRemoved {
 			lv.WindDirectionDeg = nan
 			st |= uint64(sounding.RemovedUpstream) << (8 * sounding.VarWindDirection)
 		} else {
@@ -507,16 +507,16 @@ func parseLevelFast(lv *sounding.Level, line []byte) bool {
 		lv.WindSpeedMS = nan
 		st |= uint64(sounding.Missing) << (8 * sounding.VarWindSpeed)
 	} else {
-		run, neg, b := fixedRun(u, field6)
-		bad |= b
-		if v := fixedValue(u, run, neg); v == codeRemoved {
+		x, neg, b, c := fixedRun(u, field6)
+		bad, nd = bad|b, nd|c
+		if v := fixedValue(x, neg); v == codeRemoved {
 			lv.WindSpeedMS = nan
 			st |= uint64(sounding.RemovedUpstream) << (8 * sounding.VarWindSpeed)
 		} else {
 			lv.WindSpeedMS = scaled(v, 10, 0)
 		}
 	}
-	if bad != 0 {
+	if bad|nd&(0x80*ones) != 0 {
 		return false
 	}
 	if (st>>(8*sounding.VarTemperature)|st>>(8*sounding.VarDewpointDepression))&0xff == uint64(sounding.Reported) {
@@ -588,8 +588,6 @@ const (
 	// fields; blank2 is a space in that byte.
 	field6 = uint64(0xffffffffffff) << 16
 	blank2 = ' ' << 16
-	// digits5 has bit 7 of each byte of field5.
-	digits5 = 0x80 * ones & field5
 	// missing5 and removed5 are the fields "-9999" (codeMissing) and
 	// "-8888" (codeRemoved) in the bytes of field5.
 	missing5 = uint64('-'|'9'<<8|'9'<<16|'9'<<24|'9'<<32) << 24
@@ -599,40 +597,42 @@ const (
 // fixedRun tests the right-aligned integer field of five characters that
 // ends at the top byte of u, the eight bytes that end at the field's last
 // character as a little-endian word. The field must be spaces, then an
-// optional '-', then at least one digit up to its end; bad is nonzero when
-// it is of another form (blank, left-aligned, '+', embedded spaces, other
-// bytes), which atoi may still read, or when a byte of lead (field5, or
-// field6 for a field with a blank column before it) below the field is
-// not a space. For a field of that form, run has the bits of its digits'
-// bytes and neg is all ones when it is negative, else zero; fixedValue
+// optional '-', then at least one digit up to its end; it is of another
+// form (blank, left-aligned, '+', embedded spaces, other bytes), which
+// atoi may still read, when bad is nonzero or bit 7 of any byte of nd is
+// set, and so when a byte of lead (field5, or field6 for a field with a
+// blank column before it) below the field is not a space. nd is to be
+// tested by the caller, once for all the fields of a record. For a field
+// of that form, x holds the values of its digits in their bytes (others
+// zero) and neg is all ones when it is negative, else zero; fixedValue
 // then gives atoi's value. The test has no branch, so that a record's
 // fields are decided at once.
 //
-// A byte is a digit when its xor with '0' is at most 9. The digits must
-// run from the lowest digit of the field to its end and the bytes below
-// them be spaces, but for a '-' just below them inside the field.
-func fixedRun(u, lead uint64) (run, neg, bad uint64) {
-	t := u ^ 0x30*ones
-	d := ((t&(0x7f*ones)+0x76*ones)|t)&digits5 ^ digits5 // bit 7 of each digit
-	low := d & -d                                        // bit 7 of the lowest digit
-	run = -(low >> 7)                                    // the bytes from the lowest digit up
+// Digits, 0x30 to 0x39, have bit 4 set, which a space (0x20) or '-'
+// (0x2d) has not. The bytes from the lowest byte with bit 4 (or the top
+// byte, when none has it) up to the top must be digits, their xor with
+// '0' at most 9 (tested by adding 0x76 in nd), and the bytes below them be
+// spaces, but for a '-' just below them inside the field.
+func fixedRun(u, lead uint64) (x, neg, bad, nd uint64) {
+	b := u&(0x10*ones&field5) | 0x10<<56 // bit 4 of each byte of the field, and of the top byte
+	low := b & -b                        // of the lowest byte that has it
+	run := -(low >> 4)                   // the bytes from that one up
+	x = (u ^ 0x30*ones) & run
 	// The bytes below the run, xor spaces: zero, or '-'^' ' just below
 	// the run for a negative value.
 	w := (u ^ 0x20*ones) & lead &^ run
 	if w != 0 {
 		neg = ^uint64(0)
 	}
-	// From the lowest digit to the top every byte is a digit (no digit,
-	// run = 0, leaves the top bit alone), and the bytes below are as said.
-	return run, neg, d ^ (run&(0x80*ones) | 1<<63) | w ^ ((low>>15)*('-'^' ')&field5)&neg
+	bad = w ^ ((low>>12)*('-'^' ')&field5)&neg
+	return x, neg, bad, (x + 0x76*ones) | x
 }
 
-// fixedValue returns the value of the field fixedRun found in u with digit
-// bytes run and sign neg. The digits' values, their low nibbles, are
-// combined pairwise by three multiplications (two digits, then four, then
-// eight).
-func fixedValue(u, run, neg uint64) int {
-	x := u & (0x0f * ones) & run // digit values, most significant first
+// fixedValue returns the value of the field fixedRun found, from its digit
+// values x and sign neg. The digits are combined pairwise by three
+// multiplications (two digits, then four, then eight; the most
+// significant is the lowest byte).
+func fixedValue(x, neg uint64) int {
 	x = (x * (10<<8 + 1)) >> 8 & 0x00ff00ff00ff00ff
 	x = (x * (100<<16 + 1)) >> 16 & 0x0000ffff0000ffff
 	x = (x * (10000<<32 + 1)) >> 32
@@ -644,8 +644,7 @@ func fixedValue(u, run, neg uint64) int {
 // multiplication the 16-bit lanes hold 0, M, MM and SS (most significant
 // first), and one more multiplication sums 6000·M + 60·MM + SS in the top
 // lane (at most 60039: no lane overflows into the next).
-func fixedSeconds(u, run, neg uint64) int {
-	x := u & (0x0f * ones) & run
+func fixedSeconds(x, neg uint64) int {
 	x = (x * (10<<8 + 1)) >> 8 & 0x00ff00ff00ff00ff
 	x = (x * (6000<<32 + 60<<16 + 1)) >> 48
 	return int((x ^ neg) - neg)
