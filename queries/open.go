@@ -81,7 +81,15 @@ func Open(ctx context.Context, storeDir string) (*sql.DB, error) {
 		// files never change under a name, so their footers can be kept.
 		// The time zone is set globally, for every connection, before the
 		// configuration is locked.
-		for _, set := range append([]string{"SET GLOBAL TimeZone = 'UTC'", "SET parquet_metadata_cache = true"}, offline...) {
+		//
+		// DuckDB's own cache of file contents is off: the operating
+		// system's page cache already holds the store's files, and the
+		// second copy only adds memory that is faulted in fresh. Seasonal
+		// climatology of 600 station-years (438,300 soundings), eight
+		// alternating runs on 3 December 2026: peak RSS 406 -> 330 MB,
+		// page faults 91,000 -> 65,000, CPU 1.45 -> 1.25 s, wall (median)
+		// 0.90 -> 0.75 s; every output byte the same.
+		for _, set := range append([]string{"SET GLOBAL TimeZone = 'UTC'", "SET parquet_metadata_cache = true", "SET enable_external_file_cache = false"}, offline...) {
 			if _, err := ex.ExecContext(context.Background(), set, nil); err != nil {
 				return fmt.Errorf("%s: %w", set, err)
 			}

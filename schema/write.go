@@ -264,6 +264,7 @@ func writePartition(dir, name string, enc func(*bufio.Writer) error, sync bool) 
 	}
 	if !sync {
 		// durability is the caller's (store.Sync before its commit)
+		startWriteback(tmp)
 	} else if err := tmp.Sync(); err != nil {
 		return "", fmt.Errorf("sync %s: %w", tmp.Name(), err)
 	}
