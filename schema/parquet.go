@@ -111,8 +111,9 @@ type pqWriter struct {
 	w        *bufio.Writer
 	pos      int64
 	codec    int32
-	raw      []byte // a page before compression
-	comp     []byte // a page compressed
+	zstd     *zstd.Encoder // made at the first zstd-compressed page
+	raw      []byte        // a page before compression
+	comp     []byte        // a page compressed
 	dictRaw  []byte
 	idx      []uint32
 	i32      []int32
@@ -129,9 +130,9 @@ type pqWriter struct {
 	fdicts   []floatDict // by column: the float dictionaries of the file
 }
 
-var pqWriters = sync.Pool{New: func() any { return &pqWriter{strIdx: map[string]int32{}} }}
+var pqWriters = keeper[*pqWriter]{fresh: func() *pqWriter { return &pqWriter{strIdx: map[string]int32{}} }}
 
-// zstdEncoders are encoders at the level the general writer used
+// newZstdEncoder returns an encoder at the level the general writer used
 // (compression level 1, klauspost's fastest), with its options but for
 // two. The frame checksum is optional (RFC 8878, section 3.1.1.1.1,
 // Content_Checksum_flag): the store's file sums already cover the files,
@@ -140,14 +141,15 @@ var pqWriters = sync.Pool{New: func() any { return &pqWriter{strIdx: map[string]
 // (WithAllLitEntropyCompression off, klauspost's default at this level):
 // the low bytes of split floats are such blocks, and trying to code them
 // cost 6 % of those instructions for 0.2 % of the file.
-var zstdEncoders = sync.Pool{New: func() any {
+// Each pqWriter keeps its own, with the encoder's history buffers.
+func newZstdEncoder() *zstd.Encoder {
 	e, err := zstd.NewWriter(nil, zstd.WithZeroFrames(true), zstd.WithEncoderLevel(zstd.EncoderLevelFromZstd(1)),
 		zstd.WithEncoderConcurrency(1), zstd.WithAllLitEntropyCompression(false), zstd.WithEncoderCRC(false))
 	if err != nil {
 		panic(err) // only for invalid options, which these are not
 	}
 	return e
-}}
+}
 
 // fileMetaKey identifies the key-value metadata of a table's files.
 type fileMetaKey struct {
@@ -183,10 +185,10 @@ func keyValues(table string, row reflect.Type, cols []Column) [][2]string {
 // writeParquet writes the n rows held in bufs (one per column of cols) as
 // a Parquet file of table to w. compact selects zstd (else Snappy).
 func writeParquet(w *bufio.Writer, table string, row reflect.Type, cols []Column, bufs []*colBuf, n int, zstdCodec bool) error {
-	pw := pqWriters.Get().(*pqWriter)
+	pw := pqWriters.get()
 	defer func() {
 		pw.w = nil
-		pqWriters.Put(pw)
+		pqWriters.put(pw)
 	}()
 	pw.w, pw.pos, pw.codec = w, 0, codecSnappy
 	if zstdCodec {
@@ -228,9 +230,10 @@ func (pw *pqWriter) compress(raw []byte, codec int32) []byte {
 		return raw
 	}
 	if codec == codecZstd {
-		e := zstdEncoders.Get().(*zstd.Encoder)
-		pw.comp = e.EncodeAll(raw, pw.comp[:0])
-		zstdEncoders.Put(e)
+		if pw.zstd == nil {
+			pw.zstd = newZstdEncoder()
+		}
+		pw.comp = pw.zstd.EncodeAll(raw, pw.comp[:0])
 	} else {
 		pw.comp = snappy.Encode(pw.comp[:cap(pw.comp)], raw)
 	}
@@ -749,7 +752,11 @@ const floatDictBlock = 4096
 // of a column serves all its row groups.
 func (pw *pqWriter) floatDicts(cols []Column, bufs []*colBuf, n int) {
 	if cap(pw.fdicts) < len(cols) {
-		pw.fdicts = make([]floatDict, len(cols))
+		// The buffers of the dictionaries kept go on: a wider table
+		// between two levels files does not drop the levels' ones.
+		fds := make([]floatDict, len(cols))
+		copy(fds, pw.fdicts[:cap(pw.fdicts)])
+		pw.fdicts = fds
 	}
 	pw.fdicts = pw.fdicts[:len(cols)]
 	for i := range cols {
