@@ -528,6 +528,35 @@ func TestOwnWriterEncodings(t *testing.T) {
 	}
 }
 
+// TestPackWidths: the bit-packed runs of the hybrid (Encodings.md, "Run
+// Length Encoding / Bit-Packing Hybrid": values packed from the least
+// significant bit of each byte) of every width from 1 to 32, against a
+// packer that sets one bit at a time. The values are invented: a multiplicative
+// sequence cut to the width, so that every bit position takes both
+// values (unit scaffolding).
+func TestPackWidths(t *testing.T) {
+	for width := uint(1); width <= 32; width++ {
+		for _, n := range []int{8, 16, 24, 64, 200} {
+			v := make([]uint32, n)
+			for i := range v {
+				v[i] = uint32((uint64(i+1) * 0x9E3779B97F4A7C15 >> 17) & (1<<width - 1))
+			}
+			want := make([]byte, n*int(width)/8)
+			for i, x := range v {
+				for k := range width {
+					if x>>k&1 != 0 {
+						bit := i*int(width) + int(k)
+						want[bit/8] |= 1 << (bit % 8)
+					}
+				}
+			}
+			if got := packGroups([]byte{0xAA}, v, width); got[0] != 0xAA || !slices.Equal(got[1:], want) {
+				t.Errorf("width %d, %d values: % x, want % x", width, n, got[1:], want)
+			}
+		}
+	}
+}
+
 // TestSplitFloats: BYTE_STREAM_SPLIT (Encodings.md: byte k of every
 // value, in order, forms stream k) of values whose bytes are worked by
 // hand: 1.0 is 0x3FF0000000000000, -2.0 0xC000000000000000, 0.1
