@@ -577,6 +577,24 @@ func TestSplitFloats(t *testing.T) {
 	if got := appendSplitFloats([]byte{7}, vals, nil, 0, nil); !slices.Equal(got, append([]byte{7}, want...)) {
 		t.Errorf("split: % x\nwant % x", got[1:], want)
 	}
+	// Every count from 0 to 40 (whole groups of 8 and remainders), the
+	// values' bits invented (unit scaffolding), against byte k of value
+	// j at k·n + j.
+	for n := range 41 {
+		x := make([]float64, n)
+		for j := range x {
+			x[j] = math.Float64frombits(uint64(j+1) * 0x9E3779B97F4A7C15)
+		}
+		want := make([]byte, 8*n)
+		for j, v := range x {
+			for k := range 8 {
+				want[k*n+j] = byte(math.Float64bits(v) >> (8 * k))
+			}
+		}
+		if got := appendSplitFloats(nil, x, nil, 0, nil); !slices.Equal(got, want) {
+			t.Errorf("%d values: % x\nwant % x", n, got, want)
+		}
+	}
 }
 
 // TestFloatDictionaryEncoding holds the float dictionary's parts to bytes

@@ -297,22 +297,75 @@ func gatherValid[E any](scratch *[]E, x []E, valid []byte, lo int) []E {
 	return out
 }
 
-// split8 writes all of x byte-stream split into out (8·len(x) bytes).
+// split8 writes all of x byte-stream split into out (8·len(x) bytes):
+// eight values at a time transposed (splitGroup), the rest byte by byte.
 func split8(out []byte, x []float64) {
 	n := len(x)
-	s0, s1, s2, s3 := out[:n], out[n:2*n], out[2*n:3*n], out[3*n:4*n]
-	s4, s5, s6, s7 := out[4*n:5*n], out[5*n:6*n], out[6*n:7*n], out[7*n:8*n]
-	for i, v := range x {
-		u := math.Float64bits(v)
-		s0[i] = byte(u)
-		s1[i] = byte(u >> 8)
-		s2[i] = byte(u >> 16)
-		s3[i] = byte(u >> 24)
-		s4[i] = byte(u >> 32)
-		s5[i] = byte(u >> 40)
-		s6[i] = byte(u >> 48)
-		s7[i] = byte(u >> 56)
+	if n == 0 {
+		return
 	}
+	out = out[:8*n]
+	u := unsafe.Slice((*uint64)(unsafe.Pointer(&x[0])), n)
+	i := 0
+	for ; i+8 <= n; i += 8 {
+		splitGroup(unsafe.Pointer(&out[i]), n, (*[8]uint64)(u[i:i+8]))
+	}
+	for ; i < n; i++ {
+		for k := range 8 {
+			out[k*n+i] = byte(u[i] >> (8 * k))
+		}
+	}
+}
+
+// splitGroup writes the eight values of a byte-stream split: byte k of
+// a[j] at dst + k·n + j. The 8×8 bytes are transposed in registers, by
+// swapping their 4×4, 2×2 and 1×1 blocks off the diagonal, so that value
+// k holds the eight bytes k, each stored at once.
+func splitGroup(dst unsafe.Pointer, n int, a *[8]uint64) {
+	const m32, m16, m8 = 0x00000000FFFFFFFF, 0x0000FFFF0000FFFF, 0x00FF00FF00FF00FF
+	a0, a1, a2, a3, a4, a5, a6, a7 := a[0], a[1], a[2], a[3], a[4], a[5], a[6], a[7]
+	t := (a0>>32 ^ a4) & m32
+	a0, a4 = a0^t<<32, a4^t
+	t = (a1>>32 ^ a5) & m32
+	a1, a5 = a1^t<<32, a5^t
+	t = (a2>>32 ^ a6) & m32
+	a2, a6 = a2^t<<32, a6^t
+	t = (a3>>32 ^ a7) & m32
+	a3, a7 = a3^t<<32, a7^t
+
+	t = (a0>>16 ^ a2) & m16
+	a0, a2 = a0^t<<16, a2^t
+	t = (a1>>16 ^ a3) & m16
+	a1, a3 = a1^t<<16, a3^t
+	t = (a4>>16 ^ a6) & m16
+	a4, a6 = a4^t<<16, a6^t
+	t = (a5>>16 ^ a7) & m16
+	a5, a7 = a5^t<<16, a7^t
+
+	t = (a0>>8 ^ a1) & m8
+	a0, a1 = a0^t<<8, a1^t
+	t = (a2>>8 ^ a3) & m8
+	a2, a3 = a2^t<<8, a3^t
+	t = (a4>>8 ^ a5) & m8
+	a4, a5 = a4^t<<8, a5^t
+	t = (a6>>8 ^ a7) & m8
+	a6, a7 = a6^t<<8, a7^t
+
+	*(*uint64)(dst) = a0
+	dst = unsafe.Add(dst, n)
+	*(*uint64)(dst) = a1
+	dst = unsafe.Add(dst, n)
+	*(*uint64)(dst) = a2
+	dst = unsafe.Add(dst, n)
+	*(*uint64)(dst) = a3
+	dst = unsafe.Add(dst, n)
+	*(*uint64)(dst) = a4
+	dst = unsafe.Add(dst, n)
+	*(*uint64)(dst) = a5
+	dst = unsafe.Add(dst, n)
+	*(*uint64)(dst) = a6
+	dst = unsafe.Add(dst, n)
+	*(*uint64)(dst) = a7
 }
 
 // appendDelta appends v in DELTA_BINARY_PACKED: a header (block size 128,
