@@ -557,6 +557,48 @@ func TestPackWidths(t *testing.T) {
 	}
 }
 
+// TestRunEnd: the end of a run found eight values at a time is the one a
+// value-by-value scan finds, for runs of every length from 1 to 40 at
+// every offset of a sequence of 16-bit and 32-bit values (invented: runs
+// of one value, then another that differs in one byte only, unit
+// scaffolding).
+func TestRunEnd(t *testing.T) {
+	naive := func(v []uint32, i int) int {
+		j := i + 1
+		for j < len(v) && v[j] == v[i] {
+			j++
+		}
+		return j
+	}
+	for run := 1; run <= 40; run++ {
+		for pad := range 10 {
+			v := make([]uint32, pad+run+9)
+			for k := range v {
+				v[k] = 0x1234
+				if k < pad || k >= pad+run {
+					v[k] = 0x1235 + uint32(k%2)<<16
+				}
+			}
+			v16 := make([]int16, len(v))
+			for k, x := range v {
+				v16[k] = int16(x)
+			}
+			for i := range v {
+				if got, want := runEnd(v, i), naive(v, i); got != want {
+					t.Errorf("32-bit, run %d after %d, from %d: end %d, want %d", run, pad, i, got, want)
+				}
+				want16 := i + 1
+				for want16 < len(v16) && v16[want16] == v16[i] {
+					want16++
+				}
+				if got := runEnd(v16, i); got != want16 {
+					t.Errorf("16-bit, run %d after %d, from %d: end %d, want %d", run, pad, i, got, want16)
+				}
+			}
+		}
+	}
+}
+
 // TestSplitFloats: BYTE_STREAM_SPLIT (Encodings.md: byte k of every
 // value, in order, forms stream k) of values whose bytes are worked by
 // hand: 1.0 is 0x3FF0000000000000, -2.0 0xC000000000000000, 0.1

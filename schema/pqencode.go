@@ -86,14 +86,32 @@ func appendHybrid[E uint32 | int32 | int16](b []byte, v []E, width uint) []byte 
 	return b
 }
 
-// runEnd returns the end of the run of values equal to v[i] from i, four
-// values compared at a time.
+// runEnd returns the end of the run of values equal to v[i] from i: eight
+// values at a time compared as the two or four machine words they fill
+// (against x repeated in a word), then one at a time.
 func runEnd[E uint32 | int32 | int16](v []E, i int) int {
 	x, w := v[i], v[i+1:]
 	k := 0
-	for ; k+4 <= len(w); k += 4 {
-		if w[k] != x || w[k+1] != x || w[k+2] != x || w[k+3] != x {
-			break
+	if len(w) >= 8 {
+		size := int(unsafe.Sizeof(x))
+		b := unsafe.Slice((*byte)(unsafe.Pointer(unsafe.SliceData(w))), len(w)*size)
+		le := binary.LittleEndian
+		if size == 2 {
+			pat := uint64(uint16(x)) * 0x0001000100010001
+			for ; k+8 <= len(w); k += 8 {
+				g := b[2*k : 2*k+16 : 2*k+16]
+				if (le.Uint64(g)^pat)|(le.Uint64(g[8:])^pat) != 0 {
+					break
+				}
+			}
+		} else {
+			pat := uint64(uint32(x)) * 0x0000000100000001
+			for ; k+8 <= len(w); k += 8 {
+				g := b[4*k : 4*k+32 : 4*k+32]
+				if (le.Uint64(g)^pat)|(le.Uint64(g[8:])^pat)|(le.Uint64(g[16:])^pat)|(le.Uint64(g[24:])^pat) != 0 {
+					break
+				}
+			}
 		}
 	}
 	for k < len(w) && w[k] == x {
@@ -185,6 +203,9 @@ func appendDefLevels(b, valid []byte, lo, hi int) []byte {
 			full := byte(0)
 			if v == 1 {
 				full = 0xff
+			}
+			for full64 := uint64(full) * 0x0101010101010101; j+64 <= n && binary.LittleEndian.Uint64(bs[j/8:]) == full64; {
+				j += 64 // 64 levels at a time
 			}
 			for j+8 <= n && bs[j/8] == full {
 				j += 8
