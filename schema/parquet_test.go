@@ -528,6 +528,77 @@ func TestOwnWriterEncodings(t *testing.T) {
 	}
 }
 
+// TestPackWidths: the bit-packed runs of the hybrid (Encodings.md, "Run
+// Length Encoding / Bit-Packing Hybrid": values packed from the least
+// significant bit of each byte) of every width from 1 to 32, against a
+// packer that sets one bit at a time. The values are invented: a multiplicative
+// sequence cut to the width, so that every bit position takes both
+// values (unit scaffolding).
+func TestPackWidths(t *testing.T) {
+	for width := uint(1); width <= 32; width++ {
+		for _, n := range []int{8, 16, 24, 64, 200} {
+			v := make([]uint32, n)
+			for i := range v {
+				v[i] = uint32((uint64(i+1) * 0x9E3779B97F4A7C15 >> 17) & (1<<width - 1))
+			}
+			want := make([]byte, n*int(width)/8)
+			for i, x := range v {
+				for k := range width {
+					if x>>k&1 != 0 {
+						bit := i*int(width) + int(k)
+						want[bit/8] |= 1 << (bit % 8)
+					}
+				}
+			}
+			if got := packGroups([]byte{0xAA}, v, width); got[0] != 0xAA || !slices.Equal(got[1:], want) {
+				t.Errorf("width %d, %d values: % x, want % x", width, n, got[1:], want)
+			}
+		}
+	}
+}
+
+// TestRunEnd: the end of a run found eight values at a time is the one a
+// value-by-value scan finds, for runs of every length from 1 to 40 at
+// every offset of a sequence of 16-bit and 32-bit values (invented: runs
+// of one value, then another that differs in one byte only, unit
+// scaffolding).
+func TestRunEnd(t *testing.T) {
+	naive := func(v []uint32, i int) int {
+		j := i + 1
+		for j < len(v) && v[j] == v[i] {
+			j++
+		}
+		return j
+	}
+	for run := 1; run <= 40; run++ {
+		for pad := range 10 {
+			v := make([]uint32, pad+run+9)
+			for k := range v {
+				v[k] = 0x1234
+				if k < pad || k >= pad+run {
+					v[k] = 0x1235 + uint32(k%2)<<16
+				}
+			}
+			v16 := make([]int16, len(v))
+			for k, x := range v {
+				v16[k] = int16(x)
+			}
+			for i := range v {
+				if got, want := runEnd(v, i), naive(v, i); got != want {
+					t.Errorf("32-bit, run %d after %d, from %d: end %d, want %d", run, pad, i, got, want)
+				}
+				want16 := i + 1
+				for want16 < len(v16) && v16[want16] == v16[i] {
+					want16++
+				}
+				if got := runEnd(v16, i); got != want16 {
+					t.Errorf("16-bit, run %d after %d, from %d: end %d, want %d", run, pad, i, got, want16)
+				}
+			}
+		}
+	}
+}
+
 // TestSplitFloats: BYTE_STREAM_SPLIT (Encodings.md: byte k of every
 // value, in order, forms stream k) of values whose bytes are worked by
 // hand: 1.0 is 0x3FF0000000000000, -2.0 0xC000000000000000, 0.1
@@ -547,6 +618,24 @@ func TestSplitFloats(t *testing.T) {
 	}
 	if got := appendSplitFloats([]byte{7}, vals, nil, 0, nil); !slices.Equal(got, append([]byte{7}, want...)) {
 		t.Errorf("split: % x\nwant % x", got[1:], want)
+	}
+	// Every count from 0 to 40 (whole groups of 8 and remainders), the
+	// values' bits invented (unit scaffolding), against byte k of value
+	// j at k·n + j.
+	for n := range 41 {
+		x := make([]float64, n)
+		for j := range x {
+			x[j] = math.Float64frombits(uint64(j+1) * 0x9E3779B97F4A7C15)
+		}
+		want := make([]byte, 8*n)
+		for j, v := range x {
+			for k := range 8 {
+				want[k*n+j] = byte(math.Float64bits(v) >> (8 * k))
+			}
+		}
+		if got := appendSplitFloats(nil, x, nil, 0, nil); !slices.Equal(got, want) {
+			t.Errorf("%d values: % x\nwant % x", n, got, want)
+		}
 	}
 }
 

@@ -86,14 +86,32 @@ func appendHybrid[E uint32 | int32 | int16](b []byte, v []E, width uint) []byte 
 	return b
 }
 
-// runEnd returns the end of the run of values equal to v[i] from i, four
-// values compared at a time.
+// runEnd returns the end of the run of values equal to v[i] from i: eight
+// values at a time compared as the two or four machine words they fill
+// (against x repeated in a word), then one at a time.
 func runEnd[E uint32 | int32 | int16](v []E, i int) int {
 	x, w := v[i], v[i+1:]
 	k := 0
-	for ; k+4 <= len(w); k += 4 {
-		if w[k] != x || w[k+1] != x || w[k+2] != x || w[k+3] != x {
-			break
+	if len(w) >= 8 {
+		size := int(unsafe.Sizeof(x))
+		b := unsafe.Slice((*byte)(unsafe.Pointer(unsafe.SliceData(w))), len(w)*size)
+		le := binary.LittleEndian
+		if size == 2 {
+			pat := uint64(uint16(x)) * 0x0001000100010001
+			for ; k+8 <= len(w); k += 8 {
+				g := b[2*k : 2*k+16 : 2*k+16]
+				if (le.Uint64(g)^pat)|(le.Uint64(g[8:])^pat) != 0 {
+					break
+				}
+			}
+		} else {
+			pat := uint64(uint32(x)) * 0x0000000100000001
+			for ; k+8 <= len(w); k += 8 {
+				g := b[4*k : 4*k+32 : 4*k+32]
+				if (le.Uint64(g)^pat)|(le.Uint64(g[8:])^pat)|(le.Uint64(g[16:])^pat)|(le.Uint64(g[24:])^pat) != 0 {
+					break
+				}
+			}
 		}
 	}
 	for k < len(w) && w[k] == x {
@@ -104,25 +122,60 @@ func runEnd[E uint32 | int32 | int16](v []E, i int) int {
 
 // packGroups appends v (a multiple of 8 values, each below 1<<width,
 // width at most 32) bit-packed, least significant bit first: width bytes
-// per group of 8, eight bytes written at a time.
+// per group of 8 (packInto).
 func packGroups[E uint32 | int32 | int16](b []byte, v []E, width uint) []byte {
+	at := len(b)
+	b = extend(b, at+len(v)/8*int(width))
+	packInto(b[at:], v, width)
+	return b
+}
+
+// packInto writes v bit-packed into out (len(v)/8·width bytes), eight
+// bytes at a time. Four values of up to 15 bits (two of up to 31) are
+// joined into one word first and packed as one value of four (two) times
+// the width: a dictionary's indices go at some 7 instructions a value
+// instead of 20. With no call in it and shift counts masked to 63 (which
+// they never exceed, so that none is tested for 64 or more), the loop
+// keeps its state in registers; inlined in appendHybrid and appending, it
+// took some 30 instructions a value.
+//
+//go:noinline
+func packInto[E uint32 | int32 | int16](out []byte, v []E, width uint) {
 	var acc uint64
 	var nb uint // bits held in acc, < 64
-	for _, e := range v {
-		x := uint32(e)
-		acc |= uint64(x) << nb
-		nb += width
+	p := 0
+	// put adds the w bits of y (below 1<<w, w at most 62).
+	put := func(y uint64, w uint) {
+		acc |= y << (nb & 63)
+		nb += w
 		if nb >= 64 {
-			b = binary.LittleEndian.AppendUint64(b, acc)
+			binary.LittleEndian.PutUint64(out[p:], acc)
+			p += 8
 			nb -= 64
-			acc = uint64(x) >> (width - nb) // its bits that did not fit (none when nb is 0)
+			acc = y >> ((w - nb) & 63) // its bits that did not fit (none when nb is 0)
+		}
+	}
+	switch w1, w2, w3 := width&63, (2*width)&63, (3*width)&63; {
+	case width <= 15:
+		for i := 0; i+4 <= len(v); i += 4 {
+			q := v[i : i+4 : i+4]
+			put(uint64(uint32(q[0]))|uint64(uint32(q[1]))<<w1|uint64(uint32(q[2]))<<w2|uint64(uint32(q[3]))<<w3, 4*width)
+		}
+	case width <= 31:
+		for i := 0; i+2 <= len(v); i += 2 {
+			q := v[i : i+2 : i+2]
+			put(uint64(uint32(q[0]))|uint64(uint32(q[1]))<<w1, 2*width)
+		}
+	default:
+		for _, e := range v {
+			put(uint64(uint32(e)), width)
 		}
 	}
 	for ; nb > 0; nb -= 8 { // 8·width bits a group: whole bytes
-		b = append(b, byte(acc))
+		out[p] = byte(acc)
+		p++
 		acc >>= 8
 	}
-	return b
 }
 
 // appendDefLevels appends the definition levels of rows lo..hi of a
@@ -150,6 +203,9 @@ func appendDefLevels(b, valid []byte, lo, hi int) []byte {
 			full := byte(0)
 			if v == 1 {
 				full = 0xff
+			}
+			for full64 := uint64(full) * 0x0101010101010101; j+64 <= n && binary.LittleEndian.Uint64(bs[j/8:]) == full64; {
+				j += 64 // 64 levels at a time
 			}
 			for j+8 <= n && bs[j/8] == full {
 				j += 8
@@ -262,22 +318,78 @@ func gatherValid[E any](scratch *[]E, x []E, valid []byte, lo int) []E {
 	return out
 }
 
-// split8 writes all of x byte-stream split into out (8·len(x) bytes).
+// split8 writes all of x byte-stream split into out (8·len(x) bytes):
+// eight values at a time transposed (splitGroup), the rest byte by byte.
+// splitGroup stores words in the machine's byte order, and runEnd reads
+// them so: right on little-endian machines (amd64, arm64), as columns.go's
+// Arrow buffers already assume; a big-endian build would need swaps.
 func split8(out []byte, x []float64) {
 	n := len(x)
-	s0, s1, s2, s3 := out[:n], out[n:2*n], out[2*n:3*n], out[3*n:4*n]
-	s4, s5, s6, s7 := out[4*n:5*n], out[5*n:6*n], out[6*n:7*n], out[7*n:8*n]
-	for i, v := range x {
-		u := math.Float64bits(v)
-		s0[i] = byte(u)
-		s1[i] = byte(u >> 8)
-		s2[i] = byte(u >> 16)
-		s3[i] = byte(u >> 24)
-		s4[i] = byte(u >> 32)
-		s5[i] = byte(u >> 40)
-		s6[i] = byte(u >> 48)
-		s7[i] = byte(u >> 56)
+	if n == 0 {
+		return
 	}
+	out = out[:8*n]
+	u := unsafe.Slice((*uint64)(unsafe.Pointer(&x[0])), n)
+	i := 0
+	for ; i+8 <= n; i += 8 {
+		splitGroup(unsafe.Pointer(&out[i]), n, (*[8]uint64)(u[i:i+8]))
+	}
+	for ; i < n; i++ {
+		for k := range 8 {
+			out[k*n+i] = byte(u[i] >> (8 * k))
+		}
+	}
+}
+
+// splitGroup writes the eight values of a byte-stream split: byte k of
+// a[j] at dst + k·n + j. The 8×8 bytes are transposed in registers, by
+// swapping their 4×4, 2×2 and 1×1 blocks off the diagonal, so that value
+// k holds the eight bytes k, each stored at once.
+func splitGroup(dst unsafe.Pointer, n int, a *[8]uint64) {
+	const m32, m16, m8 = 0x00000000FFFFFFFF, 0x0000FFFF0000FFFF, 0x00FF00FF00FF00FF
+	a0, a1, a2, a3, a4, a5, a6, a7 := a[0], a[1], a[2], a[3], a[4], a[5], a[6], a[7]
+	t := (a0>>32 ^ a4) & m32
+	a0, a4 = a0^t<<32, a4^t
+	t = (a1>>32 ^ a5) & m32
+	a1, a5 = a1^t<<32, a5^t
+	t = (a2>>32 ^ a6) & m32
+	a2, a6 = a2^t<<32, a6^t
+	t = (a3>>32 ^ a7) & m32
+	a3, a7 = a3^t<<32, a7^t
+
+	t = (a0>>16 ^ a2) & m16
+	a0, a2 = a0^t<<16, a2^t
+	t = (a1>>16 ^ a3) & m16
+	a1, a3 = a1^t<<16, a3^t
+	t = (a4>>16 ^ a6) & m16
+	a4, a6 = a4^t<<16, a6^t
+	t = (a5>>16 ^ a7) & m16
+	a5, a7 = a5^t<<16, a7^t
+
+	t = (a0>>8 ^ a1) & m8
+	a0, a1 = a0^t<<8, a1^t
+	t = (a2>>8 ^ a3) & m8
+	a2, a3 = a2^t<<8, a3^t
+	t = (a4>>8 ^ a5) & m8
+	a4, a5 = a4^t<<8, a5^t
+	t = (a6>>8 ^ a7) & m8
+	a6, a7 = a6^t<<8, a7^t
+
+	*(*uint64)(dst) = a0
+	dst = unsafe.Add(dst, n)
+	*(*uint64)(dst) = a1
+	dst = unsafe.Add(dst, n)
+	*(*uint64)(dst) = a2
+	dst = unsafe.Add(dst, n)
+	*(*uint64)(dst) = a3
+	dst = unsafe.Add(dst, n)
+	*(*uint64)(dst) = a4
+	dst = unsafe.Add(dst, n)
+	*(*uint64)(dst) = a5
+	dst = unsafe.Add(dst, n)
+	*(*uint64)(dst) = a6
+	dst = unsafe.Add(dst, n)
+	*(*uint64)(dst) = a7
 }
 
 // appendDelta appends v in DELTA_BINARY_PACKED: a header (block size 128,
