@@ -2,14 +2,13 @@ package engine
 
 import (
 	"context"
-	"os"
 	"path/filepath"
-	"strings"
 	"testing"
 
 	"github.com/sondeclim/sondeclim/analyze"
 	"github.com/sondeclim/sondeclim/internal/realdata"
 	"github.com/sondeclim/sondeclim/schema"
+	"github.com/sondeclim/sondeclim/schema/store"
 )
 
 // TestAnalyseMatchesRun reads real archive files (the Cape Kennedy 1950
@@ -34,18 +33,18 @@ func TestAnalyseMatchesRun(t *testing.T) {
 			mem.Soundings, len(rs.Soundings), len(mem.Skipped), sum.Soundings, len(sum.Skipped))
 	}
 	stored := map[int64]string{}
-	err = filepath.Walk(filepath.Join(storeDir, schema.TableSoundings), func(p string, fi os.FileInfo, err error) error {
-		if err != nil || fi.IsDir() || !strings.HasSuffix(p, ".parquet") {
-			return err
+	m, err := store.ReadManifest(storeDir, store.Shard{})
+	if err != nil || m == nil {
+		t.Fatalf("manifest: %v, %v", m, err)
+	}
+	for _, f := range m.Files()[schema.TableSoundings] { // the store's own list, whatever its layout
+		keys, err := schema.ReadSoundingKeys(filepath.Join(storeDir, f))
+		if err != nil {
+			t.Fatal(err)
 		}
-		keys, err := schema.ReadSoundingKeys(p)
 		for k, v := range keys {
 			stored[k] = v
 		}
-		return err
-	})
-	if err != nil {
-		t.Fatal(err)
 	}
 	if len(stored) != len(rs.Soundings) {
 		t.Fatalf("store holds %d soundings, Analyse %d", len(stored), len(rs.Soundings))
