@@ -591,8 +591,9 @@ func (r *run) buildPartition(key string, st *staged, prev *store.Partition, sc *
 	hash := hex.EncodeToString(h.Sum(nil))
 	p := &store.Partition{ContentHash: hash, Files: map[string]string{},
 		Inputs: slices.Sorted(maps.Keys(contributors)), ContextHash: contextHash}
+	fileName := "part-" + hash[:16] + ".parquet"
 	for _, t := range schema.TableNames() {
-		p.Files[t] = store.PartitionFile(t, station, year, hash[:16])
+		p.Files[t] = filepath.Join(store.PartitionDir(t, station, year), fileName)
 	}
 	if prev != nil && prev.ContentHash == hash && !r.damaged[key] && len(prev.Damage(r.dir, key, r.opt.Verify)) == 0 {
 		stats.unchanged = true

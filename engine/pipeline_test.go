@@ -285,7 +285,7 @@ func TestInPlaceEqualsDecoded(t *testing.T) {
 }
 
 // TestWriteFailureStopsRun: when a partition cannot be written (here the
-// station's folder is a file), the run returns the error naming the
+// levels table's folder is a file), the run returns the error naming the
 // partition, commits nothing, and does not hang with analysed partitions
 // waiting for writers. Invented archive (unit scaffolding), 2 years so that
 // several partitions are in the pipeline; with 1 and 2 workers.
@@ -298,7 +298,7 @@ func TestWriteFailureStopsRun(t *testing.T) {
 	}
 	for _, workers := range []int{1, 2} {
 		storeDir := t.TempDir()
-		if err := os.WriteFile(filepath.Join(storeDir, "station="+store.EscapeStation(synth.StationAt(0).ID)), []byte("not a folder"), 0o644); err != nil {
+		if err := os.WriteFile(filepath.Join(storeDir, "levels"), []byte("not a folder"), 0o644); err != nil {
 			t.Fatal(err)
 		}
 		_, err := Run(context.Background(), storeDir, []string{in}, Options{Workers: workers})

@@ -289,7 +289,7 @@ func Restrict(ctx context.Context, db *sql.DB, storeDir string, stations []strin
 	for _, t := range tables {
 		var files []string
 		for _, f := range t.files {
-			if keep[filepath.Base(filepath.Dir(filepath.Dir(f)))] { // station=ID/year=YYYY/TABLE-….parquet (TABLE/station=ID/year=YYYY/part-….parquet before 4 December 2026)
+			if keep[filepath.Base(filepath.Dir(filepath.Dir(f)))] { // TABLE/station=ID/year=YYYY/part-….parquet
 				files = append(files, f)
 			}
 		}

@@ -5,14 +5,13 @@
 // unit in it) and a `doc` tag (units first, then meaning). Columns derives
 // the Arrow schema from such a struct by reflection, WriteTable writes rows as
 // compressed Parquet (zstd for levels, Snappy for the smaller tables) in a
-// Hive-partitioned layout: the ingestion engine writes
+// Hive-partitioned layout
 //
-//	STORE/station=ID/year=YYYY/TABLE-HASH.parquet
+//	STORE/TABLE/station=ID/year=YYYY/part-HASH.parquet
 //
-// with WriteFile (one directory per station-year for all tables, each file
-// named by a hash of its inputs and parameters; store.PartitionFile), and
-// WriteTable, for tools and examples, writes
-// STORE/TABLE/station=ID/year=YYYY/part-0.parquet, one tree per table
+// (the ingestion engine names each file by a hash of its inputs and
+// parameters and writes it with WriteFile; WriteTable, for tools and
+// examples, writes part-0.parquet)
 // and Markdown renders the column documentation for people. Every file
 // carries the schema version (key "sondeclim.schema_version") and the table
 // name (key "sondeclim.table") in its key-value metadata, so that ReadVersion

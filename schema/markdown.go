@@ -24,10 +24,8 @@ type TableDoc struct {
 func Markdown(w io.Writer, tables ...TableDoc) error {
 	bw := bufio.NewWriter(w)
 	fmt.Fprintf(bw, "# Store schema, version %d\n\n", Version)
-	fmt.Fprintf(bw, "Each table is a set of Parquet files (zstd-compressed for levels, Snappy for the other tables), one per station and year, "+
-		"the files of all tables of a station-year in one directory:\n")
-	fmt.Fprintf(bw, "`%s=ID/%s=YYYY/TABLE-HASH.parquet` (the files a store's manifest lists; partitions written before 4 December 2026 "+
-		"keep `TABLE/%s=ID/%s=YYYY/part-HASH.parquet` until they are rewritten). Missing values are null.\n", StationKey, YearKey, StationKey, YearKey)
+	fmt.Fprintf(bw, "Each table is a directory of Parquet files (zstd-compressed for levels, Snappy for the other tables), one per station and year:\n")
+	fmt.Fprintf(bw, "`TABLE/%s=ID/%s=YYYY/part-HASH.parquet` (the files a store's manifest lists). Missing values are null.\n", StationKey, YearKey)
 	fmt.Fprintf(bw, "In the directory name, ID is the station identifier with every byte other than an ASCII letter, digit, `-` or `_` "+
 		"written as `%%XX` (percent-encoding, RFC 3986 §2.1), so `A.B/1` is stored under `%s=A%%2EB%%2F1`; "+
 		"every file also holds the identifier itself in `station_id`, which queries should use.\n", StationKey)

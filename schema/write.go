@@ -143,7 +143,7 @@ func partitions[T any](cols []Column, rows []T) ([]*partition, error) {
 }
 
 // WriteFile writes rows as one Parquet file of table at path (for example
-// store/station=ID/year=YYYY/table-<hash>.parquet, store.PartitionFile), with the same
+// store/table/station=ID/year=YYYY/part-<hash>.parquet), with the same
 // encoding, metadata and crash safety as WriteTable: the file is written
 // under a temporary name in its directory, synced and renamed into place.
 // The caller chooses the partition and is responsible for the rows

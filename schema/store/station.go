@@ -40,7 +40,7 @@ func CheckStationID(id string) error {
 }
 
 // EscapeStation turns a station identifier into the value of its
-// partition directory (station=VALUE/…): ASCII letters, digits, '-'
+// partition directory (TABLE/station=VALUE/…): ASCII letters, digits, '-'
 // and '_' stand for themselves, every other byte is written as '%'
 // followed by two upper-case hex digits (the percent-encoding of RFC 3986
 // §2.1, applied to every byte outside that set, '.' included). The result

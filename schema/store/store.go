@@ -4,16 +4,10 @@
 //
 // Layout of a store directory:
 //
-//	station=ID/year=YYYY/TABLE-HASH.parquet   table data (Hive partitions; ID escaped, see EscapeStation)
-//	_sondeclim/manifest-SHARD.json             committed state of one shard
-//	_sondeclim/lock-SHARD                      writer lock of one shard
+//	TABLE/station=ID/year=YYYY/part-HASH.parquet   table data (Hive partitions; ID escaped, see EscapeStation)
+//	_sondeclim/manifest-SHARD.json                  committed state of one shard
+//	_sondeclim/lock-SHARD                           writer lock of one shard
 //
-// One directory per station-year holds the files of all its tables (before
-// 4 December 2026 each table had its own tree, TABLE/station=ID/year=YYYY/
-// part-HASH.parquet, ten times the directories). Readers and the cleaner go
-// by the manifest's paths, so a store may hold partitions of both layouts:
-// an older store's partitions keep their paths until they are rewritten.
-
 // A writer writes new partition files under names no live file has (the
 // name carries a hash of the partition's content and of the analysis
 // parameters), then commits by atomically replacing its manifest. Readers
@@ -167,13 +161,11 @@ func SplitPartitionKey(k string) (station string, year int, err error) {
 	return k[:i], year, err
 }
 
-// PartitionFile returns the path, relative to the store, of the file of
-// table in the partition of station and year whose identity is hash:
-// station=ID/year=YYYY/TABLE-HASH.parquet. The station is escaped
-// (EscapeStation), so any identifier CheckStationID accepts gives a
-// directory directly inside the store.
-func PartitionFile(table, station string, year int, hash string) string {
-	return filepath.Join("station="+EscapeStation(station), "year="+strconv.Itoa(year), table+"-"+hash+".parquet")
+// PartitionDir returns the directory of a station-year of a table,
+// relative to the store; the station is escaped (EscapeStation), so any
+// identifier CheckStationID accepts gives a directory inside the table's.
+func PartitionDir(table, station string, year int) string {
+	return filepath.Join(table, "station="+EscapeStation(station), "year="+strconv.Itoa(year))
 }
 
 func manifestPath(dir string, sh Shard) string {
