@@ -3,7 +3,7 @@ package analyze
 import (
 	"fmt"
 	"math"
-	"sort"
+	"slices"
 	"strconv"
 	"strings"
 	"time"
@@ -247,13 +247,17 @@ func FindEpisodes(days []DayRecord, c Criterion) ([]Episode, error) {
 	if err := c.Validate(); err != nil {
 		return nil, err
 	}
-	sorted := append([]DayRecord(nil), days...)
-	sort.SliceStable(sorted, func(a, b int) bool {
-		if sorted[a].StationID != sorted[b].StationID {
-			return sorted[a].StationID < sorted[b].StationID
+	byStationDate := func(a, b DayRecord) int {
+		if c := strings.Compare(a.StationID, b.StationID); c != 0 {
+			return c
 		}
-		return sorted[a].Date.Before(sorted[b].Date)
-	})
+		return a.Date.Compare(b.Date)
+	}
+	sorted := days // BuildDays returns them sorted: no copy, no sort
+	if !slices.IsSortedFunc(days, byStationDate) {
+		sorted = slices.Clone(days)
+		slices.SortStableFunc(sorted, byStationDate)
+	}
 	var out []Episode
 	for lo := 0; lo < len(sorted); {
 		hi := lo

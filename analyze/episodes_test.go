@@ -191,4 +191,24 @@ func TestBuildDays(t *testing.T) {
 		d2.SBIPersists(0) != No || d2.DeepStable != Unknown || d2.Soundings != 1 {
 		t.Errorf("day 2 = %+v", d2)
 	}
+	// A second station's copies, interleaved and in reverse order, change
+	// nothing of S's days and come first (sorted by station, then date).
+	var mixed []DayObs
+	for i := len(obs) - 1; i >= 0; i-- {
+		r := obs[i]
+		r.StationID = "R"
+		mixed = append(mixed, obs[i], r)
+	}
+	both := BuildDays(mixed, holz, DefaultDayConfig())
+	if len(both) != 4 || both[0].StationID != "R" || both[2].StationID != "S" {
+		t.Fatalf("two stations: %d days, stations %v", len(both), both)
+	}
+	for i, d := range both[2:] {
+		// Morning and Afternoon index into the input; compare what they pick.
+		if !d.Date.Equal(days[i].Date) || d.Soundings != days[i].Soundings || d.AfternoonMHM != days[i].AfternoonMHM ||
+			d.MorningSBI != days[i].MorningSBI || d.VentilationM2S != days[i].VentilationM2S && !math.IsNaN(d.VentilationM2S) ||
+			mixed[d.Morning].LaunchTime != obs[days[i].Morning].LaunchTime {
+			t.Errorf("two stations, S day %d = %+v, want %+v", i, d, days[i])
+		}
+	}
 }
