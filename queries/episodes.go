@@ -176,16 +176,6 @@ func materialize[T any](ctx context.Context, db *sql.DB, dir, table string, rows
 
 // readDayObs reads the analysable soundings' per-day inputs.
 func readDayObs(ctx context.Context, db *sql.DB) ([]analyze.DayObs, error) {
-	rows, err := db.QueryContext(ctx, `SELECT station_id, launch_time, longitude_deg, coalesce(sbi_present, false) AS sbi_present,
-		sbi_strength_k, heat_deficit_mj_m2, stable_layer_fraction, mixing_height_parcel_m, transport_wind_ms
-		FROM soundings WHERE analysed(analysis_status)`)
-	if err != nil {
-		if strings.Contains(err.Error(), "heat_deficit") || strings.Contains(err.Error(), "stable_layer") {
-			return nil, fmt.Errorf("queries: episodes: the store predates the heat-deficit columns; ingest the inputs again (sondeclim ingest --store DIR PATH...): %w", err)
-		}
-		return nil, fmt.Errorf("queries: episodes: %w", err)
-	}
-	defer rows.Close()
 	var out []analyze.DayObs
 	var o analyze.DayObs
 	var heatDeficitMJ float64
@@ -199,25 +189,24 @@ func readDayObs(ctx context.Context, db *sql.DB) ([]analyze.DayObs, error) {
 	sc.Float("stable_layer_fraction", &o.StableFraction)
 	sc.Float("mixing_height_parcel_m", &o.ParcelMHM)
 	sc.Float("transport_wind_ms", &o.TransportWindMS)
-	for rows.Next() {
-		if err := sc.Scan(rows); err != nil {
-			return nil, fmt.Errorf("queries: episodes: %w", err)
-		}
+	err := sc.Each(ctx, db, `SELECT station_id, launch_time, longitude_deg, coalesce(sbi_present, false) AS sbi_present,
+		sbi_strength_k, heat_deficit_mj_m2, stable_layer_fraction, mixing_height_parcel_m, transport_wind_ms
+		FROM soundings WHERE analysed(analysis_status)`, func() error {
 		o.HeatDeficitJ = heatDeficitMJ * 1e6 // J m⁻²; NaN stays NaN
 		out = append(out, o)
+		return nil
+	})
+	if err != nil {
+		if strings.Contains(err.Error(), "heat_deficit") || strings.Contains(err.Error(), "stable_layer") {
+			return nil, fmt.Errorf("queries: episodes: the store predates the heat-deficit columns; ingest the inputs again (sondeclim ingest --store DIR PATH...): %w", err)
+		}
+		return nil, fmt.Errorf("queries: episodes: %w", err)
 	}
-	return out, rows.Err()
+	return out, nil
 }
 
 // readHolzworth reads the defined afternoon (Holzworth) mixing heights.
 func readHolzworth(ctx context.Context, db *sql.DB) (map[analyze.DayKey]float64, error) {
-	rows, err := db.QueryContext(ctx, `SELECT station_id, local_date,
-		mixing_height_m(status, height_agl_m) AS height_agl_m
-		FROM afternoon_mixing WHERE mh_defined(status)`)
-	if err != nil {
-		return nil, fmt.Errorf("queries: episodes: afternoon mixing heights: %w", err)
-	}
-	defer rows.Close()
 	out := map[analyze.DayKey]float64{}
 	var st string
 	var d time.Time
@@ -226,16 +215,18 @@ func readHolzworth(ctx context.Context, db *sql.DB) (map[analyze.DayKey]float64,
 	sc.Str("station_id", &st)
 	sc.Time("local_date", &d)
 	sc.Float("height_agl_m", &h) // NULL (NaN) when not known: no entry
-
-	for rows.Next() {
-		if err := sc.Scan(rows); err != nil {
-			return nil, fmt.Errorf("queries: episodes: %w", err)
-		}
+	err := sc.Each(ctx, db, `SELECT station_id, local_date,
+		mixing_height_m(status, height_agl_m) AS height_agl_m
+		FROM afternoon_mixing WHERE mh_defined(status)`, func() error {
 		if !math.IsNaN(h) {
 			out[analyze.DayKey{StationID: st, Date: d}] = h
 		}
+		return nil
+	})
+	if err != nil {
+		return nil, fmt.Errorf("queries: episodes: afternoon mixing heights: %w", err)
 	}
-	return out, rows.Err()
+	return out, nil
 }
 
 func nullNaN(v sql.NullFloat64) float64 {

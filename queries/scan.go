@@ -1,8 +1,12 @@
 package queries
 
 import (
+	"context"
 	"database/sql"
+	"database/sql/driver"
+	"errors"
 	"fmt"
+	"io"
 	"slices"
 	"time"
 )
@@ -25,8 +29,9 @@ import (
 type Scanner struct {
 	dest map[string]any
 	post []func()
-	row  []any  // destinations in the order of the result's columns
-	dup  string // a column claimed twice
+	row  []any     // destinations in the order of the result's columns
+	of   *sql.Rows // the rows row was matched to (once per query, not per row)
+	dup  string    // a column claimed twice
 }
 
 func (s *Scanner) add(name string, v any, post func()) {
@@ -77,23 +82,9 @@ func (s *Scanner) Scan(rows *sql.Rows) error {
 	if s.dup != "" {
 		return fmt.Errorf("column %s is read twice", s.dup)
 	}
-	cols, err := rows.Columns()
-	if err != nil {
-		return err
-	}
-	s.row = s.row[:0]
-	for _, c := range cols {
-		d, ok := s.dest[c]
-		if !ok {
-			return fmt.Errorf("column %s is selected but not read", c)
-		}
-		s.row = append(s.row, d)
-	}
-	if len(cols) != len(s.dest) {
-		for name := range s.dest {
-			if !slices.Contains(cols, name) {
-				return fmt.Errorf("column %s is read but not selected", name)
-			}
+	if s.of != rows {
+		if err := s.match(rows); err != nil {
+			return err
 		}
 	}
 	if err := rows.Scan(s.row...); err != nil {
@@ -103,4 +94,169 @@ func (s *Scanner) Scan(rows *sql.Rows) error {
 		f()
 	}
 	return nil
+}
+
+// match orders the claimed destinations as the columns of rows.
+func (s *Scanner) match(rows *sql.Rows) error {
+	cols, err := rows.Columns()
+	if err != nil {
+		return err
+	}
+	if s.row, err = s.order(cols, s.row[:0]); err != nil {
+		return err
+	}
+	s.of = rows
+	return nil
+}
+
+// order appends the claimed destinations in the order of cols to row.
+func (s *Scanner) order(cols []string, row []any) ([]any, error) {
+	for _, c := range cols {
+		d, ok := s.dest[c]
+		if !ok {
+			return nil, fmt.Errorf("column %s is selected but not read", c)
+		}
+		row = append(row, d)
+	}
+	if len(cols) != len(s.dest) {
+		for name := range s.dest {
+			if !slices.Contains(cols, name) {
+				return nil, fmt.Errorf("column %s is read but not selected", name)
+			}
+		}
+	}
+	return row, nil
+}
+
+// errNotQueryer reports a driver connection without QueryContext.
+var errNotQueryer = errors.New("driver connection cannot query")
+
+// Each runs query (without parameters) on db and calls fn once per row,
+// with the claimed destinations holding the row as Scan leaves them. It
+// takes the driver's values as they come (float64, string, bool, int64,
+// time.Time or nil) instead of through database/sql's conversion of each
+// value, which goes through reflection for numbers: for queries of 10⁵ or
+// more rows, such as the per-sounding inputs of the days table. The
+// checks of Scan apply; an error of fn ends the query and is returned.
+func (s *Scanner) Each(ctx context.Context, db *sql.DB, query string, fn func() error) error {
+	if s.dup != "" {
+		return fmt.Errorf("column %s is read twice", s.dup)
+	}
+	conn, err := db.Conn(ctx)
+	if err != nil {
+		return err
+	}
+	defer conn.Close()
+	err = conn.Raw(func(dc any) error {
+		q, ok := dc.(driver.QueryerContext)
+		if !ok {
+			return errNotQueryer
+		}
+		rows, err := q.QueryContext(ctx, query, nil)
+		if err != nil {
+			return err
+		}
+		defer rows.Close()
+		cols := rows.Columns()
+		dest, err := s.order(cols, nil)
+		if err != nil {
+			return err
+		}
+		vals := make([]driver.Value, len(cols))
+		for {
+			if err := ctx.Err(); err != nil {
+				return err
+			}
+			if err := rows.Next(vals); err == io.EOF {
+				return nil
+			} else if err != nil {
+				return err
+			}
+			for i, v := range vals {
+				if err := assign(dest[i], v); err != nil {
+					return fmt.Errorf("column %s: %w", cols[i], err)
+				}
+			}
+			for _, f := range s.post {
+				f()
+			}
+			if err := fn(); err != nil {
+				return err
+			}
+		}
+	})
+	if !errors.Is(err, errNotQueryer) {
+		return err
+	}
+	rows, err := conn.QueryContext(ctx, query)
+	if err != nil {
+		return err
+	}
+	defer rows.Close()
+	for rows.Next() {
+		if err := s.Scan(rows); err != nil {
+			return err
+		}
+		if err := fn(); err != nil {
+			return err
+		}
+	}
+	return rows.Err()
+}
+
+// assign stores the driver value v in d, one of the sql.Null* values the
+// claims hold: the common types directly, others through d's Scan.
+func assign(d any, v driver.Value) error {
+	switch d := d.(type) {
+	case *sql.NullFloat64:
+		switch x := v.(type) {
+		case float64:
+			*d = sql.NullFloat64{Float64: x, Valid: true}
+			return nil
+		case nil:
+			*d = sql.NullFloat64{}
+			return nil
+		}
+	case *sql.NullString:
+		switch x := v.(type) {
+		case string:
+			*d = sql.NullString{String: x, Valid: true}
+			return nil
+		case nil:
+			*d = sql.NullString{}
+			return nil
+		}
+	case *sql.NullBool:
+		switch x := v.(type) {
+		case bool:
+			*d = sql.NullBool{Bool: x, Valid: true}
+			return nil
+		case nil:
+			*d = sql.NullBool{}
+			return nil
+		}
+	case *sql.NullInt64:
+		switch x := v.(type) {
+		case int64:
+			*d = sql.NullInt64{Int64: x, Valid: true}
+			return nil
+		case nil:
+			*d = sql.NullInt64{}
+			return nil
+		}
+	case *sql.NullTime:
+		switch x := v.(type) {
+		case time.Time:
+			*d = sql.NullTime{Time: x, Valid: true}
+			return nil
+		case nil:
+			*d = sql.NullTime{}
+			return nil
+		}
+	}
+	sc, ok := d.(sql.Scanner)
+	if !ok {
+		return fmt.Errorf("cannot store %T", v)
+	}
+	return sc.Scan(v)
 }
