@@ -207,56 +207,40 @@ func (s *Scanner) Each(ctx context.Context, db *sql.DB, query string, fn func() 
 // assign stores the driver value v in d, one of the sql.Null* values the
 // claims hold: the common types directly, others through d's Scan.
 func assign(d any, v driver.Value) error {
+	done := false
 	switch d := d.(type) {
 	case *sql.NullFloat64:
-		switch x := v.(type) {
-		case float64:
-			*d = sql.NullFloat64{Float64: x, Valid: true}
-			return nil
-		case nil:
-			*d = sql.NullFloat64{}
-			return nil
-		}
+		done = direct(v, &d.Float64, &d.Valid)
 	case *sql.NullString:
-		switch x := v.(type) {
-		case string:
-			*d = sql.NullString{String: x, Valid: true}
-			return nil
-		case nil:
-			*d = sql.NullString{}
-			return nil
-		}
+		done = direct(v, &d.String, &d.Valid)
 	case *sql.NullBool:
-		switch x := v.(type) {
-		case bool:
-			*d = sql.NullBool{Bool: x, Valid: true}
-			return nil
-		case nil:
-			*d = sql.NullBool{}
-			return nil
-		}
+		done = direct(v, &d.Bool, &d.Valid)
 	case *sql.NullInt64:
-		switch x := v.(type) {
-		case int64:
-			*d = sql.NullInt64{Int64: x, Valid: true}
-			return nil
-		case nil:
-			*d = sql.NullInt64{}
-			return nil
-		}
+		done = direct(v, &d.Int64, &d.Valid)
 	case *sql.NullTime:
-		switch x := v.(type) {
-		case time.Time:
-			*d = sql.NullTime{Time: x, Valid: true}
-			return nil
-		case nil:
-			*d = sql.NullTime{}
-			return nil
-		}
+		done = direct(v, &d.Time, &d.Valid)
+	}
+	if done {
+		return nil
 	}
 	sc, ok := d.(sql.Scanner)
 	if !ok {
 		return fmt.Errorf("cannot store %T", v)
 	}
 	return sc.Scan(v)
+}
+
+// direct stores v in *val and *valid when v is a T or nil (NULL: the zero
+// T, not valid) and reports whether it did.
+func direct[T any](v driver.Value, val *T, valid *bool) bool {
+	switch x := v.(type) {
+	case T:
+		*val, *valid = x, true
+	case nil:
+		var zero T
+		*val, *valid = zero, false
+	default:
+		return false
+	}
+	return true
 }
