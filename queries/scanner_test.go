@@ -24,12 +24,7 @@ type methodHeight struct {
 }
 
 func TestScannerByName(t *testing.T) {
-	conn, err := duckdb.NewConnector("", nil)
-	if err != nil {
-		t.Fatal(err)
-	}
-	db := sql.OpenDB(conn)
-	defer db.Close()
+	db := memoryDB(t)
 	read := func(q string, claim func(*Scanner, *methodHeight)) (methodHeight, error) {
 		var h methodHeight
 		rows, err := db.QueryContext(context.Background(), q)
@@ -85,12 +80,7 @@ func TestScannerByName(t *testing.T) {
 // time), and that it reports the same column mismatches. The reference is
 // the standard library's database/sql conversion.
 func TestScannerEachMatchesScan(t *testing.T) {
-	conn, err := duckdb.NewConnector("", nil)
-	if err != nil {
-		t.Fatal(err)
-	}
-	db := sql.OpenDB(conn)
-	defer db.Close()
+	db := memoryDB(t)
 	ctx := context.Background()
 	type row struct {
 		S       string
@@ -165,4 +155,16 @@ func TestScannerEachMatchesScan(t *testing.T) {
 	if err := sc.Each(ctx, db, q, func() error { n++; return stop }); !errors.Is(err, stop) || n != 1 {
 		t.Errorf("fn's error: %v after %d rows, want stop after 1", err, n)
 	}
+}
+
+// memoryDB opens an empty in-memory DuckDB database, closed when t ends.
+func memoryDB(t *testing.T) *sql.DB {
+	t.Helper()
+	conn, err := duckdb.NewConnector("", nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	db := sql.OpenDB(conn)
+	t.Cleanup(func() { db.Close() })
+	return db
 }
