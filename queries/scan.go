@@ -4,7 +4,6 @@ import (
 	"context"
 	"database/sql"
 	"database/sql/driver"
-	"errors"
 	"fmt"
 	"io"
 	"slices"
@@ -128,9 +127,6 @@ func (s *Scanner) order(cols []string, row []any) ([]any, error) {
 	return row, nil
 }
 
-// errNotQueryer reports a driver connection without QueryContext.
-var errNotQueryer = errors.New("driver connection cannot query")
-
 // Each runs query (without parameters) on db and calls fn once per row,
 // with the claimed destinations holding the row as Scan leaves them. It
 // takes the driver's values as they come (float64, string, bool, int64,
@@ -147,10 +143,10 @@ func (s *Scanner) Each(ctx context.Context, db *sql.DB, query string, fn func() 
 		return err
 	}
 	defer conn.Close()
-	err = conn.Raw(func(dc any) error {
+	return conn.Raw(func(dc any) error {
 		q, ok := dc.(driver.QueryerContext)
 		if !ok {
-			return errNotQueryer
+			return fmt.Errorf("the driver's connection (%T) cannot run a query itself", dc)
 		}
 		rows, err := q.QueryContext(ctx, query, nil)
 		if err != nil {
@@ -185,23 +181,6 @@ func (s *Scanner) Each(ctx context.Context, db *sql.DB, query string, fn func() 
 			}
 		}
 	})
-	if !errors.Is(err, errNotQueryer) {
-		return err
-	}
-	rows, err := conn.QueryContext(ctx, query)
-	if err != nil {
-		return err
-	}
-	defer rows.Close()
-	for rows.Next() {
-		if err := s.Scan(rows); err != nil {
-			return err
-		}
-		if err := fn(); err != nil {
-			return err
-		}
-	}
-	return rows.Err()
 }
 
 // assign stores the driver value v in d, one of the sql.Null* values the
