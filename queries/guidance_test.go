@@ -2,6 +2,7 @@ package queries
 
 import (
 	"context"
+	"fmt"
 	"testing"
 	"time"
 
@@ -78,5 +79,22 @@ func TestGuidanceByHand(t *testing.T) {
 	}
 	if _, err := GuidanceOf(context.Background(), db, GuidanceOptions{SBIClassesK: []float64{5, 2}}); err == nil {
 		t.Error("descending SBI classes accepted")
+	}
+	// Only computes the tables it names: the same rows as above, the
+	// others absent (scaffolding: compared with the full computation).
+	only, err := GuidanceOf(context.Background(), db, GuidanceOptions{BelowM: []float64{600}, Only: []string{"holzworth"}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if o, err := only.Table("holzworth"); err != nil || fmt.Sprint(o.Rows) != fmt.Sprint(h.Rows) {
+		t.Errorf("Only holzworth: %v, %v; want %v", o, err, h.Rows)
+	}
+	for _, v := range []string{"afternoon", "ventilation", "persistence"} {
+		if _, err := only.Table(v); err == nil {
+			t.Errorf("Only holzworth: table %s computed", v)
+		}
+	}
+	if _, err := GuidanceOf(context.Background(), db, GuidanceOptions{Only: []string{"holzwort"}}); err == nil {
+		t.Error("unknown table in Only accepted")
 	}
 }

@@ -105,17 +105,30 @@ Percentiles: Hyndman-Fan type 7; surface counts as 0 m.`,
 		return fmt.Errorf("guidance: %w", err)
 	}
 	defer db.Close()
+	if *out == "" && len(views) < len(queries.GuidanceViews) {
+		opts.Only = views // what is printed; --out writes all four
+	}
 	g, err := queries.GuidanceOf(ctx, db, opts)
 	if err != nil {
 		return fmt.Errorf("guidance: %v: %w", err, errUsage)
 	}
-	empty := true
-	for _, v := range queries.GuidanceViews {
-		if t, err := g.Table(v); err == nil && len(t.Rows) > 0 {
-			empty = false
+	empty := func() bool {
+		for _, v := range queries.GuidanceViews {
+			if t, err := g.Table(v); err == nil && len(t.Rows) > 0 {
+				return false
+			}
+		}
+		return true
+	}
+	if empty() && opts.Only != nil {
+		// The filter may still match soundings that the other tables use:
+		// "matches nothing" is said only when all four are empty.
+		opts.Only = nil
+		if g, err = queries.GuidanceOf(ctx, db, opts); err != nil {
+			return fmt.Errorf("guidance: %v: %w", err, errUsage)
 		}
 	}
-	if empty {
+	if empty() {
 		return noMatch(ctx, db, "guidance", stations, *years)
 	}
 	if *out != "" {

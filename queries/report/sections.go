@@ -46,7 +46,7 @@ func loadTables(ctx context.Context, db *sql.DB, kept []string) (*tables, error)
 		return nil, err
 	}
 	t.episodes = byStation(withRuleWords(withSeasonLabel(ep, names)))
-	g, err := queries.GuidanceOf(ctx, db, queries.GuidanceOptions{Stations: kept})
+	g, err := queries.GuidanceOf(ctx, db, queries.GuidanceOptions{Stations: kept, Only: []string{"afternoon", "persistence"}})
 	if err != nil {
 		return nil, err
 	}
