@@ -176,7 +176,14 @@ func materialize[T any](ctx context.Context, db *sql.DB, dir, table string, rows
 
 // readDayObs reads the analysable soundings' per-day inputs.
 func readDayObs(ctx context.Context, db *sql.DB) ([]analyze.DayObs, error) {
-	var out []analyze.DayObs
+	// The slice is made once at the number of stored soundings (a count the
+	// Parquet footers answer), not grown by doubling: each doubling moves
+	// every row to fresh memory.
+	var n int64
+	if err := db.QueryRowContext(ctx, "SELECT count(*) FROM soundings").Scan(&n); err != nil {
+		return nil, fmt.Errorf("queries: episodes: %w", err)
+	}
+	out := make([]analyze.DayObs, 0, n)
 	var o analyze.DayObs
 	var heatDeficitMJ float64
 	var sc Scanner
