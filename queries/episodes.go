@@ -9,6 +9,7 @@ import (
 	"path/filepath"
 	"strings"
 	"time"
+	"unique"
 
 	"github.com/sondeclim/sondeclim/analyze"
 	"github.com/sondeclim/sondeclim/schema"
@@ -184,7 +185,6 @@ func readDayObs(ctx context.Context, db *sql.DB) ([]analyze.DayObs, error) {
 		return nil, fmt.Errorf("queries: episodes: %w", err)
 	}
 	out := make([]analyze.DayObs, 0, n)
-	var ids interned
 	var o analyze.DayObs
 	var heatDeficitMJ float64
 	var sc Scanner
@@ -201,7 +201,10 @@ func readDayObs(ctx context.Context, db *sql.DB) ([]analyze.DayObs, error) {
 		sbi_strength_k, heat_deficit_mj_m2, stable_layer_fraction, mixing_height_parcel_m, transport_wind_ms
 		FROM soundings WHERE analysed(analysis_status)`, func() error {
 		o.HeatDeficitJ = heatDeficitMJ * 1e6 // J m⁻²; NaN stays NaN
-		o.StationID = ids.of(o.StationID)
+		// One copy of each identifier (the standard library's unique), so the
+		// days' grouping, sorting and episode scans find equal identifiers by
+		// their pointer instead of comparing their bytes.
+		o.StationID = unique.Make(o.StationID).Value()
 		out = append(out, o)
 		return nil
 	})
@@ -344,29 +347,4 @@ func EnsureEpisodes(ctx context.Context, db *sql.DB) error {
 	}
 	_, err := AttachEpisodes(ctx, db, DefaultEpisodeOptions())
 	return err
-}
-
-// interned hands out one copy of each station identifier, so that the
-// days' many comparisons of identifiers (grouping, sorting, episodes) find
-// equal strings by their pointer instead of comparing their bytes.
-type interned struct {
-	last string
-	seen map[string]string
-}
-
-// of returns the copy of id held, holding id when it is new.
-func (in *interned) of(id string) string {
-	if id == in.last {
-		return in.last
-	}
-	if in.seen == nil {
-		in.seen = map[string]string{}
-	}
-	s, ok := in.seen[id]
-	if !ok {
-		s = id
-		in.seen[id] = s
-	}
-	in.last = s
-	return s
 }
