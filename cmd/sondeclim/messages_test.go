@@ -66,12 +66,21 @@ func TestBulletinRunForSchedulers(t *testing.T) {
 		{"climatology", "--store", st, "--station", "NOPE"},
 		{"climatology", "--store", st, "--years", "2030-2040"},
 		{"trends", "--store", st, "--years", "2030-2040"},
+		{"guidance", "--store", st, "--years", "2030-2040", "--table", "holzworth"},
 	} {
 		code, out, errs := runCmd(t, args...)
 		if code != exitNoMatch || out != "" || !strings.Contains(errs, "no soundings match") ||
 			!strings.Contains(errs, "the store holds 107 soundings of 107 stations, 2022") || !strings.Contains(errs, "70133") {
 			t.Errorf("%v: exit %d, stdout %q, stderr %q", args, code, out, errs)
 		}
+	}
+
+	// One night has no day with a maximum temperature, so the Holzworth
+	// table is empty; the ventilation table is not, so the filter matches
+	// soundings: the empty table is printed, and that is not exit 4.
+	code, out, errs = runCmd(t, "guidance", "--store", st, "--table", "holzworth", "--format", "csv")
+	if code != exitOK || strings.Count(out, "\n") != 1 || !strings.HasPrefix(out, "station_id,season,") {
+		t.Errorf("guidance --table holzworth (empty, other tables not): exit %d, stdout %q, stderr %q", code, out, errs)
 	}
 
 	// Messages name what the user gave, not the program's packages.
