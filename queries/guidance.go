@@ -79,6 +79,45 @@ func (g *GuidanceTables) Table(name string) (*Table, error) {
 	return t, nil
 }
 
+// Matches reports whether g's filter (Options: stations and years)
+// matches the soundings of any of the four tables. A table with rows says
+// so at once; when every table computed is empty and some were left out
+// (Options.Only), those are computed to tell, since another table may use
+// soundings the printed ones do not.
+func (g *GuidanceTables) Matches(ctx context.Context, db *sql.DB) (bool, error) {
+	if !g.empty() {
+		return true, nil
+	}
+	if g.Options.Only == nil {
+		return false, nil
+	}
+	o := g.Options
+	o.Only = nil
+	for _, v := range GuidanceViews {
+		if !slices.Contains(g.Options.Only, v) {
+			o.Only = append(o.Only, v)
+		}
+	}
+	if len(o.Only) == 0 {
+		return false, nil
+	}
+	others, err := GuidanceOf(ctx, db, o)
+	if err != nil {
+		return false, err
+	}
+	return !others.empty(), nil
+}
+
+// empty reports whether every table of g that was computed has no rows.
+func (g *GuidanceTables) empty() bool {
+	for _, t := range []*Table{g.Afternoon, g.Holzworth, g.Ventilation, g.Persistence} {
+		if t != nil && len(t.Rows) > 0 {
+			return false
+		}
+	}
+	return true
+}
+
 // normalized fills defaults and checks o.
 func (o GuidanceOptions) normalized() (GuidanceOptions, error) {
 	if o.SBIClassesK == nil {

@@ -94,6 +94,18 @@ func TestGuidanceByHand(t *testing.T) {
 			t.Errorf("Only holzworth: table %s computed", v)
 		}
 	}
+	// Matches: holzworth has rows, so the filter matches; years without
+	// soundings match no table, the ones not computed included.
+	if ok, err := only.Matches(context.Background(), db); !ok || err != nil {
+		t.Errorf("Matches with rows: %v, %v", ok, err)
+	}
+	later, err := GuidanceOf(context.Background(), db, GuidanceOptions{FirstYear: 2030, LastYear: 2040, Only: []string{"holzworth"}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if ok, err := later.Matches(context.Background(), db); ok || err != nil {
+		t.Errorf("Matches for 2030-2040: %v, %v", ok, err)
+	}
 	if _, err := GuidanceOf(context.Background(), db, GuidanceOptions{Only: []string{"holzwort"}}); err == nil {
 		t.Error("unknown table in Only accepted")
 	}

@@ -112,33 +112,11 @@ Percentiles: Hyndman-Fan type 7; surface counts as 0 m.`,
 	if err != nil {
 		return fmt.Errorf("guidance: %v: %w", err, errUsage)
 	}
-	empty := func(g *queries.GuidanceTables) bool {
-		for _, v := range queries.GuidanceViews {
-			if t, err := g.Table(v); err == nil && len(t.Rows) > 0 {
-				return false
-			}
-		}
-		return true
+	matches, err := g.Matches(ctx, db)
+	if err != nil {
+		return fmt.Errorf("guidance: %v: %w", err, errUsage)
 	}
-	none := empty(g)
-	if none && opts.Only != nil {
-		// The filter may still match soundings that the other tables use:
-		// "matches nothing" is said only when all four are empty, so the
-		// tables not computed yet are computed to tell.
-		var rest []string
-		for _, v := range queries.GuidanceViews {
-			if !contains(opts.Only, v) {
-				rest = append(rest, v)
-			}
-		}
-		opts.Only = rest
-		others, err := queries.GuidanceOf(ctx, db, opts)
-		if err != nil {
-			return fmt.Errorf("guidance: %v: %w", err, errUsage)
-		}
-		none = empty(others)
-	}
-	if none {
+	if !matches {
 		return noMatch(ctx, db, "guidance", stations, *years)
 	}
 	if *out != "" {
