@@ -13,8 +13,10 @@ import (
 	"compress/gzip"
 	"context"
 	"encoding/json"
+	"errors"
 	"fmt"
 	"io"
+	"io/fs"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -110,7 +112,7 @@ func Run(ctx context.Context, opt Options) (*Result, error) {
 	var lastStore string
 	for _, w := range opt.Workers {
 		store := filepath.Join(opt.Dir, fmt.Sprintf("store-w%d", w))
-		if err := os.RemoveAll(store); err != nil {
+		if err := moveAside(opt.Dir, store); err != nil {
 			return nil, err
 		}
 		progress("ingest with %d worker(s)", w)
@@ -201,6 +203,32 @@ type QueryTime struct {
 	Seconds float64
 	Rows    int
 }
+
+// oldStores is the folder of Dir that stores of earlier runs are moved
+// into, to be deleted by RemoveOld after the last run.
+const oldStores = ".old-stores"
+
+// moveAside moves the store of an earlier run, if any, into Dir's
+// oldStores folder instead of deleting it: on ext4, inodes freed within
+// the last half-minute or so slow the creation of new files and folders
+// (the inode allocator steps over recently deleted ones), so a store
+// deleted just before an ingest makes that ingest pay for the deletion.
+// An ingest of a whole archive, or a nightly one into an existing store,
+// does not follow such a deletion.
+func moveAside(dir, store string) error {
+	if _, err := os.Stat(store); errors.Is(err, fs.ErrNotExist) {
+		return nil
+	}
+	old := filepath.Join(dir, oldStores)
+	if err := os.MkdirAll(old, 0o755); err != nil {
+		return err
+	}
+	return os.Rename(store, filepath.Join(old, fmt.Sprintf("%s-%d", filepath.Base(store), time.Now().UnixNano())))
+}
+
+// RemoveOld deletes the stores moved aside by the runs in dir; call it
+// after the last run.
+func RemoveOld(dir string) error { return os.RemoveAll(filepath.Join(dir, oldStores)) }
 
 // generate writes the archive (skipped when it is already there, complete).
 func generate(ctx context.Context, dir string, stations, years int, gz bool, res *Result) error {

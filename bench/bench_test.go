@@ -3,6 +3,7 @@ package bench
 import (
 	"io"
 	"math"
+	"os"
 	"path/filepath"
 	"testing"
 
@@ -93,5 +94,67 @@ func TestProjection(t *testing.T) {
 	}
 	if math.Abs(res.ProjectedCPUH-0.075) > 1e-12 {
 		t.Errorf("CPU projection %.4f h, want 0.075 h", res.ProjectedCPUH)
+	}
+}
+
+// TestFitLevels: two files, worked by hand. File A: 100 soundings of 200
+// levels, fastest run 1.0 s = 10,000 us a sounding; file B: 100 soundings of
+// 100 levels, fastest run 0.6 s = 6,000 us a sounding. The line through
+// (200, 10000) and (100, 6000) has a slope of 40 us a level and 2,000 us at
+// no levels. 36,000 soundings of 50 levels: 36,000 * 4,000 us = 144 s =
+// 0.04 h; within 0.1 h (360 s, 10,000 us a sounding): 200 levels.
+func TestFitLevels(t *testing.T) {
+	a := &Result{Real: "A", Soundings: 100, Levels: 20000, Ingest: []IngestRun{
+		{Workers: 2, WallS: 1.3, Soundings: 100}, {Workers: 2, WallS: 1.0, Soundings: 100}}}
+	b := &Result{Real: "B", Soundings: 100, Levels: 10000, Ingest: []IngestRun{{Workers: 2, WallS: 0.6, Soundings: 100}}}
+	f, err := FitLevels([]*Result{a, b})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if math.Abs(f.PerLevelUS-40) > 1e-9 || math.Abs(f.PerSoundingUS-2000) > 1e-9 {
+		t.Errorf("fit %.6f us a sounding + %.6f us a level, want 2000 + 40", f.PerSoundingUS, f.PerLevelUS)
+	}
+	if h := f.Hours(36000, 50); math.Abs(h-0.04) > 1e-12 {
+		t.Errorf("projection %.6f h, want 0.04 h", h)
+	}
+	if l := f.LevelsWithin(36000, 0.1); math.Abs(l-200) > 1e-9 {
+		t.Errorf("levels within 0.1 h: %.6f, want 200", l)
+	}
+	if l := f.LevelsWithin(36000, 0.01); l != 0 {
+		t.Errorf("levels within 0.01 h (1,000 us a sounding, below the 2,000 of no levels): %v, want 0", l)
+	}
+	if _, err := FitLevels([]*Result{a, a}); err == nil {
+		t.Error("a fit of two files of the same level count: no error")
+	}
+	if _, err := FitLevels([]*Result{a, {Real: "C", Soundings: 10, Levels: 10}}); err == nil {
+		t.Error("a fit with a file without runs: no error")
+	}
+}
+
+// TestMoveAside: an earlier store is moved out of the way, not deleted,
+// and RemoveOld deletes it; a store not there is no error.
+func TestMoveAside(t *testing.T) {
+	dir := t.TempDir()
+	store := filepath.Join(dir, "store-w2")
+	if err := moveAside(dir, store); err != nil {
+		t.Fatalf("no store: %v", err)
+	}
+	if err := os.MkdirAll(filepath.Join(store, "levels"), 0o755); err != nil {
+		t.Fatal(err)
+	}
+	if err := moveAside(dir, store); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := os.Stat(store); !os.IsNotExist(err) {
+		t.Errorf("store still in place after moveAside (%v)", err)
+	}
+	if m, _ := filepath.Glob(filepath.Join(dir, oldStores, "store-w2-*", "levels")); len(m) != 1 {
+		t.Errorf("moved stores %v, want one", m)
+	}
+	if err := RemoveOld(dir); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := os.Stat(filepath.Join(dir, oldStores)); !os.IsNotExist(err) {
+		t.Errorf("old stores left after RemoveOld (%v)", err)
 	}
 }

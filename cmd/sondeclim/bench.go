@@ -24,7 +24,7 @@ type benchCmd struct {
 }
 
 func (c *benchCmd) Run(ctx context.Context, args []string) error {
-	fs := newFlags("bench", "[--dir DIR] [--stations N] [--years N | --real FILE [--copies N]] [--gzip] [--workers 1,2] [--station-list FILE]", `
+	fs := newFlags("bench", "[--dir DIR] [--stations N] [--years N | --real FILE[,FILE...] [--copies N[,N...]]] [--gzip] [--workers 1,2] [--station-list FILE]", `
 Measure the pipeline on this machine. The command writes an invented
 archive (the demo generator: N stations x N years, two soundings a day,
 about 60-90 levels each, archive-v2 format, plain or gzipped), or, with
@@ -53,12 +53,30 @@ control, parsing, the runtime).
              assumes the archive's soundings cost what the measured ones
              do (real ones: about 200 levels each for the Sterling file).
 
+  by level count  with two or more --real files of different mean level
+             counts (comma-separated, each measured as above; --copies
+             takes one count for all or one per file): the wall time a
+             sounding as a straight line in its level count, fitted to the
+             fastest run of each file, the whole archive's time at
+             --archive-levels levels a sounding (default 28.6: 800 million
+             levels in 28 million soundings, the version 1 archive's Data
+             Coverage page of NOAA's National Climatic Data Center), and
+             the mean level count under which it stays within one hour.
+             Thin soundings lie outside the measured range: the line is
+             then an extrapolation.
+
 Run it at two archive sizes to see whether memory grows with the archive.
-Timings depend on what else the machine is doing.`,
+Timings depend on what else the machine is doing. The stores of earlier
+runs are moved aside and deleted after the last run: on ext4, files and
+folders created shortly after many were deleted take longer, which an
+ingest of a whole archive or a nightly ingest does not meet. Give a
+worker count more than once (--workers 2,2,2) to take the fastest of
+several runs.`,
 		`  sondeclim bench                                  # 20 stations x 30 years
   sondeclim bench --stations 4 --years 5           # a quick look
   sondeclim bench --gzip --workers 2 --dir /scratch/bench
-  sondeclim bench --real ../shared/validation/archive-v2/USM00072403-data-beg2016.txt.zip --gzip --workers 2`, c.stderr)
+  sondeclim bench --real ../shared/validation/archive-v2/USM00072403-data-beg2016.txt.zip --gzip --workers 2
+  sondeclim bench --real ../shared/validation/archive-v2/USM00072403-data-beg2016.txt.zip,../shared/validation/archive-v2/AUM00011035-data.txt.gz --copies 20,40 --gzip --workers 2`, c.stderr)
 	dir := fs.String("dir", filepath.Join(os.TempDir(), "sondeclim-bench"), "working `directory` (archive and stores)")
 	stations := fs.Int("stations", 20, "invented stations")
 	years := fs.Int("years", 30, "years per station")
@@ -66,8 +84,9 @@ Timings depend on what else the machine is doing.`,
 	workersList := fs.String("workers", "1,2", "comma-separated worker counts to measure")
 	asJSON := fs.Bool("json", false, "print the results as JSON")
 	profile := fs.Bool("profile", false, "write a CPU profile of each ingest (store-wN.pprof in --dir)")
-	real := fs.String("real", "", "archive-v2 station `file` to copy instead of generating an archive")
-	copies := fs.Int("copies", 20, "copies of the --real file (1..999)")
+	real := fs.String("real", "", "archive-v2 station `file`s to copy instead of generating an archive (comma-separated)")
+	copiesList := fs.String("copies", "20", "copies of each --real file (1..999; comma-separated, one per file)")
+	archiveLevels := fs.Float64("archive-levels", bench.ArchiveLevelsV1, "mean `levels` a sounding of the archive, for the projection by level count")
 	stationList := fs.String("station-list", "", "the archive's station list `file`, for the whole-archive projection")
 	if err := parseFlags(fs, args); err != nil {
 		return err
@@ -83,24 +102,55 @@ Timings depend on what else the machine is doing.`,
 	if *stations < 1 || *years < 1 {
 		return fmt.Errorf("bench: --stations and --years must be at least 1: %w", errUsage)
 	}
-	if *real != "" && (*copies < 1 || *copies > 999) {
-		return fmt.Errorf("bench: --copies must lie in 1..999: %w", errUsage)
+	reals := []string{*real}
+	if *real != "" {
+		reals = strings.Split(*real, ",")
+		for i := range reals {
+			if reals[i] = strings.TrimSpace(reals[i]); reals[i] == "" {
+				return fmt.Errorf("bench: --real %q: an empty file name: %w", *real, errUsage)
+			}
+		}
+	}
+	var copies []int
+	for _, s := range strings.Split(*copiesList, ",") {
+		n, err := strconv.Atoi(strings.TrimSpace(s))
+		if err != nil || n < 1 || n > 999 {
+			return fmt.Errorf("bench: --copies %q: each must lie in 1..999: %w", *copiesList, errUsage)
+		}
+		copies = append(copies, n)
+	}
+	if len(copies) != 1 && len(copies) != len(reals) {
+		return fmt.Errorf("bench: --copies %q: give one count or one per --real file (%d): %w", *copiesList, len(reals), errUsage)
+	}
+	if !(*archiveLevels > 0) {
+		return fmt.Errorf("bench: --archive-levels must be above 0: %w", errUsage)
 	}
 	exe, err := os.Executable()
 	if err != nil {
 		return fmt.Errorf("bench: %w", err)
 	}
-	res, err := bench.Run(ctx, bench.Options{Dir: *dir, Stations: *stations, Years: *years, Gzip: *gz, Workers: workers,
-		Profile: *profile, Real: *real, Copies: *copies, StationList: *stationList,
-		Executable: exe, Env: []string{"SONDECLIM_RUN_MAIN=1"}, Progress: c.stderr})
+	// Stores of earlier runs are deleted after the last run, not before
+	// each (bench.RemoveOld).
+	defer func() {
+		if err := bench.RemoveOld(*dir); err != nil {
+			fmt.Fprintf(c.stderr, "bench: %v\n", err)
+		}
+	}()
+	out, err := bench.RunFiles(ctx, bench.Options{Dir: *dir, Stations: *stations, Years: *years, Gzip: *gz, Workers: workers,
+		Profile: *profile, StationList: *stationList,
+		Executable: exe, Env: []string{"SONDECLIM_RUN_MAIN=1"}, Progress: c.stderr}, reals, copies, *archiveLevels)
 	if err != nil {
 		return fmt.Errorf("bench: %w", err)
 	}
 	if *asJSON {
-		b, _ := json.MarshalIndent(res, "", "  ")
+		var v any = out
+		if len(out.Results) == 1 {
+			v = out.Results[0] // one file or the invented archive: as before
+		}
+		b, _ := json.MarshalIndent(v, "", "  ")
 		_, err := fmt.Fprintf(c.stdout, "%s\n", b)
 		return err
 	}
-	res.WriteText(c.stdout)
+	out.WriteText(c.stdout)
 	return nil
 }
