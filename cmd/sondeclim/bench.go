@@ -91,13 +91,9 @@ several runs.`,
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
-	var workers []int
-	for _, w := range strings.Split(*workersList, ",") {
-		n, err := strconv.Atoi(strings.TrimSpace(w))
-		if err != nil || n < 1 {
-			return fmt.Errorf("bench: --workers %q: %w", *workersList, errUsage)
-		}
-		workers = append(workers, n)
+	workers, ok := counts(*workersList, 1<<20)
+	if !ok {
+		return fmt.Errorf("bench: --workers %q: %w", *workersList, errUsage)
 	}
 	if *stations < 1 || *years < 1 {
 		return fmt.Errorf("bench: --stations and --years must be at least 1: %w", errUsage)
@@ -111,13 +107,9 @@ several runs.`,
 			}
 		}
 	}
-	var copies []int
-	for _, s := range strings.Split(*copiesList, ",") {
-		n, err := strconv.Atoi(strings.TrimSpace(s))
-		if err != nil || n < 1 || n > 999 {
-			return fmt.Errorf("bench: --copies %q: each must lie in 1..999: %w", *copiesList, errUsage)
-		}
-		copies = append(copies, n)
+	copies, ok := counts(*copiesList, 999)
+	if !ok {
+		return fmt.Errorf("bench: --copies %q: each must lie in 1..999: %w", *copiesList, errUsage)
 	}
 	if len(copies) != 1 && len(copies) != len(reals) {
 		return fmt.Errorf("bench: --copies %q: give one count or one per --real file (%d): %w", *copiesList, len(reals), errUsage)
@@ -153,4 +145,18 @@ several runs.`,
 	}
 	out.WriteText(c.stdout)
 	return nil
+}
+
+// counts parses a comma-separated list of counts in 1..max; false when one
+// is not.
+func counts(list string, max int) ([]int, bool) {
+	var out []int
+	for _, f := range strings.Split(list, ",") {
+		n, err := strconv.Atoi(strings.TrimSpace(f))
+		if err != nil || n < 1 || n > max {
+			return nil, false
+		}
+		out = append(out, n)
+	}
+	return out, true
 }
