@@ -70,6 +70,10 @@ func FitLevels(results []*Result) (LevelFit, error) {
 	return f, nil
 }
 
+// Usable reports whether neither fitted cost is below zero: a negative
+// one means the runs were too noisy for a projection by level count.
+func (f LevelFit) Usable() bool { return f.PerSoundingUS >= 0 && f.PerLevelUS >= 0 }
+
 // Hours returns the wall time in h of an ingest of soundings soundings of
 // levels levels each on average.
 func (f LevelFit) Hours(soundings int64, levels float64) float64 {
@@ -98,7 +102,7 @@ func (f LevelFit) WriteText(w io.Writer, soundings int64, levels float64) {
 		fmt.Fprintf(w, "  %s: %.0f levels a sounding, %.1f us of wall time a sounding\n", name, f.Levels[i], f.WallUS[i])
 	}
 	fmt.Fprintf(w, "  fit: %.1f us a sounding + %.3f us a level\n", f.PerSoundingUS, f.PerLevelUS)
-	if f.PerSoundingUS < 0 || f.PerLevelUS < 0 {
+	if !f.Usable() {
 		fmt.Fprintln(w, "  a cost below zero: the runs are too noisy for a projection by level count; measure again")
 		return
 	}
@@ -142,7 +146,7 @@ func RunFiles(ctx context.Context, opt Options, files []string, copies []int, ar
 			return nil, err
 		}
 		out.LevelFit = &f
-		if f.PerSoundingUS >= 0 && f.PerLevelUS >= 0 {
+		if f.Usable() {
 			out.ProjectedH = f.Hours(out.Results[0].ArchiveSoundings, archiveLevels)
 		}
 	}
