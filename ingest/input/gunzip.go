@@ -8,7 +8,7 @@ import (
 	"sync"
 )
 
-// ErrGunzip is the error of Gunzip for input it does not decode: damaged
+// ErrGunzip is the error of Gunzip (and Inflate) for input it does not decode: damaged
 // or malformed gzip data, a member over the limit, or output that does not
 // fit the room given. Gunzip says no more; a caller that wants to know why
 // reads the data through Each, whose decoder reports it.
@@ -55,6 +55,29 @@ func Gunzip(dst, src []byte, limit int64) ([]byte, error) {
 			return dst, ErrGunzip
 		}
 		src = rest[8:]
+	}
+	return dst, nil
+}
+
+// Inflate decodes src, the compressed data of a zip member stored with
+// the deflate method (a raw deflate stream, RFC 1951; PKWARE's APPNOTE.TXT
+// §4.4.5 method 8), into dst[len(dst):cap(dst)] and returns dst extended
+// by the decoded bytes. size and crc are the member's uncompressed size
+// and CRC-32 (APPNOTE §4.4.7, §4.4.9, from its directory entry): output of
+// another length or checksum, output that would pass cap(dst), and
+// damaged or malformed data fail with ErrGunzip, as Gunzip does. Bytes
+// after the stream's final block are ignored.
+func Inflate(dst, src []byte, size uint64, crc uint32) ([]byte, error) {
+	start := len(dst)
+	if uint64(cap(dst)-start) < size {
+		return dst, ErrGunzip
+	}
+	dst, _, err := inflate(dst, src)
+	if err != nil {
+		return dst, err
+	}
+	if out := dst[start:]; uint64(len(out)) != size || crc32.ChecksumIEEE(out) != crc {
+		return dst, ErrGunzip
 	}
 	return dst, nil
 }
