@@ -189,6 +189,9 @@ type Summary struct {
 	// for no build). For tests.
 	stagedInMemory, stagedOnDisk int
 	heldAtEnd                    int64
+	// decodedWhole counts the compressed inputs decoded in one call
+	// (wholeGzip, wholeZip) rather than as a stream. For tests.
+	decodedWhole int
 }
 
 // SkippedByReason counts Skipped by reason.

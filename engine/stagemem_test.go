@@ -71,8 +71,9 @@ func TestStagingMemorySpill(t *testing.T) {
 		{"disk only", Options{Workers: 2, StagingMemoryBytes: -1}, 0, 2},
 		// A plain file is always read from itself.
 		{"memory only", Options{Workers: 2, StagingMemoryBytes: 1 << 30}, 1, 1},
-		// The gzip copy gets a first 1 MiB in memory, cannot double it
-		// and is spilled to disk with what it held.
+		// The gzip file states more text than the budget holds, so it is
+		// decoded whole and written to disk (wholeGzip); a spill in the
+		// middle of a stream is TestWholeDecoding's two-member inputs.
 		{"spilled midway", Options{Workers: 2, StagingMemoryBytes: 1<<20 + 1000}, 0, 2},
 		{"default", Options{Workers: 2}, 1, 1},
 	} {
