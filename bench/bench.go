@@ -9,6 +9,7 @@
 package bench
 
 import (
+	"archive/zip"
 	"bufio"
 	"compress/gzip"
 	"context"
@@ -41,8 +42,12 @@ type Options struct {
 	Dir             string // working directory: the archive and the stores
 	Stations, Years int    // size of the invented archive
 	Gzip            bool   // write the archive (or the copies) gzipped
-	Workers         []int  // worker counts of the ingest runs, at least one
-	Profile         bool   // each ingest writes a CPU profile beside its store (store-wN.pprof)
+	// Zip writes the copies of Real as zip archives of one member each,
+	// the form the archive's station files are distributed in (not with
+	// Gzip; the invented archive is plain or gzipped only).
+	Zip     bool
+	Workers []int // worker counts of the ingest runs, at least one
+	Profile bool  // each ingest writes a CPU profile beside its store (store-wN.pprof)
 	// Real, when set, is an archive-v2 station file (plain, .gz or .zip)
 	// copied Copies times, each copy under its own station id, instead of
 	// the invented archive.
@@ -72,7 +77,10 @@ func Run(ctx context.Context, opt Options) (*Result, error) {
 	if len(opt.Workers) == 0 {
 		return nil, fmt.Errorf("no worker counts to measure")
 	}
-	res := &Result{Stations: opt.Stations, Years: opt.Years, Gzip: opt.Gzip, CPUs: runtime.NumCPU()}
+	if opt.Zip && (opt.Gzip || opt.Real == "") {
+		return nil, fmt.Errorf("zip copies are made of a real file only, and not gzipped as well")
+	}
+	res := &Result{Stations: opt.Stations, Years: opt.Years, Gzip: opt.Gzip, Zip: opt.Zip, CPUs: runtime.NumCPU()}
 	stationList := opt.StationList
 	if opt.Real != "" && stationList == "" {
 		if m, _ := filepath.Glob(filepath.Join(filepath.Dir(opt.Real), "*station-list*.txt")); len(m) == 1 {
@@ -91,8 +99,11 @@ func Run(ctx context.Context, opt Options) (*Result, error) {
 	if opt.Real != "" {
 		res.Real, res.Stations, res.Years = opt.Real, opt.Copies, 0
 		archive = filepath.Join(opt.Dir, fmt.Sprintf("real-%s-x%d-gz%v", filepath.Base(opt.Real), opt.Copies, opt.Gzip))
+		if opt.Zip {
+			archive = filepath.Join(opt.Dir, fmt.Sprintf("real-%s-x%d-zip", filepath.Base(opt.Real), opt.Copies))
+		}
 		progress("writing %d copies of %s in %s", opt.Copies, opt.Real, archive)
-		if err := CopyReal(archive, opt.Real, opt.Copies, opt.Gzip, res); err != nil {
+		if err := CopyReal(archive, opt.Real, opt.Copies, copyKind(opt), res); err != nil {
 			return nil, err
 		}
 	} else {
@@ -152,12 +163,22 @@ func (res *Result) addRun(run IngestRun) {
 	}
 }
 
+// form names how the copies are stored, for the report: "gzip true"
+// or "gzip false" as for the invented archive, or "zip".
+func (r *Result) form() string {
+	if r.Zip {
+		return "zip"
+	}
+	return fmt.Sprintf("gzip %v", r.Gzip)
+}
+
 // Result is what a benchmark run measured (the JSON of "sondeclim bench
 // --json"; field names are part of that output).
 type Result struct {
 	Stations, Years int    // with Real: Stations is the number of copies, Years 0
 	Real            string `json:",omitempty"` // the real file copied, if any
 	Gzip            bool
+	Zip             bool `json:",omitempty"` // the copies are zip archives of one member
 	CPUs            int
 	Soundings       int
 	InputFileBytes  int64 // on disk
@@ -299,11 +320,29 @@ func generate(ctx context.Context, dir string, stations, years int, gz bool, res
 	return nil
 }
 
+// The forms CopyReal writes copies in.
+const (
+	CopyPlain = iota
+	CopyGzip  // gzip, one member (RFC 1952)
+	CopyZip   // a zip archive of one deflated member, as the archive's station files are distributed
+)
+
+func copyKind(opt Options) int {
+	switch {
+	case opt.Zip:
+		return CopyZip
+	case opt.Gzip:
+		return CopyGzip
+	}
+	return CopyPlain
+}
+
 // CopyReal writes copies copies of the real archive-v2 file src (plain,
 // gzip or zip) into dir, each under its own station id (the last three
-// characters of the id replaced by the copy's number), plain or gzipped.
-// Nothing is written when dir already holds them.
-func CopyReal(dir, src string, copies int, gz bool, res *Result) error {
+// characters of the id replaced by the copy's number), in the form kind
+// (CopyPlain, CopyGzip, CopyZip). Nothing is written when dir already
+// holds them.
+func CopyReal(dir, src string, copies int, kind int, res *Result) error {
 	start := time.Now()
 	done := filepath.Join(dir, ".complete")
 	defer func() { res.GenerateS = time.Since(start).Seconds() }()
@@ -349,7 +388,7 @@ func CopyReal(dir, src string, copies int, gz bool, res *Result) error {
 			b.WriteString(line)
 		}
 		name := filepath.Join(dir, fmt.Sprintf("%s-data.txt", id))
-		if err := writeCopy(name, b.String(), gz); err != nil {
+		if err := writeCopy(name, b.String(), kind); err != nil {
 			return err
 		}
 	}
@@ -360,9 +399,13 @@ func CopyReal(dir, src string, copies int, gz bool, res *Result) error {
 	return sizeOf(dir, res)
 }
 
-func writeCopy(name, text string, gz bool) error {
-	if gz {
+func writeCopy(name, text string, kind int) error {
+	member := filepath.Base(name)
+	switch kind {
+	case CopyGzip:
 		name += ".gz"
+	case CopyZip:
+		name += ".zip"
 	}
 	f, err := os.Create(name)
 	if err != nil {
@@ -370,16 +413,23 @@ func writeCopy(name, text string, gz bool) error {
 	}
 	defer f.Close()
 	var w io.Writer = f
-	var zw *gzip.Writer
-	if gz {
-		zw = gzip.NewWriter(f)
-		w = zw
+	var closer io.Closer
+	switch kind {
+	case CopyGzip:
+		zw := gzip.NewWriter(f)
+		w, closer = zw, zw
+	case CopyZip:
+		zw := zip.NewWriter(f)
+		if w, err = zw.Create(member); err != nil {
+			return err
+		}
+		closer = zw
 	}
 	if _, err := io.WriteString(w, text); err != nil {
 		return err
 	}
-	if zw != nil {
-		if err := zw.Close(); err != nil {
+	if closer != nil {
+		if err := closer.Close(); err != nil {
 			return err
 		}
 	}
@@ -558,8 +608,8 @@ func timeQueries(ctx context.Context, store string, res *Result) error {
 func (r *Result) WriteText(w io.Writer) {
 	tw := tabwriter.NewWriter(w, 0, 4, 2, ' ', 0)
 	if r.Real != "" {
-		fmt.Fprintf(tw, "archive\t%d copies of %s, %d soundings, %.0f levels each on average, %.0f MB on disk, %.0f MB of text, gzip %v\n",
-			r.Stations, r.Real, r.Soundings, float64(r.Levels)/float64(max(r.Soundings, 1)), float64(r.InputFileBytes)/1e6, float64(r.InputTextBytes)/1e6, r.Gzip)
+		fmt.Fprintf(tw, "archive\t%d copies of %s, %d soundings, %.0f levels each on average, %.0f MB on disk, %.0f MB of text, %s\n",
+			r.Stations, r.Real, r.Soundings, float64(r.Levels)/float64(max(r.Soundings, 1)), float64(r.InputFileBytes)/1e6, float64(r.InputTextBytes)/1e6, r.form())
 	} else {
 		fmt.Fprintf(tw, "archive\t%d stations x %d years, %d soundings, %.0f levels each on average, %.0f MB on disk, %.0f MB of text, gzip %v\n",
 			r.Stations, r.Years, r.Soundings, float64(r.Levels)/float64(max(r.Soundings, 1)), float64(r.InputFileBytes)/1e6, float64(r.InputTextBytes)/1e6, r.Gzip)

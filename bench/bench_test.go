@@ -1,10 +1,12 @@
 package bench
 
 import (
+	"archive/zip"
 	"io"
 	"math"
 	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 
 	"github.com/sondeclim/sondeclim/ingest/archivev2"
@@ -29,47 +31,63 @@ func TestArchiveSoundings(t *testing.T) {
 
 // TestCopyReal: --real writes copies of a real file, each a station
 // of its own that reads as the original does (Wien, 321 soundings:
-// PROVENANCE.md).
+// PROVENANCE.md), plain, gzipped, or as a zip of one member that the
+// standard library's archive/zip reads.
 func TestCopyReal(t *testing.T) {
 	v := realdata.Dir(t)
-	dir := filepath.Join(t.TempDir(), "copies")
-	var res Result
-	if err := CopyReal(dir, filepath.Join(v, "archive-v2", "AUM00011035-data.txt.gz"), 3, true, &res); err != nil {
-		t.Fatal(err)
-	}
-	if res.Soundings != 3*321 {
-		t.Errorf("soundings %d, want %d", res.Soundings, 3*321)
-	}
-	files, _ := filepath.Glob(filepath.Join(dir, "*-data.txt.gz"))
-	if len(files) != 3 {
-		t.Fatalf("files %v, want 3", files)
-	}
-	ids := map[string]bool{}
-	for _, f := range files {
-		n := 0
-		err := input.Each(f, 0, func(m string, rd io.Reader) error {
-			r := archivev2.NewReader(rd, f, m)
-			for {
-				s, err := r.Next()
-				if err == io.EOF {
-					return nil
-				}
+	for _, c := range []struct {
+		kind int
+		glob string
+	}{{CopyPlain, "*-data.txt"}, {CopyGzip, "*-data.txt.gz"}, {CopyZip, "*-data.txt.zip"}} {
+		dir := filepath.Join(t.TempDir(), "copies")
+		var res Result
+		if err := CopyReal(dir, filepath.Join(v, "archive-v2", "AUM00011035-data.txt.gz"), 3, c.kind, &res); err != nil {
+			t.Fatal(err)
+		}
+		if res.Soundings != 3*321 {
+			t.Errorf("%s: soundings %d, want %d", c.glob, res.Soundings, 3*321)
+		}
+		files, _ := filepath.Glob(filepath.Join(dir, c.glob))
+		if len(files) != 3 {
+			t.Fatalf("files %v, want 3 %s", files, c.glob)
+		}
+		ids := map[string]bool{}
+		for _, f := range files {
+			if c.kind == CopyZip {
+				zr, err := zip.OpenReader(f)
 				if err != nil {
-					return err
+					t.Fatal(err)
 				}
-				ids[s.StationID] = true
-				n++
+				if len(zr.File) != 1 || zr.File[0].Method != zip.Deflate || zr.File[0].Name != strings.TrimSuffix(filepath.Base(f), ".zip") {
+					t.Errorf("%s: members %d (first %q), want one deflated member named as the file", f, len(zr.File), zr.File[0].Name)
+				}
+				zr.Close()
 			}
-		})
-		if err != nil {
-			t.Fatalf("%s: %v", f, err)
+			n := 0
+			err := input.Each(f, 0, func(m string, rd io.Reader) error {
+				r := archivev2.NewReader(rd, f, m)
+				for {
+					s, err := r.Next()
+					if err == io.EOF {
+						return nil
+					}
+					if err != nil {
+						return err
+					}
+					ids[s.StationID] = true
+					n++
+				}
+			})
+			if err != nil {
+				t.Fatalf("%s: %v", f, err)
+			}
+			if n != 321 {
+				t.Errorf("%s: %d soundings, want 321", f, n)
+			}
 		}
-		if n != 321 {
-			t.Errorf("%s: %d soundings, want 321", f, n)
+		if len(ids) != 3 {
+			t.Errorf("%s: station ids %v, want three distinct", c.glob, ids)
 		}
-	}
-	if len(ids) != 3 {
-		t.Errorf("station ids %v, want three distinct", ids)
 	}
 }
 

@@ -24,13 +24,15 @@ type benchCmd struct {
 }
 
 func (c *benchCmd) Run(ctx context.Context, args []string) error {
-	fs := newFlags("bench", "[--dir DIR] [--stations N] [--years N | --real FILE[,FILE...] [--copies N[,N...]]] [--gzip] [--workers 1,2] [--station-list FILE]", `
+	fs := newFlags("bench", "[--dir DIR] [--stations N] [--years N | --real FILE[,FILE...] [--copies N[,N...]]] [--gzip | --zip] [--workers 1,2] [--station-list FILE]", `
 Measure the pipeline on this machine. The command writes an invented
 archive (the demo generator: N stations x N years, two soundings a day,
 about 60-90 levels each, archive-v2 format, plain or gzipped), or, with
 --real, N copies of a real archive-v2 station file (plain, .gz or .zip; each
 copy under its own station id, so every copy is a station-year of its own,
-with the real file's level counts), then reports:
+with the real file's level counts; written plain, gzipped with --gzip, or
+with --zip as zip archives of one member, the form in which the archive
+distributes its station files), then reports:
 
   floor      the time to read and decompress the files and split them into
              lines, nothing else: the least any ingest of them can take;
@@ -76,11 +78,13 @@ several runs.`,
   sondeclim bench --stations 4 --years 5           # a quick look
   sondeclim bench --gzip --workers 2 --dir /scratch/bench
   sondeclim bench --real ../shared/validation/archive-v2/USM00072403-data-beg2016.txt.zip --gzip --workers 2
+  sondeclim bench --real ../shared/validation/archive-v2/USM00072403-data-beg2016.txt.zip --zip --workers 2,2,2
   sondeclim bench --real ../shared/validation/archive-v2/USM00072403-data-beg2016.txt.zip,../shared/validation/archive-v2/AUM00011035-data.txt.gz --copies 20,40 --gzip --workers 2`, c.stderr)
 	dir := fs.String("dir", filepath.Join(os.TempDir(), "sondeclim-bench"), "working `directory` (archive and stores)")
 	stations := fs.Int("stations", 20, "invented stations")
 	years := fs.Int("years", 30, "years per station")
 	gz := fs.Bool("gzip", false, "write the archive gzipped")
+	zipped := fs.Bool("zip", false, "write the copies of --real as zip archives of one member each, the form the archive's station files are distributed in")
 	workersList := fs.String("workers", "1,2", "comma-separated worker counts to measure")
 	asJSON := fs.Bool("json", false, "print the results as JSON")
 	profile := fs.Bool("profile", false, "write a CPU profile of each ingest (store-wN.pprof in --dir)")
@@ -114,6 +118,9 @@ several runs.`,
 	if len(copies) != 1 && len(copies) != len(reals) {
 		return fmt.Errorf("bench: --copies %q: give one count or one per --real file (%d): %w", *copiesList, len(reals), errUsage)
 	}
+	if *zipped && (*gz || *real == "") {
+		return fmt.Errorf("bench: --zip is for the copies of --real, and excludes --gzip: %w", errUsage)
+	}
 	if !(*archiveLevels > 0) {
 		return fmt.Errorf("bench: --archive-levels must be above 0: %w", errUsage)
 	}
@@ -128,7 +135,7 @@ several runs.`,
 			fmt.Fprintf(c.stderr, "bench: %v\n", err)
 		}
 	}()
-	out, err := bench.RunFiles(ctx, bench.Options{Dir: *dir, Stations: *stations, Years: *years, Gzip: *gz, Workers: workers,
+	out, err := bench.RunFiles(ctx, bench.Options{Dir: *dir, Stations: *stations, Years: *years, Gzip: *gz, Zip: *zipped, Workers: workers,
 		Profile: *profile, StationList: *stationList,
 		Executable: exe, Env: []string{"SONDECLIM_RUN_MAIN=1"}, Progress: c.stderr}, reals, copies, *archiveLevels)
 	if err != nil {
