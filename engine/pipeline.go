@@ -218,8 +218,11 @@ type run struct {
 	staging string
 
 	runBudget *input.Budget
-	memStage  *memBudget      // in-memory staging of archive-v2 text (stagemem.go); nil: none
-	damaged   map[string]bool // partitions whose committed files are damaged: rebuilt, never kept
+	memStage  *memBudget // in-memory staging of archive-v2 text (stagemem.go); nil: none
+	// textBudget bounds the reading goroutines' buffers for the text of
+	// inputs staged on disk but decoded whole (WholeTextBytes).
+	textBudget *memBudget
+	damaged    map[string]bool // partitions whose committed files are damaged: rebuilt, never kept
 	// levelBufs holds the levels column buffers of station-years written,
 	// for the next ones built (some 24 MB each on a real station-year).
 	levelBufs schema.LevelBuffers
