@@ -168,8 +168,8 @@ func (buf *readBuffers) roomFor(budget *memBudget, hint int64) bool {
 // the stream decoder took an ingest of 20 gzipped Sterling copies staged
 // on disk (--staging-memory-bytes 0) from 1.33 to 1.06 s and one of the
 // invented archive, 20 stations x 30 years gzipped (20 inputs of 89 MB of
-// text), from 19.9 to 14.5 s, for a peak of 641 MB instead of 536
-// (5 December 2026, 2 workers).
+// text), from 22.6-23.6 to 18.5-21.0 s, for a peak of 591-597 MB instead
+// of 534-555 (5 December 2026, 2 workers, three alternating runs).
 const WholeTextBytes = 256 << 20
 
 // stageFile reads one input file (all its members) into its spill file.
