@@ -552,8 +552,10 @@ func soleDeflated(f *os.File, size, limit int64) *zip.File {
 		}
 		sole = zf
 	}
-	if sole == nil || sole.Method != zip.Deflate || sole.UncompressedSize64 == 0 || sole.UncompressedSize64 > uint64(limit) ||
-		sole.CompressedSize64 > uint64(size) {
+	// Flag bit 0: the member is encrypted (APPNOTE.TXT §4.4.4), which the
+	// stream's reader refuses and reports.
+	if sole == nil || sole.Method != zip.Deflate || sole.Flags&1 != 0 || sole.UncompressedSize64 == 0 ||
+		sole.UncompressedSize64 > uint64(limit) || sole.CompressedSize64 > uint64(size) {
 		return nil
 	}
 	return sole
