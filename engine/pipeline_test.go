@@ -5,7 +5,6 @@ import (
 	"bytes"
 	"compress/gzip"
 	"context"
-	"github.com/sondeclim/sondeclim/internal/realdata"
 	"math"
 	"os"
 	"path/filepath"
@@ -13,6 +12,8 @@ import (
 	"strings"
 	"testing"
 	"time"
+
+	"github.com/sondeclim/sondeclim/internal/realdata"
 
 	"github.com/sondeclim/sondeclim/ingest/archivev2"
 	"github.com/sondeclim/sondeclim/ingest/synth"
@@ -254,20 +255,8 @@ func TestInPlaceEqualsDecoded(t *testing.T) {
 	write("both.zip", zb.Bytes())
 
 	run := func(decodeAll bool) (map[string]string, []Skip, *Summary) {
-		storeDir := t.TempDir()
-		sum, err := Run(context.Background(), storeDir, []string{in}, Options{Workers: 2, decodeAll: decodeAll})
-		if err != nil {
-			t.Fatal(err)
-		}
-		m, err := store.ReadManifest(storeDir, store.Shard{})
-		if err != nil {
-			t.Fatal(err)
-		}
-		hashes := map[string]string{}
-		for k, p := range m.Partitions {
-			hashes[k] = p.ContentHash
-		}
-		return hashes, sum.Skipped, sum
+		o := ingestOutcome(t, []string{in}, Options{Workers: 2, decodeAll: decodeAll})
+		return o.hashes, o.skips, o.sum
 	}
 	inPlace, skipsA, sumA := run(false)
 	decoded, skipsB, sumB := run(true)

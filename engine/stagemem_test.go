@@ -38,27 +38,7 @@ func TestStagingMemorySpill(t *testing.T) {
 	if err := os.WriteFile(filepath.Join(in, "b-second.txt.gz"), gz.Bytes(), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	type outcome struct {
-		hashes map[string]string
-		skips  []Skip
-		sum    *Summary
-	}
-	run := func(opt Options) outcome {
-		storeDir := t.TempDir()
-		sum, err := Run(context.Background(), storeDir, []string{in}, opt)
-		if err != nil {
-			t.Fatal(err)
-		}
-		m, err := store.ReadManifest(storeDir, store.Shard{})
-		if err != nil {
-			t.Fatal(err)
-		}
-		hashes := map[string]string{}
-		for k, p := range m.Partitions {
-			hashes[k] = p.ContentHash
-		}
-		return outcome{hashes, sum.Skipped, sum}
-	}
+	run := func(opt Options) runOutcome { return ingestOutcome(t, []string{in}, opt) }
 	want := run(Options{Workers: 2, decodeAll: true})
 	if len(want.hashes) != 4 || len(want.skips) != 1 {
 		t.Fatalf("decoding path: %d partitions, skips %v; want the 4 station-years and Barrow's cut sounding", len(want.hashes), want.skips)

@@ -4,14 +4,12 @@ import (
 	"archive/zip"
 	"bytes"
 	"compress/gzip"
-	"context"
 	"os"
 	"path/filepath"
 	"reflect"
 	"testing"
 
 	"github.com/sondeclim/sondeclim/internal/realdata"
-	"github.com/sondeclim/sondeclim/schema/store"
 )
 
 // TestWholeDecoding: a compressed input decoded in one call (wholeGzip,
@@ -56,31 +54,7 @@ func TestWholeDecoding(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	type outcome struct {
-		hashes map[string]string
-		inputs map[string]string
-		skips  []Skip
-		sum    *Summary
-	}
-	run := func(in string, opt Options) outcome {
-		storeDir := t.TempDir()
-		sum, err := Run(context.Background(), storeDir, []string{in}, opt)
-		if err != nil {
-			t.Fatal(err)
-		}
-		m, err := store.ReadManifest(storeDir, store.Shard{})
-		if err != nil {
-			t.Fatal(err)
-		}
-		o := outcome{hashes: map[string]string{}, inputs: map[string]string{}, skips: sum.Skipped, sum: sum}
-		for k, p := range m.Partitions {
-			o.hashes[k] = p.ContentHash
-		}
-		for k, p := range m.Inputs {
-			o.inputs[k] = p.SHA256
-		}
-		return o
-	}
+	run := func(in string, opt Options) runOutcome { return ingestOutcome(t, []string{in}, opt) }
 	const midway = 1<<20 + 1000 // a first MiB in memory, then the rest on disk
 	for _, c := range []struct {
 		name  string
@@ -184,20 +158,8 @@ func TestWholeZipDamaged(t *testing.T) {
 			t.Fatal(err)
 		}
 		outcome := func(opt Options) (map[string]string, []Skip, *Summary) {
-			storeDir := t.TempDir()
-			sum, err := Run(context.Background(), storeDir, []string{in}, opt)
-			if err != nil {
-				t.Fatal(err)
-			}
-			m, err := store.ReadManifest(storeDir, store.Shard{})
-			if err != nil {
-				t.Fatal(err)
-			}
-			h := map[string]string{}
-			for k, p := range m.Partitions {
-				h[k] = p.ContentHash
-			}
-			return h, sum.Skipped, sum
+			o := ingestOutcome(t, []string{in}, opt)
+			return o.hashes, o.skips, o.sum
 		}
 		wantH, wantS, _ := outcome(Options{Workers: 1, decodeAll: true})
 		if c.reported != (len(wantS) > 0) {
