@@ -87,9 +87,9 @@ func (r *run) stageInputs(files []string, st *staged, keep func(path string) map
 	g.SetLimit(r.workers)
 	stop := r.reportReading(len(files))
 	defer stop()
-	// One buffer for a compressed input read whole per reading goroutine,
-	// handed from one input to the next (not a sync.Pool, which each
-	// collection empties).
+	// One set of buffers per reading goroutine (a compressed input read
+	// whole, the text of one staged on disk), handed from one input to
+	// the next (not a sync.Pool, which each collection empties).
 	r.textBudget = &memBudget{limit: WholeTextBytes}
 	srcs := make(chan *readBuffers, r.workers)
 	for range r.workers {
@@ -488,10 +488,11 @@ type indexer struct {
 // (input.Gunzip), and indexes its text. The text goes straight into the
 // staging copy's memory, which holds the size hint its trailer states;
 // with toDisk (the staging budget could not hold it) it goes into
-// buf.text, hint bytes, instead and is written to the staging copy's file
-// in one piece. done is false, with nothing charged or staged, when
-// Gunzip does not decode it (damaged, several members, or larger than
-// stated) or the run's budget does not hold it: the caller then reads it
+// buf.text, which roomFor made hold hint bytes, instead and is written to
+// the staging copy's file in one piece. done is false, with nothing
+// charged or staged, when Gunzip does not decode it (damaged, or larger
+// than the room: several members, a trailer that states too little) or
+// the run's budget does not hold it: the caller then reads it
 // as a stream, which reports what is wrong. The file is sniffed as the
 // stream is, from its first 4096 decompressed bytes, so the same files are
 // read in place. (On disk, the stream decoder's way cost about a third
@@ -596,7 +597,6 @@ func (ix *indexer) wholeZip(zm *zip.File, hint int64, cp *stagingCopy, sum hash.
 // NUL, the text, as the stream path does) and indexed.
 func (ix *indexer) stageWhole(text []byte, member string, cp *stagingCopy, sum hash.Hash, buf *readBuffers, toDisk bool) error {
 	if toDisk {
-		buf.text = text
 		if err := cp.spill(); err != nil {
 			return &writeError{err}
 		}
